@@ -1,0 +1,3 @@
+from modelcheck.cli import main
+
+raise SystemExit(main())

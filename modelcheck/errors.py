@@ -1,0 +1,34 @@
+"""Errors the user can cause.
+
+Every one of them carries a message that names where the problem is (file, line/row,
+GlobalId). The CLI prints ``modelcheck: error: <message>`` on one line and exits with 2.
+"""
+
+from __future__ import annotations
+
+
+class ModelcheckError(Exception):
+    """Base class of every error caused by the user's input."""
+
+    def __init__(self, message: str, *, path: str | None = None, where: str | None = None) -> None:
+        self.path = path
+        self.where = where
+        parts = [p for p in (path, where) if p]
+        prefix = ":".join(parts)
+        super().__init__(f"{prefix}: {message}" if prefix else message)
+
+
+class ModelReadError(ModelcheckError):
+    """An IFC model that cannot be opened or understood."""
+
+
+class LoadTableError(ModelcheckError):
+    """A load table (CSV/XLSX) that cannot be read: bad units, bad rows, bad keys."""
+
+
+class RuleSetError(ModelcheckError):
+    """A rule-set file with a syntax, name, unit or safety error."""
+
+
+class UsageError(ModelcheckError):
+    """Command-line arguments that do not make sense together."""

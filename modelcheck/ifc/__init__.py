@@ -1,0 +1,1 @@
+"""Reading IFC models: members, sections, materials and lengths."""

@@ -1,0 +1,276 @@
+"""The one pint registry of the project, and IFC unit entities turned into pint quantities.
+
+Every value read from a model goes through :class:`UnitContext`: the file's own
+IfcUnitAssignment decides what a number means. Nothing is assumed: a measure whose unit the
+file does not assign raises :class:`MissingUnit`, and the caller reports the value as missing.
+
+Rules followed (IFC 4.3, IfcSIUnit / IfcConversionBasedUnit / IfcDerivedUnit):
+
+* an SI prefix attaches to the metre before the power: CENTI SQUARE_METRE is (0.01 m)² = 1e-4 m²,
+  DECI CUBIC_METRE is (0.1 m)³, one litre;
+* a conversion-based unit is the factor written in the file times the unit that factor names,
+  whatever the unit's name ('pound-force', 'lbf' and 'kip' all occur in the wild);
+* a derived unit is the product of its elements raised to their exponents.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from functools import lru_cache
+from typing import Any
+
+import pint
+
+ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+ureg.formatter.default_format = "~"
+Q_ = ureg.Quantity
+
+#: SI base unit for each physical dimension handled here; numbers in tables are in these.
+SI_UNIT_OF_DIMENSION: dict[str, str] = {
+    "[length]": "m",
+    "[length] ** 2": "m**2",
+    "[length] ** 3": "m**3",
+    "[length] ** 4": "m**4",
+    "[force]": "N",
+    "[pressure]": "Pa",
+}
+
+_PREFIX = {
+    "EXA": 1e18, "PETA": 1e15, "TERA": 1e12, "GIGA": 1e9, "MEGA": 1e6, "KILO": 1e3,
+    "HECTO": 1e2, "DECA": 1e1, "DECI": 1e-1, "CENTI": 1e-2, "MILLI": 1e-3, "MICRO": 1e-6,
+    "NANO": 1e-9, "PICO": 1e-12, "FEMTO": 1e-15, "ATTO": 1e-18,
+}
+
+# IfcSIUnitName -> (pint unit, power of the metre the prefix applies to; 0 = prefix applies plainly)
+_SI_NAME: dict[str, tuple[str, int]] = {
+    "METRE": ("m", 1),
+    "SQUARE_METRE": ("m**2", 2),
+    "CUBIC_METRE": ("m**3", 3),
+    "GRAM": ("g", 0),
+    "SECOND": ("s", 0),
+    "NEWTON": ("N", 0),
+    "PASCAL": ("Pa", 0),
+    "JOULE": ("J", 0),
+    "WATT": ("W", 0),
+    "HERTZ": ("Hz", 0),
+    "KELVIN": ("K", 0),
+    # a temperature *difference* is what appears in expansion coefficients; 1 degC step = 1 K
+    "DEGREE_CELSIUS": ("K", 0),
+    "RADIAN": ("rad", 0),
+    "STERADIAN": ("sr", 0),
+    "AMPERE": ("A", 0),
+    "MOLE": ("mol", 0),
+    "CANDELA": ("cd", 0),
+    "LUMEN": ("lm", 0),
+    "LUX": ("lx", 0),
+    "VOLT": ("V", 0),
+    "OHM": ("ohm", 0),
+    "COULOMB": ("C", 0),
+    "FARAD": ("F", 0),
+    "HENRY": ("H", 0),
+    "SIEMENS": ("S", 0),
+    "TESLA": ("T", 0),
+    "WEBER": ("Wb", 0),
+    "BECQUEREL": ("Bq", 0),
+    "GRAY": ("Gy", 0),
+    "SIEVERT": ("Sv", 0),
+}
+
+#: IFC measure type (as ifcopenshell names it) -> unit type of IfcUnitAssignment
+MEASURE_UNIT_TYPE: dict[str, str] = {
+    "IfcLengthMeasure": "LENGTHUNIT",
+    "IfcPositiveLengthMeasure": "LENGTHUNIT",
+    "IfcNonNegativeLengthMeasure": "LENGTHUNIT",
+    "IfcAreaMeasure": "AREAUNIT",
+    "IfcVolumeMeasure": "VOLUMEUNIT",
+    "IfcForceMeasure": "FORCEUNIT",
+    "IfcPressureMeasure": "PRESSUREUNIT",
+    "IfcModulusOfElasticityMeasure": "MODULUSOFELASTICITYUNIT",
+    "IfcThermalExpansionCoefficientMeasure": "THERMALEXPANSIONCOEFFICIENTUNIT",
+    "IfcMassDensityMeasure": "MASSDENSITYUNIT",
+    "IfcMassMeasure": "MASSUNIT",
+    "IfcPlaneAngleMeasure": "PLANEANGLEUNIT",
+    "IfcPositivePlaneAngleMeasure": "PLANEANGLEUNIT",
+    "IfcMomentOfInertiaMeasure": "MOMENTOFINERTIAUNIT",
+    "IfcSectionModulusMeasure": "SECTIONMODULUSUNIT",
+    "IfcLinearForceMeasure": "LINEARFORCEUNIT",
+    "IfcThermodynamicTemperatureMeasure": "THERMODYNAMICTEMPERATUREUNIT",
+    "IfcTimeMeasure": "TIMEUNIT",
+}
+
+#: measures that carry no unit at all (ratios, counts, labels)
+UNITLESS_MEASURES = frozenset({
+    "IfcRatioMeasure", "IfcPositiveRatioMeasure", "IfcNormalisedRatioMeasure", "IfcReal",
+    "IfcInteger", "IfcCountMeasure", "IfcNumericMeasure", "IfcPositiveInteger",
+})
+
+
+class MissingUnit(LookupError):
+    """The file assigns no unit to a measure type that a value needs."""
+
+    def __init__(self, unit_type: str) -> None:
+        self.unit_type = unit_type
+        super().__init__(f"the model's IfcUnitAssignment has no {unit_type}")
+
+
+class UnitDefinitionError(ValueError):
+    """A unit entity in the file that cannot be turned into a quantity."""
+
+
+def si_unit_quantity(prefix: str | None, name: str) -> pint.Quantity:
+    """One IfcSIUnit as a pint quantity in SI base units.
+
+    >>> si_unit_quantity("CENTI", "SQUARE_METRE")
+    <Quantity(0.0001, 'meter ** 2')>
+    """
+    try:
+        unit, power = _SI_NAME[name]
+    except KeyError as exc:
+        raise UnitDefinitionError(f"unknown IfcSIUnitName {name!r}") from exc
+    factor = 1.0
+    if prefix:
+        try:
+            p = _PREFIX[prefix]
+        except KeyError as exc:
+            raise UnitDefinitionError(f"unknown IfcSIPrefix {prefix!r}") from exc
+        factor = p ** (power or 1)
+    return Q_(factor, unit).to_base_units() if name != "GRAM" else Q_(factor * 1e-3, "kg")
+
+
+def unit_quantity(unit: Any, _depth: int = 0) -> pint.Quantity:
+    """Any IfcNamedUnit / IfcDerivedUnit entity as a pint quantity (its size in SI base units)."""
+    if _depth > 16:
+        raise UnitDefinitionError(f"unit #{unit.id()} refers to itself")
+    cls = unit.is_a()
+    if cls == "IfcSIUnit":
+        return si_unit_quantity(unit.Prefix, unit.Name)
+    if cls in ("IfcConversionBasedUnit", "IfcConversionBasedUnitWithOffset"):
+        mwu = unit.ConversionFactor
+        if mwu is None:
+            raise UnitDefinitionError(f"conversion-based unit #{unit.id()} {unit.Name!r} has no factor")
+        value = mwu.ValueComponent
+        magnitude = float(value.wrappedValue if hasattr(value, "wrappedValue") else value)
+        if not math.isfinite(magnitude) or magnitude == 0:
+            raise UnitDefinitionError(
+                f"conversion-based unit #{unit.id()} {unit.Name!r} has factor {magnitude!r}"
+            )
+        return magnitude * unit_quantity(mwu.UnitComponent, _depth + 1)
+    if cls == "IfcDerivedUnit":
+        result = Q_(1.0, "")
+        for el in unit.Elements or ():
+            result = result * unit_quantity(el.Unit, _depth + 1) ** int(el.Exponent)
+        return result.to_base_units()
+    if cls == "IfcContextDependentUnit":
+        raise UnitDefinitionError(
+            f"context-dependent unit #{unit.id()} {unit.Name!r} has no defined size"
+        )
+    raise UnitDefinitionError(f"#{unit.id()} {cls} is not a unit modelcheck understands")
+
+
+def unit_label(unit: Any) -> str:
+    """A short human label of a unit entity, for provenance strings ('mm', 'kip', 'N/mm2')."""
+    cls = unit.is_a()
+    if cls == "IfcSIUnit":
+        short = {"MILLI": "m", "CENTI": "c", "KILO": "k", "MEGA": "M", "GIGA": "G", "DECI": "d"}
+        base = {"METRE": "m", "SQUARE_METRE": "m2", "CUBIC_METRE": "m3", "NEWTON": "N",
+                "PASCAL": "Pa", "GRAM": "g", "KELVIN": "K", "DEGREE_CELSIUS": "degC"}
+        return short.get(unit.Prefix or "", (unit.Prefix or "").lower()) + base.get(unit.Name, unit.Name.lower())
+    if cls.startswith("IfcConversionBasedUnit"):
+        return str(unit.Name)
+    if cls == "IfcDerivedUnit":
+        return "·".join(
+            f"{unit_label(e.Unit)}^{e.Exponent}" if e.Exponent != 1 else unit_label(e.Unit)
+            for e in unit.Elements or ()
+        )
+    return cls
+
+
+@dataclass(frozen=True)
+class UnitContext:
+    """The units a model assigns, each as its size in SI base units.
+
+    ``factor('LENGTHUNIT')`` is the number of metres in one of the file's length units;
+    ``to_si(v, 'IfcForceMeasure')`` turns a raw value into newtons.
+    """
+
+    sizes: dict[str, pint.Quantity] = field(default_factory=dict)
+    labels: dict[str, str] = field(default_factory=dict)
+    problems: tuple[str, ...] = ()
+
+    @classmethod
+    def from_model(cls, model: Any) -> UnitContext:
+        sizes: dict[str, pint.Quantity] = {}
+        labels: dict[str, str] = {}
+        problems: list[str] = []
+        assignments = model.by_type("IfcUnitAssignment")
+        projects = model.by_type("IfcProject")
+        chosen = None
+        if projects and getattr(projects[0], "UnitsInContext", None) is not None:
+            chosen = projects[0].UnitsInContext
+        elif assignments:
+            chosen = assignments[0]
+        for unit in (chosen.Units if chosen is not None else ()) or ():
+            if unit.is_a("IfcMonetaryUnit"):
+                continue
+            utype = unit.UnitType if not unit.is_a("IfcDerivedUnit") else unit.UnitType
+            if utype == "USERDEFINED" and unit.is_a("IfcDerivedUnit"):
+                utype = f"USERDEFINED:{unit.UserDefinedType}"
+            try:
+                sizes[utype] = unit_quantity(unit)
+                labels[utype] = unit_label(unit)
+            except (UnitDefinitionError, pint.PintError) as exc:
+                problems.append(f"{utype}: {exc}")
+        return cls(sizes=sizes, labels=labels, problems=tuple(problems))
+
+    def has(self, unit_type: str) -> bool:
+        return unit_type in self.sizes
+
+    def size(self, unit_type: str) -> pint.Quantity:
+        try:
+            return self.sizes[unit_type]
+        except KeyError:
+            raise MissingUnit(unit_type) from None
+
+    def factor(self, unit_type: str) -> float:
+        """SI base units per one file unit of ``unit_type``."""
+        return float(self.size(unit_type).magnitude)
+
+    def label(self, unit_type: str) -> str:
+        return self.labels.get(unit_type, unit_type)
+
+    def measure_factor(self, measure: str) -> float:
+        """SI factor for an IFC measure type name; 1.0 for unitless measures."""
+        if measure in UNITLESS_MEASURES:
+            return 1.0
+        try:
+            unit_type = MEASURE_UNIT_TYPE[measure]
+        except KeyError:
+            raise MissingUnit(f"unit for {measure}") from None
+        return self.factor(unit_type)
+
+
+@lru_cache(maxsize=256)
+def parse_unit(text: str) -> pint.Unit:
+    """A unit string such as 'kN', 'kip', 'N/mm**2' as a pint unit (raises pint errors)."""
+    return ureg.Unit(text)
+
+
+def to_si(value: float, unit: str) -> float:
+    """``value`` in ``unit`` expressed in SI base units."""
+    return float(Q_(value, unit).to_base_units().magnitude)
+
+
+def from_si(value: float, unit: str) -> float:
+    """SI base-unit ``value`` expressed in ``unit``."""
+    q = Q_(1.0, unit).to_base_units()
+    return float(value / q.magnitude)
+
+
+def si_unit_for(unit: str) -> str:
+    """The SI base unit string with the same dimension as ``unit`` ('kip' -> 'N')."""
+    dim = str(Q_(1.0, unit).dimensionality)
+    for key, si in SI_UNIT_OF_DIMENSION.items():
+        if str(Q_(1.0, si).dimensionality) == dim:
+            return si
+    return str(Q_(1.0, unit).to_base_units().units)
