@@ -1,0 +1,1 @@
+"""loads stage of the pipeline."""

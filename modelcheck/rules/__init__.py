@@ -1,0 +1,1 @@
+"""rules stage of the pipeline."""
