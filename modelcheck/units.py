@@ -270,7 +270,7 @@ def from_si(value: float, unit: str) -> float:
 def si_unit_for(unit: str) -> str:
     """The SI base unit string with the same dimension as ``unit`` ('kip' -> 'N')."""
     dim = str(Q_(1.0, unit).dimensionality)
-    for key, si in SI_UNIT_OF_DIMENSION.items():
+    for si in SI_UNIT_OF_DIMENSION.values():
         if str(Q_(1.0, si).dimensionality) == dim:
             return si
     return str(Q_(1.0, unit).to_base_units().units)

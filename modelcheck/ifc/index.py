@@ -1,0 +1,217 @@
+"""Open a model and walk its relationships once into plain maps.
+
+``build_index(path)`` is the only place that opens an IFC file for reading. Every later stage
+(members, forces, annotation) asks these maps instead of asking each element for its inverses:
+a relation entity is visited once, whatever the number of elements it relates.
+
+Example::
+
+    idx = build_index("sample_models/mezzanine.ifc")
+    idx.units.factor("LENGTHUNIT")      # metres per file length unit
+    idx.psets_of[element.id()]         # its property sets and quantity sets (occurrence only)
+    property_si(idx, pset_prop)        # a property's value in SI base units, by the file's units
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import zipfile
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+import ifcopenshell
+
+from modelcheck.errors import ModelReadError
+from modelcheck.units import (
+    MEASURE_UNIT_TYPE,
+    UNITLESS_MEASURES,
+    MissingUnit,
+    UnitContext,
+    UnitDefinitionError,
+    unit_label,
+    unit_quantity,
+)
+
+SUPPORTED_SCHEMAS = ("IFC2X3", "IFC4", "IFC4X3")
+
+
+@dataclass
+class ModelIndex:
+    """One opened model and the maps of its relationships (built once, then read only)."""
+
+    path: str
+    file: Any
+    schema: str
+    units: UnitContext
+    type_of: dict[int, Any] = field(default_factory=dict)          # occurrence id -> type object
+    psets_of: dict[int, list[Any]] = field(default_factory=dict)   # object id -> psets / qsets
+    material_of: dict[int, Any] = field(default_factory=dict)      # object id -> material select
+    storey_of: dict[int, Any] = field(default_factory=dict)        # element id -> spatial structure
+    assigned_to: dict[int, list[Any]] = field(default_factory=dict)  # product id -> assigned objects
+    material_props: dict[int, list[Any]] = field(default_factory=dict)  # material id -> property entities
+    profile_props: dict[int, list[Any]] = field(default_factory=dict)   # profile id -> property entities
+
+    def type_psets(self, typ: Any) -> list[Any]:
+        return list(typ.HasPropertySets or ()) if typ is not None else []
+
+
+def open_model(path: str | os.PathLike[str]) -> Any:
+    """``ifcopenshell.open`` with every way a file can be broken turned into one clear error."""
+    p = Path(path)
+    name = str(path)
+    if not p.exists():
+        raise ModelReadError("no such file", path=name)
+    if p.is_dir():
+        raise ModelReadError("is a folder, not an IFC file", path=name)
+    size = p.stat().st_size
+    if size == 0:
+        raise ModelReadError("empty file, not an IFC model", path=name)
+    with open(p, "rb") as fh:
+        head = fh.read(64)
+    if zipfile.is_zipfile(p):
+        if p.suffix.lower() != ".ifczip":
+            raise ModelReadError("is a zip archive, not an IFC model (rename to .ifczip if it holds one)", path=name)
+    elif not head.lstrip().startswith(b"ISO-10303-21"):
+        if head.lstrip().startswith(b"<"):
+            raise ModelReadError("is XML; only IFC-SPF (.ifc) and .ifczip are read", path=name)
+        raise ModelReadError("not an IFC-SPF file (it does not start with ISO-10303-21)", path=name)
+    try:
+        model = ifcopenshell.open(str(p))
+    except (RuntimeError, OSError, ValueError, UnicodeDecodeError, IndexError, KeyError) as exc:
+        text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+        raise ModelReadError(f"cannot be parsed as IFC: {text}", path=name) from None
+    schema = _schema_of(model)
+    if schema not in SUPPORTED_SCHEMAS:
+        raise ModelReadError(f"schema {model.schema!r} is not supported (IFC2X3, IFC4, IFC4X3)", path=name)
+    return model
+
+
+def _schema_of(model: Any) -> str:
+    s = str(getattr(model, "schema_identifier", None) or model.schema).upper()
+    if s.startswith("IFC4X3"):
+        return "IFC4X3"
+    if s.startswith("IFC2X3"):
+        return "IFC2X3"
+    if s.startswith("IFC4"):
+        return "IFC4"
+    return s
+
+
+def build_index(path: str | os.PathLike[str], model: Any = None) -> ModelIndex:
+    """Open ``path`` (unless ``model`` is given) and walk its relationships once."""
+    model = model if model is not None else open_model(path)
+    schema = _schema_of(model)
+    try:
+        units = UnitContext.from_model(model)
+    except (UnitDefinitionError, AttributeError, RuntimeError) as exc:
+        raise ModelReadError(f"unit assignment cannot be read: {exc}", path=str(path)) from None
+    idx = ModelIndex(path=str(path), file=model, schema=schema, units=units)
+    try:
+        _walk(model, idx)
+    except RuntimeError as exc:  # dangling reference or unparsable instance deep in the file
+        raise ModelReadError(f"broken relationship in the model: {exc}", path=str(path)) from None
+    return idx
+
+
+def _walk(model: Any, idx: ModelIndex) -> None:
+    for rel in model.by_type("IfcRelDefinesByType"):
+        typ = rel.RelatingType
+        for obj in rel.RelatedObjects or ():
+            idx.type_of[obj.id()] = typ
+    for rel in model.by_type("IfcRelDefinesByProperties"):
+        pdef = rel.RelatingPropertyDefinition
+        pdefs = list(pdef) if isinstance(pdef, tuple) else [pdef]
+        for obj in rel.RelatedObjects or ():
+            idx.psets_of.setdefault(obj.id(), []).extend(pdefs)
+    for rel in model.by_type("IfcRelAssociatesMaterial"):
+        mat = rel.RelatingMaterial
+        for obj in rel.RelatedObjects or ():
+            idx.material_of[obj.id()] = mat
+    for rel in model.by_type("IfcRelContainedInSpatialStructure"):
+        st = rel.RelatingStructure
+        for el in rel.RelatedElements or ():
+            idx.storey_of[el.id()] = st
+    for rel in model.by_type("IfcRelAssignsToProduct"):
+        prod = rel.RelatingProduct
+        if prod is not None:
+            idx.assigned_to.setdefault(prod.id(), []).extend(rel.RelatedObjects or ())
+    for mp in model.by_type("IfcMaterialProperties"):  # IFC2X3 mechanical subtypes included
+        mat = getattr(mp, "Material", None)
+        if mat is not None:
+            idx.material_props.setdefault(mat.id(), []).append(mp)
+    if idx.schema != "IFC2X3":
+        for pp in model.by_type("IfcProfileProperties"):
+            prof = pp.ProfileDefinition
+            if prof is not None:
+                idx.profile_props.setdefault(prof.id(), []).append(pp)
+    else:
+        for pp in model.by_type("IfcProfileProperties"):
+            prof = getattr(pp, "ProfileDefinition", None)
+            if prof is not None:
+                idx.profile_props.setdefault(prof.id(), []).append(pp)
+
+
+@dataclass(frozen=True)
+class SIValue:
+    value: float       # in SI base units
+    raw: float         # as written
+    unit: str          # the file's unit label for it
+    measure: str       # IFC measure type
+
+
+def measure_si(idx: ModelIndex, measure: str, raw: float, unit_entity: Any = None) -> SIValue:
+    """A raw number of IFC measure type ``measure`` in SI base units.
+
+    A unit on the property itself wins over the project's assignment. Raises MissingUnit when
+    neither states one (never assumed).
+    """
+    if unit_entity is not None:
+        try:
+            q = unit_quantity(unit_entity)
+        except UnitDefinitionError as exc:
+            raise MissingUnit(f"usable unit ({exc})") from None
+        return SIValue(float(raw) * float(q.to_base_units().magnitude), float(raw),
+                       unit_label(unit_entity), measure)
+    if measure in UNITLESS_MEASURES:
+        return SIValue(float(raw), float(raw), "", measure)
+    unit_type = MEASURE_UNIT_TYPE.get(measure)
+    if unit_type is None:
+        raise MissingUnit(f"unit for {measure}")
+    return SIValue(float(raw) * idx.units.factor(unit_type), float(raw), idx.units.label(unit_type), measure)
+
+
+def property_si(idx: ModelIndex, prop: Any) -> SIValue | None:
+    """An IfcPropertySingleValue's NominalValue in SI (None when it has none)."""
+    nv = getattr(prop, "NominalValue", None)
+    if nv is None:
+        return None
+    raw = nv.wrappedValue
+    if isinstance(raw, bool) or not isinstance(raw, int | float):
+        return None
+    return measure_si(idx, nv.is_a(), float(raw), getattr(prop, "Unit", None))
+
+
+def find_property(psets: list[Any], pset_name: str, prop_name: str) -> Any:
+    """The named property in the named set among ``psets`` (case-sensitive names), or None."""
+    for ps in psets:
+        if ps.is_a("IfcPropertySet") and ps.Name == pset_name:
+            for p in ps.HasProperties or ():
+                if p.Name == prop_name:
+                    return p
+    return None
+
+
+def find_quantity(psets: list[Any], prop_name: str, prefix: str = "Qto_") -> tuple[Any, Any]:
+    """(quantity set, quantity) named ``prop_name`` in any set whose name starts with ``prefix``."""
+    for ps in psets:
+        if ps.is_a("IfcElementQuantity") and (ps.Name or "").startswith(prefix):
+            for q in ps.Quantities or ():
+                if q.Name == prop_name:
+                    return ps, q
+    return None, None
+
+
+def finite_positive(x: float) -> bool:
+    return math.isfinite(x) and x > 0
