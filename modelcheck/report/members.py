@@ -1,0 +1,104 @@
+"""Reporters of the member inventory (`modelcheck members`): rich table, JSON contract, CSV."""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+import pandas as pd
+
+from modelcheck.report.quantities import DisplayUnits
+
+CAUTION = ("modelcheck screens models for data and axial-stress problems; it does not replace design "
+           "and checking by a licensed engineer under the governing local code.")
+
+
+def _s(v: Any) -> Any:
+    """None for NaN / pandas missing values, else the value."""
+    if v is None:
+        return None
+    if isinstance(v, float) and math.isnan(v):
+        return None
+    return v
+
+
+def member_dicts(members: pd.DataFrame, forces: pd.DataFrame | None, units: DisplayUnits,
+                 capacity: pd.DataFrame | None = None) -> list[dict[str, Any]]:
+    """Members as dicts of the JSON contract (README: 'members JSON')."""
+    force_map: dict[str, dict[str, Any]] = {}
+    if forces is not None and len(forces):
+        ff = units.convert("force", 1.0)
+        for gid, case, val, src in zip(forces["global_id"], forces["load_case"], forces["axial_force"],
+                                       forces["source"], strict=True):
+            force_map.setdefault(gid, {})[str(case)] = {
+                "value": float(f"{val * ff:.6g}"), "unit": units.unit("force"), "source": src}
+    cap_map: dict[str, dict[str, Any]] = {}
+    if capacity is not None and len(capacity):
+        for rec in capacity.to_dict("records"):
+            cap_map[rec["global_id"]] = {k: v for k, v in rec.items() if k != "global_id"}
+    out = []
+    q = units.q
+    for rec in members.to_dict("records"):
+        material = None
+        if rec["material"] is not None or any(_s(rec[k]) is not None for k in ("E", "Fy", "Fu")):
+            material = {"name": rec["material"], "category": rec["material_category"],
+                        "grade": rec["material_grade"],
+                        "E": q("E", rec["E"], rec["E_source"]), "Fy": q("Fy", rec["Fy"], rec["Fy_source"]),
+                        "Fu": q("Fu", rec["Fu"], rec["Fu_source"]),
+                        "alpha": q("alpha", rec["alpha"], rec["alpha_source"])}
+        item = {
+            "global_id": rec["global_id"], "ifc_class": rec["ifc_class"],
+            "predefined_type": _s(rec["predefined_type"]), "object_type": _s(rec["object_type"]),
+            "name": _s(rec["name"]), "tag": _s(rec["tag"]), "storey": _s(rec["storey"]),
+            "type_name": _s(rec["type_name"]),
+            "section": {"name": _s(rec["section_name"]), "profile_type": _s(rec["profile_type"]),
+                        "shape": _s(rec["shape"]),
+                        "area": q("area", rec["area"], rec["area_source"]),
+                        "r_min": q("r_min", rec["r_min"], rec["r_min_source"])},
+            "length": q("length", rec["length"], rec["length_source"]),
+            "material": material,
+            "axial_force": force_map.get(rec["global_id"], {}),
+            "warnings": list(rec["warnings"] or []),
+        }
+        if rec["global_id"] in cap_map:
+            item["capacity"] = cap_map[rec["global_id"]]
+        out.append(item)
+    return out
+
+
+def members_csv(members: pd.DataFrame, units: DisplayUnits) -> pd.DataFrame:
+    """A flat table for spreadsheets: one row per member, values in display units."""
+    df = members.copy()
+    for col in ("area", "r_min", "length", "E", "Fy", "Fu", "alpha"):
+        df[col] = df[col] * units.convert(col, 1.0)
+        df = df.rename(columns={col: f"{col} [{units.unit(col)}]"})
+    for col in ("d", "h", "b", "tf", "tw", "t"):
+        df[col] = df[col] * units.convert("small_length", 1.0)
+        df = df.rename(columns={col: f"{col} [{units.unit('small_length')}]"})
+    df["warnings"] = df["warnings"].map(lambda w: " | ".join(w or []))
+    return df
+
+
+def members_table(members: pd.DataFrame, units: DisplayUnits, title: str) -> Any:
+    """A rich Table of the members of one model."""
+    from rich.table import Table
+
+    t = Table(title=title, title_justify="left", header_style="bold")
+    for col, just in (("GlobalId", "left"), ("Class", "left"), ("Name / tag", "left"), ("Section", "left"),
+                      (f"A [{units.unit('area')}]", "right"), (f"r min [{units.unit('r_min')}]", "right"),
+                      (f"L [{units.unit('length')}]", "right"), ("Material", "left"),
+                      (f"Fy [{units.unit('Fy')}]", "right"), ("Notes", "left")):
+        t.add_column(col, justify=just, overflow="fold")
+
+    def num(v: float, q: str, fmt: str = "{:.4g}") -> str:
+        return "—" if v is None or not math.isfinite(v) else fmt.format(units.convert(q, v))
+
+    for rec in members.to_dict("records"):
+        label = " / ".join(x for x in (rec["name"], rec["tag"]) if x)
+        sec = rec["section_name"] or (rec["profile_type"] or "").removeprefix("Ifc").removesuffix("ProfileDef")
+        warn = rec["warnings"] or []
+        t.add_row(rec["global_id"], rec["ifc_class"].removeprefix("Ifc"), label or "—", sec or "[red]none[/]",
+                  num(rec["area"], "area"), num(rec["r_min"], "r_min"), num(rec["length"], "length"),
+                  rec["material"] or "[red]none[/]", num(rec["Fy"], "Fy"),
+                  (f"[yellow]{len(warn)} warning(s)[/]" if warn else ""))
+    return t
