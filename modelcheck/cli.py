@@ -61,6 +61,8 @@ def build_parser() -> argparse.ArgumentParser:
     c.add_argument("--strict", action="store_true", help="exit 1 also when a member is unchecked")
     c.add_argument("--validate", action="store_true",
                    help="list schema violations (ifcopenshell validator) as warnings")
+    c.add_argument("--jobs", "-j", type=int, default=None, metavar="N",
+                   help="worker processes for several models (default: the CPU count)")
     add_force_args(c)
 
     r = sub.add_parser("rules", help="list, show or validate rule sets")
@@ -76,8 +78,6 @@ def main(argv: list[str] | None = None) -> int:
         if args.command == "members":
             return cmd_members(args)
         if args.command == "check":
-            from modelcheck.commands.check import cmd_check
-
             return cmd_check(args)
         if args.command == "rules":
             return cmd_rules(args)
@@ -240,4 +240,65 @@ def cmd_rules(args: argparse.Namespace) -> int:
         print(f"modelcheck: error: {args.target}: {len(errors)} error(s)", file=sys.stderr)
         return EXIT_INPUT
     con.print(f"{args.target}: valid")
+    return EXIT_OK
+
+
+# ---------------------------------------------------------------------------- check
+#: output format -> (file extension, writer(run, path))
+FILE_FORMATS = ("json",)
+
+
+def _write_json(run: Any, path: str | None, inputs: list[str]) -> None:
+    from modelcheck.report.check_json import check_document
+
+    write_text(json.dumps(check_document(run), indent=2, ensure_ascii=False) + "\n", path, inputs)
+
+
+def cmd_check(args: argparse.Namespace) -> int:
+    import os
+
+    from rich.console import Console
+
+    from modelcheck.pipeline import expand_paths, run_check
+    from modelcheck.report.console import render_check
+    from modelcheck.rules.ruleset import load_ruleset
+
+    formats = [f.strip() for f in (args.format or "console").split(",") if f.strip()]
+    unknown = [f for f in formats if f not in ("console",) + FILE_FORMATS]
+    if unknown:
+        raise UsageError(f"unknown --format {', '.join(unknown)} (choose from console, {', '.join(FILE_FORMATS)})")
+    files = [f for f in formats if f != "console"]
+    if len(files) > 1 and not args.output:
+        raise UsageError("several file formats need --output FOLDER")
+    paths = expand_paths(args.models)
+    ruleset = load_ruleset(args.rules or "steel-asd-us")
+    fopts = force_options(args, ruleset)
+    jobs = args.jobs if args.jobs is not None else (os.cpu_count() or 1)
+    if jobs < 1:
+        raise UsageError("--jobs must be at least 1")
+    run = run_check(paths, ruleset, fopts, jobs=jobs, validate=args.validate)
+    inputs = paths + list(args.loads)
+    for fmt in files:
+        out = args.output
+        if len(files) > 1:
+            os.makedirs(args.output, exist_ok=True)
+            out = os.path.join(args.output, f"modelcheck-report.{fmt}")
+        if fmt == "json":
+            _write_json(run, out, inputs)
+    if "console" in formats:
+        render_check(run, Console(stderr=bool(files) and not args.output))
+    for m in run.models:
+        if m.error:
+            print(f"modelcheck: error: {m.error}", file=sys.stderr)
+    return exit_code(run, args.strict)
+
+
+def exit_code(run: Any, strict: bool) -> int:
+    if any(m.error for m in run.models):
+        return EXIT_INPUT
+    status = run.results["status"] if len(run.results) else None
+    if status is not None and (status == "fail").any():
+        return EXIT_FAIL
+    if strict and status is not None and (status == "unchecked").any():
+        return EXIT_FAIL
     return EXIT_OK

@@ -30,6 +30,7 @@ class ModelData:
     error: str | None = None
     system: str = "SI"                       # display units natural to the model
     members: pd.DataFrame | None = None
+    member_count: int = 0
     forces: pd.DataFrame = field(default_factory=empty_forces)
     matched_rows: set[str] = field(default_factory=set)   # load-table row sources used here
     force_messages: list[str] = field(default_factory=list)
@@ -81,6 +82,7 @@ def read_model(path: str, forces: ForceOptions | None = None, *, validate: bool 
     if validate:
         data.validation = validate_model(idx)
     data.members = read_members(idx)
+    data.member_count = len(data.members)
     data.warnings = list(data.members.attrs.get("model_warnings", []))
     if forces is not None:
         attach_forces(data, idx, forces)
@@ -123,3 +125,78 @@ def validate_model(idx: Any) -> list[str]:
     finally:
         logger.removeHandler(handler)
     return [f"{idx.path}: {line}" for line in handler.lines]
+
+
+# ------------------------------------------------------------------------------ check
+#: member columns the reporters show beside results (identity, section, material)
+REPORT_MEMBER_COLUMNS = ("model", "global_id", "ifc_class", "predefined_type", "object_type", "name", "tag",
+                         "storey", "type_name", "section_name", "profile_type", "shape", "material",
+                         "material_grade", "area", "r_min", "length", "d", "h", "b", "t", "tf", "tw", "E", "Fy",
+                         "Fu", "alpha")
+
+
+@dataclass
+class CheckedModel:
+    """What one worker sends back for one model (picklable)."""
+
+    data: ModelData
+    results: pd.DataFrame | None = None
+
+
+def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: bool = False) -> CheckedModel:
+    """Read one model, join its forces, run the rule set: the unit of work of a batch."""
+    from modelcheck.rules.engine import run_checks
+    from modelcheck.rules.ruleset import load_ruleset
+
+    data = read_model(path, forces, validate=validate)
+    if data.error is not None or data.members is None:
+        return CheckedModel(data)
+    ruleset = load_ruleset(ruleset_ref)
+    results = run_checks(ruleset, data.members, data.forces)
+    return CheckedModel(data, results)
+
+
+@dataclass
+class CheckRun:
+    ruleset: Any
+    models: list[ModelData]
+    results: pd.DataFrame
+    members: pd.DataFrame            # REPORT_MEMBER_COLUMNS of every readable model
+    unmatched_rows: list[dict[str, str]]
+
+
+def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int = 1,
+              validate: bool = False, progress: Any = None) -> CheckRun:
+    """Check every model; unreadable ones are recorded with their error, the rest go on."""
+    from modelcheck.table import RESULT_COLUMNS
+
+    ref = str(ruleset.path)
+    checked: list[CheckedModel] = []
+    if jobs > 1 and len(paths) > 1:
+        from concurrent.futures import ProcessPoolExecutor
+
+        with ProcessPoolExecutor(max_workers=min(jobs, len(paths))) as pool:
+            futures = [pool.submit(check_model, p, ref, forces, validate) for p in paths]
+            for fut in futures:
+                checked.append(fut.result())
+                if progress is not None:
+                    progress()
+    else:
+        for p in paths:
+            checked.append(check_model(p, ref, forces, validate))
+            if progress is not None:
+                progress()
+    frames = [c.results for c in checked if c.results is not None and len(c.results)]
+    results = (pd.concat(frames, ignore_index=True) if frames
+               else pd.DataFrame({c: pd.Series(dtype=object) for c in RESULT_COLUMNS}))
+    mframes = [c.data.members.loc[:, list(REPORT_MEMBER_COLUMNS)] for c in checked
+               if c.data.members is not None and len(c.data.members)]
+    members = (pd.concat(mframes, ignore_index=True) if mframes
+               else pd.DataFrame({c: pd.Series(dtype=object) for c in REPORT_MEMBER_COLUMNS}))
+    for c in checked:  # the heavy member table is not needed past this point
+        if c.data.members is not None:
+            c.data.members = c.data.members.iloc[0:0]
+    used = set().union(*(c.data.matched_rows for c in checked)) if checked else set()
+    unmatched = [{"key": str(k), "source": s} for t in forces.tables
+                 for k, s in zip(t["key"], t["source"], strict=True) if s not in used]
+    return CheckRun(ruleset, [c.data for c in checked], results, members, unmatched)
