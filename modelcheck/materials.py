@@ -1,0 +1,364 @@
+"""The material library: grades matched by name when a model states no mechanical values.
+
+The library is a TOML file (``rulesets/materials.toml``; its opening comment documents the
+syntax). Values there carry units ("36 ksi", "210000 MPa", "12e-6 1/K") and are converted to SI
+here (Pa, 1/K), each with its provenance ``"rulesets/materials.toml: <grade>"`` and the published
+source the file names beside it.
+
+Example::
+
+    >>> from modelcheck.materials import match_material
+    >>> m = match_material("ASTM A36 plate")
+    >>> m.grade, round(m.Fy / 1e6, 1), m.Fy_source
+    ('ASTM A36', 248.2, 'rulesets/materials.toml: ASTM A36')
+
+Matching rule (also written in the library file):
+
+* both the model's name and each pattern are lower-cased and every run of characters other than
+  letters and digits becomes one space;
+* a pattern matches where it occurs between token boundaries (start/end of the name, or a
+  character that is not a letter or digit): "S235" matches "Steel S235 JR" but not "S2355";
+* the longest matching (normalised) pattern wins; equally long best matches of two different
+  grades make the name ambiguous and :func:`match_material` returns ``None``
+  (:func:`match_candidates` lists them);
+* a category given by the model filters the candidates: "steel" admits steel and stainless
+  grades, "stainless" and "aluminium" only their own; a category word the library's
+  ``[categories]`` table does not know does not filter.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+import tomllib
+from dataclasses import dataclass
+from functools import lru_cache
+from pathlib import Path
+from typing import Any
+
+import pint
+
+from modelcheck.data import data_path
+from modelcheck.errors import RuleSetError
+from modelcheck.units import Q_, ureg
+
+#: material categories of the library ("unknown" is the fallback of plausible_range)
+CATEGORIES: tuple[str, ...] = ("steel", "stainless", "aluminium")
+
+#: value keys of a grade -> (SI unit, pint dimensionality it must have, human description)
+VALUE_KEYS: dict[str, tuple[str, str]] = {
+    "E": ("Pa", "a pressure (e.g. '210000 MPa')"),
+    "Fy": ("Pa", "a pressure (e.g. '355 MPa')"),
+    "Fu": ("Pa", "a pressure (e.g. '490 MPa')"),
+    "alpha": ("1/K", "per temperature step (e.g. '12e-6 1/K')"),
+}
+_REQUIRED_VALUES = ("E",)
+_MATERIAL_KEYS = frozenset({"category", "standard", "names", "note", *VALUE_KEYS})
+_VALUE_RE = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+_NON_ALNUM = re.compile(r"[^0-9a-z]+")
+_TOML_POS = re.compile(r"line (\d+)")
+
+
+@dataclass(frozen=True)
+class LibraryMaterial:
+    """One grade of the library; values in SI (Pa, 1/K), ``None`` where the standard gives none."""
+
+    grade: str                      # e.g. "ASTM A36"
+    category: str                   # steel | stainless | aluminium
+    standard: str                   # product standard, e.g. "ASTM A36/A36M"
+    E: float | None
+    Fy: float | None
+    Fu: float | None
+    alpha: float | None
+    E_source: str | None            # "rulesets/materials.toml: ASTM A36"
+    Fy_source: str | None
+    Fu_source: str | None
+    alpha_source: str | None
+    E_basis: str | None             # the published source the file names beside the value
+    Fy_basis: str | None
+    Fu_basis: str | None
+    alpha_basis: str | None
+    patterns: tuple[str, ...]       # name patterns as written in the file
+    note: str | None = None
+
+    def value(self, key: str) -> float | None:
+        """``value("Fy")`` -> the value of ``E``, ``Fy``, ``Fu`` or ``alpha``."""
+        return getattr(self, key)
+
+    def source(self, key: str) -> str | None:
+        return getattr(self, f"{key}_source")
+
+    def basis(self, key: str) -> str | None:
+        return getattr(self, f"{key}_basis")
+
+
+@dataclass(frozen=True)
+class MaterialLibrary:
+    """A loaded library: grades, category words, plausible ranges (all SI)."""
+
+    path: str                                           # file the library was read from
+    label: str                                          # how provenance names it
+    materials: tuple[LibraryMaterial, ...]
+    patterns: tuple[tuple[str, int], ...]               # (normalised pattern, index in materials)
+    category_words: tuple[tuple[str, str], ...]         # (normalised word, category)
+    plausible: tuple[tuple[str, str, float, float], ...]  # (category, key, low, high)
+
+    def category_of(self, word: str | None) -> str | None:
+        """A category word of a model ('Structural Steel') -> library category, or None."""
+        if not word:
+            return None
+        norm = normalise(word)
+        if norm in CATEGORIES:
+            return norm
+        for w, cat in self.category_words:
+            if w == norm:
+                return cat
+        return None
+
+
+def normalise(text: str) -> str:
+    """Lower case; every run of characters other than letters/digits becomes one space.
+
+    >>> normalise("ASTM A572 Gr.50")
+    'astm a572 gr 50'
+    """
+    return _NON_ALNUM.sub(" ", text.casefold()).strip()
+
+
+def _find(pattern: str, name: str) -> bool:
+    """True where normalised ``pattern`` occurs in normalised ``name`` between token boundaries."""
+    start = name.find(pattern)
+    n = len(pattern)
+    while start >= 0:
+        before = name[start - 1] if start > 0 else " "
+        after = name[start + n] if start + n < len(name) else " "
+        if not before.isalnum() and not after.isalnum():
+            return True
+        start = name.find(pattern, start + 1)
+    return False
+
+
+def default_library_path() -> Path:
+    return data_path("materials.toml")
+
+
+def load_library(path: str | Path | None = None) -> MaterialLibrary:
+    """Read and validate a library file (cached per path); errors are :class:`RuleSetError`."""
+    p = Path(path) if path is not None else default_library_path()
+    try:
+        st = p.stat()
+        stamp = (st.st_mtime_ns, st.st_size)
+    except OSError:
+        stamp = (0, 0)  # reported by the loader with the file name
+    return _load_cached(str(p), path is None, stamp)
+
+
+@lru_cache(maxsize=8)
+def _load_cached(path: str, is_default: bool, _stamp: tuple[int, int]) -> MaterialLibrary:
+    """Parse one file; ``_stamp`` (mtime, size) makes an edited file load anew."""
+    label = f"rulesets/{Path(path).name}" if is_default else path
+    try:
+        raw = Path(path).read_bytes()
+    except OSError as exc:
+        raise RuleSetError(f"cannot read the material library: {exc.strerror or exc}", path=path) from exc
+    try:
+        doc = tomllib.loads(raw.decode("utf-8"))
+    except UnicodeDecodeError as exc:
+        raise RuleSetError("the material library is not UTF-8 text", path=path) from exc
+    except tomllib.TOMLDecodeError as exc:
+        m = _TOML_POS.search(str(exc))
+        raise RuleSetError(f"TOML syntax error: {exc}", path=path,
+                           where=f"line {m.group(1)}" if m else None) from exc
+    return _parse(doc, path, label)
+
+
+def _err(path: str, where: str, message: str) -> RuleSetError:
+    return RuleSetError(message, path=path, where=where)
+
+
+def _quantity(text: Any, path: str, where: str, key: str) -> float:
+    """'36 ksi' -> 248211262.55 (SI) with the dimension of ``key``; RuleSetError otherwise."""
+    si_unit, what = VALUE_KEYS[key]
+    if not isinstance(text, str):
+        raise _err(path, where, f"value must be a string '<number> <unit>', got {text!r}")
+    m = _VALUE_RE.match(text)
+    if m is None or not m.group(2):
+        raise _err(path, where, f"value {text!r} is not '<number> <unit>' (a unit is required)")
+    number, unit_text = float(m.group(1)), m.group(2)
+    if unit_text.startswith("/"):
+        unit_text = "1 " + unit_text  # "12e-6 / K": the number is followed by "per"
+    try:
+        # parse_units reads a temperature in a denominator as a step ('1/degF' -> 1/delta_degF)
+        unit = ureg.parse_units(unit_text)
+        si = Q_(number, unit).to(si_unit).magnitude
+    except pint.DimensionalityError as exc:
+        raise _err(path, where, f"unit {unit_text!r} of {text!r} is not {what}") from exc
+    except (pint.PintError, AttributeError, TypeError, ValueError) as exc:
+        raise _err(path, where, f"unit {unit_text!r} of {text!r} is not understood: {exc}") from exc
+    if not math.isfinite(si):
+        raise _err(path, where, f"value {text!r} is not a finite number")
+    return float(si)
+
+
+def _parse(doc: dict[str, Any], path: str, label: str) -> MaterialLibrary:
+    unknown = set(doc) - {"library", "categories", "plausible", "material"}
+    if unknown:
+        raise _err(path, sorted(unknown)[0], "unknown top-level table (expected library, categories, "
+                   "plausible, material)")
+
+    words: list[tuple[str, str]] = []
+    cats = doc.get("categories", {})
+    if not isinstance(cats, dict):
+        raise _err(path, "categories", "must be a table of category = [words]")
+    for cat, ws in cats.items():
+        if cat not in CATEGORIES:
+            raise _err(path, f"categories.{cat}", f"unknown category (expected one of {', '.join(CATEGORIES)})")
+        if not isinstance(ws, list) or not all(isinstance(w, str) for w in ws):
+            raise _err(path, f"categories.{cat}", "must be a list of strings")
+        words += [(normalise(w), cat) for w in ws]
+
+    plausible: list[tuple[str, str, float, float]] = []
+    pl = doc.get("plausible", {})
+    if not isinstance(pl, dict):
+        raise _err(path, "plausible", "must be a table of [plausible.<category>] tables")
+    for cat, ranges in pl.items():
+        where = f"plausible.{cat}"
+        if cat not in (*CATEGORIES, "unknown"):
+            raise _err(path, where, f"unknown category (expected one of {', '.join(CATEGORIES)}, unknown)")
+        if not isinstance(ranges, dict):
+            raise _err(path, where, "must be a table of key = [low, high]")
+        for key, pair in ranges.items():
+            if key not in VALUE_KEYS:
+                raise _err(path, f"{where}.{key}", f"unknown key (expected {', '.join(VALUE_KEYS)})")
+            if not isinstance(pair, list) or len(pair) != 2:
+                raise _err(path, f"{where}.{key}", "must be a list [low, high] of two values with units")
+            lo = _quantity(pair[0], path, f"{where}.{key}", key)
+            hi = _quantity(pair[1], path, f"{where}.{key}", key)
+            if not lo < hi:
+                raise _err(path, f"{where}.{key}", f"low {pair[0]!r} is not below high {pair[1]!r}")
+            plausible.append((cat, key, lo, hi))
+    fallback = {key for cat, key, _lo, _hi in plausible if cat == "unknown"}
+    if fallback != set(VALUE_KEYS):
+        missing = ", ".join(k for k in VALUE_KEYS if k not in fallback)
+        raise _err(path, "plausible.unknown", f"missing {missing}: the fallback ranges need every key")
+
+    mats = doc.get("material", {})
+    if not isinstance(mats, dict) or not mats:
+        raise _err(path, "material", "no [material.\"<grade>\"] tables found")
+    materials: list[LibraryMaterial] = []
+    patterns: list[tuple[str, int]] = []
+    owner: dict[str, str] = {}
+    for grade, spec in mats.items():
+        where = f"material.{grade!r}"
+        if not isinstance(spec, dict):
+            raise _err(path, where, "must be a table")
+        extra = set(spec) - _MATERIAL_KEYS
+        if extra:
+            raise _err(path, f"{where}.{sorted(extra)[0]}",
+                       f"unknown key (expected {', '.join(sorted(_MATERIAL_KEYS))})")
+        category = spec.get("category")
+        if category not in CATEGORIES:
+            raise _err(path, f"{where}.category", f"must be one of {', '.join(CATEGORIES)}, got {category!r}")
+        names = spec.get("names")
+        if not isinstance(names, list) or not names or not all(isinstance(n, str) and normalise(n)
+                                                                for n in names):
+            raise _err(path, f"{where}.names", "must be a non-empty list of non-empty name patterns")
+        standard = spec.get("standard")
+        if not isinstance(standard, str) or not standard:
+            raise _err(path, f"{where}.standard", "must be a non-empty string")
+        note = spec.get("note")
+        if note is not None and not isinstance(note, str):
+            raise _err(path, f"{where}.note", "must be a string")
+        values: dict[str, Any] = {}
+        for key in VALUE_KEYS:
+            entry = spec.get(key)
+            if entry is None:
+                if key in _REQUIRED_VALUES:
+                    raise _err(path, f"{where}.{key}", "missing (required)")
+                values.update({key: None, f"{key}_source": None, f"{key}_basis": None})
+                continue
+            if not isinstance(entry, dict) or set(entry) != {"value", "source"}:
+                raise _err(path, f"{where}.{key}", "must be { value = \"<number> <unit>\", source = \"...\" }")
+            if not isinstance(entry["source"], str) or not entry["source"].strip():
+                raise _err(path, f"{where}.{key}.source", "must name the published source of the value")
+            v = _quantity(entry["value"], path, f"{where}.{key}.value", key)
+            if v <= 0:
+                raise _err(path, f"{where}.{key}.value", f"must be positive, got {entry['value']!r}")
+            values.update({key: v, f"{key}_source": f"{label}: {grade}", f"{key}_basis": entry["source"]})
+        index = len(materials)
+        seen: set[str] = set()
+        for n in names:
+            norm = normalise(n)
+            if norm in seen:
+                continue
+            seen.add(norm)
+            if norm in owner:
+                raise _err(path, f"{where}.names",
+                           f"pattern {n!r} is also a pattern of grade {owner[norm]!r}")
+            owner[norm] = grade
+            patterns.append((norm, index))
+        materials.append(LibraryMaterial(grade=grade, category=category, standard=standard,
+                                         patterns=tuple(names), note=note, **values))
+    return MaterialLibrary(path=path, label=label, materials=tuple(materials), patterns=tuple(patterns),
+                           category_words=tuple(words), plausible=tuple(plausible))
+
+
+def match_candidates(name: str | None, category: str | None = None, *,
+                     path: str | Path | None = None) -> tuple[tuple[LibraryMaterial, str], ...]:
+    """Every grade whose patterns match ``name``, best first, with its longest matching pattern."""
+    if not name:
+        return ()
+    lib = load_library(path)
+    return _candidates(lib, normalise(name), lib.category_of(category))
+
+
+def _candidates(lib: MaterialLibrary, norm_name: str,
+                category: str | None) -> tuple[tuple[LibraryMaterial, str], ...]:
+    allowed = None if category is None else ({"steel", "stainless"} if category == "steel" else {category})
+    best: dict[int, str] = {}
+    for pattern, idx in lib.patterns:
+        if allowed is not None and lib.materials[idx].category not in allowed:
+            continue
+        if len(pattern) > len(best.get(idx, "")) and _find(pattern, norm_name):
+            best[idx] = pattern
+    ranked = sorted(best.items(), key=lambda kv: (-len(kv[1]), kv[0]))
+    return tuple((lib.materials[i], p) for i, p in ranked)
+
+
+def match_material(name: str | None, category: str | None = None, *,
+                   path: str | Path | None = None) -> LibraryMaterial | None:
+    """The library grade a model's material name denotes, or ``None`` (no match, or ambiguous).
+
+    >>> match_material("S355J2+N").grade
+    'EN 10025 S355'
+    >>> match_material("S2355") is None
+    True
+    """
+    if not name:
+        return None
+    return _match_cached(name, category, str(path) if path is not None else None)
+
+
+@lru_cache(maxsize=4096)
+def _match_cached(name: str, category: str | None, path: str | None) -> LibraryMaterial | None:
+    lib = load_library(path)
+    found = _candidates(lib, normalise(name), lib.category_of(category))
+    if not found:
+        return None
+    if len(found) > 1 and len(found[0][1]) == len(found[1][1]):
+        return None  # ambiguous: two grades match equally well
+    return found[0][0]
+
+
+def plausible_range(category: str | None, *, path: str | Path | None = None) -> dict[str, tuple[float, float]]:
+    """Screening bounds ``{"E": (lo, hi), "Fy": …, "Fu": …, "alpha": …}`` in SI for a category.
+
+    ``category`` is a library category or any category word of a model ("Structural Steel");
+    ``None`` or an unknown word gives the "unknown" bounds. A key the library leaves out for a
+    category falls back to the "unknown" bounds.
+    """
+    lib = load_library(path)
+    cat = lib.category_of(category) or "unknown"
+    ranges = {key: (lo, hi) for c, key, lo, hi in lib.plausible if c == "unknown"}
+    ranges.update({key: (lo, hi) for c, key, lo, hi in lib.plausible if c == cat})
+    return ranges

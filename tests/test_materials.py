@@ -1,0 +1,257 @@
+"""The material library: values against published tables, name matching, file errors."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pint
+import pytest
+
+from modelcheck.errors import RuleSetError
+from modelcheck.materials import (
+    load_library,
+    match_candidates,
+    match_material,
+    normalise,
+    plausible_range,
+)
+
+UREG = pint.UnitRegistry()  # an independent registry as the conversion reference
+
+
+def si(text: str, unit: str) -> float:
+    return float(UREG.Quantity(text).to(unit).magnitude)
+
+
+# ------------------------------------------------------------------ published values
+
+@pytest.mark.parametrize(("name", "grade", "fy", "fu"), [
+    # AISC Steel Construction Manual 15th ed. Table 2-4 / ASTM A36 (from memory)
+    ("ASTM A36", "ASTM A36", "36 ksi", "58 ksi"),
+    # ASTM A572 Table 2, Grade 50 (from memory)
+    ("A572 Gr 50", "ASTM A572 Gr 50", "50 ksi", "65 ksi"),
+    # ASTM A992 tensile requirements (from memory)
+    ("A992", "ASTM A992", "50 ksi", "65 ksi"),
+    # ASTM F1554 Table 2, Grade 36 (from memory)
+    ("F1554 Gr 36", "ASTM F1554 Gr 36", "36 ksi", "58 ksi"),
+    # EN 1993-1-1 Table 3.1, t <= 40 mm (from memory)
+    ("S235", "EN 10025 S235", "235 MPa", "360 MPa"),
+    ("S275", "EN 10025 S275", "275 MPa", "430 MPa"),
+    ("S355", "EN 10025 S355", "355 MPa", "490 MPa"),
+    # ASTM A240 Table 2, S30400 / S31600: 30 ksi [205 MPa], 75 ksi [515 MPa] (from memory)
+    ("AISI 304", "ASTM A240 Type 304", "205 MPa", "515 MPa"),
+    ("316", "ASTM A240 Type 316", "205 MPa", "515 MPa"),
+    # EN 1993-1-4 Table 2.1, bars, rods and sections (from memory)
+    ("1.4301", "EN 10088 1.4301", "190 MPa", "500 MPa"),
+    ("1.4401", "EN 10088 1.4401", "200 MPa", "500 MPa"),
+    # ASTM B308 / Aluminum Design Manual Table A.3.4, 6061-T6: Fty 35 ksi, Ftu 38 ksi (from memory)
+    ("6061-T6", "6061-T6", "35 ksi", "38 ksi"),
+])
+def test_grade_strengths_match_published_tables(name: str, grade: str, fy: str, fu: str) -> None:
+    m = match_material(name)
+    assert m is not None and m.grade == grade
+    assert m.Fy == pytest.approx(si(fy, "Pa"), rel=1e-9)
+    assert m.Fu == pytest.approx(si(fu, "Pa"), rel=1e-9)
+
+
+def test_a307_has_tensile_strength_but_no_yield() -> None:
+    m = match_material("ASTM A307 Gr A")
+    assert m is not None
+    # ASTM A307 Grade A: 60 ksi minimum tensile strength, no yield specified (from memory)
+    assert m.Fu == pytest.approx(si("60 ksi", "Pa"), rel=1e-9)
+    assert m.Fy is None and m.Fy_source is None
+
+
+@pytest.mark.parametrize(("name", "modulus", "rel"), [
+    ("A36", "200 GPa", 0.001),          # AISC 360-16: E = 29,000 ksi (200 000 MPa) (from memory)
+    ("S355", "210 GPa", 1e-9),          # EN 1993-1-1 3.2.6: E = 210 000 N/mm² (from memory)
+    ("1.4401", "200 GPa", 1e-9),        # EN 1993-1-4 2.1.3: E = 200 000 N/mm² (from memory)
+    ("6061-T6", "69.6 GPa", 0.002),     # Aluminum Design Manual: E = 10,100 ksi ≈ 69.6 GPa (from memory)
+    ("EN AW-6061 T6", "70 GPa", 1e-9),  # EN 1999-1-1 3.2.5: E = 70 000 N/mm² (from memory)
+])
+def test_modulus_of_elasticity(name: str, modulus: str, rel: float) -> None:
+    m = match_material(name)
+    assert m is not None and m.E == pytest.approx(si(modulus, "Pa"), rel=rel)
+
+
+def test_thermal_expansion_per_fahrenheit_step_is_converted_as_a_step() -> None:
+    a36 = match_material("A36")
+    s355 = match_material("S355")
+    assert a36 is not None and s355 is not None
+    # AISC Manual Part 2: 6.5e-6 per °F = 11.7e-6 per K (a 1 °F step is 5/9 K) (from memory)
+    assert a36.alpha == pytest.approx(6.5e-6 * 9 / 5, rel=1e-9)
+    # EN 1993-1-1 3.2.6: α = 12e-6 per K (from memory)
+    assert s355.alpha == pytest.approx(12e-6, rel=1e-9)
+
+
+def test_every_value_names_its_source_and_the_library() -> None:
+    lib = load_library()
+    required = {"ASTM A36", "ASTM A572 Gr 50", "ASTM A992", "ASTM A307 Gr A", "ASTM F1554 Gr 36",
+                "EN 10025 S235", "EN 10025 S275", "EN 10025 S355", "ASTM A240 Type 304",
+                "ASTM A240 Type 316", "6061-T6"}
+    assert required <= {m.grade for m in lib.materials}
+    for m in lib.materials:
+        assert m.category in ("steel", "stainless", "aluminium")
+        for key in ("E", "Fy", "Fu", "alpha"):
+            if m.value(key) is None:
+                continue
+            assert m.source(key) == f"rulesets/materials.toml: {m.grade}"
+            assert m.basis(key) and any(s in m.basis(key) for s in ("ASTM", "EN ", "AISC", "AISI", "Aluminum"))
+
+
+def test_library_values_lie_in_their_categorys_plausible_range() -> None:
+    # common practice: a shipped grade must not be flagged by the library's own screening bounds
+    for m in load_library().materials:
+        ranges = plausible_range(m.category)
+        for key, (lo, hi) in ranges.items():
+            v = m.value(key)
+            if v is not None:
+                assert lo <= v <= hi, (m.grade, key, v)
+
+
+# ------------------------------------------------------------------ plausibility bounds
+
+def test_plausible_steel_modulus_rejects_unit_mistakes() -> None:
+    lo, hi = plausible_range("steel")["E"]
+    assert lo <= si("29000 ksi", "Pa") <= hi         # AISC 360-16: 29,000 ksi (from memory)
+    assert not lo <= si("29 psi", "Pa") <= hi        # the unit slip issue 2 names
+    assert not lo <= si("29000000 ksi", "Pa") <= hi  # psi value written in a ksi file
+    assert not lo <= si("210 MPa", "Pa") <= hi       # GPa value written in an MPa file
+
+
+def test_plausible_range_categories() -> None:
+    alu = plausible_range("Aluminum")
+    steel = plausible_range("Structural Steel")
+    unknown = plausible_range(None)
+    assert set(alu) == set(steel) == set(unknown) == {"E", "Fy", "Fu", "alpha"}
+    # aluminium alloys: E ≈ 70 GPa, steel ≈ 200 GPa (EN 1999-1-1 3.2.5, EN 1993-1-1 3.2.6) (from memory)
+    assert alu["E"][0] <= 70e9 <= alu["E"][1] and not steel["E"][0] <= 70e9 <= steel["E"][1]
+    assert plausible_range("concrete") == unknown
+    assert unknown["E"][0] <= steel["E"][0] and unknown["E"][1] >= steel["E"][1]
+
+
+# ------------------------------------------------------------------ matching
+
+def test_normalise() -> None:
+    assert normalise("ASTM A572 Gr.50") == "astm a572 gr 50"
+    assert normalise("  EN 1.4301 ") == "en 1 4301"
+
+
+@pytest.mark.parametrize(("name", "grade"), [
+    ("s355jr", "EN 10025 S355"),
+    ("Steel S355J2+N (EN 10025-2)", "EN 10025 S355"),
+    ("ASTM A36/A36M", "ASTM A36"),
+    ("A572-50", "ASTM A572 Gr 50"),
+    ("ASTM A572 Grade 50", "ASTM A572 Gr 50"),
+    ("X5CrNi18-10", "EN 10088 1.4301"),
+    ("AISI 304 / 1.4301", "ASTM A240 Type 304"),   # longest pattern wins: "aisi 304" > "1 4301"
+    ("EN AW-6061 T6", "EN AW-6061 T6"),            # longer than the ASTM "6061-T6" pattern
+    ("Fe 510", "EN 10025 S355"),
+])
+def test_matches(name: str, grade: str) -> None:
+    m = match_material(name)
+    assert m is not None and m.grade == grade
+
+
+@pytest.mark.parametrize("name", [
+    "S2355", "XS235", "304L", "316L", "A572", "A3600", "Steel", "", None, "concrete C30/37",
+    "S355 or S275",   # two grades equally well: ambiguous, nothing taken
+])
+def test_no_match_or_ambiguous(name: str | None) -> None:
+    assert match_material(name) is None
+
+
+def test_ambiguous_names_list_both_candidates() -> None:
+    grades = [m.grade for m, _ in match_candidates("S355 or S275")]
+    assert sorted(grades) == ["EN 10025 S275", "EN 10025 S355"]
+
+
+def test_category_filters_candidates() -> None:
+    assert match_material("304", "aluminium") is None
+    m = match_material("304", "Steel")     # stainless is a steel
+    assert m is not None and m.category == "stainless"
+    m = match_material("S355", "Stainless Steel")
+    assert m is None
+
+
+def test_results_are_frozen() -> None:
+    m = match_material("S235")
+    assert m is not None
+    with pytest.raises(AttributeError):
+        m.Fy = 1.0  # type: ignore[misc]
+
+
+# ------------------------------------------------------------------ file errors
+
+GOOD = """
+[plausible.unknown]
+E = ["40 GPa", "250 GPa"]
+Fy = ["20 MPa", "1800 MPa"]
+Fu = ["50 MPa", "2100 MPa"]
+alpha = ["5e-6 1/K", "30e-6 1/K"]
+
+[material."Test S1"]
+category = "steel"
+standard = "none"
+names = ["S1"]
+E = { value = "210000 MPa", source = "EN 1993-1-1 3.2.6" }
+Fy = { value = "235 MPa", source = "EN 1993-1-1 Table 3.1" }
+"""
+
+
+def write(tmp_path: Path, text: str) -> Path:
+    p = tmp_path / "lib.toml"
+    p.write_text(text, encoding="utf-8")
+    return p
+
+
+def test_custom_library_file(tmp_path: Path) -> None:
+    p = write(tmp_path, GOOD)
+    m = match_material("grade s1", path=p)
+    assert m is not None and m.Fy == 235e6 and m.Fu is None
+    assert m.Fy_source == f"{p}: Test S1"
+
+
+@pytest.mark.parametrize(("change", "where"), [
+    (('Fy = { value = "235 MPa", source = "EN 1993-1-1 Table 3.1" }', 'Fy = { value = "235", source = "x" }'),
+     "material.'Test S1'.Fy.value"),
+    (('Fy = { value = "235 MPa", source = "EN 1993-1-1 Table 3.1" }', 'Fy = { value = "235 mm", source = "x" }'),
+     "material.'Test S1'.Fy.value"),
+    (('Fy = { value = "235 MPa", source = "EN 1993-1-1 Table 3.1" }', 'Fy = { value = "235 MPa" }'),
+     "material.'Test S1'.Fy"),
+    (('Fy = { value = "235 MPa", source = "EN 1993-1-1 Table 3.1" }', 'Fy = { value = "235 bananas", source = "x" }'),
+     "material.'Test S1'.Fy.value"),
+    (('category = "steel"', 'category = "wood"'), "material.'Test S1'.category"),
+    (('names = ["S1"]', 'names = "S1"'), "material.'Test S1'.names"),
+    (('standard = "none"', 'standard = "none"\nstrength = 3'), "material.'Test S1'.strength"),
+    (('alpha = ["5e-6 1/K", "30e-6 1/K"]', 'alpha = ["5e-6 MPa", "30e-6 1/K"]'), "plausible.unknown.alpha"),
+    (('E = { value = "210000 MPa", source = "EN 1993-1-1 3.2.6" }', ''), "material.'Test S1'.E"),
+])
+def test_library_errors_name_file_and_key(tmp_path: Path, change: tuple[str, str], where: str) -> None:
+    assert change[0] in GOOD
+    p = write(tmp_path, GOOD.replace(change[0], change[1]))
+    with pytest.raises(RuleSetError) as exc:
+        load_library(p)
+    assert str(p) in str(exc.value) and where in str(exc.value)
+
+
+def test_duplicate_pattern_across_grades_is_refused(tmp_path: Path) -> None:
+    extra = GOOD + '\n[material."Test S2"]\ncategory = "steel"\nstandard = "x"\nnames = ["s1"]\n' \
+        'E = { value = "200 GPa", source = "x" }\n'
+    p = write(tmp_path, extra)
+    with pytest.raises(RuleSetError, match="also a pattern of grade 'Test S1'"):
+        load_library(p)
+
+
+def test_toml_syntax_error_names_line(tmp_path: Path) -> None:
+    text = GOOD + "\n[material.broken\n"
+    p = write(tmp_path, text)
+    with pytest.raises(RuleSetError) as exc:
+        load_library(p)
+    line = text.splitlines().index("[material.broken") + 1
+    assert str(p) in str(exc.value) and f"line {line}:" in str(exc.value)
+
+
+def test_missing_file(tmp_path: Path) -> None:
+    with pytest.raises(RuleSetError, match="cannot read"):
+        load_library(tmp_path / "nope.toml")
