@@ -89,6 +89,14 @@ def main(argv: list[str] | None = None) -> int:
         return 130
     except BrokenPipeError:
         return EXIT_OK
+    except Exception as exc:  # a bug of ours: still one line, never a traceback for the user
+        import os
+
+        if os.environ.get("MODELCHECK_DEBUG"):
+            raise
+        print(f"modelcheck: internal error: {type(exc).__name__}: {exc} "
+              "(set MODELCHECK_DEBUG=1 for details and please report it)", file=sys.stderr)
+        return EXIT_INPUT
     parser.error(f"unknown command {args.command}")
     return EXIT_INPUT
 

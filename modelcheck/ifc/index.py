@@ -77,9 +77,15 @@ def open_model(path: str | os.PathLike[str]) -> Any:
         if head.lstrip().startswith(b"<"):
             raise ModelReadError("is XML; only IFC-SPF (.ifc) and .ifczip are read", path=name)
         raise ModelReadError("not an IFC-SPF file (it does not start with ISO-10303-21)", path=name)
+    if not zipfile.is_zipfile(p):
+        with open(p, "rb") as fh:
+            fh.seek(max(0, size - 256))
+            tail = fh.read()
+        if b"END-ISO-10303-21" not in tail:
+            raise ModelReadError("file is truncated: it does not end with END-ISO-10303-21;", path=name)
     try:
         model = ifcopenshell.open(str(p))
-    except (RuntimeError, OSError, ValueError, UnicodeDecodeError, IndexError, KeyError) as exc:
+    except (ifcopenshell.Error, RuntimeError, OSError, ValueError, UnicodeDecodeError, IndexError, KeyError) as exc:
         text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
         raise ModelReadError(f"cannot be parsed as IFC: {text}", path=name) from None
     schema = _schema_of(model)
