@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import math
 
-import ifcopenshell
 import pytest
 
 from modelcheck.ifc.author import ModelBuilder

@@ -33,9 +33,9 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from modelcheck.ifc.index import ModelIndex, SIValue, find_quantity, measure_si, property_si
+from modelcheck.ifc.index import ModelIndex, SIValue, measure_si, property_si
 from modelcheck.ifc.profiles import ProfileSection, UnsupportedProfile, section_of
-from modelcheck.table import QUANTITY_COLUMNS, member_columns
+from modelcheck.table import member_columns
 from modelcheck.units import MissingUnit
 
 #: classes that are always axial-member candidates (subtypes included)
@@ -93,6 +93,9 @@ class _Reader:
         self._material_cache: dict[int, MaterialInfo] = {}
         self._body_cache: dict[int, tuple[Section | str | None, tuple[float, str] | None]] = {}
         self._type_cache: dict[int, tuple[str | None, Any, list[Any]]] = {}
+        self._select_cache: dict[int, tuple[MaterialInfo | None, Section | str | None]] = {}
+        self._pos_cache: dict[str, tuple[bool, int | None]] = {}
+        self._storey_names: dict[int, str | None] = {}
 
     # ------------------------------------------------------------------ profiles
     def profile(self, prof: Any, scale: float = 1.0) -> Section | str:
@@ -145,7 +148,7 @@ class _Reader:
             sec = self.profile(item.SweptArea, scale)
             length = None
             if lf is not None and item.Depth is not None:
-                length = (float(item.Depth) * lf * scale, f"{cls} #{item.id()} Depth")
+                length = (float(item.Depth) * lf * scale, f"{cls}.Depth")
             return sec, length
         if cls == "IfcSweptDiskSolid":
             if lf is None:
@@ -161,7 +164,7 @@ class _Reader:
                 dims = {"d": 2 * r} | ({"t": r - ri} if ri > 0 else {})
                 sec = Section(area, rg, src, None, "IfcSweptDiskSolid", "round-tube" if ri > 0 else "round-bar", dims)
             clen = self.curve_length(item.Directrix)
-            length = (clen * lf * scale, f"{src} Directrix") if clen is not None else None
+            length = (clen * lf * scale, "IfcSweptDiskSolid.Directrix") if clen is not None else None
             return sec, length
         if cls == "IfcMappedItem":
             src = item.MappingSource
@@ -185,13 +188,16 @@ class _Reader:
         """Length of a straight-segment curve in file units (None if not a polyline-like curve)."""
         cls = curve.is_a()
         if cls == "IfcPolyline":
-            pts = np.array([p.Coordinates for p in curve.Points], dtype=float)
+            pts = [p.get_argument(0) for p in curve.get_argument(0)]
+            if len(pts) < 2:
+                return None
+            return sum(math.dist(a, b) for a, b in zip(pts[:-1], pts[1:], strict=True))
         elif cls == "IfcIndexedPolyCurve":
             if curve.Segments:
                 for seg in curve.Segments:
                     if seg.is_a("IfcArcIndex"):
                         return None
-            pts = np.array(curve.Points.CoordList, dtype=float)
+            pts = np.array(curve.Points.CoordList, dtype=float)  # noqa: F841
         elif cls == "IfcTrimmedCurve" and curve.BasisCurve.is_a("IfcLine"):
             t1, t2 = curve.Trim1, curve.Trim2
             p1 = next((t for t in t1 if hasattr(t, "Coordinates")), None)
@@ -243,8 +249,9 @@ class _Reader:
                 grade = lib.grade
                 category = category or lib.category
                 for q in ("E", "Fy", "Fu", "alpha"):
-                    if q not in values and not math.isnan(getattr(lib, q)):
-                        values[q] = (float(getattr(lib, q)), lib.sources.get(q, f"material library: {lib.grade}"))
+                    v = lib.value(q)
+                    if q not in values and v is not None and not math.isnan(v):
+                        values[q] = (float(v), lib.source(q) or f"material library: {lib.grade}")
         self._plausibility(mat, category, values, warnings)
         info = MaterialInfo(mat.Name, category, grade, values, tuple(warnings))
         self._material_cache[key] = info
@@ -300,61 +307,78 @@ class _Reader:
                 values[q] = (math.nan, f"doubted: {src}")
 
     # -------------------------------------------------------------------- member
-    def member_row(self, el: Any, cols: dict[str, list[Any]], analysis: bool = False) -> None:
+    def selection(self, sel: Any) -> tuple[MaterialInfo | None, Section | str | None]:
+        """(material, section of its profile set) of a material select; cached by entity id."""
+        key = sel.id()
+        hit = self._select_cache.get(key)
+        if hit is None:
+            minfo, profs = self.material(sel)
+            sec: Section | str | None = None
+            if profs:
+                sec = self.profile(profs[0]) if len(profs) == 1 else self._composite(profs)
+            hit = self._select_cache[key] = (minfo, sec)
+        return hit
+
+    def member(self, el: Any, analysis: bool = False) -> tuple[Any, ...]:
+        """One member: identity values, the chosen Section, MaterialInfo, length and warnings."""
         idx = self.idx
         eid = el.id()
+        ga = el.get_argument
+        cls = el.is_a()
+        pos = self._positions(cls)
         warnings: list[str] = []
         typ = idx.type_of.get(eid)
-        type_name, type_mat, type_psets = self.type_info(typ) if typ is not None else (None, None, [])
-        predefined = getattr(el, "PredefinedType", None)
-        object_type = el.ObjectType if hasattr(el, "ObjectType") else None
+        type_name = type_sel = None
+        if typ is not None:
+            type_name, type_sel, _ = self.type_info(typ)
+        predefined = ga(pos[1]) if pos[1] is not None else None
+        object_type = ga(4)
         if predefined is None and typ is not None:
             predefined = getattr(typ, "PredefinedType", None)
         if predefined == "USERDEFINED" and not object_type and typ is not None:
             object_type = getattr(typ, "ElementType", None)
-        storey = idx.storey_of.get(eid)
-        psets = idx.psets_of.get(eid, [])
 
-        # --- material and profile sets (occurrence first, then type)
+        # --- material and profile sets: the occurrence's own, else its type's
         own_sel = idx.material_of.get(eid)
-        minfo, own_profiles = self.material(own_sel) if own_sel is not None else (None, [])
-        tinfo, type_profiles = self.material(type_mat) if type_mat is not None else (None, [])
-        if minfo is None and tinfo is not None:
+        minfo, own_sec = self.selection(own_sel) if own_sel is not None else (None, None)
+        tinfo, type_sec = self.selection(type_sel) if type_sel is not None else (None, None)
+        if minfo is None:
             minfo = tinfo
-        if minfo is not None:
-            warnings.extend(minfo.warnings)
 
         # --- section candidates, ranked
         candidates: list[Section] = []
         problems: list[str] = []
-        for profs, where in ((own_profiles, "occurrence"), (type_profiles, f"type {type_name!r}")):
-            if not profs:
-                continue
-            sec = self.profile(profs[0]) if len(profs) == 1 else self._composite(profs)
-            if isinstance(sec, Section):
-                candidates.append(sec if where == "occurrence" else replace(sec, source=f"{sec.source} (via {where})"))
+        if own_sec is not None:
+            (candidates if isinstance(own_sec, Section) else problems).append(own_sec)
+        elif type_sec is not None:
+            if isinstance(type_sec, Section):
+                candidates.append(replace(type_sec, source=f"{type_sec.source} (via type {type_name!r})"))
             else:
-                problems.append(sec)
-            break  # the occurrence's own set overrides the type's
-        body_sec, body_len = (None, None)
-        axis_len = None
-        rep = el.Representation
+                problems.append(type_sec)
+        rep = ga(6)
+        body_sec = body_len = axis_len = None
         if rep is not None:
             body_sec, body_len, axis_len = self._representation(rep)
         if isinstance(body_sec, Section):
-            candidates.append(body_sec)
+            if not (candidates and candidates[0].source.split(" ", 2)[:2] == body_sec.source.split(" ", 2)[:2]):
+                candidates.append(body_sec)  # the same profile entity twice needs no comparison
         elif isinstance(body_sec, str):
             problems.append(body_sec)
-        mech = self._profile_mechanical(own_profiles or type_profiles, psets)
-        if mech is not None:
-            candidates.append(mech)
-        qset, qarea = find_quantity(psets, "CrossSectionArea")
-        if qarea is not None and qarea.is_a("IfcQuantityArea"):
-            try:
-                v = measure_si(idx, "IfcAreaMeasure", float(qarea.AreaValue), getattr(qarea, "Unit", None))
-                candidates.append(Section(v.value, math.nan, f"{qset.Name}.CrossSectionArea [{v.unit}]"))
-            except MissingUnit as exc:
-                problems.append(f"{qset.Name}.CrossSectionArea = {qarea.AreaValue} not used: {exc}")
+        if cls == "IfcTendon":
+            tendon = self._tendon(el)
+            if tendon is not None:
+                candidates.append(tendon)
+        psets = idx.psets_of.get(eid)
+        if idx.profile_props or psets:
+            mech = self._profile_mechanical(self._profiles_of(own_sel, type_sel) if idx.profile_props else [],
+                                            psets or [])
+            if mech is not None:
+                candidates.append(mech)
+        qarea = qlen = None
+        if psets:
+            qarea, qlen = self._quantities(psets, warnings)
+        if qarea is not None:
+            candidates.append(qarea)
 
         section = None
         for cand in candidates:
@@ -364,99 +388,118 @@ class _Reader:
                 continue
             if section is None:
                 section = cand
-            else:
-                rel = abs(cand.area - section.area) / section.area
-                if rel > AREA_TOLERANCE:
-                    warnings.append(
-                        f"inconsistent area: {section.source} gives {section.area * 1e6:.6g} mm², "
-                        f"{cand.source} gives {cand.area * 1e6:.6g} mm² ({rel:+.1%}); using the first")
-                if math.isnan(section.r_min) and not math.isnan(cand.r_min):
-                    section = replace(section, r_min=cand.r_min, r_source=cand.source)
-        if section is None:
+                continue
+            rel = abs(cand.area - section.area) / section.area
+            if rel > AREA_TOLERANCE:
+                warnings.append(
+                    f"inconsistent area: {section.source} gives {section.area * 1e6:.6g} mm², "
+                    f"{cand.source} gives {cand.area * 1e6:.6g} mm² ({rel:+.1%} apart); using the first")
+            if math.isnan(section.r_min) and not math.isnan(cand.r_min):
+                section = replace(section, r_min=cand.r_min, r_source=cand.source)
+        if section is None and problems:
             warnings.extend(problems)
 
         # --- length candidates, ranked
-        lengths: list[tuple[float, str]] = [x for x in (axis_len, body_len) if x is not None]
-        qset_l, qlen = find_quantity(psets, "Length")
-        if qlen is not None and qlen.is_a("IfcQuantityLength"):
-            try:
-                v = measure_si(idx, "IfcLengthMeasure", float(qlen.LengthValue), getattr(qlen, "Unit", None))
-                lengths.append((v.value, f"{qset_l.Name}.Length [{v.unit}]"))
-            except MissingUnit as exc:
-                warnings.append(f"{qset_l.Name}.Length = {qlen.LengthValue} not used: {exc}")
+        lengths = [x for x in (axis_len, body_len, qlen) if x is not None]
         if analysis:
             tl = self._topology_length(el)
             if tl is not None:
                 lengths.insert(0, tl)
-        length = (math.nan, None)
+        length, length_src = math.nan, None
         for val, src in lengths:
             if not (math.isfinite(val) and 0 < val <= MAX_LENGTH):
                 warnings.append(f"length {val:.6g} m from {src} is not plausible for a member; not used")
                 continue
-            if length[1] is None:
-                length = (val, src)
-            elif abs(val - length[0]) / length[0] > LENGTH_TOLERANCE:
-                warnings.append(f"inconsistent length: {length[1]} gives {length[0]:.6g} m, "
+            if length_src is None:
+                length, length_src = val, src
+            elif abs(val - length) / length > LENGTH_TOLERANCE:
+                warnings.append(f"inconsistent length: {length_src} gives {length:.6g} m, "
                                 f"{src} gives {val:.6g} m; using the first")
+        storey = idx.storey_of.get(eid)
+        storey_name = self._storey_names.get(storey.id()) if storey is not None else None
+        if storey is not None and storey_name is None:
+            storey_name = self._storey_names[storey.id()] = storey.Name
+        return (ga(0), cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
+                section, minfo, length, length_src, warnings)
 
-        # --- write the row
-        put = _Putter(cols)
-        put("model", idx.path)
-        put("global_id", el.GlobalId)
-        put("ifc_class", el.is_a())
-        put("predefined_type", predefined)
-        put("object_type", object_type)
-        put("name", el.Name)
-        put("tag", getattr(el, "Tag", None))
-        put("storey", storey.Name if storey is not None else None)
-        put("type_name", type_name)
-        if section is not None:
-            put("section_name", section.name)
-            put("profile_type", section.profile_type)
-            put("shape", section.shape)
-            for d in ("d", "h", "b", "tf", "tw", "t"):
-                put(d, section.dims.get(d, math.nan))
-            put("area", section.area)
-            put("area_source", section.source)
-            put("r_min", section.r_min)
-            put("r_min_source", (_r_source(section) if not math.isnan(section.r_min) else None))
-        else:
-            for c in ("section_name", "profile_type", "shape", "area_source", "r_min_source"):
-                put(c, None)
-            for c in ("d", "h", "b", "tf", "tw", "t", "area", "r_min"):
-                put(c, math.nan)
-        put("length", length[0])
-        put("length_source", length[1])
-        if minfo is not None:
-            put("material", minfo.name)
-            put("material_category", minfo.category)
-            put("material_grade", minfo.grade)
-        else:
-            put("material", None)
-            put("material_category", None)
-            put("material_grade", None)
-        for q in ("E", "Fy", "Fu", "alpha"):
-            v, s = (minfo.values.get(q, (math.nan, None)) if minfo is not None else (math.nan, None))
-            put(q, v)
-            put(f"{q}_source", s)
-        put("warnings", warnings)
+    def _positions(self, cls: str) -> tuple[bool, int | None]:
+        """(has Tag at index 7, index of PredefinedType) for an entity class; cached."""
+        hit = self._pos_cache.get(cls)
+        if hit is None:
+            import ifcopenshell.ifcopenshell_wrapper as w
+
+            decl = w.schema_by_name(self.idx.file.schema_identifier).declaration_by_name(cls)
+            names = [a.name() for a in decl.all_attributes()]
+            hit = self._pos_cache[cls] = (len(names) > 7 and names[7] == "Tag",
+                                          names.index("PredefinedType") if "PredefinedType" in names else None)
+        return hit
+
+    def _profiles_of(self, own_sel: Any, type_sel: Any) -> list[Any]:
+        for sel in (own_sel, type_sel):
+            if sel is not None:
+                profs = _unpack_material(sel)[1]
+                if profs:
+                    return profs
+        return []
+
+    def _quantities(self, psets: list[Any], warnings: list[str]) -> tuple[Section | None, tuple[float, str] | None]:
+        """Qto_*.CrossSectionArea and Qto_*.Length of a member, in SI."""
+        qarea = qlen = None
+        for ps in psets:
+            if not ps.is_a("IfcElementQuantity"):
+                continue
+            qname = ps.Name or ""
+            if not qname.startswith("Qto_"):
+                continue
+            for q in ps.Quantities or ():
+                n = q.Name
+                try:
+                    if n == "CrossSectionArea" and qarea is None and q.is_a("IfcQuantityArea"):
+                        v = measure_si(self.idx, "IfcAreaMeasure", float(q.AreaValue), getattr(q, "Unit", None))
+                        qarea = Section(v.value, math.nan, f"{qname}.CrossSectionArea [{v.unit}]")
+                    elif n == "Length" and qlen is None and q.is_a("IfcQuantityLength"):
+                        v = measure_si(self.idx, "IfcLengthMeasure", float(q.LengthValue), getattr(q, "Unit", None))
+                        qlen = (v.value, f"{qname}.Length [{v.unit}]")
+                except MissingUnit as exc:
+                    warnings.append(f"{qname}.{n} not used: {exc}")
+        return qarea, qlen
+
+    def _tendon(self, el: Any) -> Section | None:
+        """IfcTendon's own CrossSectionArea / NominalDiameter attributes."""
+        try:
+            a = el.CrossSectionArea
+            d = el.NominalDiameter
+            if a is not None:
+                v = measure_si(self.idx, "IfcAreaMeasure", float(a))
+                dims = {"d": measure_si(self.idx, "IfcLengthMeasure", float(d)).value} if d is not None else {}
+                return Section(v.value, math.nan, f"IfcTendon.CrossSectionArea [{v.unit}]", None, None,
+                               "round-bar" if dims else None, dims)
+            if d is not None:
+                dv = measure_si(self.idx, "IfcLengthMeasure", float(d)).value
+                return Section(math.pi * dv * dv / 4, dv / 4, "IfcTendon.NominalDiameter", None, None,
+                               "round-bar", {"d": dv})
+        except MissingUnit:
+            return None
+        return None
 
     def _representation(self, rep: Any) -> tuple[Section | str | None, tuple[float, str] | None, tuple[float, str] | None]:
         body_sec = body_len = axis_len = None
-        for r in rep.Representations or ():
-            ident = r.RepresentationIdentifier
-            items = list(r.Items or ())
-            if ident == "Axis" and axis_len is None and self.lf is not None:
-                for it in items:
-                    cl = self.curve_length(it)
-                    if cl is not None:
-                        axis_len = (cl * self.lf, f"Axis {it.is_a()} #{it.id()}")
-                        break
+        lf = self.lf
+        for r in rep.get_argument(2) or ():
+            ident = r.get_argument(1)
+            if ident == "Axis":
+                if axis_len is None and lf is not None:
+                    for it in r.get_argument(3) or ():
+                        cl = self.curve_length(it)
+                        if cl is not None:
+                            axis_len = (cl * lf, "Axis")
+                            break
             elif ident in ("Body", None) and body_sec is None:
                 key = r.id()
-                if key not in self._body_cache:
-                    self._body_cache[key] = self.body(items)
-                body_sec, body_len = self._body_cache[key]
+                hit = self._body_cache.get(key)
+                if hit is None:
+                    hit = self._body_cache[key] = self.body(list(r.get_argument(3) or ()))
+                body_sec, body_len = hit
         return body_sec, body_len, axis_len
 
     def _composite(self, profiles: list[Any]) -> Section | str:
@@ -533,16 +576,6 @@ class _Reader:
                         continue
                     return float(np.linalg.norm(b - a)) * self.lf, f"IfcEdge #{it.id()}"
         return None
-
-
-class _Putter:
-    __slots__ = ("cols",)
-
-    def __init__(self, cols: dict[str, list[Any]]) -> None:
-        self.cols = cols
-
-    def __call__(self, key: str, value: Any) -> None:
-        self.cols[key].append(value)
 
 
 def _r_source(sec: Section) -> str:
@@ -654,39 +687,56 @@ def member_entities(idx: ModelIndex) -> list[tuple[Any, bool]]:
 def read_members(idx: ModelIndex, *, use_library: bool = True) -> pd.DataFrame:
     """The member table of one model (see ``modelcheck.table``)."""
     reader = _Reader(idx, use_library)
-    columns = member_columns()
-    cols: dict[str, list[Any]] = {c: [] for c in columns}
+    rows: list[tuple[Any, ...]] = []
     for el, analysis in member_entities(idx):
         try:
-            reader.member_row(el, cols, analysis)
-        except (RuntimeError, AttributeError) as exc:  # a broken entity deep below this member
-            _drop_partial(cols)
-            _broken_row(cols, idx, el, f"member cannot be read: {exc}")
-    df = pd.DataFrame(cols, columns=columns)
-    for q in QUANTITY_COLUMNS:
-        df[q] = df[q].astype(float)
-    for d in ("d", "h", "b", "tf", "tw", "t"):
-        df[d] = df[d].astype(float)
+            rows.append(reader.member(el, analysis))
+        except RuntimeError as exc:  # a dangling or malformed entity deep below this member
+            try:
+                gid, cls = el.GlobalId, el.is_a()
+            except RuntimeError:
+                gid, cls = f"#{el.id()}", el.is_a()
+            rows.append((gid, cls, None, None, None, None, None, None, None, None, math.nan, None,
+                         [f"member cannot be read: {exc}"]))
+    df = _assemble(idx.path, rows)
     df.attrs["model_warnings"] = reader.model_warnings + list(idx.units.problems)
     return df
 
 
-def _drop_partial(cols: dict[str, list[Any]]) -> None:
-    n = min(len(v) for v in cols.values())
-    for v in cols.values():
-        del v[n:]
+_NO_SECTION = Section(math.nan, math.nan, "")
+_NO_MATERIAL = MaterialInfo(None, None, None, {})
 
 
-def _broken_row(cols: dict[str, list[Any]], idx: ModelIndex, el: Any, why: str) -> None:
-    for key, vals in cols.items():
-        if key in QUANTITY_COLUMNS or key in ("d", "h", "b", "tf", "tw", "t"):
-            vals.append(math.nan)
-        else:
-            vals.append(None)
-    cols["model"][-1] = idx.path
-    try:
-        cols["global_id"][-1] = el.GlobalId
-        cols["ifc_class"][-1] = el.is_a()
-    except RuntimeError:
-        cols["global_id"][-1] = f"#{el.id()}"
-    cols["warnings"][-1] = [why]
+def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
+    """Columns from the per-member tuples; section and material columns come from shared objects."""
+    n = len(rows)
+    cols: dict[str, Any] = {"model": [path] * n}
+    if n:
+        (gid, cls, pre, otype, name, tag, storey, tname, secs, mats, length, length_src, warns) = zip(*rows, strict=True)
+    else:
+        gid = cls = pre = otype = name = tag = storey = tname = secs = mats = length = length_src = warns = ()
+    cols.update(global_id=list(gid), ifc_class=list(cls), predefined_type=list(pre), object_type=list(otype),
+                name=list(name), tag=list(tag), storey=list(storey), type_name=list(tname))
+    secs = [s if s is not None else _NO_SECTION for s in secs]
+    mats = [m if m is not None else _NO_MATERIAL for m in mats]
+    cols["section_name"] = [s.name for s in secs]
+    cols["profile_type"] = [s.profile_type for s in secs]
+    cols["shape"] = [s.shape for s in secs]
+    for d in ("d", "h", "b", "tf", "tw", "t"):
+        cols[d] = np.array([s.dims.get(d, math.nan) for s in secs], dtype=float)
+    cols["material"] = [m.name for m in mats]
+    cols["material_category"] = [m.category for m in mats]
+    cols["material_grade"] = [m.grade for m in mats]
+    cols["area"] = np.array([s.area for s in secs], dtype=float)
+    cols["area_source"] = [s.source or None for s in secs]
+    cols["r_min"] = np.array([s.r_min for s in secs], dtype=float)
+    cols["r_min_source"] = [None if math.isnan(s.r_min) else (s.r_source or s.source) for s in secs]
+    cols["length"] = np.array(length, dtype=float)
+    cols["length_source"] = list(length_src)
+    nan_pair = (math.nan, None)
+    for q in ("E", "Fy", "Fu", "alpha"):
+        pairs = [m.values.get(q, nan_pair) for m in mats]
+        cols[q] = np.array([p[0] for p in pairs], dtype=float)
+        cols[f"{q}_source"] = [p[1] for p in pairs]
+    cols["warnings"] = [list(m.warnings) + w if m.warnings else w for m, w in zip(mats, warns, strict=True)]
+    return pd.DataFrame(cols, columns=member_columns())

@@ -1,0 +1,108 @@
+"""Generate a synthetic IFC4 model of N axial members and a load table for the benchmark.
+
+    python benchmarks/make_model.py 100000 benchmarks/_work/m100k.ifc
+
+Mixed profile classes (round, tube, flat, rectangular tube, I, L, U, T), materials through
+profile sets on type objects (a shared IfcMaterialProfileSetUsage per type), half the members
+with a force in the model property set MC_MemberForces.AxialForce, and a load table
+``<model>-forces.csv`` with one row per member (load case "LC1", header units in kN).
+Each member has its own placement, Axis polyline and extruded body, as exported models do.
+"""
+
+from __future__ import annotations
+
+import argparse
+import random
+import sys
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+
+from modelcheck.ifc.author import ModelBuilder  # noqa: E402
+
+
+def profiles(f):  # a realistic mix of stock shapes (mm)
+    return [
+        f.createIfcCircleProfileDef("AREA", "RD16", None, 8.0),
+        f.createIfcCircleProfileDef("AREA", "RD20", None, 10.0),
+        f.createIfcCircleHollowProfileDef("AREA", "CHS60.3x4", None, 30.15, 4.0),
+        f.createIfcRectangleProfileDef("AREA", "FL80x10", None, 80.0, 10.0),
+        f.createIfcRectangleHollowProfileDef("AREA", "SHS80x5", None, 80.0, 80.0, 5.0, 5.0, 7.5),
+        f.createIfcIShapeProfileDef("AREA", "IPE160", None, 82.0, 160.0, 5.0, 7.4, 9.0),
+        f.createIfcIShapeProfileDef("AREA", "HEA140", None, 140.0, 133.0, 5.5, 8.5, 12.0),
+        f.createIfcLShapeProfileDef("AREA", "L70x7", None, 70.0, 70.0, 7.0, 9.0, 4.5),
+        f.createIfcUShapeProfileDef("AREA", "UPE100", None, 100.0, 55.0, 4.5, 7.5, 10.0),
+        f.createIfcTShapeProfileDef("AREA", "T80", None, 80.0, 80.0, 9.0, 9.0, 9.0),
+    ]
+
+
+def build(n: int, out: Path, seed: int = 7) -> None:
+    rnd = random.Random(seed)
+    mb = ModelBuilder(schema="IFC4", units="mm", name=f"Benchmark {n}")
+    f = mb.f
+    mats = [mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=470.0),
+            mb.material("S235", category="steel", E=210000.0, Fy=235.0, Fu=360.0),
+            mb.material("ASTM A36"), mb.material("A572 Gr 50")]
+    types = []
+    for i, prof in enumerate(profiles(f)):
+        for j, mat in enumerate(mats):
+            pset = mb.profile_set(mat, prof, f"{prof.ProfileName} {mat.Name}")
+            typ = f.create_entity("IfcMemberType", GlobalId=mb.guid(), Name=f"T{i}-{j} {prof.ProfileName}",
+                                  PredefinedType="MEMBER")
+            mb.associate_material([typ], pset)
+            types.append((typ, pset, prof, []))
+    storey = mb.storey("Level 1")
+    zdir, xdir = f.createIfcDirection((0.0, 0.0, 1.0)), f.createIfcDirection((1.0, 0.0, 0.0))
+    origin = mb.origin
+    members = []
+    prop_rels = []
+    rows = []
+    for k in range(n):
+        typ, pset, prof, occ = types[k % len(types)]
+        length = float(rnd.choice((1200.0, 1800.0, 2400.0, 3000.0, 3600.0)))
+        pt = f.createIfcCartesianPoint((float(k % 1000) * 500.0, float(k // 1000) * 500.0, 0.0))
+        place = f.createIfcLocalPlacement(storey.ObjectPlacement, f.createIfcAxis2Placement3D(pt, zdir, xdir))
+        body = f.createIfcShapeRepresentation(mb.body_ctx, "Body", "SweptSolid", [
+            f.createIfcExtrudedAreaSolid(prof, None, zdir, length)])
+        axis = f.createIfcShapeRepresentation(mb.axis_ctx, "Axis", "Curve3D", [f.createIfcPolyline(
+            [origin, f.createIfcCartesianPoint((0.0, 0.0, length))])])
+        shape = f.createIfcProductDefinitionShape(None, None, [axis, body])
+        cls = "IfcColumn" if k % 10 == 0 else "IfcMember"
+        el = f.create_entity(cls, GlobalId=mb.guid(), Name=f"M{k}", ObjectPlacement=place,
+                             Representation=shape, Tag=f"M-{k:06d}",
+                             PredefinedType="COLUMN" if cls == "IfcColumn" else "BRACE")
+        occ.append(el)
+        members.append(el)
+        force = rnd.uniform(-60.0, 90.0)  # kN
+        if k % 2 == 0:
+            prop = f.createIfcPropertySingleValue("AxialForce", None, f.createIfcForceMeasure(force * 1000.0), None)
+            ps = f.create_entity("IfcPropertySet", GlobalId=mb.guid(), Name="MC_MemberForces", HasProperties=[prop])
+            prop_rels.append((el, ps))
+        rows.append(f"{el.GlobalId},LC1,{force:.3f}")
+    f.create_entity("IfcRelContainedInSpatialStructure", GlobalId=mb.guid(), RelatedElements=members,
+                    RelatingStructure=storey)
+    for typ, pset, _prof, occ in types:
+        if occ:
+            usage = f.createIfcMaterialProfileSetUsage(pset, 5, None)
+            mb.associate_material(occ, usage)
+            f.create_entity("IfcRelDefinesByType", GlobalId=mb.guid(), RelatedObjects=occ, RelatingType=typ)
+    for el, ps in prop_rels:
+        f.create_entity("IfcRelDefinesByProperties", GlobalId=mb.guid(), RelatedObjects=[el],
+                        RelatingPropertyDefinition=ps)
+    out.parent.mkdir(parents=True, exist_ok=True)
+    mb.finish().write(str(out))
+    table = out.with_name(out.stem + "-forces.csv")
+    table.write_text("global_id,load_case,axial_force [kN]\n" + "\n".join(rows) + "\n", encoding="utf-8")
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("members", type=int)
+    ap.add_argument("output", type=Path)
+    ap.add_argument("--seed", type=int, default=7)
+    a = ap.parse_args()
+    build(a.members, a.output, a.seed)
+
+
+if __name__ == "__main__":
+    main()
