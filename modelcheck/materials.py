@@ -145,12 +145,16 @@ def default_library_path() -> Path:
 def load_library(path: str | Path | None = None) -> MaterialLibrary:
     """Read and validate a library file (cached per path); errors are :class:`RuleSetError`."""
     p = Path(path) if path is not None else default_library_path()
+    return _load_cached(str(p), path is None, _stamp(p))
+
+
+def _stamp(p: Path) -> tuple[int, int]:
+    """(mtime, size) of a library file: part of every cache key, so an edited file loads anew."""
     try:
         st = p.stat()
-        stamp = (st.st_mtime_ns, st.st_size)
     except OSError:
-        stamp = (0, 0)  # reported by the loader with the file name
-    return _load_cached(str(p), path is None, stamp)
+        return (0, 0)  # reported by the loader with the file name
+    return (st.st_mtime_ns, st.st_size)
 
 
 @lru_cache(maxsize=8)
@@ -336,11 +340,13 @@ def match_material(name: str | None, category: str | None = None, *,
     """
     if not name:
         return None
-    return _match_cached(name, category, str(path) if path is not None else None)
+    p = Path(path) if path is not None else default_library_path()
+    return _match_cached(name, category, str(path) if path is not None else None, _stamp(p))
 
 
 @lru_cache(maxsize=4096)
-def _match_cached(name: str, category: str | None, path: str | None) -> LibraryMaterial | None:
+def _match_cached(name: str, category: str | None, path: str | None,
+                  _stamp: tuple[int, int]) -> LibraryMaterial | None:
     lib = load_library(path)
     found = _candidates(lib, normalise(name), lib.category_of(category))
     if not found:

@@ -255,3 +255,16 @@ def test_toml_syntax_error_names_line(tmp_path: Path) -> None:
 def test_missing_file(tmp_path: Path) -> None:
     with pytest.raises(RuleSetError, match="cannot read"):
         load_library(tmp_path / "nope.toml")
+
+
+def test_edited_library_file_is_read_anew(tmp_path: Path) -> None:
+    import os
+
+    p = write(tmp_path, GOOD)
+    first = match_material("S1", path=p)
+    p.write_text(GOOD.replace('"235 MPa"', '"275 MPa"'), encoding="utf-8")
+    st = p.stat()
+    os.utime(p, ns=(st.st_atime_ns, st.st_mtime_ns + 1_000_000_000))
+    second = match_material("S1", path=p)
+    assert first is not None and second is not None
+    assert (first.Fy, second.Fy) == (235e6, 275e6)   # the values written in the two files
