@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
 
 import pint
@@ -258,8 +259,6 @@ def test_missing_file(tmp_path: Path) -> None:
 
 
 def test_edited_library_file_is_read_anew(tmp_path: Path) -> None:
-    import os
-
     p = write(tmp_path, GOOD)
     first = match_material("S1", path=p)
     p.write_text(GOOD.replace('"235 MPa"', '"275 MPa"'), encoding="utf-8")
