@@ -1,0 +1,263 @@
+"""Join the forces of all routes to the members: precedence, matching and a report of every gap.
+
+Routes and precedence
+---------------------
+For each member and load case exactly one force is kept, from the first route that gives one:
+
+1. **load tables** given on the command line (``--loads``), in the order given, row order within
+   a file;
+2. **IFC structural-analysis results** in the model;
+3. **model property** named by the rule set.
+
+Why this order: a table passed on the command line is the most deliberate input — someone
+exported it for this check, now — so it overrides what the model happens to carry. Analysis
+results in the model come from a structural analysis and outrank a property, which is typically
+a value written by another trade (a hanger load) with no analysis behind it.
+``source`` of each kept row says where it came from; every force a higher route displaced is
+listed in the report (``overridden``). With ``precedence_by="member"`` the first route that gives
+a member *any* force supplies *all* of that member's load cases instead.
+
+Matching
+--------
+Matching is per model. A ``global_id`` row applies to the member with that GlobalId in every
+model that has it; a ``tag`` row applies in each model that has exactly one member with that
+tag. A tag shared by several members of one model is *ambiguous*: the row is applied to none of
+them (a force is never spread over members by guess) and the report lists it. A row that matches
+no member in any model is *unmatched*. Two rows for the same member and load case from the same
+route are *duplicates*: the first is used, the others are listed. Members left with no force at
+all are *missing*. Nothing is dropped silently: every one of these is counted and listed in the
+:class:`ForceReport`.
+
+Example::
+
+    tables = [read_load_table(p) for p in args.loads]
+    forces, report = join_forces(members, tables, prop_forces, analysis_forces, messages=msgs)
+    report.to_dict()["counts"]   # {"unmatched": 2, "duplicates": 0, ...}
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import asdict, dataclass, field
+from typing import Any, Literal
+
+import numpy as np
+import pandas as pd
+
+from modelcheck.table import FORCE_COLUMNS, empty_forces
+
+#: route names, in order of precedence (lower index wins)
+ROUTES: tuple[str, ...] = ("table", "analysis", "property")
+
+
+@dataclass(frozen=True)
+class UnmatchedRow:
+    key_kind: str   # "global_id" | "tag"
+    key: str
+    load_case: str
+    source: str
+
+
+@dataclass(frozen=True)
+class DuplicateForce:
+    model: str
+    global_id: str
+    load_case: str
+    used: str                   # source of the row kept
+    ignored: tuple[str, ...]    # sources of the rows not used
+
+
+@dataclass(frozen=True)
+class AmbiguousTag:
+    model: str
+    tag: str
+    global_ids: tuple[str, ...]   # the members sharing the tag in that model
+    source: str
+
+
+@dataclass(frozen=True)
+class OverriddenForce:
+    model: str
+    global_id: str
+    load_case: str
+    used: str          # source of the force kept
+    overridden: str    # source of the force of a lower-precedence route
+
+
+@dataclass(frozen=True)
+class MissingForce:
+    model: str
+    global_id: str
+
+
+@dataclass(frozen=True)
+class ForceReport:
+    """Every force that found no member, and every member left without a force."""
+
+    unmatched: tuple[UnmatchedRow, ...] = ()
+    duplicates: tuple[DuplicateForce, ...] = ()
+    ambiguous: tuple[AmbiguousTag, ...] = ()
+    missing: tuple[MissingForce, ...] = ()
+    overridden: tuple[OverriddenForce, ...] = ()
+    messages: tuple[str, ...] = ()
+    used_by_route: dict[str, int] = field(default_factory=dict)  # kept rows per route
+
+    @property
+    def counts(self) -> dict[str, int]:
+        return {"unmatched": len(self.unmatched), "duplicates": len(self.duplicates),
+                "ambiguous": len(self.ambiguous), "missing": len(self.missing),
+                "overridden": len(self.overridden), "messages": len(self.messages)}
+
+    def to_dict(self) -> dict[str, Any]:
+        """Plain lists, dicts, strings and ints (``json.dumps`` works on it)."""
+        return {
+            "counts": self.counts,
+            "used_by_route": {r: int(self.used_by_route.get(r, 0)) for r in ROUTES},
+            "unmatched": [asdict(x) for x in self.unmatched],
+            "duplicates": [{**asdict(x), "ignored": list(x.ignored)} for x in self.duplicates],
+            "ambiguous": [{**asdict(x), "global_ids": list(x.global_ids)} for x in self.ambiguous],
+            "missing": [asdict(x) for x in self.missing],
+            "overridden": [asdict(x) for x in self.overridden],
+            "messages": list(self.messages),
+        }
+
+
+def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
+                property_forces: pd.DataFrame | None = None, analysis_forces: pd.DataFrame | None = None,
+                *, messages: Sequence[str] = (),
+                precedence_by: Literal["case", "member"] = "case") -> tuple[pd.DataFrame, ForceReport]:
+    """The forces table (``FORCE_COLUMNS``) of ``members`` and the report of the join.
+
+    ``tables``: results of ``read_load_table`` in command-line order. ``property_forces`` /
+    ``analysis_forces``: forces tables of those routes (None when not used); ``messages``: the
+    routes' messages, copied into the report. See the module docstring for the rules.
+    """
+    ids = members[["model", "global_id", "tag"]].copy()
+    ids = ids[ids["global_id"].notna()]
+    unmatched: list[UnmatchedRow] = []
+    ambiguous: list[AmbiguousTag] = []
+    extra_messages: list[str] = []
+
+    parts: list[pd.DataFrame] = []
+    rows = _table_rows(tables, extra_messages)
+    if not rows.empty:
+        matched, um, amb = _match_table(rows, ids)
+        unmatched += um
+        ambiguous += amb
+        parts.append(matched.assign(_route=0))
+    for route, frame in ((1, analysis_forces), (2, property_forces)):
+        if frame is None or frame.empty:
+            continue
+        fr = frame[list(FORCE_COLUMNS)].reset_index(drop=True)
+        hit = fr.merge(ids[["model", "global_id"]].drop_duplicates(), on=["model", "global_id"],
+                       how="left", indicator=True)
+        miss = hit["_merge"] == "left_only"
+        unmatched += [UnmatchedRow("global_id", g, c, s) for g, c, s in
+                      hit.loc[miss, ["global_id", "load_case", "source"]].itertuples(index=False)]
+        parts.append(hit.loc[~miss, list(FORCE_COLUMNS)].assign(_order=np.arange(int((~miss).sum())),
+                                                                 _route=route))
+
+    if parts:
+        allf = pd.concat(parts, ignore_index=True)
+    else:
+        allf = empty_forces().assign(_order=pd.Series(dtype=int), _route=pd.Series(dtype=int))
+    allf = allf.sort_values(["_route", "_order"], kind="stable")
+    keys = ["model", "global_id", "load_case"]
+
+    # duplicates: same member and case twice from one route -> first kept
+    dup_mask = allf.duplicated(keys + ["_route"], keep=False)
+    duplicates = _duplicates(allf[dup_mask], keys)
+    allf = allf.drop_duplicates(keys + ["_route"], keep="first")
+
+    # precedence between routes
+    if precedence_by == "member":
+        best_route = allf.groupby(["model", "global_id"])["_route"].transform("min")
+        displaced = allf["_route"] != best_route
+    else:
+        best_route = allf.groupby(keys)["_route"].transform("min")
+        displaced = allf["_route"] != best_route
+    kept = allf[~displaced]
+    overridden = _overridden(allf[displaced], kept, precedence_by)
+
+    forces = kept.sort_values(["model", "global_id", "_route", "_order"], kind="stable")
+    used = forces["_route"].value_counts()
+    used_by_route = {ROUTES[int(r)]: int(n) for r, n in used.items()}
+    forces = forces[list(FORCE_COLUMNS)].reset_index(drop=True)
+    forces["axial_force"] = forces["axial_force"].astype(float)
+
+    have = forces[["model", "global_id"]].drop_duplicates()
+    miss = ids[["model", "global_id"]].drop_duplicates().merge(have, how="left", indicator=True)
+    missing = [MissingForce(m, g) for m, g in
+               miss.loc[miss["_merge"] == "left_only", ["model", "global_id"]].itertuples(index=False)]
+
+    report = ForceReport(unmatched=tuple(unmatched), duplicates=tuple(duplicates), ambiguous=tuple(ambiguous),
+                         missing=tuple(missing), overridden=tuple(overridden),
+                         messages=tuple(extra_messages) + tuple(messages), used_by_route=used_by_route)
+    return forces, report
+
+
+def _table_rows(tables: Sequence[pd.DataFrame], notes: list[str]) -> pd.DataFrame:
+    frames = []
+    for t in tables:
+        if t.attrs.get("encoding") == "cp1252" and len(t):
+            name = str(t["source"].iloc[0]).rsplit(":row ", 1)[0]
+            notes.append(f"{name}: not UTF-8; read as Windows-1252 (cp1252) text")
+        frames.append(t[["key_kind", "key", "load_case", "axial_force", "source"]])
+    if not frames:
+        return pd.DataFrame(columns=["key_kind", "key", "load_case", "axial_force", "source", "_order"])
+    rows = pd.concat(frames, ignore_index=True)
+    rows["_order"] = np.arange(len(rows))
+    return rows
+
+
+def _match_table(rows: pd.DataFrame, ids: pd.DataFrame) -> tuple[pd.DataFrame, list[UnmatchedRow], list[AmbiguousTag]]:
+    """Table rows -> (member rows, unmatched rows, ambiguous tags), per model, by merges."""
+    by_gid = rows[rows["key_kind"] == "global_id"]
+    by_tag = rows[rows["key_kind"] == "tag"]
+    cols = list(FORCE_COLUMNS) + ["_order"]
+
+    g = by_gid.merge(ids[["model", "global_id"]].drop_duplicates(), left_on="key", right_on="global_id",
+                     how="left")
+    g_hit = g[g["model"].notna()]
+
+    tagged = ids[ids["tag"].notna() & (ids["tag"].astype(str).str.strip() != "")]
+    tagged = tagged.assign(tag=tagged["tag"].astype(str))
+    t = by_tag.merge(tagged, left_on="key", right_on="tag", how="left")
+    t_hit = t[t["model"].notna()]
+    per_model = t_hit.groupby(["_order", "model"])["global_id"].transform("size")
+    t_ok = t_hit[per_model == 1]
+    t_amb = t_hit[per_model > 1]
+    ambiguous = [
+        AmbiguousTag(str(model), str(tag), tuple(sorted(map(str, gids))), str(src))
+        for (_o, model, tag, src), gids in t_amb.groupby(["_order", "model", "key", "source"], sort=True)["global_id"]
+    ]
+    matched = pd.concat([g_hit[cols], t_ok[cols]], ignore_index=True)
+
+    hit_orders = set(g_hit["_order"]) | set(t_hit["_order"])
+    um = rows[~rows["_order"].isin(hit_orders)]
+    unmatched = [UnmatchedRow(k, key, c, s) for k, key, c, s in
+                 um[["key_kind", "key", "load_case", "source"]].itertuples(index=False)]
+    return matched, unmatched, ambiguous
+
+
+def _duplicates(dups: pd.DataFrame, keys: list[str]) -> list[DuplicateForce]:
+    out = []
+    for (model, gid, case, _r), grp in dups.groupby(keys + ["_route"], sort=True):
+        srcs = list(grp.sort_values("_order")["source"])
+        out.append(DuplicateForce(str(model), str(gid), str(case), srcs[0], tuple(srcs[1:])))
+    return out
+
+
+def _overridden(displaced: pd.DataFrame, kept: pd.DataFrame, by: str) -> list[OverriddenForce]:
+    if displaced.empty:
+        return []
+    if by == "case":
+        m = displaced.merge(kept[["model", "global_id", "load_case", "source"]],
+                            on=["model", "global_id", "load_case"], suffixes=("", "_kept"))
+        return [OverriddenForce(mo, g, c, sk, s) for mo, g, c, s, sk in
+                m[["model", "global_id", "load_case", "source", "source_kept"]].itertuples(index=False)]
+    first = kept.sort_values(["_route", "_order"]).drop_duplicates(["model", "global_id"])
+    m = displaced.merge(first[["model", "global_id", "source"]], on=["model", "global_id"],
+                        suffixes=("", "_kept"))
+    return [OverriddenForce(mo, g, c, sk, s) for mo, g, c, s, sk in
+            m[["model", "global_id", "load_case", "source", "source_kept"]].itertuples(index=False)]

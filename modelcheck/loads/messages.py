@@ -1,0 +1,43 @@
+"""Collect the messages of a force route, one line per cause with the ids it concerns.
+
+A model of 100,000 members without a FORCEUNIT must not print 100,000 lines: the log groups the
+GlobalIds (or entity ids) under one message per distinct text, shows the first few and counts
+the rest.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+#: ids shown per message before "and N more"
+SHOWN_IDS = 10
+
+
+@dataclass
+class MessageLog:
+    """A per-call collector (not shared): ``add(text, id)`` then ``messages()``."""
+
+    model: str
+    _ids: dict[str, list[str]] = field(default_factory=dict)
+    _nouns: dict[str, tuple[str, str]] = field(default_factory=dict)
+
+    def add(self, text: str, ident: str | None = None, noun: tuple[str, str] = ("member", "members")) -> None:
+        """Log ``text`` about ``ident``; ``noun`` is (singular, plural) of what the ids are."""
+        self._nouns.setdefault(text, noun)
+        ids = self._ids.setdefault(text, [])
+        if ident is not None:
+            ids.append(str(ident))
+
+    def messages(self) -> list[str]:
+        out = []
+        for text, ids in self._ids.items():
+            if not ids:
+                out.append(f"{self.model}: {text}")
+                continue
+            uniq = list(dict.fromkeys(ids))
+            shown = ", ".join(uniq[:SHOWN_IDS])
+            more = f" and {len(uniq) - SHOWN_IDS} more" if len(uniq) > SHOWN_IDS else ""
+            one, many = self._nouns[text]
+            noun = one if len(uniq) == 1 else many
+            out.append(f"{self.model}: {text} ({len(uniq)} {noun}: {shown}{more})")
+        return out

@@ -1,0 +1,196 @@
+"""Axial forces written into the model as a property (typical for hanger loads from the MEP trade).
+
+The user names the property as ``PsetName.PropName`` (the sample models use
+``MC_MemberForces.AxialForce``; ``Pset_`` names are buildingSMART's and not used for this).
+For each member:
+
+1. the property on the occurrence (IfcRelDefinesByProperties) wins; else
+2. the property inherited from its type object (IfcTypeObject.HasPropertySets); else
+3. the member gets no force from this route (the join reports it as missing).
+
+The value must be an IfcPropertySingleValue. Its unit is the property's own ``Unit`` when it
+has one (it must be a force), else the project's FORCEUNIT for an ``IfcForceMeasure``. A value
+whose unit neither states — no FORCEUNIT in the model, or a plain ``IfcReal`` — gives no force
+and a message: a unit is never assumed. A text value (``IfcLabel``/``IfcText``) such as
+``'12.5 kN'`` is read with the load-table unit rules. Sign: tension positive, as everywhere.
+
+Example::
+
+    idx = build_index("sample_models/hangers.ifc")
+    forces, messages = forces_from_property(idx, members, "MC_MemberForces", "AxialForce")
+    forces.source  # "MC_MemberForces.AxialForce (occurrence)" / "… (type HR-M16 hanger)"
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+import pandas as pd
+import pint
+
+from modelcheck.ifc.index import ModelIndex, find_property
+from modelcheck.loads.messages import MessageLog
+from modelcheck.loads.tables import DEFAULT_LOAD_CASE, ForceUnitError, force_unit_factor
+from modelcheck.table import FORCE_COLUMNS, empty_forces
+from modelcheck.units import MissingUnit, UnitDefinitionError, unit_label, unit_quantity, ureg
+
+_NUMBER_UNIT = re.compile(r"^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*(\S.*?)?\s*$")
+_TEXT_MEASURES = frozenset({"IfcLabel", "IfcText", "IfcIdentifier"})
+_UNITLESS_NUMBERS = frozenset({"IfcReal", "IfcNumericMeasure", "IfcInteger", "IfcPositiveInteger",
+                               "IfcCountMeasure"})
+
+
+@dataclass(frozen=True)
+class _Reading:
+    """What one property entity says: a raw number and the key of its unit, or a problem."""
+
+    raw: float = float("nan")
+    unit_key: str = ""      # "FORCEUNIT", "#<unit entity id>" or "N" (already newtons)
+    unit_label: str = ""
+    problem: str = ""
+
+
+def parse_property_name(text: str) -> tuple[str, str]:
+    """'MC_MemberForces.AxialForce' -> ('MC_MemberForces', 'AxialForce'); ValueError if malformed.
+
+    The split is at the last dot, so a property-set name may itself hold dots.
+    """
+    pset, dot, prop = text.strip().rpartition(".")
+    if not dot or not pset.strip() or not prop.strip():
+        raise ValueError(f"{text!r} is not 'PropertySetName.PropertyName'")
+    return pset.strip(), prop.strip()
+
+
+def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str, prop_name: str,
+                         load_case: str | None = None) -> tuple[pd.DataFrame, list[str]]:
+    """Forces of this model's members from property ``pset_name.prop_name``.
+
+    ``members`` is the member table (rows of other models are ignored: this model's rows are
+    those whose ``model`` equals ``idx.path``). Returns the forces table (``FORCE_COLUMNS``,
+    newtons, load case ``load_case`` or ``'default'``) and messages for values that could not be
+    used. Members without the property simply get no row.
+    """
+    case = load_case if load_case is not None else DEFAULT_LOAD_CASE
+    label = f"{pset_name}.{prop_name}"
+    log = MessageLog(idx.path)
+    mine = members.loc[members["model"] == idx.path, "global_id"]
+    f = idx.file
+    type_cache: dict[int, Any] = {}
+    reading_cache: dict[int, _Reading] = {}
+    gids: list[str] = []
+    raws: list[float] = []
+    keys: list[str] = []
+    sources: list[str] = []
+    for gid in mine.dropna().unique():
+        try:
+            el = f.by_guid(gid)
+        except RuntimeError:
+            log.add("is not in the model (no such GlobalId): no property read", gid)
+            continue
+        prop = find_property(idx.psets_of.get(el.id(), ()), pset_name, prop_name)
+        origin = "occurrence"
+        if prop is None:
+            typ = idx.type_of.get(el.id())
+            if typ is None:
+                continue
+            tid = typ.id()
+            if tid not in type_cache:
+                type_cache[tid] = find_property(idx.type_psets(typ), pset_name, prop_name)
+            prop = type_cache[tid]
+            if prop is None:
+                continue
+            origin = f"type {typ.Name}" if typ.Name else f"type #{tid}"
+        reading = reading_cache.get(prop.id())
+        if reading is None:
+            reading = reading_cache[prop.id()] = _read(prop, idx)
+        if reading.problem:
+            log.add(f"{label} ({origin}): {reading.problem}; no force taken", gid)
+            continue
+        gids.append(gid)
+        raws.append(reading.raw)
+        keys.append(reading.unit_key)
+        sources.append(f"{label} ({origin})")
+    if not gids:
+        return empty_forces(), log.messages()
+    # unit factors: one per distinct unit, then one vectorised multiplication
+    key_arr = np.asarray(keys, dtype=object)
+    codes, uniques = pd.factorize(key_arr)
+    factors = np.empty(len(uniques), dtype=float)
+    usable = np.ones(len(uniques), dtype=bool)
+    for k, key in enumerate(uniques):
+        try:
+            factors[k] = _factor(idx, key)
+        except MissingUnit:
+            usable[k] = False
+            for gid in np.asarray(gids, dtype=object)[codes == k]:
+                log.add(f"{label} is an IfcForceMeasure without its own unit, and the model assigns no "
+                        "FORCEUNIT; no force taken (the unit is never assumed)", gid)
+    ok = usable[codes]
+    forces = np.asarray(raws, dtype=float) * factors[codes]
+    out = pd.DataFrame({
+        "model": idx.path,
+        "global_id": np.asarray(gids, dtype=object)[ok],
+        "load_case": case,
+        "axial_force": forces[ok],
+        "source": np.asarray(sources, dtype=object)[ok],
+    }, columns=list(FORCE_COLUMNS))
+    return out, log.messages()
+
+
+def _factor(idx: ModelIndex, key: str) -> float:
+    if key == "N":
+        return 1.0
+    if key == "FORCEUNIT":
+        return idx.units.factor("FORCEUNIT")
+    return float(unit_quantity(idx.file.by_id(int(key[1:]))).to_base_units().magnitude)
+
+
+def _read(prop: Any, idx: ModelIndex) -> _Reading:
+    """The raw number and unit key of one property entity (cached per entity)."""
+    if not prop.is_a("IfcPropertySingleValue"):
+        return _Reading(problem=f"is an {prop.is_a()}, not a single value")
+    nv = prop.NominalValue
+    if nv is None:
+        return _Reading(problem="has no value")
+    measure = nv.is_a()
+    value = nv.wrappedValue
+    unit = getattr(prop, "Unit", None)
+    if measure in _TEXT_MEASURES:
+        return _read_text(str(value))
+    if isinstance(value, bool) or not isinstance(value, int | float):
+        return _Reading(problem=f"is {measure} {value!r}, not a number")
+    raw = float(value)
+    if not np.isfinite(raw):
+        return _Reading(problem=f"is {raw!r}, not a finite number")
+    if unit is not None:
+        try:
+            q = unit_quantity(unit)
+        except (UnitDefinitionError, pint.PintError) as exc:
+            return _Reading(problem=f"its unit #{unit.id()} cannot be read ({exc})")
+        if q.dimensionality != ureg.newton.dimensionality:
+            return _Reading(problem=f"its unit {unit_label(unit)!r} is not a force")
+        if measure not in ("IfcForceMeasure", *_UNITLESS_NUMBERS):
+            return _Reading(problem=f"is an {measure}, not a force")
+        return _Reading(raw=raw, unit_key=f"#{unit.id()}", unit_label=unit_label(unit))
+    if measure == "IfcForceMeasure":
+        return _Reading(raw=raw, unit_key="FORCEUNIT", unit_label=idx.units.label("FORCEUNIT"))
+    if measure in _UNITLESS_NUMBERS:
+        return _Reading(problem=f"is a plain {measure} with no unit; a force needs IfcForceMeasure "
+                                "or a unit on the property")
+    return _Reading(problem=f"is an {measure}, not a force")
+
+
+def _read_text(text: str) -> _Reading:
+    m = _NUMBER_UNIT.match(text)
+    if m is None:
+        return _Reading(problem=f"is the text {text!r}, not a force")
+    if not m.group(2):
+        return _Reading(problem=f"is the text {text!r}: a number with no unit")
+    try:
+        factor = force_unit_factor(m.group(2))
+    except ForceUnitError as exc:
+        return _Reading(problem=f"is the text {text!r}: {exc}")
+    return _Reading(raw=float(m.group(1)) * factor, unit_key="N", unit_label=m.group(2))

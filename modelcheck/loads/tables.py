@@ -1,0 +1,432 @@
+"""Read a load table (CSV or XLSX) of member axial forces into a long, SI table.
+
+A load table is what an analysis program exports: one row per member and load case.
+
+Columns (header names are matched ignoring case, spaces, ``_`` and ``-``; other columns are
+ignored):
+
+========================  ==========================================================
+``global_id``             the member's IFC GlobalId                    } at least one
+``tag``                   the member's mark (IfcElement.Tag)           } of the two
+``axial_force``           the axial force, **tension positive, compression negative**
+``load_case``             optional; without the column every row is load case ``default``
+========================  ==========================================================
+
+A row that fills both ``global_id`` and ``tag`` is keyed by its GlobalId.
+
+Units are never assumed. Either the header states one for the whole column —
+``axial_force [kN]`` or ``axial_force (kip)`` — and the cells hold plain numbers, or the header
+states none and every cell carries its own: ``12.5 kip``, ``-3 kN``, ``850 lbf``, ``4.2e3 N``.
+Any pint force unit is accepted (N, kN, MN, daN, lbf, kip, kgf …); the upper-case spellings
+``KN``, ``KIP``, ``KIPS`` and ``LBF`` that some exporters write are read as kN, kip, kip and
+lbf. Numbers use a decimal point; a decimal comma is refused (``1,250`` is ambiguous).
+
+The header is the first row (within the first 20) that names a key column and ``axial_force``;
+title lines above it are skipped. Empty rows are skipped. Everything else that is wrong — a bare
+number with no unit anywhere, a unit that is not a force, an empty or non-finite force, a row
+without a key, an empty file, a binary file, an undecodable text file, a missing column — raises
+:class:`~modelcheck.errors.LoadTableError` naming the file and the row as a spreadsheet shows it
+(the header row of a plain table is row 1).
+
+Text encodings: UTF-8 (with or without a byte-order mark) and UTF-16 with a byte-order mark are
+read as such; a file that is not valid UTF-8 is read as Windows-1252 (what spreadsheet programs
+on Windows save as "CSV"), and ``DataFrame.attrs["encoding"]`` says so. A file that is neither
+raises an error naming the line with the first bad byte.
+
+Example::
+
+    forces = read_load_table("exports/hangers.csv")
+    forces.columns  # key_kind, key, load_case, axial_force [N], source ("exports/hangers.csv:row 2")
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+import os
+import re
+import tokenize
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import pandas as pd
+import pint
+
+from modelcheck.errors import LoadTableError
+from modelcheck.units import Q_, ureg
+
+#: columns of the table ``read_load_table`` returns
+LOAD_TABLE_COLUMNS: tuple[str, ...] = ("key_kind", "key", "load_case", "axial_force", "source")
+
+#: load case given to every row of a table that has no ``load_case`` column
+DEFAULT_LOAD_CASE = "default"
+
+#: exporter spellings that pint (case-sensitive) does not know, read as the unit on the right
+UNIT_ALIASES: dict[str, str] = {"KN": "kN", "KIP": "kip", "KIPS": "kip", "LBF": "lbf"}
+
+_CANONICAL = {"globalid": "global_id", "tag": "tag", "axialforce": "axial_force", "loadcase": "load_case"}
+_HEADER_SEARCH_ROWS = 20
+_HEADER_RE = re.compile(r"^\s*(?P<name>[^\[\(]*?)\s*(?:\[(?P<u1>[^\]]*)\]|\((?P<u2>[^\)]*)\))?\s*$")
+_VALUE_RE = r"^\s*(?P<num>[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*(?P<unit>\S.*?)?\s*$"
+_CONTROL_RE = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")
+_OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
+_ZIP_MAGIC = b"PK\x03\x04"
+
+
+class ForceUnitError(ValueError):
+    """A unit string that is not a force (the message says why)."""
+
+
+def force_unit_factor(text: str) -> float:
+    """Newtons in one ``text`` unit ('kN' -> 1000.0); raises ForceUnitError if not a force.
+
+    >>> force_unit_factor("kip")
+    4448.221615260501
+    """
+    t = text.strip()
+    if not t:
+        raise ForceUnitError("no unit")
+    name = UNIT_ALIASES.get(t, t)
+    try:
+        q = Q_(1.0, ureg.Unit(name))
+    except (pint.PintError, ValueError, TypeError, AttributeError, SyntaxError, tokenize.TokenError):
+        raise ForceUnitError(f"unit {t!r} is not a unit modelcheck knows") from None
+    if q.dimensionality != ureg.newton.dimensionality:
+        hint = " (pound-force is 'lbf')" if q.dimensionality == ureg.pound.dimensionality else ""
+        raise ForceUnitError(f"unit {t!r} is not a force, it is {q.dimensionality}{hint}")
+    factor = float(q.to(ureg.newton).magnitude)
+    if not math.isfinite(factor) or factor <= 0:
+        raise ForceUnitError(f"unit {t!r} has no usable size")
+    return factor
+
+
+@dataclass(frozen=True)
+class _Header:
+    row: int                      # 0-based index of the header record
+    cols: dict[str, int]          # canonical name -> column index
+    force_unit: str | None        # unit text in the force column's header, if any
+    force_label: str              # the force column's header as written
+
+
+def read_load_table(path: str | os.PathLike[str]) -> pd.DataFrame:
+    """Read one CSV or XLSX load table (see the module docstring) into SI.
+
+    Returns a DataFrame with columns ``key_kind`` ('global_id' | 'tag'), ``key``, ``load_case``,
+    ``axial_force`` (newtons, tension positive) and ``source`` ('<path>:row N', for XLSX
+    '<path>:<sheet>:row N'), in file order. ``attrs["encoding"]`` names the text encoding read
+    (None for XLSX).
+    """
+    name = str(path)
+    p = Path(path)
+    if not p.exists():
+        raise LoadTableError("no such file", path=name)
+    if p.is_dir():
+        raise LoadTableError("is a folder, not a load table", path=name)
+    try:
+        data = p.read_bytes()
+    except OSError as exc:
+        raise LoadTableError(f"cannot be read: {exc.strerror or exc}", path=name) from None
+    if not data.strip():
+        raise LoadTableError("empty file, not a load table", path=name)
+    if data.startswith(_ZIP_MAGIC):
+        return _read_xlsx(p, name)
+    if data.startswith(_OLE_MAGIC):
+        raise LoadTableError("is an old binary Excel (.xls) file; save it as .xlsx or .csv", path=name)
+    if p.suffix.lower() in (".xlsx", ".xlsm"):
+        raise LoadTableError("is named .xlsx but is not an Excel workbook (no zip archive inside)", path=name)
+    text, encoding = _decode(data, name)
+    bad = _CONTROL_RE.search(text)
+    if bad is not None:
+        line = text.count("\n", 0, bad.start()) + 1
+        raise LoadTableError(f"holds binary data (control character {bad.group()!r}), not a CSV table",
+                             path=name, where=f"line {line}")
+    records = _csv_records(text, name)
+    df = _parse(records, name, None, all_text=True)
+    df.attrs["encoding"] = encoding
+    return df
+
+
+def _decode(data: bytes, name: str) -> tuple[str, str]:
+    if data.startswith((b"\xff\xfe", b"\xfe\xff")):
+        try:
+            return data.decode("utf-16"), "utf-16"
+        except UnicodeDecodeError as exc:
+            raise LoadTableError(f"is not valid UTF-16 ({exc.reason})", path=name) from None
+    if b"\x00" in data:
+        line = data.count(b"\n", 0, data.index(b"\x00")) + 1
+        raise LoadTableError("holds binary data (NUL bytes), not a CSV table", path=name, where=f"line {line}")
+    try:
+        return data.decode("utf-8-sig"), "utf-8"
+    except UnicodeDecodeError:
+        pass
+    try:
+        return data.decode("cp1252"), "cp1252"
+    except UnicodeDecodeError as exc:
+        line = data.count(b"\n", 0, exc.start) + 1
+        raise LoadTableError(
+            f"is neither UTF-8 nor Windows-1252 text (byte 0x{data[exc.start]:02X}); save it as UTF-8 CSV",
+            path=name, where=f"line {line}") from None
+
+
+def _csv_records(text: str, name: str) -> list[list[str]]:
+    # the delimiter is the one that splits a header out of the first rows (title lines may come
+    # first); failing that, the one most frequent in the first non-empty line
+    head = "\n".join(text.splitlines()[:_HEADER_SEARCH_ROWS])
+    delimiter = ""
+    for d in (",", ";", "\t"):
+        if d in head and _find_header(list(csv.reader(io.StringIO(head, newline=""), delimiter=d))):
+            delimiter = d
+            break
+    if not delimiter:
+        first = next((ln for ln in text.splitlines() if ln.strip()), "")
+        counts = {d: first.count(d) for d in (",", ";", "\t")}
+        delimiter = max(counts, key=lambda d: counts[d]) if any(counts.values()) else ","
+    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
+    try:
+        return list(reader)
+    except csv.Error as exc:
+        raise LoadTableError(f"is not a readable CSV table: {exc}", path=name,
+                             where=f"line {reader.line_num}") from None
+
+
+def _read_xlsx(p: Path, name: str) -> pd.DataFrame:
+    import zipfile
+
+    import openpyxl
+    from openpyxl.utils.exceptions import InvalidFileException
+
+    try:
+        wb = openpyxl.load_workbook(p, read_only=True, data_only=True)
+    except (InvalidFileException, zipfile.BadZipFile, KeyError, OSError, ValueError, TypeError) as exc:
+        raise LoadTableError(f"cannot be read as an Excel workbook: {exc}", path=name) from None
+    try:
+        missing: list[str] = []
+        for ws in wb.worksheets:
+            records = [list(r) for r in ws.iter_rows(min_row=1, values_only=True)]
+            sheet = ws.title
+            if _find_header(records) is None:
+                missing.append(sheet)
+                continue
+            df = _parse(records, name, sheet)
+            df.attrs["encoding"] = None
+            return df
+    finally:
+        wb.close()
+    raise LoadTableError(
+        "no sheet has a header naming a key column (global_id or tag) and axial_force "
+        f"within its first {_HEADER_SEARCH_ROWS} rows (sheets: {', '.join(missing) or 'none'})", path=name)
+
+
+def _cell_text(v: Any) -> str:
+    """A cell as text: None -> '', 12.0 -> '12' (marks and case numbers typed as numbers)."""
+    if v is None:
+        return ""
+    if isinstance(v, float) and v.is_integer():
+        return str(int(v))
+    return str(v).strip()
+
+
+def _blank(record: Sequence[Any]) -> bool:
+    return not any(_cell_text(c) for c in record)
+
+
+def _texts(s: pd.Series) -> pd.Series:
+    """Cells as stripped text, vectorised when they are all strings already (CSV)."""
+    if pd.api.types.infer_dtype(s, skipna=False) == "string":
+        return s.str.strip()
+    return s.map(_cell_text).astype(object)
+
+
+def _find_header(records: Sequence[Sequence[Any]]) -> _Header | None:
+    for i, rec in enumerate(records[:_HEADER_SEARCH_ROWS]):
+        cols: dict[str, int] = {}
+        unit: str | None = None
+        label = ""
+        for j, cell in enumerate(rec):
+            m = _HEADER_RE.match(_cell_text(cell))
+            if m is None:
+                continue
+            key = re.sub(r"[\s_\-.]", "", m.group("name").lower())
+            canon = _CANONICAL.get(key)
+            if canon is None or canon in cols:
+                continue
+            cols[canon] = j
+            if canon == "axial_force":
+                u = m.group("u1") if m.group("u1") is not None else m.group("u2")
+                unit = u.strip() if u is not None else None
+                label = _cell_text(cell)
+        if "axial_force" in cols and ("global_id" in cols or "tag" in cols):
+            return _Header(i, cols, unit, label)
+    return None
+
+
+def _header_problem(records: Sequence[Sequence[Any]], name: str) -> LoadTableError:
+    for i, rec in enumerate(records[:_HEADER_SEARCH_ROWS]):
+        cells = [_cell_text(c) for c in rec if _cell_text(c)]
+        if cells:
+            names = {re.sub(r"[\s_\-.]", "", (_HEADER_RE.match(c) or re.match(r"(?P<name>.*)", c))
+                            .group("name").lower()) for c in cells}
+            wanted = []
+            if not names & {"globalid", "tag"}:
+                wanted.append("a key column 'global_id' or 'tag'")
+            if "axialforce" not in names:
+                wanted.append("a force column 'axial_force' (e.g. 'axial_force [kN]')")
+            shown = ", ".join(repr(c) for c in cells[:8])
+            return LoadTableError(f"the header lacks {' and '.join(wanted)}; its columns are {shown}",
+                                  path=name, where=f"row {i + 1}")
+    return LoadTableError("has no rows with values", path=name)
+
+
+def _parse(records: list[list[Any]], name: str, sheet: str | None, all_text: bool = False) -> pd.DataFrame:
+    """Records (lists of cells, record i = spreadsheet row i + 1) -> the SI load table."""
+    row_label = f"{sheet}:row " if sheet is not None else "row "
+
+    def where(n: int) -> str:
+        return f"{row_label}{n}"
+
+    header = _find_header(records)
+    if header is None:
+        raise _header_problem(records, name)
+    body = records[header.row + 1:]
+    first_row = header.row + 2  # spreadsheet row number of body[0]
+    ci = header.cols
+
+    def column(key: str) -> list[Any]:
+        j = ci.get(key)
+        if j is None:
+            return [None] * len(body)
+        return [r[j] if j < len(r) else None for r in body]
+
+    if all_text:  # CSV: every cell is a string
+        blank = np.fromiter((not "".join(r).strip() for r in body), dtype=bool, count=len(body))
+    else:
+        blank = np.fromiter((_blank(r) for r in body), dtype=bool, count=len(body))
+    rows = np.arange(first_row, first_row + len(body))
+    keep = ~blank
+    if not keep.any():
+        raise LoadTableError("has a header but no rows of forces", path=name, where=where(header.row + 1))
+    rows = rows[keep]
+
+    def texts(key: str) -> pd.Series:
+        return _texts(pd.Series(np.asarray(column(key), dtype=object)[keep], dtype=object))
+
+    gid = texts("global_id")
+    tag = texts("tag")
+    by_gid = gid != ""
+    key = gid.where(by_gid, tag)
+    no_key = (key == "").to_numpy()
+    if no_key.any():
+        cols = " or ".join(c for c in ("global_id", "tag") if c in ci)
+        raise _row_error(name, where, rows, no_key, f"has a force but no {cols}")
+    if "load_case" in ci:
+        case = texts("load_case")
+        no_case = (case == "").to_numpy()
+        if no_case.any():
+            raise _row_error(name, where, rows, no_case, "load_case is empty (the table has a load_case column)")
+    else:
+        case = pd.Series([DEFAULT_LOAD_CASE] * len(rows), dtype=object)
+
+    raw = pd.Series(np.asarray(column("axial_force"), dtype=object)[keep])
+    force = _forces_si(raw, header, name, where, rows)
+    source_prefix = f"{name}:{row_label}"  # "<path>:row " or "<path>:<sheet>:row "
+    out = pd.DataFrame({
+        "key_kind": np.where(by_gid.to_numpy(), "global_id", "tag").astype(object),
+        "key": key.to_numpy(dtype=object),
+        "load_case": case.to_numpy(dtype=object),
+        "axial_force": force,
+        "source": (source_prefix + pd.Series(rows).astype(str)).to_numpy(dtype=object),
+    }, columns=list(LOAD_TABLE_COLUMNS))
+    return out
+
+
+def _row_error(name: str, where: Callable[[int], str], rows: np.ndarray, mask: np.ndarray, message: str,
+               value: Any = None) -> LoadTableError:
+    bad = np.flatnonzero(mask)
+    more = f" ({len(bad) - 1} more row{'s' if len(bad) > 2 else ''} like this)" if len(bad) > 1 else ""
+    shown = f"axial_force {value!r}: " if value is not None else ""
+    return LoadTableError(f"{shown}{message}{more}", path=name, where=where(int(rows[bad[0]])))
+
+
+def _forces_si(raw: pd.Series, header: _Header, name: str, where: Callable[[int], str], rows: np.ndarray) -> np.ndarray:
+    """The force column in newtons, vectorised; every problem named by row."""
+    if pd.api.types.infer_dtype(raw, skipna=False) == "string":
+        raw = raw.str.strip()
+        is_empty = (raw == "").to_numpy()
+    else:
+        is_empty = raw.map(lambda v: v is None or (isinstance(v, str) and not v.strip())
+                           or (isinstance(v, float) and math.isnan(v))).to_numpy(dtype=bool)
+    if is_empty.any():
+        raise _row_error(name, where, rows, is_empty, "axial_force is empty")
+    if header.force_unit is not None:
+        try:
+            factor = force_unit_factor(header.force_unit)
+        except ForceUnitError as exc:
+            raise LoadTableError(f"column {header.force_label!r}: {exc}", path=name,
+                                 where=where(header.row + 1)) from None
+        numbers = pd.to_numeric(raw, errors="coerce").to_numpy(dtype=float)
+        bad = np.isnan(numbers)
+        if bad.any():
+            first = raw.iloc[int(np.flatnonzero(bad)[0])]
+            why = _why_not_number(first, header.force_unit)
+            raise _row_error(name, where, rows, bad, why, value=first)
+        _check_finite(numbers, raw, name, where, rows)
+        return numbers * factor
+    # units in each cell: split number and unit, convert each distinct unit once
+    if pd.api.types.infer_dtype(raw, skipna=False) == "string":
+        text = raw
+    else:
+        text = raw.map(lambda v: v if isinstance(v, str) else None)
+    numeric_cell = text.isna().to_numpy()
+    if numeric_cell.any():
+        first = raw.iloc[int(np.flatnonzero(numeric_cell)[0])]
+        raise _row_error(name, where, rows, numeric_cell,
+                         f"a number with no unit, and the header {header.force_label!r} states none; "
+                         "give the unit in the header ('axial_force [kN]') or in the cell ('12.5 kN')",
+                         value=first)
+    parts = text.str.extract(_VALUE_RE)
+    unmatched = parts["num"].isna().to_numpy()
+    if unmatched.any():
+        first = raw.iloc[int(np.flatnonzero(unmatched)[0])]
+        raise _row_error(name, where, rows, unmatched, _why_not_number(first, None), value=first)
+    units = parts["unit"].fillna("").str.strip()
+    no_unit = (units == "").to_numpy()
+    if no_unit.any():
+        first = raw.iloc[int(np.flatnonzero(no_unit)[0])]
+        raise _row_error(name, where, rows, no_unit,
+                         f"a number with no unit, and the header {header.force_label!r} states none; "
+                         "give the unit in the header ('axial_force [kN]') or in the cell ('12.5 kN')",
+                         value=first)
+    codes, uniques = pd.factorize(units)
+    factors = np.empty(len(uniques), dtype=float)
+    for k, u in enumerate(uniques):
+        try:
+            factors[k] = force_unit_factor(u)
+        except ForceUnitError as exc:
+            first = raw.iloc[int(np.argmax(codes == k))]
+            why = _why_not_number(first, None) if re.match(r"^,\d", u) else str(exc)
+            raise _row_error(name, where, rows, codes == k, why, value=first) from None
+    numbers = parts["num"].astype(float).to_numpy()
+    _check_finite(numbers, raw, name, where, rows)
+    return numbers * factors[codes]
+
+
+def _check_finite(numbers: np.ndarray, raw: pd.Series, name: str, where: Callable[[int], str], rows: np.ndarray) -> None:
+    bad = ~np.isfinite(numbers)
+    if bad.any():
+        first = raw.iloc[int(np.flatnonzero(bad)[0])]
+        raise _row_error(name, where, rows, bad, "not a finite number", value=first)
+
+
+def _why_not_number(value: Any, header_unit: str | None) -> str:
+    s = str(value).strip()
+    if re.match(r"^[+-]?\d+,\d", s):
+        return "a decimal comma or thousands separator; write numbers with a decimal point and no separators"
+    if s.split(" ")[0].lower() in ("nan", "inf", "-inf", "+inf", "infinity", "#n/a", "n/a", "na", "#value!", "#div/0!"):
+        return "not a finite number"
+    if header_unit is not None and re.match(_VALUE_RE, s):
+        return f"the header already gives the unit {header_unit!r}; the cells must hold plain numbers"
+    return "not a number"
