@@ -254,7 +254,8 @@ class ModelBuilder:
 
     def extrusion(self, profile: Any, length: float) -> Any:
         f = self.f
-        return f.createIfcExtrudedAreaSolid(profile, None, f.createIfcDirection((0.0, 0.0, 1.0)), length)
+        # Position is optional from IFC4 on but required in IFC2X3: always write it
+        return f.createIfcExtrudedAreaSolid(profile, self.world, f.createIfcDirection((0.0, 0.0, 1.0)), length)
 
     def swept_disk(self, radius: float, length: float, inner: float | None = None) -> Any:
         f = self.f
@@ -288,7 +289,7 @@ class ModelBuilder:
             maps = [rmap]
         kwargs: dict[str, Any] = dict(GlobalId=self.guid(), OwnerHistory=self._owner, Name=name,
                                       PredefinedType=predefined_type, RepresentationMaps=maps)
-        if self.schema == "IFC2X3" and cls == "IfcMemberType":
+        if (self.schema == "IFC2X3" and cls == "IfcMemberType") or predefined_type == "USERDEFINED":
             kwargs["ElementType"] = name
         typ = f.create_entity(cls, **kwargs)
         if material is not None:

@@ -6,7 +6,7 @@ a relation entity is visited once, whatever the number of elements it relates.
 
 Example::
 
-    idx = build_index("sample_models/mezzanine.ifc")
+    idx = build_index("sample_models/nettlebrook-hall.ifc")
     idx.units.factor("LENGTHUNIT")      # metres per file length unit
     idx.psets_of[element.id()]         # its property sets and quantity sets (occurrence only)
     property_si(idx, pset_prop)        # a property's value in SI base units, by the file's units
@@ -52,6 +52,7 @@ class ModelIndex:
     assigned_to: dict[int, list[Any]] = field(default_factory=dict)  # product id -> assigned objects
     material_props: dict[int, list[Any]] = field(default_factory=dict)  # material id -> property entities
     profile_props: dict[int, list[Any]] = field(default_factory=dict)   # profile id -> property entities
+    object_profile_props: dict[int, list[Any]] = field(default_factory=dict)  # IFC2X3: element id -> profile props
 
     def type_psets(self, typ: Any) -> list[Any]:
         return list(typ.HasPropertySets or ()) if typ is not None else []
@@ -157,6 +158,10 @@ def _walk(model: Any, idx: ModelIndex) -> None:
             prof = getattr(pp, "ProfileDefinition", None)
             if prof is not None:
                 idx.profile_props.setdefault(prof.id(), []).append(pp)
+        for rel in model.by_type("IfcRelAssociatesProfileProperties"):
+            pp = rel.RelatingProfileProperties
+            for obj in rel.RelatedObjects or ():
+                idx.object_profile_props.setdefault(obj.id(), []).append(pp)
 
 
 @dataclass(frozen=True)

@@ -4,7 +4,7 @@ Example::
 
     from modelcheck.ifc.index import build_index
     from modelcheck.ifc.reader import read_members
-    members = read_members(build_index("sample_models/mezzanine.ifc"))
+    members = read_members(build_index("sample_models/nettlebrook-hall.ifc"))
     members[["global_id", "area", "area_source", "length", "Fy"]]
 
 What is read, in the order each source ranks (the first one present is used; every other one
@@ -369,9 +369,9 @@ class _Reader:
             if tendon is not None:
                 candidates.append(tendon)
         psets = idx.psets_of.get(eid)
-        if idx.profile_props or psets:
+        if idx.profile_props or psets or idx.object_profile_props:
             mech = self._profile_mechanical(self._profiles_of(own_sel, type_sel) if idx.profile_props else [],
-                                            psets or [])
+                                            psets or [], eid)
             if mech is not None:
                 candidates.append(mech)
         qarea = qlen = None
@@ -513,11 +513,15 @@ class _Reader:
         return ("material profile set with several profiles (" + ", ".join(s.source for s in areas)
                 + "): their relative placement is not stated; not combined")
 
-    def _profile_mechanical(self, profiles: list[Any], psets: list[Any]) -> Section | None:
-        """Pset_ProfileMechanical (profile or element) / IFC2X3 IfcStructuralProfileProperties."""
+    def _profile_mechanical(self, profiles: list[Any], psets: list[Any], eid: int | None = None) -> Section | None:
+        """Pset_ProfileMechanical (profile or element) / IFC2X3 IfcStructuralProfileProperties
+        (on the profile, or on the element through IfcRelAssociatesProfileProperties)."""
         sources: list[tuple[str, dict[str, SIValue]]] = []
-        for prof in profiles[:1]:
-            for pp in self.idx.profile_props.get(prof.id(), ()):
+        props = [pp for prof in profiles[:1] for pp in self.idx.profile_props.get(prof.id(), ())]
+        if eid is not None:
+            props += self.idx.object_profile_props.get(eid, [])
+        if props:
+            for pp in props:
                 if pp.is_a("IfcStructuralProfileProperties") or pp.is_a("IfcGeneralProfileProperties"):
                     vals: dict[str, SIValue] = {}
                     for attr, measure in (("CrossSectionArea", "IfcAreaMeasure"),
