@@ -1,0 +1,232 @@
+"""Compare a check report with an earlier one (a baseline): what got worse, what got better.
+
+Both sides are JSON check documents (``check_json.check_document``). A result is keyed by model
+file name (the basename, so a moved or renamed folder still compares) + GlobalId + check + load
+case. Only models on both sides are compared member by member; a model on one side only is
+listed in ``models_added`` / ``models_removed`` (a new model's members count as added and its
+failures as new; a model gone from the current run removes nothing, it was just not checked),
+and a model that could not be read now is listed in ``models_unreadable`` and compares as
+unchanged.
+
+The comparison (also the ``comparison`` object of the JSON report)::
+
+    {"baseline": {"generated": …, "ruleset": …},
+     "counts": {"new_failures": n, "resolved": n, "still_failing": n, "new_unchecked": n,
+                "members_added": n, "members_removed": n},
+     "new_failures":   [{model, global_id, check, load_case, ratio, baseline_status, message}],
+     "resolved":       [{model, global_id, check, load_case, ratio, baseline_ratio, status}],
+     "still_failing":  [{model, global_id, check, load_case, ratio, baseline_ratio}],
+     "new_unchecked":  [{model, global_id, check, load_case, missing, baseline_status}],
+     "members_added":  [{model, global_id, ifc_class, name, tag, status}],
+     "members_removed":[{model, global_id, ifc_class, name, tag, status}],
+     "models_added": […], "models_removed": […], "models_unreadable": […], "notes": […]}
+
+``status`` of a member is its worst over all results (fail > unchecked > pass). A failure is
+"new" when that key did not fail in the baseline (it passed, was unchecked, or did not exist);
+"resolved" when it failed in the baseline and the member is still there without failing on it.
+Lists are sorted by model, GlobalId, check and load case, so the comparison is deterministic.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+from collections.abc import Iterable
+from pathlib import Path
+from typing import Any
+
+from modelcheck.errors import UsageError
+
+Key = tuple[str, str, str, str]      # model name, GlobalId, check, load case ("" when none)
+_RANK = {"fail": 0, "unchecked": 1, "pass": 2}
+
+
+def _model_names(doc: dict[str, Any]) -> dict[str, str]:
+    """Model path -> comparison name: the basename, or the path when two models share a basename."""
+    paths = [m["path"] for m in doc.get("models", [])] + [r["model"] for r in doc.get("results", [])]
+    seen: dict[str, set[str]] = {}
+    for p in paths:
+        seen.setdefault(os.path.basename(p), set()).add(p)
+    return {p: (b if len(ps) == 1 else p) for b, ps in seen.items() for p in ps}
+
+
+def _index(doc: dict[str, Any]) -> tuple[dict[Key, dict[str, Any]], dict[tuple[str, str], dict[str, Any]]]:
+    """Results by key and members by (model name, GlobalId) with their worst status."""
+    names = _model_names(doc)
+    results: dict[Key, dict[str, Any]] = {}
+    members: dict[tuple[str, str], dict[str, Any]] = {}
+    for r in doc.get("results", []):
+        model = names[r["model"]]
+        key = (model, r["global_id"], r["check"], r.get("load_case") or "")
+        results[key] = r
+        mk = (model, r["global_id"])
+        m = members.get(mk)
+        if m is None:
+            members[mk] = {"model": model, "global_id": r["global_id"], "ifc_class": r.get("ifc_class"),
+                           "name": r.get("name"), "tag": r.get("tag"), "status": r["status"]}
+        elif _RANK.get(r["status"], 3) < _RANK.get(m["status"], 3):
+            m["status"] = r["status"]
+    return results, members
+
+
+def _ratio(r: dict[str, Any] | None) -> float | None:
+    return None if r is None else r.get("ratio")
+
+
+def _entry(key: Key, **extra: Any) -> dict[str, Any]:
+    return {"model": key[0], "global_id": key[1], "check": key[2], "load_case": key[3] or None, **extra}
+
+
+def compare(current_doc: dict[str, Any], baseline_doc: dict[str, Any]) -> dict[str, Any]:
+    """What changed between a baseline check report and the current one (see the module doc)."""
+    cur, cur_members = _index(current_doc)
+    base, base_members = _index(baseline_doc)
+    cur_names, base_names = _model_names(current_doc), _model_names(baseline_doc)
+    cur_models = {cur_names[m["path"]] for m in current_doc.get("models", [])}
+    base_models = {base_names[m["path"]] for m in baseline_doc.get("models", [])}
+    unreadable = {cur_names[m["path"]] for m in current_doc.get("models", []) if m.get("error")}
+    compared = (cur_models & base_models) - unreadable
+
+    new_failures, resolved, still, new_unchecked = [], [], [], []
+    for key, r in cur.items():
+        b = base.get(key)
+        if key[0] in unreadable:
+            continue
+        b_status = None if b is None else b["status"]
+        if r["status"] == "fail":
+            if b_status == "fail":
+                still.append(_entry(key, ratio=r.get("ratio"), baseline_ratio=_ratio(b)))
+            else:
+                new_failures.append(_entry(key, ratio=r.get("ratio"), baseline_status=b_status,
+                                           message=r.get("message", "")))
+        elif r["status"] == "unchecked" and b_status != "unchecked":
+            new_unchecked.append(_entry(key, missing=list(r.get("missing") or []), baseline_status=b_status))
+    for key, b in base.items():
+        if b["status"] != "fail" or key[0] not in compared:
+            continue
+        r = cur.get(key)
+        if r is None:
+            # the member is gone (reported in members_removed) or this key no longer exists
+            if (key[0], key[1]) in cur_members:
+                resolved.append(_entry(key, ratio=None, baseline_ratio=_ratio(b), status=None))
+            continue
+        if r["status"] != "fail":
+            resolved.append(_entry(key, ratio=r.get("ratio"), baseline_ratio=_ratio(b), status=r["status"]))
+
+    added = [m for k, m in cur_members.items() if k not in base_members and k[0] not in unreadable]
+    removed = [m for k, m in base_members.items() if k not in cur_members and k[0] in compared]
+
+    def order(items: Iterable[dict[str, Any]]) -> list[dict[str, Any]]:
+        return sorted(items, key=lambda e: (e["model"], e["global_id"], e.get("check") or "",
+                                            e.get("load_case") or ""))
+
+    out: dict[str, Any] = {
+        "baseline": {"generated": baseline_doc.get("generated"),
+                     "ruleset": (baseline_doc.get("ruleset") or {}).get("name")},
+        "counts": {"new_failures": len(new_failures), "resolved": len(resolved), "still_failing": len(still),
+                   "new_unchecked": len(new_unchecked), "members_added": len(added),
+                   "members_removed": len(removed)},
+        "new_failures": order(new_failures), "resolved": order(resolved), "still_failing": order(still),
+        "new_unchecked": order(new_unchecked), "members_added": order(added), "members_removed": order(removed),
+        "models_added": sorted(cur_models - base_models), "models_removed": sorted(base_models - cur_models),
+        "models_unreadable": sorted(unreadable),
+        "notes": [],
+    }
+    cur_rs = (current_doc.get("ruleset") or {}).get("name")
+    if out["baseline"]["ruleset"] and cur_rs and out["baseline"]["ruleset"] != cur_rs:
+        out["notes"].append(f"the baseline used rule set {out['baseline']['ruleset']!r}, this run {cur_rs!r}")
+    for names in (cur_names, base_names):
+        shared = sorted({p for p, n in names.items() if n == p and os.path.basename(p) != p})
+        if shared:
+            out["notes"].append("models sharing a file name are compared by full path: " + ", ".join(shared))
+    return out
+
+
+def new_problems(cmp: dict[str, Any], *, strict: bool = False) -> int:
+    """Number of results that got worse: new failures (and, with ``strict``, new unchecked)."""
+    c = cmp["counts"]
+    return int(c["new_failures"]) + (int(c["new_unchecked"]) if strict else 0)
+
+
+# ------------------------------------------------------------------------------- baseline
+_RESULT_KEYS = ("model", "global_id", "check", "status")
+
+
+def load_baseline(path: str | os.PathLike[str]) -> dict[str, Any]:
+    """Read an earlier JSON check report; a clear UsageError naming the file when it is not one."""
+    p = Path(path)
+    name = str(path)
+    if not p.exists():
+        raise UsageError("baseline report not found", path=name)
+    if p.is_dir():
+        raise UsageError("baseline is a folder, not a JSON check report", path=name)
+    try:
+        text = p.read_text(encoding="utf-8")
+    except UnicodeDecodeError as exc:
+        raise UsageError(f"baseline is not UTF-8 text ({exc.reason}); give a JSON report of 'modelcheck check'",
+                         path=name) from None
+    try:
+        doc = json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise UsageError(f"not valid JSON: {exc.msg} (column {exc.colno})", path=name,
+                         where=f"line {exc.lineno}") from None
+    if not isinstance(doc, dict) or not isinstance(doc.get("results"), list) or \
+            not isinstance(doc.get("models"), list) or "ruleset" not in doc:
+        raise UsageError("not a JSON report of 'modelcheck check' (needs 'ruleset', 'models' and 'results'; "
+                         "write one with --format json)", path=name)
+    for i, m in enumerate(doc["models"]):
+        if not isinstance(m, dict) or not isinstance(m.get("path"), str):
+            raise UsageError("model entry without a 'path'", path=name, where=f"models[{i}]")
+    for i, r in enumerate(doc["results"]):
+        if not isinstance(r, dict) or any(not isinstance(r.get(k), str) for k in _RESULT_KEYS):
+            raise UsageError(f"result entry without {', '.join(_RESULT_KEYS)}", path=name, where=f"results[{i}]")
+        if r["status"] not in _RANK:
+            raise UsageError(f"unknown status {r['status']!r}", path=name, where=f"results[{i}]")
+    return doc
+
+
+# ------------------------------------------------------------------------------- console
+def comparison_renderable(cmp: dict[str, Any], *, max_rows: int = 30) -> Any:
+    """A rich renderable: one summary line, then new failures and resolved results."""
+    from rich.console import Group
+    from rich.table import Table
+    from rich.text import Text
+
+    c = cmp["counts"]
+    when = cmp.get("baseline", {}).get("generated")
+    parts: list[Any] = [Text.assemble(
+        ("Compared with the baseline", "bold"), (f" of {when}" if when else ""), ": ",
+        (f"{c['new_failures']} new failure(s)", "bold red" if c["new_failures"] else "green"), ", ",
+        (f"{c['resolved']} resolved", "green"), ", ", f"{c['still_failing']} still failing, ",
+        (f"{c['new_unchecked']} newly unchecked", "yellow" if c["new_unchecked"] else ""), ", ",
+        f"{c['members_added']} member(s) added, {c['members_removed']} removed")]
+    for label, key in (("models added", "models_added"), ("models no longer checked", "models_removed"),
+                       ("models not readable now (not compared)", "models_unreadable")):
+        if cmp.get(key):
+            parts.append(Text(f"  {label}: " + ", ".join(cmp[key]), style="yellow"))
+    for note in cmp.get("notes", []):
+        parts.append(Text(f"  note: {note}", style="yellow"))
+
+    def table(title: str, rows: list[dict[str, Any]], style: str, extra: str) -> Table:
+        t = Table(title=title, title_justify="left", header_style="bold")
+        for col in ("Model", "GlobalId", "Check", "Load case", "Ratio", extra):
+            t.add_column(col, overflow="fold", justify="right" if col in ("Ratio", extra) else "left")
+        for e in rows[:max_rows]:
+            other = e.get("baseline_ratio") if extra == "Baseline ratio" else e.get("baseline_status")
+            t.add_row(e["model"], e["global_id"], e["check"], e["load_case"] or "—",
+                      Text(_num(e.get("ratio")), style=style), _num(other) if extra == "Baseline ratio"
+                      else str(other or "absent"))
+        if len(rows) > max_rows:
+            t.caption = f"… and {len(rows) - max_rows} more (see the JSON report)"
+        return t
+
+    if cmp["new_failures"]:
+        parts.append(table(f"New failures ({c['new_failures']})", cmp["new_failures"], "bold red",
+                           "Baseline status"))
+    if cmp["resolved"]:
+        parts.append(table(f"Resolved ({c['resolved']})", cmp["resolved"], "green", "Baseline ratio"))
+    return Group(*parts)
+
+
+def _num(v: Any) -> str:
+    return "—" if not isinstance(v, int | float) else f"{v:.2f}"

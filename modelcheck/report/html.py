@@ -1,0 +1,232 @@
+"""The HTML report of `modelcheck check`: one self-contained file a coordinator can email.
+
+No network access is needed to view it: the style sheet is inline, the chart is an inline SVG
+drawn here, there is no script, no image file, no font and no link to anything. Every text that
+comes from a model, a rule set or a path is HTML-escaped.
+
+Sections: rule set and time; a summary per model (members found, checked, pass / fail /
+unchecked, or why the model could not be read); the distribution of each member's worst ratio
+(bars of width 0.1 closed on the right, ratios above 1.5 in the last bar, bars above 1.0 in red); the changes
+since a baseline when a comparison is given; the failing members (governing load case, worst
+first); the unchecked members with what they lack; warnings; the caution.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import math
+from html import escape
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from modelcheck.report.console import governing, member_status
+from modelcheck.report.csv_report import member_info
+from modelcheck.report.members import CAUTION
+
+#: rows shown per table; the rest are counted (CSV and JSON carry them all)
+MAX_ROWS = 2000
+
+_CSS = """
+body { font-family: system-ui, -apple-system, "Segoe UI", Roboto, sans-serif; margin: 2em; color: #222; }
+h1 { font-size: 1.6em; margin-bottom: 0.2em; }
+h2 { font-size: 1.2em; margin-top: 1.6em; border-bottom: 1px solid #ccc; }
+table { border-collapse: collapse; font-size: 0.9em; margin: 0.5em 0; }
+th, td { border: 1px solid #ccc; padding: 0.25em 0.5em; text-align: left; vertical-align: top; }
+th { background: #f0f0f0; }
+td.num { text-align: right; font-variant-numeric: tabular-nums; }
+.fail { color: #b00020; font-weight: bold; }
+.pass { color: #1b6e20; }
+.unchecked { color: #a05a00; }
+.error { color: #b00020; }
+.muted { color: #666; }
+.caution { margin-top: 2em; font-style: italic; color: #444; }
+code { font-size: 0.95em; }
+"""
+
+
+def _e(v: Any) -> str:
+    """Escaped text of a value; an em dash for none."""
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return "—"
+    return escape(str(v), quote=True)
+
+
+def _n(v: Any, fmt: str = "{:.4g}") -> str:
+    if v is None or not isinstance(v, int | float) or not math.isfinite(v):
+        return "—"
+    return fmt.format(v)
+
+
+def _table(headers: list[str], rows: list[list[str]], numeric: set[int] | None = None) -> str:
+    numeric = numeric or set()
+    head = "".join(f"<th>{escape(h)}</th>" for h in headers)
+    body = []
+    for r in rows[:MAX_ROWS]:
+        cells = "".join(f'<td class="num">{c}</td>' if i in numeric else f"<td>{c}</td>" for i, c in enumerate(r))
+        body.append(f"<tr>{cells}</tr>")
+    more = ""
+    if len(rows) > MAX_ROWS:
+        more = f'<p class="muted">… and {len(rows) - MAX_ROWS} more rows (the CSV and JSON reports list all).</p>'
+    return f"<table><thead><tr>{head}</tr></thead><tbody>{''.join(body)}</tbody></table>{more}"
+
+
+def _summary(run: Any) -> str:
+    rows = []
+    status = member_status(run.results) if len(run.results) else pd.Series(dtype=object)
+    for m in run.models:
+        if m.error:
+            rows.append([_e(m.path), "—", "—", "—", "—", "—", "—", f'<span class="error">cannot be read: {_e(m.error)}</span>'])
+            continue
+        st = status[status.index.get_level_values(0) == m.path] if len(status) else status
+        n_fail, n_un, n_pass = (int((st == s).sum()) for s in ("fail", "unchecked", "pass"))
+        verdict = ('<span class="fail">fail</span>' if n_fail else
+                   '<span class="unchecked">incomplete</span>' if n_un else '<span class="pass">pass</span>')
+        rows.append([_e(m.path), _e(m.schema), str(int(m.member_count)), str(n_fail + n_pass), str(n_pass),
+                     str(n_fail), str(n_un), verdict])
+    return _table(["Model", "Schema", "Members", "Checked", "Pass", "Fail", "Unchecked", "Result"], rows,
+                  numeric={2, 3, 4, 5, 6})
+
+
+def ratio_histogram(ratios: np.ndarray, width: float = 0.1, top: float = 1.5) -> tuple[list[str], list[int]]:
+    """Bin labels and counts of ratios in bars of ``width`` from 0; the last bar holds ratios above ``top``."""
+    r = ratios[np.isfinite(ratios)]
+    n_bins = int(round(top / width))
+    # bars are closed on the right, (0.9, 1.0]: a ratio of exactly 1.0 passes and stays green
+    idx = np.clip(np.ceil(r / width - 1e-9).astype(int) - 1, 0, n_bins)
+    counts = np.bincount(idx, minlength=n_bins + 1)[: n_bins + 1]
+    labels = [f"{i * width:.1f}–{(i + 1) * width:.1f}" for i in range(n_bins)] + [f">{top:.1f}"]
+    return labels, [int(c) for c in counts]
+
+
+def _chart(run: Any) -> str:
+    res = run.results
+    if not len(res):
+        return '<p class="muted">No results.</p>'
+    worst = res.assign(_r=pd.to_numeric(res["ratio"], errors="coerce")).groupby(["model", "global_id"])["_r"].max()
+    ratios = worst.to_numpy(dtype=float)
+    labels, counts = ratio_histogram(ratios)
+    n = int(np.isfinite(ratios).sum())
+    if n == 0:
+        return '<p class="muted">No member has a ratio (every member is unchecked).</p>'
+    w, h, left, bottom, top_pad = 720, 260, 40, 50, 20
+    bar_w = (w - left - 10) / len(counts)
+    peak = max(counts) or 1
+    parts = [f'<svg role="img" aria-label="Distribution of the worst ratio per member" width="{w}" height="{h}" '
+             f'viewBox="0 0 {w} {h}">',
+             f'<line x1="{left}" y1="{h - bottom}" x2="{w - 10}" y2="{h - bottom}" stroke="#444"/>']
+    for i, (lab, c) in enumerate(zip(labels, counts, strict=True)):
+        bh = (h - bottom - top_pad) * c / peak
+        x = left + i * bar_w
+        colour = "#c62828" if i >= 10 else "#2e7d32"  # bars above a ratio of 1.0
+        parts.append(f'<rect x="{x + 2:.1f}" y="{h - bottom - bh:.1f}" width="{bar_w - 4:.1f}" height="{bh:.1f}" '
+                     f'fill="{colour}"><title>{escape(lab)}: {c}</title></rect>')
+        if c:
+            parts.append(f'<text x="{x + bar_w / 2:.1f}" y="{h - bottom - bh - 4:.1f}" font-size="11" '
+                         f'text-anchor="middle">{c}</text>')
+        parts.append(f'<text x="{x + bar_w / 2:.1f}" y="{h - bottom + 14:.1f}" font-size="9" text-anchor="end" '
+                     f'transform="rotate(-40 {x + bar_w / 2:.1f} {h - bottom + 14:.1f})">{escape(lab)}</text>')
+    x1 = left + 10 * bar_w
+    parts.append(f'<line x1="{x1:.1f}" y1="{top_pad - 5}" x2="{x1:.1f}" y2="{h - bottom}" stroke="#b00020" '
+                 f'stroke-dasharray="4 3"/>')
+    parts.append(f'<text x="{x1 + 4:.1f}" y="{top_pad + 5}" font-size="11" fill="#b00020">ratio 1.0</text>')
+    parts.append(f'<text x="{left}" y="{h - 4}" font-size="11">worst demand/capacity ratio per member '
+                 f'({n} members with a ratio)</text>')
+    parts.append("</svg>")
+    return "".join(parts)
+
+
+def _failing(run: Any) -> str:
+    g = governing(run.results) if len(run.results) else run.results
+    fails = g[g["status"] == "fail"] if len(g) else g
+    if not len(fails):
+        return '<p class="pass">No failing members.</p>'
+    fails = fails.assign(_r=pd.to_numeric(fails["ratio"], errors="coerce")).sort_values(
+        "_r", ascending=False, kind="stable")
+    info = {(m, gid): (s, sec, mat) for m, gid, s, sec, mat in member_info(run.members).itertuples(index=False)}
+    rows = []
+    for rec in fails.to_dict("records"):
+        s, sec, mat = info.get((rec["model"], rec["global_id"]), (None, None, None))
+        label = " / ".join(str(x) for x in (rec["name"], rec["tag"]) if isinstance(x, str) and x)
+        unit = f" {_e(rec['unit'])}" if isinstance(rec["unit"], str) and rec["unit"] else ""
+        rows.append([f"<code>{_e(rec['global_id'])}</code>", _e(rec["ifc_class"]), _e(label or None), _e(s),
+                     _e(sec), _e(mat), _e(rec["check"]), _n(rec["demand"]) + unit, _n(rec["capacity"]) + unit,
+                     f'<span class="fail">{_n(rec["ratio"], "{:.2f}")}</span>', _e(rec["load_case"]),
+                     _e(rec["model"])])
+    return _table(["GlobalId", "Class", "Name / tag", "Storey", "Section", "Material", "Check", "Demand",
+                   "Capacity", "Ratio", "Load case", "Model"], rows, numeric={7, 8, 9})
+
+
+def _unchecked(run: Any) -> str:
+    g = governing(run.results) if len(run.results) else run.results
+    un = g[g["status"] == "unchecked"] if len(g) else g
+    if not len(un):
+        return '<p class="pass">Every member was checked.</p>'
+    rows = []
+    for (model, gid), grp in un.groupby(["model", "global_id"], sort=False):
+        missing = sorted({m for lst in grp["missing"] for m in (lst or [])})
+        first = grp.iloc[0]
+        label = " / ".join(str(x) for x in (first["name"], first["tag"]) if isinstance(x, str) and x)
+        rows.append([f"<code>{_e(gid)}</code>", _e(first["ifc_class"]), _e(label or None),
+                     _e(", ".join(grp["check"])), "<br>".join(_e(m) for m in missing) or "—", _e(model)])
+    return _table(["GlobalId", "Class", "Name / tag", "Checks", "Missing input", "Model"], rows)
+
+
+def _comparison(cmp: dict[str, Any]) -> str:
+    c = cmp.get("counts", {})
+    head = (f"<p>{int(c.get('new_failures', 0))} new failure(s), {int(c.get('resolved', 0))} resolved, "
+            f"{int(c.get('still_failing', 0))} still failing, {int(c.get('members_added', 0))} member(s) added, "
+            f"{int(c.get('members_removed', 0))} removed.</p>")
+    rows = [[_e(x.get("model")), f"<code>{_e(x.get('global_id'))}</code>", _e(x.get("check")),
+             _e(x.get("load_case")), _n(x.get("ratio"), "{:.2f}")] for x in cmp.get("new_failures", [])]
+    table = _table(["Model", "GlobalId", "Check", "Load case", "Ratio"], rows, numeric={4}) if rows else ""
+    return head + table
+
+
+def _warnings(run: Any) -> str:
+    items = []
+    for m in run.models:
+        for w in list(m.warnings) + list(m.force_messages) + list(m.validation):
+            items.append(f"<li>{_e(m.path)}: {_e(w)}</li>")
+    for r in run.unmatched_rows:
+        items.append(f"<li>force row matches no member: {_e(r.get('source'))} ({_e(r.get('key'))})</li>")
+    if not items:
+        return ""
+    shown = items[:MAX_ROWS]
+    more = f"<li>… and {len(items) - MAX_ROWS} more</li>" if len(items) > MAX_ROWS else ""
+    return f"<h2>Warnings</h2><details><summary>{len(items)} warning(s)</summary><ul>{''.join(shown)}{more}</ul></details>"
+
+
+def render_html(run: Any, *, now: _dt.datetime | None = None, comparison: dict[str, Any] | None = None) -> str:
+    """The whole HTML document as text."""
+    stamp = (now or _dt.datetime.now(_dt.UTC)).replace(microsecond=0).isoformat()
+    rs = run.ruleset
+    basis = getattr(rs, "basis", "") or ""
+    parts = [
+        "<!DOCTYPE html>",
+        '<html lang="en"><head><meta charset="utf-8">',
+        '<meta name="viewport" content="width=device-width, initial-scale=1">',
+        f"<title>modelcheck report — {_e(rs.name)}</title>",
+        f"<style>{_CSS}</style></head><body>",
+        "<h1>modelcheck report</h1>",
+        f'<p class="muted">Rule set <b>{_e(rs.name)}</b>{" — " + _e(basis) if basis else ""}; '
+        f"generated {escape(stamp)}.</p>",
+        "<h2>Summary</h2>", _summary(run),
+        "<h2>Ratio distribution</h2>", _chart(run),
+    ]
+    if comparison is not None:
+        parts += ["<h2>Changes since the baseline</h2>", _comparison(comparison)]
+    parts += ["<h2>Failing members</h2>", _failing(run),
+              "<h2>Unchecked members</h2>", _unchecked(run),
+              _warnings(run),
+              f'<p class="caution">{_e(CAUTION)}</p>',
+              "</body></html>"]
+    return "\n".join(p for p in parts if p) + "\n"
+
+
+def write_html(run: Any, path: str | Path, *, now: _dt.datetime | None = None,
+               comparison: dict[str, Any] | None = None) -> None:
+    """Write the self-contained HTML report of a check run."""
+    Path(path).write_text(render_html(run, now=now, comparison=comparison), encoding="utf-8")
