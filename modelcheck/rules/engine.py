@@ -1,0 +1,434 @@
+"""Run a rule set over the member table: one result per member × applicable check × load case.
+
+Each check is evaluated once over arrays of all the rows it applies to (pint quantities
+wrapping numpy arrays); nothing loops over members doing unit arithmetic.
+
+Example::
+
+    >>> from modelcheck.rules.ruleset import load_ruleset
+    >>> results = run_checks(load_ruleset("steel-asd-us"), members, forces)   # doctest: +SKIP
+    >>> results[results.status == "fail"][["global_id", "check", "ratio"]]     # doctest: +SKIP
+
+Status: "pass" where demand ≤ capacity (within 1 part in 10⁹, so rounding never fails a member
+exactly at its limit), "fail" otherwise, "unchecked" where an input the check needs is missing
+or the demand or capacity is not a finite number — never "pass" on missing data.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from typing import Any
+
+import numpy as np
+import pandas as pd
+import pint
+
+from modelcheck.errors import RuleSetError
+from modelcheck.rules.expr import Cond, Expression, ExpressionError, Text, Value, parse_expression
+from modelcheck.rules.names import MEMBER_QUANTITIES, TEXT_NAMES
+from modelcheck.rules.ruleset import Check, RuleSet, Scope
+from modelcheck.table import RESULT_COLUMNS
+from modelcheck.threads import thread_tensile_area
+from modelcheck.units import Q_, ureg
+
+#: columns of the results table: the contract's, then extras
+EXTRA_COLUMNS: tuple[str, ...] = ("clause", "title")
+COLUMNS: tuple[str, ...] = RESULT_COLUMNS + EXTRA_COLUMNS
+
+#: pass when demand <= capacity * (1 + PASS_TOLERANCE)
+PASS_TOLERANCE = 1e-9
+
+_TEXT_RESULT_COLUMNS = ("model", "global_id", "ifc_class", "name", "tag", "check", "load_case", "status",
+                        "unit", "message", "demand_source", "capacity_source", "clause", "title")
+
+
+class MemberData:
+    """Columns of the member table as numpy arrays (SI floats, text as object with None), cached."""
+
+    def __init__(self, members: pd.DataFrame) -> None:
+        self.members = members
+        self.n = len(members)
+        self._numbers: dict[str, np.ndarray] = {}
+        self._texts: dict[str, np.ndarray] = {}
+
+    def text(self, column: str) -> np.ndarray:
+        if column not in self._texts:
+            if column == "thread":
+                self._thread()
+            elif column in self.members.columns:
+                self._texts[column] = self.members[column].to_numpy(dtype=object, na_value=None)
+            else:
+                self._texts[column] = np.full(self.n, None, dtype=object)
+        return self._texts[column]
+
+    def number(self, name: str) -> np.ndarray:
+        """A member quantity in its SI unit, NaN where missing."""
+        if name not in self._numbers:
+            if name == "As":
+                self._thread()
+            else:
+                column = MEMBER_QUANTITIES[name].column
+                if column is not None and column in self.members.columns:
+                    values = pd.to_numeric(self.members[column], errors="coerce")
+                    self._numbers[name] = np.asarray(values, dtype=float)
+                else:
+                    self._numbers[name] = np.full(self.n, np.nan)
+        return self._numbers[name]
+
+    def _thread(self) -> None:
+        d = self.number("d")
+        round_bar = self.text("shape") == "round-bar"
+        area, designation = thread_tensile_area(np.where(round_bar, d, np.nan))
+        self._numbers["As"] = area
+        self._texts["thread"] = designation
+
+
+def _force_rows(members: pd.DataFrame, forces: pd.DataFrame | None) -> dict[str, np.ndarray]:
+    """Every member × load case of the forces table, and one row with no force for other members.
+
+    ``rank`` is the load case's order of first appearance in the forces table (-1: no case).
+    A force row whose model is empty applies to that GlobalId in every model.
+    """
+    n = len(members)
+    if forces is None or len(forces) == 0:
+        return {"member": np.arange(n), "P": np.full(n, np.nan), "load_case": np.full(n, None, dtype=object),
+                "rank": np.full(n, -1)}
+    models = _objects(members, "model")
+    gids = _objects(members, "global_id")
+    f_model = _objects(forces, "model")
+    f_gid = _objects(forces, "global_id")
+    f_case = _objects(forces, "load_case")
+    f_p = np.asarray(pd.to_numeric(forces["axial_force"], errors="coerce"), dtype=float)
+    codes = pd.factorize(pd.Series(f_case, dtype=object), use_na_sentinel=True)[0]
+    member_keys = pd.Index(_key(models, gids))
+    if member_keys.is_unique and not pd.isna(pd.Series(f_model, dtype=object)).any():
+        pos = member_keys.get_indexer(_key(f_model, f_gid))
+        ok = pos >= 0
+        m, f = pos[ok], np.flatnonzero(ok)
+    else:
+        left = pd.DataFrame({"model": pd.Series(models, dtype=object).fillna("\x00"),
+                             "global_id": pd.Series(gids, dtype=object).fillna("\x00"), "_m": np.arange(n)})
+        right = pd.DataFrame({"model": pd.Series(f_model, dtype=object),
+                              "global_id": pd.Series(f_gid, dtype=object), "_f": np.arange(len(forces))})
+        with_model = right[right["model"].notna()]
+        without_model = right[right["model"].isna()].drop(columns="model")
+        parts = [left.merge(with_model, on=["model", "global_id"], how="inner")[["_m", "_f"]]]
+        if len(without_model):
+            parts.append(left.merge(without_model, on="global_id", how="inner")[["_m", "_f"]])
+        matched = pd.concat(parts, ignore_index=True)
+        m = matched["_m"].to_numpy(dtype=np.int64)
+        f = matched["_f"].to_numpy(dtype=np.int64)
+    has_force = np.zeros(n, dtype=bool)
+    has_force[m] = True
+    unmatched = np.flatnonzero(~has_force)
+    return {
+        "member": np.concatenate([m, unmatched]),
+        "P": np.concatenate([f_p[f], np.full(len(unmatched), np.nan)]),
+        "load_case": np.concatenate([f_case[f], np.full(len(unmatched), None, dtype=object)]),
+        "rank": np.concatenate([codes[f], np.full(len(unmatched), -1)]),
+    }
+
+
+def _objects(frame: pd.DataFrame, column: str) -> np.ndarray:
+    if column not in frame.columns:
+        return np.full(len(frame), None, dtype=object)
+    return frame[column].to_numpy(dtype=object, na_value=None)
+
+
+def _key(models: np.ndarray, gids: np.ndarray) -> np.ndarray:
+    m = np.where(pd.isna(pd.Series(models, dtype=object)).to_numpy(), "", models).astype(object)
+    g = np.where(pd.isna(pd.Series(gids, dtype=object)).to_numpy(), "", gids).astype(object)
+    return m + "\x00" + g
+
+
+def _fresh_lists(n: int) -> np.ndarray:
+    """An object array of n distinct empty lists."""
+    return _NEW_LIST(np.empty(n, dtype=object))
+
+
+_NEW_LIST = np.frompyfunc(lambda _: [], 1, 1)
+
+
+def _broadcast(x: Any, n: int) -> np.ndarray:
+    return np.broadcast_to(np.asarray(x, dtype=float), (n,)).copy()
+
+
+def _cond(value: Value, n: int, what: str) -> tuple[np.ndarray, np.ndarray]:
+    if not isinstance(value, Cond):
+        raise ExpressionError(f"{what} must be a condition")
+    return (np.broadcast_to(np.asarray(value.value, dtype=bool), (n,)),
+            np.broadcast_to(np.asarray(value.known, dtype=bool), (n,)))
+
+
+def _number_text(x: float) -> str:
+    if x != x:
+        return "n/a"
+    a = abs(x)
+    if a == 0 or 1e-4 <= a < 1e4:
+        return f"{x:.4g}"
+    if 1e4 <= a < 1e9:
+        return f"{x:.0f}"
+    return f"{x:.3e}"
+
+
+def _unit_label(unit: str) -> str:
+    if not unit:
+        return ""
+    return f"{ureg.Unit(unit):~P}"
+
+
+def _format(value: Value, spec: str, unit: str | None, ruleset: RuleSet, idx: np.ndarray, n: int) -> np.ndarray:
+    """Strings (object array) of ``value`` at rows ``idx``: numbers in display units, text as is.
+
+    Each distinct value is formatted once (members share sections, materials and limits).
+    """
+    if isinstance(value, pint.Quantity):
+        u = unit if unit is not None else ruleset.display_unit(value)
+        mags = _broadcast(value.m_as(u), n)[idx]
+        codes, uniques = pd.factorize(mags, use_na_sentinel=False)
+        label = "" if "%" in spec or not u else " " + _unit_label(u)
+        texts = [(format(x, spec) if spec else _number_text(x)) + label if x == x else "n/a"
+                 for x in np.asarray(uniques, dtype=float).tolist()]
+        return np.asarray(texts, dtype=object)[codes]
+    if isinstance(value, Text):
+        vals = np.broadcast_to(np.asarray(value.values, dtype=object), (n,))[idx]
+        return np.where(pd.isna(pd.Series(vals, dtype=object)).to_numpy(), "", vals).astype(object)
+    if isinstance(value, Cond):
+        v, k = _cond(value, n, "message")
+        return np.where(k[idx], np.where(v[idx], "yes", "no"), "unknown").astype(object)
+    return np.full(len(idx), "", dtype=object)
+
+
+def _inputs(name: str, data: MemberData, member: np.ndarray, p: np.ndarray) -> np.ndarray:
+    return p if name == "P" else data.number(name)[member]
+
+
+def _missing_lists(check: Check, ruleset: RuleSet, data: MemberData, member: np.ndarray, p: np.ndarray,
+                   case: np.ndarray) -> list[list[str]]:
+    """For each (unchecked) row, the inputs it lacks that the check needs, with where they were looked for.
+
+    An input counts when the row stays unchecked with every other missing input filled in, so a
+    value the check does not need for that member (an I-section's flange in a branch a round bar
+    never takes) is not listed.
+    """
+    n = len(member)
+    values = {name: _inputs(name, data, member, p) for name in MEMBER_QUANTITIES if name in check.inputs}
+    candidates = [name for name, v in values.items() if np.isnan(v).any()]
+    needed: dict[str, np.ndarray] = {}
+    if len(candidates) == 1:
+        needed[candidates[0]] = np.isnan(values[candidates[0]])
+    else:
+        filled = {name: np.where(np.isnan(values[name]), MEMBER_QUANTITIES[name].dummy, values[name])
+                  for name in candidates}
+        for name in candidates:
+            override = {other: filled[other] for other in candidates if other != name}
+            scope = Scope(_base_lookup(data, member, p, case, override), ruleset.parameter_map,
+                          ruleset.definition_map)
+            _, unknown, demand, capacity = _evaluate(check, scope, n)
+            bad = unknown | ~np.isfinite(demand) | ~np.isfinite(capacity)
+            needed[name] = bad & np.isnan(values[name])
+    lists: list[list[str]] = [[] for _ in range(n)]
+    for name in candidates:
+        for j in np.flatnonzero(needed[name]).tolist():
+            lists[j].append(_missing_text(name, ruleset, data, int(member[j]), case[j]))
+    return lists
+
+
+def _missing_text(name: str, ruleset: RuleSet, data: MemberData, m: int, case: Any) -> str:
+    if name == "P" and case is not None:
+        return f"P: load case {case!r} has no axial force value for this member"
+    if name == "As":
+        shape = data.text("shape")[m]
+        d = data.number("d")[m]
+        if shape != "round-bar":
+            return f"As: {'a ' + shape if shape else 'a section of unknown shape'} has no thread (round bars only)"
+        if np.isnan(d):
+            return "As: no rod diameter d to find the thread size"
+        unit = ruleset.display["length"]
+        return (f"As: d = {_number_text(Q_(d, 'm').m_as(unit))} {_unit_label(unit)} is not a standard "
+                "UNC (ASME B1.1) or ISO coarse (ISO 261) thread size")
+    return MEMBER_QUANTITIES[name].missing
+
+
+def _base_lookup(data: MemberData, member: np.ndarray, p: np.ndarray, case: np.ndarray,
+                 override: dict[str, np.ndarray] | None = None) -> Callable[[str], Value]:
+    override = override or {}
+
+    def base(name: str) -> Value:
+        if name in override:
+            return Q_(override[name], MEMBER_QUANTITIES[name].unit)
+        if name == "P":
+            return Q_(p, "N")
+        if name in MEMBER_QUANTITIES:
+            return Q_(data.number(name)[member], MEMBER_QUANTITIES[name].unit)
+        if name == "load_case":
+            return Text(case)
+        if name in TEXT_NAMES:
+            return Text(data.text(name)[member])
+        raise ExpressionError(f"unknown name {name!r}")
+    return base
+
+
+def _evaluate(check: Check, scope: Scope, n: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """(applies, condition unknown, demand, capacity) over n rows, numbers in the check's unit."""
+    keep = np.ones(n, dtype=bool)
+    unknown = np.zeros(n, dtype=bool)
+    if check.when is not None:
+        value, known = _cond(check.when.evaluate(scope), n, "when")
+        keep = value | ~known
+        unknown = ~known
+    demand_q = check.demand.evaluate(scope)
+    capacity_q = check.capacity.evaluate(scope)
+    if not isinstance(demand_q, pint.Quantity) or not isinstance(capacity_q, pint.Quantity):
+        raise ExpressionError("demand and capacity must be numbers")
+    return keep, unknown, _broadcast(demand_q.m_as(check.unit), n), _broadcast(capacity_q.m_as(check.unit), n)
+
+
+def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
+               member: np.ndarray, p: np.ndarray, case: np.ndarray, rank: np.ndarray) -> dict[str, Any] | None:
+    n = len(member)
+    if n == 0:
+        return None
+    extra: dict[str, Value] = {}
+    scope = Scope(_base_lookup(data, member, p, case), ruleset.parameter_map, ruleset.definition_map, extra)
+    keep, unknown, demand, capacity = _evaluate(check, scope, n)
+    with np.errstate(all="ignore"):
+        finite = np.isfinite(demand) & np.isfinite(capacity)
+        unchecked = unknown | ~finite
+        ratio = np.where(capacity != 0, demand / np.where(capacity != 0, capacity, 1.0),
+                         np.where(demand > 0, np.inf, np.nan))
+        passed = ~unchecked & (demand - capacity <= PASS_TOLERANCE * np.abs(capacity))
+    ratio[unchecked] = np.nan
+    status = np.where(unchecked, "unchecked", np.where(passed, "pass", "fail")).astype(object)
+
+    rows = np.flatnonzero(keep)
+    k = len(rows)
+    unchecked_k = unchecked[rows]
+    message = np.full(k, "", dtype=object)
+    missing = _fresh_lists(k)
+    u_pos = np.flatnonzero(unchecked_k)
+    if len(u_pos):
+        u_rows = rows[u_pos]
+        lists = _missing_lists(check, ruleset, data, member[u_rows], p[u_rows], case[u_rows])
+        for j, pos in enumerate(u_pos.tolist()):
+            missing[pos] = lists[j]
+            if lists[j]:
+                message[pos] = "not checked: missing " + ", ".join(s.split(":", 1)[0] for s in lists[j])
+            elif unknown[rows[pos]]:
+                message[pos] = "not checked: the applicability condition cannot be decided"
+            else:
+                message[pos] = "not checked: the demand or capacity is not a finite number (e.g. division by zero)"
+    c_pos = np.flatnonzero(~unchecked_k)
+    if len(c_pos):
+        c_rows = rows[c_pos]
+        if check.message:
+            extra.update({"demand": Q_(demand, check.unit), "capacity": Q_(capacity, check.unit),
+                          "ratio": Q_(ratio, "")})
+            text = np.full(len(c_rows), "", dtype=object)
+            for part in check.message:
+                if part.expr is None:
+                    text = text + part.text
+                    continue
+                value = part.expr.evaluate(scope)
+                own_unit = check.unit if part.expr.source in ("demand", "capacity") else None
+                text = text + _format(value, part.spec, own_unit, ruleset, c_rows, n)
+            message[c_pos] = text
+        else:
+            message[c_pos] = check.title
+    return {
+        "member": member[rows], "check_order": np.full(k, order), "rank": rank[rows],
+        "check": np.full(k, check.id, dtype=object), "load_case": case[rows],
+        "status": status[rows], "demand": demand[rows], "capacity": capacity[rows],
+        "unit": np.full(k, check.unit, dtype=object), "ratio": ratio[rows],
+        "missing": missing, "message": message,
+        "demand_source": np.full(k, check.demand_source, dtype=object),
+        "capacity_source": np.full(k, check.capacity_source, dtype=object),
+        "clause": np.full(k, check.clause, dtype=object),
+        "title": np.full(k, check.title, dtype=object),
+    }
+
+
+def empty_results() -> pd.DataFrame:
+    frame = pd.DataFrame({c: pd.Series(dtype=object) for c in COLUMNS})
+    for c in ("demand", "capacity", "ratio"):
+        frame[c] = frame[c].astype(float)
+    return frame
+
+
+def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | None = None,
+               checks: list[str] | None = None) -> pd.DataFrame:
+    """Results of ``ruleset`` (or of the listed ``checks`` of it) over ``members`` and ``forces``.
+
+    ``members`` has the columns of :func:`modelcheck.table.member_columns` (absent columns count
+    as missing values); ``forces`` those of :data:`modelcheck.table.FORCE_COLUMNS` (tension
+    positive, newtons). Returns the columns :data:`COLUMNS` in the order (model, global_id,
+    check order in the file, load case in order of first appearance in ``forces``).
+    """
+    members = members.reset_index(drop=True)
+    data = MemberData(members)
+    selected_checks = [c for c in ruleset.checks if checks is None or c.id in checks]
+    if checks is not None:
+        unknown_ids = sorted(set(checks) - {c.id for c in ruleset.checks})
+        if unknown_ids:
+            raise RuleSetError(f"no check {unknown_ids[0]!r} in rule set {ruleset.name}", path=ruleset.path)
+    if data.n == 0 or not selected_checks:
+        return empty_results()
+    base_mask = ruleset.select.mask(members)
+    need_force = any(c.needs_force for c in selected_checks)
+    frows = _force_rows(members, forces) if need_force else None
+    all_members = np.arange(data.n)
+    no_case = np.full(data.n, None, dtype=object)
+    no_force = np.full(data.n, np.nan)
+    parts: list[dict[str, Any]] = []
+    selected_ids = {c.id for c in selected_checks}
+    for order, check in enumerate(ruleset.checks):
+        if check.id not in selected_ids:
+            continue
+        mask = base_mask & check.select.mask(members)
+        if check.needs_force:
+            assert frows is not None
+            take = mask[frows["member"]]
+            args = (frows["member"][take], frows["P"][take], frows["load_case"][take], frows["rank"][take])
+        else:
+            args = (all_members[mask], no_force[mask], no_case[mask], np.full(int(mask.sum()), -1))
+        try:
+            part = _run_check(check, order, ruleset, data, *args)
+        except ExpressionError as exc:
+            raise RuleSetError(f"check {check.id}: {exc}", path=ruleset.path, where=str(check.line)) from exc
+        if part is not None and len(part["member"]):
+            parts.append(part)
+    if not parts:
+        return empty_results()
+    cat = {k: np.concatenate([p[k] for p in parts]) for k in parts[0]}
+    member = cat["member"]
+    model_code = pd.factorize(pd.Series(data.text("model"), dtype=object).fillna(""), sort=True)[0]
+    gid_code = pd.factorize(pd.Series(data.text("global_id"), dtype=object).fillna(""), sort=True)[0]
+    order = np.lexsort((cat["rank"], cat["check_order"], gid_code[member], model_code[member]))
+    member = member[order]
+    columns: dict[str, Any] = {}
+    for c in COLUMNS:
+        values = data.text(c)[member] if c in ("model", "global_id", "ifc_class", "name", "tag") else cat[c][order]
+        if c in _TEXT_RESULT_COLUMNS or c == "missing":
+            columns[c] = pd.Series(values, dtype=object)
+        else:
+            columns[c] = pd.Series(values, dtype=float)
+    return pd.DataFrame(columns)
+
+
+def evaluate_expression(ruleset: RuleSet, expression: str | Expression, members: pd.DataFrame,
+                        P: Any = None) -> Value:
+    """Evaluate an expression of ``ruleset``'s names over every member (no selection, no `when`).
+
+    ``P`` is the axial force in newtons, one per member or one for all (NaN when omitted). Used
+    to rate capacities and size members: e.g. ``evaluate_expression(rs, "Fy / Omega_t * A", m)``.
+    """
+    if isinstance(expression, str):
+        names = (set(MEMBER_QUANTITIES) | set(TEXT_NAMES) | set(ruleset.parameter_map)
+                 | set(ruleset.definition_map))
+        expression = parse_expression(expression, names)
+    members = members.reset_index(drop=True)
+    data = MemberData(members)
+    n = data.n
+    p = _broadcast(np.nan if P is None else P, n)
+    base = _base_lookup(data, np.arange(n), p, np.full(n, None, dtype=object))
+    return expression.evaluate(Scope(base, ruleset.parameter_map, ruleset.definition_map))

@@ -1,0 +1,126 @@
+"""Which members a rule set or a check applies to.
+
+A selector is a set of keys; a member is selected when it matches every key given (AND), and
+matches a key when its value matches any of the key's patterns (OR). Patterns are shell-style
+(``*`` any text, ``?`` one character, ``[abc]`` one of), case-insensitive; an empty value never
+matches. ``ifc_class`` names IFC classes and includes their subtypes (IfcMember selects
+IfcMemberStandardCase). ``any_name`` matches the Name, ObjectType, type name, PredefinedType or
+Tag. ``exclude`` holds keys of its own: a member matching all of them is left out.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+import pandas as pd
+
+from modelcheck.rules.expr import glob_match
+
+#: selector key -> member-table columns it looks at (a match in any of them counts)
+SELECTOR_KEYS: dict[str, tuple[str, ...]] = {
+    "ifc_class": ("ifc_class",),
+    "predefined_type": ("predefined_type",),
+    "object_type": ("object_type",),
+    "name": ("name",),
+    "tag": ("tag",),
+    "type_name": ("type_name",),
+    "any_name": ("name", "object_type", "type_name", "predefined_type", "tag"),
+    "material": ("material",),
+    "material_category": ("material_category",),
+    "material_grade": ("material_grade",),
+    "storey": ("storey",),
+    "shape": ("shape",),
+    "section_name": ("section_name",),
+}
+
+_SCHEMAS = ("IFC4X3_ADD2", "IFC4", "IFC2X3")
+
+
+@lru_cache(maxsize=1)
+def _schemas() -> tuple[object, ...]:
+    import ifcopenshell.ifcopenshell_wrapper as wrapper
+
+    found = []
+    for name in _SCHEMAS:
+        try:
+            found.append(wrapper.schema_by_name(name))
+        except RuntimeError:
+            continue
+    return tuple(found)
+
+
+def _declaration(schema: object, name: str) -> object | None:
+    try:
+        return schema.declaration_by_name(name)  # type: ignore[attr-defined]
+    except RuntimeError:
+        return None
+
+
+@lru_cache(maxsize=1024)
+def ifc_class_name(name: str) -> str | None:
+    """The IFC entity name as the schemas spell it ('ifcmember' -> 'IfcMember'); None if none has it."""
+    for schema in _schemas():
+        decl = _declaration(schema, name)
+        if decl is not None and hasattr(decl, "supertype"):
+            return str(decl.name())  # type: ignore[attr-defined]
+    return None
+
+
+@lru_cache(maxsize=4096)
+def is_ifc_subclass(cls: str, ancestor: str) -> bool:
+    """True when ``cls`` is ``ancestor`` or one of its subtypes in any of IFC2X3, IFC4, IFC4X3."""
+    if cls.lower() == ancestor.lower():
+        return True
+    for schema in _schemas():
+        decl = _declaration(schema, cls)
+        while decl is not None and hasattr(decl, "supertype"):
+            if str(decl.name()).lower() == ancestor.lower():  # type: ignore[attr-defined]
+                return True
+            decl = decl.supertype()  # type: ignore[attr-defined]
+    return False
+
+
+def _column(members: pd.DataFrame, column: str) -> np.ndarray:
+    if column not in members.columns:
+        return np.full(len(members), None, dtype=object)
+    return members[column].to_numpy(dtype=object, na_value=None)
+
+
+@dataclass(frozen=True)
+class Selector:
+    """Selector keys with their patterns; ``exclude`` another selector whose matches are dropped."""
+
+    keys: tuple[tuple[str, tuple[str, ...]], ...] = ()
+    exclude: Selector | None = None
+
+    @property
+    def empty(self) -> bool:
+        return not self.keys and self.exclude is None
+
+    def describe(self) -> str:
+        """One line, e.g. 'shape: round-bar; any_name: *rod*; except material_category: aluminium'."""
+        text = "; ".join(f"{k}: {', '.join(v)}" for k, v in self.keys) or "all members"
+        if self.exclude is not None and self.exclude.keys:
+            text += "; except " + self.exclude.describe()
+        return text
+
+    def mask(self, members: pd.DataFrame) -> np.ndarray:
+        """Boolean array: which rows of ``members`` this selector selects."""
+        n = len(members)
+        result = np.ones(n, dtype=bool)
+        for key, patterns in self.keys:
+            if key == "ifc_class":
+                values = _column(members, "ifc_class")
+                uniq = {v for v in values.tolist() if v is not None}
+                hits = [v for v in uniq if any(is_ifc_subclass(str(v), p) for p in patterns)]
+                hit = np.isin(values, np.asarray(hits, dtype=object)) if hits else np.zeros(n, dtype=bool)
+            else:
+                hit = np.zeros(n, dtype=bool)
+                for column in SELECTOR_KEYS[key]:
+                    hit |= np.asarray(glob_match(_column(members, column), patterns).value, dtype=bool)
+            result &= hit
+        if self.exclude is not None and self.exclude.keys:
+            result &= ~self.exclude.mask(members)
+        return result
