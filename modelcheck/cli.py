@@ -50,19 +50,33 @@ def build_parser() -> argparse.ArgumentParser:
                    help="rule set for --capacity (shipped name or file; default steel-asd-us)")
     add_force_args(m)
 
-    c = sub.add_parser("check", help="check members against a rule set")
-    c.add_argument("models", nargs="+", metavar="MODEL_OR_FOLDER")
+    c = sub.add_parser("check", help="check members against a rule set",
+                       description="Options not given fall back to modelcheck.toml (or [tool.modelcheck] "
+                                   "in pyproject.toml) in the working directory.")
+    c.add_argument("models", nargs="*", metavar="MODEL_OR_FOLDER",
+                   help="IFC files, folders (searched recursively) or glob patterns")
     c.add_argument("--rules", metavar="RULESET", default=None,
                    help="shipped rule-set name or a .toml file (default steel-asd-us)")
     c.add_argument("--format", default=None, metavar="FORMATS",
-                   help="console, json, csv, junit, bcf, html — comma-separated for several")
-    c.add_argument("--output", "-o", metavar="FILE",
-                   help="output file (one format) or folder (several formats)")
-    c.add_argument("--strict", action="store_true", help="exit 1 also when a member is unchecked")
-    c.add_argument("--validate", action="store_true",
+                   help="console, json, csv, junit, bcf, html — comma-separated for several (default console)")
+    c.add_argument("--output", "-o", metavar="PATH",
+                   help="output file (one file format) or folder (several: modelcheck-report.<ext> in it)")
+    c.add_argument("--strict", action="store_true", default=None,
+                   help="exit 1 also when a member is unchecked")
+    c.add_argument("--validate", action="store_true", default=None,
                    help="list schema violations (ifcopenshell validator) as warnings")
     c.add_argument("--jobs", "-j", type=int, default=None, metavar="N",
                    help="worker processes for several models (default: the CPU count)")
+    c.add_argument("--scheduler", metavar="ADDRESS", default=None,
+                   help="run on an existing Dask cluster (tcp://host:8786) instead of local processes")
+    c.add_argument("--baseline", metavar="PREVIOUS.json", default=None,
+                   help="compare with an earlier JSON report: new, resolved and still-failing results")
+    c.add_argument("--fail-on", choices=("any", "new"), default=None,
+                   help="exit 1 on any failure (default) or only on failures new since --baseline")
+    c.add_argument("--annotate", metavar="OUT.ifc", default=None,
+                   help="write a copy of the model with an MC_CheckResult property set on each "
+                        "checked member (a folder when checking several models)")
+    c.add_argument("--no-config", action="store_true", help="ignore modelcheck.toml / [tool.modelcheck]")
     add_force_args(c)
 
     r = sub.add_parser("rules", help="list, show or validate rule sets")
@@ -106,12 +120,28 @@ def force_options(args: argparse.Namespace, ruleset: Any = None) -> Any:
     from modelcheck.loads.tables import read_load_table
     from modelcheck.pipeline import ForceOptions
 
-    tables = tuple(read_load_table(p) for p in args.loads)
+    tables = tuple(read_load_table(p) for p in expand_load_paths(args.loads))
     prop_text = args.force_property or getattr(ruleset, "force_property", None) or "MC_MemberForces.AxialForce"
     if "." not in prop_text:
         raise UsageError(f"--force-property {prop_text!r}: write it as PSET.PROPERTY")
     pset, prop = prop_text.split(".", 1)
     return ForceOptions(tables=tables, property=(pset, prop), analysis=not args.no_analysis_results)
+
+
+def expand_load_paths(items: list[str]) -> list[str]:
+    """Load-table arguments with glob patterns expanded (sorted); a pattern matching nothing is an error."""
+    import glob
+
+    out: list[str] = []
+    for item in items:
+        if any(ch in item for ch in "*?["):
+            hits = sorted(glob.glob(item))
+            if not hits:
+                raise UsageError(f"--loads pattern {item!r} matches no file")
+            out += hits
+        else:
+            out.append(item)
+    return out
 
 
 def write_text(text: str, output: str | None, inputs: list[str]) -> None:
@@ -213,16 +243,10 @@ def cmd_members(args: argparse.Namespace) -> int:
 
 
 def force_summary(d: Any) -> dict[str, Any]:
-    """Counts and ids of the force join for one model (members JSON ``forces``)."""
-    members = d.members
+    """The force join of one model (members JSON ``forces``): counts, ids and messages."""
     with_force = set(d.forces["global_id"]) if len(d.forces) else set()
-    without = [g for g in members["global_id"] if g not in with_force]
-    by_source: dict[str, int] = {}
-    if len(d.forces):
-        route = d.forces["source"].str.split(":", n=1).str[0]
-        by_source = {str(k): int(v) for k, v in route.value_counts().sort_index().items()}
-    return {"members_with_force": len(with_force), "members_without_force": without,
-            "rows_by_source": by_source, "messages": d.force_messages}
+    without = [g for g in d.members["global_id"] if g not in with_force]
+    return {"members_with_force": len(with_force), "members_without_force": without, **d.force_report}
 
 
 # ---------------------------------------------------------------------------- rules
@@ -252,58 +276,169 @@ def cmd_rules(args: argparse.Namespace) -> int:
 
 
 # ---------------------------------------------------------------------------- check
-#: output format -> (file extension, writer(run, path))
-FILE_FORMATS = ("json",)
+#: file format -> extension
+FILE_FORMATS = {"json": "json", "csv": "csv", "junit": "xml", "bcf": "bcfzip", "html": "html"}
 
 
-def _write_json(run: Any, path: str | None, inputs: list[str]) -> None:
-    from modelcheck.report.check_json import check_document
+def merge_config(args: argparse.Namespace) -> argparse.Namespace:
+    """Fill options not given on the command line from the project configuration file."""
+    from modelcheck.config import load_config
 
-    write_text(json.dumps(check_document(run), indent=2, ensure_ascii=False) + "\n", path, inputs)
+    if args.no_config:
+        return args
+    cfg = load_config(Path.cwd())
+    if not args.models and "models" in cfg:
+        args.models = list(cfg["models"])
+    if not args.loads and "loads" in cfg:
+        args.loads = list(cfg["loads"])
+    for key in ("rules", "format", "output", "baseline", "fail_on", "strict", "jobs", "force_property",
+                "annotate", "validate", "scheduler"):
+        if getattr(args, key, None) is None and key in cfg:
+            setattr(args, key, cfg[key])
+    return args
 
 
 def cmd_check(args: argparse.Namespace) -> int:
+    import datetime as dt
     import os
 
     from rich.console import Console
 
-    from modelcheck.pipeline import expand_paths, run_check
+    from modelcheck.pipeline import expand_paths
+    from modelcheck.report.check_json import check_document
     from modelcheck.report.console import render_check
     from modelcheck.rules.ruleset import load_ruleset
 
+    args = merge_config(args)
+    if not args.models:
+        raise UsageError("no model given (name files, folders or patterns, or set 'models' in modelcheck.toml)")
     formats = [f.strip() for f in (args.format or "console").split(",") if f.strip()]
-    unknown = [f for f in formats if f not in ("console",) + FILE_FORMATS]
+    unknown = [f for f in formats if f != "console" and f not in FILE_FORMATS]
     if unknown:
-        raise UsageError(f"unknown --format {', '.join(unknown)} (choose from console, {', '.join(FILE_FORMATS)})")
+        raise UsageError(f"unknown --format {', '.join(unknown)} "
+                         f"(choose from console, {', '.join(FILE_FORMATS)})")
     files = [f for f in formats if f != "console"]
-    if len(files) > 1 and not args.output:
-        raise UsageError("several file formats need --output FOLDER")
+    if files and not args.output and (len(files) > 1 or "bcf" in files):
+        raise UsageError(f"--format {','.join(files)} needs --output "
+                         f"({'a folder for several formats' if len(files) > 1 else 'a file'})")
+    if args.fail_on == "new" and not args.baseline:
+        raise UsageError("--fail-on new needs --baseline PREVIOUS.json")
     paths = expand_paths(args.models)
+    load_paths = expand_load_paths(args.loads)
+    inputs = paths + load_paths + ([args.baseline] if args.baseline else [])
+    targets = {fmt: (os.path.join(args.output, f"modelcheck-report.{ext}") if len(files) > 1 else args.output)
+               for fmt, ext in FILE_FORMATS.items() if fmt in files}
+    for out in targets.values():
+        if out:
+            guard_output(out, inputs)
+    baseline = None
+    if args.baseline:
+        from modelcheck.report.compare import load_baseline
+
+        baseline = load_baseline(args.baseline)
     ruleset = load_ruleset(args.rules or "steel-asd-us")
     fopts = force_options(args, ruleset)
     jobs = args.jobs if args.jobs is not None else (os.cpu_count() or 1)
     if jobs < 1:
         raise UsageError("--jobs must be at least 1")
-    run = run_check(paths, ruleset, fopts, jobs=jobs, validate=args.validate)
-    inputs = paths + list(args.loads)
+    run = _run_with_progress(paths, ruleset, fopts, jobs, bool(args.validate), args.scheduler)
+    now = dt.datetime.now(dt.UTC).replace(microsecond=0)
+    comparison = None
+    if baseline is not None:
+        from modelcheck.report.compare import compare
+
+        comparison = compare(check_document(run, now=now), baseline)
+    if len(files) > 1:
+        os.makedirs(args.output, exist_ok=True)
     for fmt in files:
-        out = args.output
-        if len(files) > 1:
-            os.makedirs(args.output, exist_ok=True)
-            out = os.path.join(args.output, f"modelcheck-report.{fmt}")
-        if fmt == "json":
-            _write_json(run, out, inputs)
+        _write_format(fmt, run, targets[fmt], inputs, now, comparison, bool(args.strict))
+    if args.annotate:
+        _annotate(run, args.annotate, inputs)
     if "console" in formats:
-        render_check(run, Console(stderr=bool(files) and not args.output))
+        comp_view = None
+        if comparison is not None:
+            from modelcheck.report.compare import comparison_renderable
+
+            comp_view = comparison_renderable(comparison)
+        # console report on stdout unless a file format goes to stdout
+        render_check(run, Console(stderr=bool(files) and not args.output), comparison=comp_view)
     for m in run.models:
         if m.error:
             print(f"modelcheck: error: {m.error}", file=sys.stderr)
-    return exit_code(run, args.strict)
+    return exit_code(run, bool(args.strict), args.fail_on or "any", comparison)
 
 
-def exit_code(run: Any, strict: bool) -> int:
+def _run_with_progress(paths: list[str], ruleset: Any, fopts: Any, jobs: int, validate: bool,
+                       scheduler: str | None) -> Any:
+    """Run the batch; a rich progress bar on a terminal with several models, quiet otherwise."""
+    from modelcheck.pipeline import run_check
+
+    if len(paths) < 2 or not sys.stderr.isatty():
+        return run_check(paths, ruleset, fopts, jobs=jobs, validate=validate, scheduler=scheduler)
+    from rich.console import Console
+    from rich.progress import Progress
+
+    with Progress(transient=True, console=Console(stderr=True)) as bar:
+        task = bar.add_task("checking models", total=len(paths))
+        return run_check(paths, ruleset, fopts, jobs=jobs, validate=validate, scheduler=scheduler,
+                         progress=lambda: bar.advance(task))
+
+
+def _write_format(fmt: str, run: Any, out: str | None, inputs: list[str], now: Any, comparison: Any,
+                  strict: bool) -> None:
+    if out is None and fmt != "json":  # a text format to standard output: write, then copy
+        import tempfile
+
+        with tempfile.TemporaryDirectory() as tmp:
+            path = str(Path(tmp) / f"report.{FILE_FORMATS[fmt]}")
+            _write_format(fmt, run, path, inputs, now, comparison, strict)
+            sys.stdout.write(Path(path).read_text(encoding="utf-8"))
+        return
+    if fmt == "json":
+        from modelcheck.report.check_json import check_document
+
+        doc = check_document(run, comparison=comparison, now=now)
+        write_text(json.dumps(doc, indent=2, ensure_ascii=False) + "\n", out, inputs)
+    elif fmt == "csv":
+        from modelcheck.report.csv_report import write_csv
+
+        write_csv(run, out)
+    elif fmt == "junit":
+        from modelcheck.report.junit import write_junit
+
+        write_junit(run, out, strict=strict)
+    elif fmt == "bcf":
+        from modelcheck.report.bcf import write_bcf
+
+        write_bcf(run, out, now=now)
+    elif fmt == "html":
+        from modelcheck.report.html import write_html
+
+        write_html(run, out, now=now, comparison=comparison)
+
+
+def _annotate(run: Any, target: str, inputs: list[str]) -> None:
+    import os
+
+    from modelcheck.report.annotate import annotate_model
+
+    readable = [m for m in run.models if not m.error]
+    several = len(readable) > 1 or os.path.isdir(target)
+    for m in readable:
+        out = os.path.join(target, Path(m.path).name) if several else target
+        if several:
+            os.makedirs(target, exist_ok=True)
+        guard_output(out, inputs)
+        annotate_model(m.path, out, run.results)
+
+
+def exit_code(run: Any, strict: bool, fail_on: str = "any", comparison: Any = None) -> int:
     if any(m.error for m in run.models):
         return EXIT_INPUT
+    if fail_on == "new" and comparison is not None:
+        from modelcheck.report.compare import new_problems
+
+        return EXIT_FAIL if new_problems(comparison, strict=strict) else EXIT_OK
     status = run.results["status"] if len(run.results) else None
     if status is not None and (status == "fail").any():
         return EXIT_FAIL

@@ -34,6 +34,7 @@ class ModelData:
     forces: pd.DataFrame = field(default_factory=empty_forces)
     matched_rows: set[str] = field(default_factory=set)   # load-table row sources used here
     force_messages: list[str] = field(default_factory=list)
+    force_report: dict[str, Any] = field(default_factory=dict)   # ForceReport.to_dict() less 'unmatched'
     warnings: list[str] = field(default_factory=list)      # model-level warnings
     validation: list[str] = field(default_factory=list)    # schema validation findings (--validate)
 
@@ -90,13 +91,47 @@ def read_model(path: str, forces: ForceOptions | None = None, *, validate: bool 
 
 
 def attach_forces(data: ModelData, idx: Any, opts: ForceOptions) -> None:
-    """Join the forces of every route onto one model's members (precedence in loads.join)."""
-    from modelcheck.loads import join
+    """Join the forces of every route onto one model's members (precedence: modelcheck.loads.join)."""
+    from modelcheck.loads.analysis import forces_from_analysis
+    from modelcheck.loads.join import join_forces
+    from modelcheck.loads.properties import forces_from_property
 
-    result = join.forces_for_model(idx, data.members, list(opts.tables), opts.property, opts.analysis)
-    data.forces = result.forces
-    data.matched_rows = set(result.matched_rows)
-    data.force_messages = list(result.messages)
+    messages: list[str] = []
+    prop = ana = None
+    if opts.property is not None:
+        prop, msgs = forces_from_property(idx, data.members, opts.property[0], opts.property[1])
+        messages += list(msgs)
+    if opts.analysis:
+        ana, msgs = forces_from_analysis(idx, data.members)
+        messages += list(msgs)
+    forces, report = join_forces(data.members, list(opts.tables), prop, ana, messages=messages)
+    data.forces = forces
+    unmatched_here = {u.source for u in report.unmatched}
+    data.matched_rows = {s for t in opts.tables for s in t["source"] if s not in unmatched_here}
+    rep = report.to_dict()
+    rep.pop("unmatched", None)  # a row unmatched here may match another model: judged over all models
+    data.force_report = rep
+    data.force_messages = list(report.messages) + _join_lines(report)
+
+
+def _join_lines(report: Any) -> list[str]:
+    """One line per kind of join problem, naming up to ten ids."""
+    out = []
+
+    def ids(items: Any, attr: str) -> str:
+        vals = [str(getattr(x, attr)) for x in items]
+        return ", ".join(vals[:10]) + (f" … (+{len(vals) - 10})" if len(vals) > 10 else "")
+
+    if report.duplicates:
+        out.append(f"{len(report.duplicates)} duplicate force row(s) for the same member and load case; "
+                   f"the first was used: {ids(report.duplicates, 'global_id')}")
+    if report.ambiguous:
+        out.append(f"{len(report.ambiguous)} tag(s) match several members and were applied to none: "
+                   f"{ids(report.ambiguous, 'tag')}")
+    if report.missing:
+        out.append(f"{len(report.missing)} member(s) have no axial force from any route: "
+                   f"{ids(report.missing, 'global_id')}")
+    return out
 
 
 def validate_model(idx: Any) -> list[str]:
@@ -166,13 +201,21 @@ class CheckRun:
 
 
 def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int = 1,
-              validate: bool = False, progress: Any = None) -> CheckRun:
-    """Check every model; unreadable ones are recorded with their error, the rest go on."""
+              validate: bool = False, progress: Any = None, scheduler: str | None = None) -> CheckRun:
+    """Check every model; unreadable ones are recorded with their error, the rest go on.
+
+    ``jobs`` > 1 runs models in that many local worker processes; ``scheduler`` sends them to a
+    Dask cluster instead. Results come back in the order of ``paths`` either way.
+    """
     from modelcheck.table import RESULT_COLUMNS
 
     ref = str(ruleset.path)
     checked: list[CheckedModel] = []
-    if jobs > 1 and len(paths) > 1:
+    if scheduler:
+        from modelcheck.distributed import run_on_cluster
+
+        checked = run_on_cluster(scheduler, paths, ref, forces, validate, progress=progress)
+    elif jobs > 1 and len(paths) > 1:
         from concurrent.futures import ProcessPoolExecutor
 
         with ProcessPoolExecutor(max_workers=min(jobs, len(paths))) as pool:

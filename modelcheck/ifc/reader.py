@@ -681,6 +681,8 @@ def member_entities(idx: ModelIndex) -> list[tuple[Any, bool]]:
                 seen.add(el.id())
                 out.append((el, False))
     assigned = {o.id() for objs in idx.assigned_to.values() for o in objs}
+    # also the reversed assignment: the curve member relating, the physical element related
+    assigned |= {pid for pid, objs in idx.assigned_to.items() if any(o.is_a("IfcElement") for o in objs)}
     for el in by_type("IfcStructuralCurveMember"):
         if el.id() not in assigned:
             out.append((el, True))
@@ -743,4 +745,6 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
         cols[q] = np.array([p[0] for p in pairs], dtype=float)
         cols[f"{q}_source"] = [p[1] for p in pairs]
     cols["warnings"] = [list(m.warnings) + w if m.warnings else w for m, w in zip(mats, warns, strict=True)]
-    return pd.DataFrame(cols, columns=member_columns())
+    # text columns stay object dtype with None for missing (pandas 3 would infer 'str' with NaN)
+    data = {k: (v if isinstance(v, np.ndarray) else pd.Series(v, dtype=object)) for k, v in cols.items()}
+    return pd.DataFrame(data, columns=member_columns())
