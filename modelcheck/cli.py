@@ -128,6 +128,16 @@ def force_options(args: argparse.Namespace, ruleset: Any = None) -> Any:
     return ForceOptions(tables=tables, property=(pset, prop), analysis=not args.no_analysis_results)
 
 
+def report_console(stderr: bool = False, file: Any = None) -> Any:
+    """A rich console; 200 columns wide when not a terminal, so CI logs keep table rows whole."""
+    from rich.console import Console
+
+    con = Console(stderr=stderr, file=file)
+    if not con.is_terminal:
+        con = Console(stderr=stderr, file=file, width=200)
+    return con
+
+
 def expand_load_paths(items: list[str]) -> list[str]:
     """Load-table arguments with glob patterns expanded (sorted); a pattern matching nothing is an error."""
     import glob
@@ -158,6 +168,15 @@ def guard_output(output: str, inputs: list[str]) -> None:
     for p in inputs:
         if Path(p).exists() and Path(p).resolve() == out:
             raise UsageError(f"--output {output} is one of the input files; refusing to overwrite it")
+
+
+def unmatched_lines(rows: list[dict[str, str]]) -> list[str]:
+    """One line per load table: how many of its rows match no member, with the first keys."""
+    by_file: dict[str, list[str]] = {}
+    for r in rows:
+        by_file.setdefault(r["source"].rsplit(":row", 1)[0], []).append(f"{r['key']} ({r['source'].rsplit(':', 1)[-1]})")
+    return [f"{f}: {len(keys)} row(s) match no member: " + ", ".join(keys[:10])
+            + (f" … (+{len(keys) - 10})" if len(keys) > 10 else "") for f, keys in by_file.items()]
 
 
 def unmatched_rows(tables: tuple[Any, ...], used: set[str]) -> list[dict[str, str]]:
@@ -216,12 +235,9 @@ def cmd_members(args: argparse.Namespace) -> int:
         df = pd.concat(frames, ignore_index=True) if frames else pd.DataFrame()
         write_text(df.to_csv(index=False), args.output, paths + args.loads)
     else:
-        from rich.console import Console
-
-        con = Console(file=open(args.output, "w", encoding="utf-8") if args.output else None,  # noqa: SIM115
-                      width=160 if args.output else None)
         if args.output:
             guard_output(args.output, paths + args.loads)
+        con = report_console(file=open(args.output, "w", encoding="utf-8") if args.output else None)  # noqa: SIM115
         for d in datas:
             if d.error:
                 con.print(f"[bold red]{d.path}: cannot be read[/] — {d.error}")
@@ -233,8 +249,8 @@ def cmd_members(args: argparse.Namespace) -> int:
             for gid, ws in zip(d.members["global_id"], d.members["warnings"], strict=True):
                 for w in ws or []:
                     con.print(f"[yellow]{gid}:[/] {w}", highlight=False)
-        for row in unmatched:
-            con.print(f"[yellow]force row matches no member:[/] {row['source']} ({row['key']})")
+        for line in unmatched_lines(unmatched):
+            con.print(f"[yellow]warning:[/] {line}", highlight=False)
         con.print(f"\n[dim]{CAUTION}[/]")
     for d in datas:
         if d.error:
@@ -302,8 +318,6 @@ def cmd_check(args: argparse.Namespace) -> int:
     import datetime as dt
     import os
 
-    from rich.console import Console
-
     from modelcheck.pipeline import expand_paths
     from modelcheck.report.check_json import check_document
     from modelcheck.report.console import render_check
@@ -361,7 +375,7 @@ def cmd_check(args: argparse.Namespace) -> int:
 
             comp_view = comparison_renderable(comparison)
         # console report on stdout unless a file format goes to stdout
-        render_check(run, Console(stderr=bool(files) and not args.output), comparison=comp_view)
+        render_check(run, report_console(stderr=bool(files) and not args.output), comparison=comp_view)
     for m in run.models:
         if m.error:
             print(f"modelcheck: error: {m.error}", file=sys.stderr)

@@ -62,7 +62,8 @@ def failing_table(results: pd.DataFrame, members: pd.DataFrame, units: Any) -> T
               header_style="bold", expand=False)
     for col in ("GlobalId", "Class / type", "Name / tag", "Storey", "Section", "Material", "Check",
                 "Demand", "Capacity", "Ratio", "Load case"):
-        t.add_column(col, overflow="fold", justify="right" if col in ("Demand", "Capacity", "Ratio") else "left")
+        t.add_column(col, overflow="fold", justify="right" if col in ("Demand", "Capacity", "Ratio") else "left",
+                     no_wrap=col in ("GlobalId", "Ratio"))
     has_sugg = "suggestion" in fails.columns
     if has_sugg:
         t.add_column("Passing replacement", overflow="fold")
@@ -97,7 +98,7 @@ def unchecked_table(results: pd.DataFrame) -> Table | None:
               header_style="bold")
     t.add_column("Missing input (and where it was looked for)", overflow="fold")
     t.add_column("Members", justify="right")
-    t.add_column("GlobalIds", overflow="fold")
+    t.add_column("GlobalIds", overflow="fold", min_width=24)
     for missing, gids in groups.items():
         shown = ", ".join(gids[:8]) + (f" … (+{len(gids) - 8})" if len(gids) > 8 else "")
         t.add_row("\n".join(missing) or "(no reason given)", str(len(gids)), shown)
@@ -110,10 +111,10 @@ def render_check(run: Any, console: Console, units: Any = None, comparison: Any 
         parts.append(summary_line(m, run.results))
         for w in (m.warnings + m.force_messages + m.validation)[:20]:
             parts.append(Text(f"  warning: {w}", style="yellow"))
-    if run.unmatched_rows:
-        parts.append(Text(f"{len(run.unmatched_rows)} force row(s) match no member: "
-                          + ", ".join(f"{r['source']} ({r['key']})" for r in run.unmatched_rows[:10]),
-                          style="yellow"))
+    from modelcheck.cli import unmatched_lines
+
+    for line in unmatched_lines(run.unmatched_rows):
+        parts.append(Text(f"warning: {line}", style="yellow"))
     if comparison is not None:
         parts.append(comparison)
     ft = failing_table(run.results, run.members, units)
