@@ -279,7 +279,7 @@ def cmd_rules(args: argparse.Namespace) -> int:
     if not args.target:
         raise UsageError(f"'modelcheck rules {args.action}' needs a rule-set name or file")
     if args.action == "show":
-        con.print(show.ruleset_detail(rs.load_ruleset(args.target)))
+        con.print(show.ruleset_view(rs.load_ruleset(args.target)))
         return EXIT_OK
     errors = rs.validate_ruleset_file(args.target)
     for e in errors:
