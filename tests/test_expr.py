@@ -194,7 +194,7 @@ def test_temperatures_with_an_offset_are_refused() -> None:
     ("(L) [mm]", "must follow a number"),
     ("2 [m**20]", "unit powers"),
     ("", "empty"),
-])
+], ids=lambda v: v[:24] if isinstance(v, str) else str(v))
 def test_unsafe_or_invalid_expressions_are_refused(text: str, message: str) -> None:
     with pytest.raises(ExpressionError, match=message):
         ev(text)

@@ -285,3 +285,20 @@ def test_unreadable_files(tmp_path: Path) -> None:
 
 def line_of_bytes(path: Path, needle: bytes) -> int:
     return next(i for i, line in enumerate(path.read_bytes().splitlines(), 1) if needle in line)
+
+
+def test_line_numbers_after_values_running_over_several_lines(tmp_path: Path) -> None:
+    path = write(tmp_path, HEAD + """
+[select]
+any_name = [
+    "*rod*",
+    "[x]*",
+]
+
+[define]
+F = \"\"\"
+    Fy / Omega   # [[check]] in a comment
+\"\"\"
+""" + GOOD_CHECK + GOOD_CHECK.replace('"stress"', '"second"').replace("Fy / Omega", "Fy / Omegax"))
+    assert one_error(path) == (f"{path}:{line_of(path, 'Omegax')}: check second: capacity: "
+                               "unknown name 'Omegax' (did you mean 'Omega'?)")

@@ -291,12 +291,16 @@ def line_map(text: str) -> dict[tuple[Any, ...], int]:
     section: tuple[Any, ...] = ()
     checks = -1
     open_string: str | None = None
+    open_brackets = 0          # inside a value (array) that runs over several lines
     for no, raw in enumerate(text.splitlines(), 1):
         if open_string is not None:
             if raw.count(open_string) % 2 == 1:
                 open_string = None
             continue
         s = raw.strip()
+        if open_brackets > 0:
+            open_brackets += _bracket_balance(s)
+            continue
         if not s or s.startswith("#"):
             continue
         m = _HEADER_ARRAY_RE.match(s)
@@ -323,7 +327,28 @@ def line_map(text: str) -> dict[tuple[Any, ...], int]:
                 if rest.count(delim) % 2 == 1:
                     open_string = delim
                     break
+            else:
+                open_brackets = max(0, _bracket_balance(rest))
     return lines
+
+
+def _bracket_balance(text: str) -> int:
+    """Opening minus closing brackets of a TOML line, outside quotes and comments (roughly)."""
+    depth = 0
+    quote: str | None = None
+    for ch in text:
+        if quote:
+            if ch == quote:
+                quote = None
+        elif ch in "\"'":
+            quote = ch
+        elif ch == "#":
+            break
+        elif ch in "[{":
+            depth += 1
+        elif ch in "]}":
+            depth -= 1
+    return depth
 
 
 class _Errors:
