@@ -8,7 +8,9 @@ mezzanine, wall bracing and roof tie rods (``nettlebrook-hall``, IFC4, millimetr
 canopy and equipment platform detailed by the steel fabricator in US units (``nettlebrook-canopy``,
 IFC2X3, inches and kips); and a pipe bridge from the hall to the tank yard (``nettlebrook-pipebridge``,
 IFC4X3, metres and kilonewtons). README.md beside this file lists which members deliberately
-fail, lack data or are inconsistent.
+fail, lack data or are inconsistent, and which members get their axial forces by which route (load
+table, the model property ``MC_MemberForces.AxialForce``, or the IFC structural-analysis results
+that the hall and the pipe bridge carry in their structural domain).
 
 Every GlobalId comes from a seeded sequence and the header time stamp is fixed, so re-running the
 script with the same ifcopenshell gives byte-identical files.
@@ -34,6 +36,7 @@ from typing import Any
 import ifcopenshell.guid
 
 from modelcheck.ifc.author import ModelBuilder
+from modelcheck.ifc.author_analysis import AnalysisWriter
 
 HERE = Path(__file__).resolve().parent
 TIMESTAMP = "2025-01-01T00:00:00"   # fixed so that a rebuild is byte-identical
@@ -101,7 +104,8 @@ def build_hall(out: Path) -> list[Path]:
     """Workshop hall: hangers of the mezzanine, roof tie rods, wall bracing, eaves struts, posts.
 
     Units: mm, N, N/mm² (MPa). Forces: hangers in the model (MC_MemberForces.AxialForce, N);
-    the rest in ``nettlebrook-hall-forces.csv`` keyed by tag, kN.
+    the rest in ``nettlebrook-hall-forces.csv`` keyed by tag, kN; braces BR-01..05 and struts
+    ST-01..03 also in the model's structural-analysis results (``_hall_analysis``).
     """
     mb = SeededBuilder(HALL, schema="IFC4", units="mm", name=f"{SCENARIO} - workshop hall")
     f = mb.f
@@ -192,24 +196,25 @@ def build_hall(out: Path) -> list[Path]:
 
     # ---- wall bracing: 3000 x 2400 bays, diagonal 3842 mm
     diag = math.hypot(3000.0, 2400.0)
+    physical: dict[str, Any] = {}   # tag -> element, for the analysis members of the braces and struts
     for i in range(6):
         tag = f"BR-0{i + 1}"
         kw: dict[str, Any] = dict(name=f"Wall brace {tag}", tag=tag, predefined_type="BRACE",
                                   profile=l70, length=diag, direction=(3000.0, 0.0, 2400.0),
                                   start=(3000.0 * i, 0.0, 0.0), storey="Ground floor")
         if i < 3:      # own profile set usage (and typed)
-            mb.member("IfcMember", material=s235, member_type=t_br, **kw)
+            physical[tag] = mb.member("IfcMember", material=s235, member_type=t_br, **kw)
         elif i < 5:    # section and material inherited from the type
-            mb.member("IfcMember", material=None, material_via="none", member_type=t_br, **kw)
+            physical[tag] = mb.member("IfcMember", material=None, material_via="none", member_type=t_br, **kw)
         else:          # BR-06: NO MATERIAL at all (no association, no type)
             mb.member("IfcMember", material=None, **kw)
 
     # ---- eaves struts (compression), 4000 mm
     for i, (tag, prof, mat) in enumerate([("ST-01", chs89, s355h), ("ST-02", chs89, s355h),
                                           ("ST-03", shs80, s355h)]):
-        mb.member("IfcMember", name=f"Eaves strut {tag}", tag=tag, predefined_type="STRUT", profile=prof,
-                  material=mat, length=4000.0, start=(0.0, 4000.0 * i, 7200.0), direction=(0.0, 1.0, 0.0),
-                  storey="Roof")
+        physical[tag] = mb.member("IfcMember", name=f"Eaves strut {tag}", tag=tag, predefined_type="STRUT",
+                                  profile=prof, material=mat, length=4000.0, start=(0.0, 4000.0 * i, 7200.0),
+                                  direction=(0.0, 1.0, 0.0), storey="Roof")
     # ST-04: IMPLAUSIBLE modulus (S275JR with E = 210 N/mm²)
     mb.member("IfcMember", name="Mezzanine strut ST-04", tag="ST-04", predefined_type="STRUT", profile=rhs100,
               material=s275_bad, length=3000.0, start=(0.0, 0.0, 3600.0), direction=(1.0, 0.0, 0.0),
@@ -237,6 +242,8 @@ def build_hall(out: Path) -> list[Path]:
     mb.member("IfcColumn", name="Post PO-04", tag="PO-04", predefined_type="COLUMN", profile=ipe200,
               material=s355, length=3600.0, start=(24000.0, 3000.0, 0.0), storey="Ground floor")
 
+    _hall_analysis(mb, physical, {"BR": (l70, s235), "ST-01": (chs89, s355h), "ST-02": (chs89, s355h),
+                                  "ST-03": (shs80, s355h)})
     ifc = out / f"{HALL}.ifc"
     mb.save(ifc)
     rows: list[tuple[str, str, float]] = []
@@ -256,6 +263,74 @@ def build_hall(out: Path) -> list[Path]:
     csv_path = out / f"{HALL}-forces.csv"
     write_forces(csv_path, "tag", "kN", rows)
     return [ifc, csv_path]
+
+
+#: load combinations of the hall's analysis model (EN 1990 6.10; wind accompanying with ψ0 = 0.6,
+#: EN 1990 Table A1.1, from memory); the last one only the analysis has, not the load table
+HALL_ANALYSIS_CASES = ("1.35G+1.5Q", "1.35G+1.5S", "G+1.5W", "1.35G+1.5Q+0.9W")
+#: axial force N (kN, tension positive) of each analysed member in HALL_ANALYSIS_CASES. The load
+#: table is exported from a later run: where it has a row for the same member and case (braces in
+#: G+1.5W, struts in 1.35G+1.5Q and 1.35G+1.5S) its value wins, and these few-per-cent-older
+#: values are reported as overridden. Braces are tension-only (L/i = 281: never in compression).
+#: The deliberate failures (BR-03, ST-02) are in the table's cases only: in the cases the analysis
+#: supplies, every strength ratio stays below 0.7 (EN 1993-1-1 and AISC 360-16 ASD alike).
+HALL_ANALYSIS = {
+    "BR-01": (4.2, 5.0, 62.5, 42.6),
+    "BR-02": (4.6, 5.4, 70.0, 47.5),     # GLOBAL_COORDS forces on the inclined brace
+    "BR-03": (5.8, 6.9, 281.0, 84.0),    # FAIL stays the table's 288 kN in G+1.5W (281 here, overridden)
+    "BR-04": (3.9, 4.6, 57.0, 39.2),
+    "BR-05": (4.4, 5.2, 64.8, 44.3),
+    "ST-01": (-20.4, -41.2, 16.0, -11.5),   # member end forces (IfcStructuralLoadConfiguration)
+    "ST-02": (-94.0, -137.0, 34.0, -30.0),  # FAIL stays the table's -140 kN in 1.35G+1.5S (-137 here)
+    "ST-03": (-17.6, -34.3, 14.0, -9.8),
+}
+HALL_GLOBAL_MEMBER = "BR-02"
+HALL_END_FORCE_MEMBER = "ST-01"
+
+
+def _hall_analysis(mb: ModelBuilder, physical: dict[str, Any], sections: dict[str, tuple[Any, Any]]) -> None:
+    """The hall's structural-analysis model: a curve member for each wall brace BR-01..05 and eaves
+    strut ST-01..03, assigned to its physical member, with results of four load combinations.
+
+    Units are the model's (mm, N). Each curve member's edge runs from the physical member's start
+    to its end, so local x is the member axis in the same direction. Results:
+
+    * LOCAL_COORDS single force (IfcStructuralCurveReaction CONST): ForceX = N;
+    * BR-02, GLOBAL_COORDS: the internal force vector N·x̂ + V·ẑ' in the world axes (V = 150 N shear
+      in the wall plane, ẑ' ⟂ x̂), which a reader projects on the brace axis to get N back;
+    * ST-01, member end forces (IfcStructuralLoadConfiguration, CurveReaction DISCRETE): forces
+      acting on the member at Locations 0 and L, Fx(start) = −N, Fx(end) = +N, plus the 165 N
+      self-weight shear at each end (local z up).
+    """
+    an = AnalysisWriter(mb, "Workshop hall - bracing and eaves struts")
+    groups: dict[str, Any] = {}
+    for case in HALL_ANALYSIS_CASES:
+        lg = an.load_group(case, predefined_type="LOAD_COMBINATION", action_type="NOTDEFINED",
+                           action_source="NOTDEFINED")
+        groups[case] = an.result_group(case, lg)
+    for tag, values in HALL_ANALYSIS.items():
+        el = physical[tag]
+        start = tuple(float(c) for c in el.ObjectPlacement.RelativePlacement.Location.Coordinates)
+        span = (3000.0, 0.0, 2400.0) if tag.startswith("BR") else (0.0, 4000.0, 0.0)
+        end = tuple(a + d for a, d in zip(start, span, strict=True))
+        profile, material = sections["BR" if tag.startswith("BR") else tag]
+        cm = an.curve_member(start, end, name=f"{tag} (analysis)", physical=el, profile=profile,
+                             material=material,
+                             predefined_type="TENSION_MEMBER" if tag.startswith("BR") else "PIN_JOINED_MEMBER")
+        length = math.hypot(*span)
+        x = tuple(c / length for c in span)
+        z = (-x[2], 0.0, x[0])        # in the brace's vertical plane, perpendicular to x
+        for case, n_kn in zip(HALL_ANALYSIS_CASES, values, strict=True):
+            n = n_kn * 1e3
+            if tag == HALL_GLOBAL_MEMBER:
+                v = 150.0
+                load = an.single_force(*(n * xc + v * zc for xc, zc in zip(x, z, strict=True)))
+                an.curve_reaction(cm, load, groups[case], global_or_local="GLOBAL_COORDS")
+            elif tag == HALL_END_FORCE_MEMBER:
+                an.curve_reaction(cm, an.end_forces((-n, 0.0, 165.0), (n, 0.0, 165.0), length), groups[case])
+            else:
+                an.curve_reaction(cm, an.single_force(fx=n), groups[case])
+    an.finish()
 
 
 # ============================================================ model 2: the canopy (IFC2X3, inch-kip)
@@ -376,12 +451,20 @@ def build_canopy(out: Path) -> list[Path]:
     return [ifc, csv_path]
 
 
+BRIDGE_ANALYSIS_ONLY_NAME = "Deck plan tie rod AT-01 (analysis model only)"
+BRIDGE_ANALYSIS_ONLY_EDGE = ((6.0, 0.0, 5.0), (12.0, 2.0, 5.0))   # m, world axes
+#: N (kN, tension) of the analysis-only tie rod: RD 30 S355, A·fy = 251 kN (EN 1993-1-1 6.2.3)
+BRIDGE_ANALYSIS_ONLY = {"1.35G+1.5Q": 22.0, "G+1.5W": 68.0}
+
+
 # ======================================================== model 3: the pipe bridge (IFC4X3, m, kN)
 
 def build_pipebridge(out: Path) -> list[Path]:
     """Pipe bridge: every parametric and arbitrary profile class, swept-disk suspenders.
 
-    Units: m, kN, kN/m². Forces: ``nettlebrook-pipebridge-forces.csv`` keyed by GlobalId, kN.
+    Units: m, kN, kN/m². Forces: ``nettlebrook-pipebridge-forces.csv`` keyed by GlobalId, kN; the
+    analysis-only tie rod AT-01 (an IfcStructuralCurveMember assigned to no element) from its
+    structural-analysis results.
     """
     mb = SeededBuilder(BRIDGE, schema="IFC4X3", units="m", name=f"{SCENARIO} - pipe bridge")
     f = mb.f
@@ -532,6 +615,20 @@ def build_pipebridge(out: Path) -> list[Path]:
     # ---- walkway post, aluminium
     add("IfcMember", "WP-01", name="Walkway post WP-01", predefined_type="POST", profile=chs42, material=alu,
         length=1.1, start=(0.0, -0.8, 5.0))
+
+    # ---- analysis-only member: a deck plan tie rod the engineer has in the analysis model but not
+    # (yet) in the physical model. Assigned to no element, it is a member in its own right: its
+    # IfcMaterialProfileSet gives section (RD 30) and material (S355), its IfcEdge the length
+    # (6.0 x 2.0 m in plan: 6.325 m). Results LOCAL_COORDS, N = ForceX in kN.
+    an = AnalysisWriter(mb, "Pipe bridge - deck plan bracing")
+    at = an.curve_member(BRIDGE_ANALYSIS_ONLY_EDGE[0], BRIDGE_ANALYSIS_ONLY_EDGE[1],
+                         name=BRIDGE_ANALYSIS_ONLY_NAME, profile=rd30, material=s355,
+                         predefined_type="TENSION_MEMBER")
+    for case, n in BRIDGE_ANALYSIS_ONLY.items():
+        lg = an.load_group(case, predefined_type="LOAD_COMBINATION", action_type="NOTDEFINED",
+                           action_source="NOTDEFINED")
+        an.curve_reaction(at, an.single_force(fx=n), an.result_group(case, lg))
+    an.finish()
 
     ifc = out / f"{BRIDGE}.ifc"
     mb.save(ifc)

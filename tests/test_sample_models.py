@@ -7,13 +7,18 @@ material values, not with modelcheck's own reader.
 from __future__ import annotations
 
 import importlib.util
+import json
 import math
+import subprocess
+import sys
 from functools import cache
 from pathlib import Path
 from types import ModuleType
 from typing import Any
 
 import ifcopenshell
+import ifcopenshell.util.placement
+import numpy as np
 import pandas as pd
 import pint
 import pytest
@@ -278,8 +283,10 @@ def test_member_force_property_on_hangers() -> None:
 def test_one_member_per_model_has_no_force() -> None:
     table_keys = {s: set(forces(s).iloc[:, 0]) for s in MODELS}
     hall_props = {f"HR-0{i}" for i in range(1, 9)}
+    hall_tags = {e.GlobalId: e.Tag for e in members("nettlebrook-hall")}
+    hall_analysis = {hall_tags[gid] for gid, _case in analysis_forces("nettlebrook-hall")}
     no_force = {
-        "nettlebrook-hall": {e.Tag for e in members("nettlebrook-hall")} - table_keys["nettlebrook-hall"] - hall_props,
+        "nettlebrook-hall": set(hall_tags.values()) - table_keys["nettlebrook-hall"] - hall_props - hall_analysis,
         "nettlebrook-canopy": {e.Tag for e in members("nettlebrook-canopy")} - table_keys["nettlebrook-canopy"],
         "nettlebrook-pipebridge": {e.Tag for e in members("nettlebrook-pipebridge")
                                    if e.GlobalId not in table_keys["nettlebrook-pipebridge"]},
@@ -348,3 +355,273 @@ def test_sister_members_pass_comfortably() -> None:
     can = forces("nettlebrook-canopy")
     rods = can[can["tag"].isin(["HR-11", "HR-12", "HR-14", "HR-15", "HR-16"])]
     assert (rods["axial_force [kip]"] / (36 * 0.442 / 1.67) < 0.7).all()   # AISC, A36 3/4 in rod (from memory)
+
+
+# ------------------------------------------------------------------ structural-analysis results
+#
+# Read straight from the files with ifcopenshell and numpy, by the IFC schema's definitions
+# (IfcStructuralCurveMember edge = local x; LOCAL_COORDS ForceX = N; GLOBAL_COORDS force
+# projected on the member axis; member end forces N = -Fx(start) = +Fx(end), common practice).
+
+HALL_ANALYSED = {f"BR-0{i}" for i in range(1, 6)} | {"ST-01", "ST-02", "ST-03"}
+
+
+def _assigned_products(f: ifcopenshell.file) -> dict[int, Any]:
+    """curve member id -> the physical element it is assigned to (IfcRelAssignsToProduct)."""
+    out: dict[int, Any] = {}
+    for rel in f.by_type("IfcRelAssignsToProduct"):
+        for o in rel.RelatedObjects:
+            if o.is_a("IfcStructuralCurveMember"):
+                out[o.id()] = rel.RelatingProduct
+    return out
+
+
+def _edge(cm: Any) -> tuple[np.ndarray, np.ndarray]:
+    edges = [it for r in cm.Representation.Representations for it in r.Items if it.is_a("IfcEdge")]
+    assert len(edges) == 1, cm
+    e = edges[0]
+    return (np.array(e.EdgeStart.VertexGeometry.Coordinates, dtype=float),
+            np.array(e.EdgeEnd.VertexGeometry.Coordinates, dtype=float))
+
+
+def _result_group(act: Any) -> Any:
+    groups = [r.RelatingGroup for r in act.HasAssignments
+              if r.is_a("IfcRelAssignsToGroup") and r.RelatingGroup.is_a("IfcStructuralResultGroup")]
+    assert len(groups) == 1, act
+    return groups[0]
+
+
+@cache
+def analysis_results(stem: str) -> tuple[tuple[str, str, float, str], ...]:
+    """(GlobalId the force belongs to, load case, N in newtons, how it is written) per result."""
+    f = model(stem)
+    newton = _unit_factor(f, "FORCEUNIT")
+    owner = _assigned_products(f)
+    out = []
+    for rel in f.by_type("IfcRelConnectsStructuralActivity"):
+        cm, act = rel.RelatingElement, rel.RelatedStructuralActivity
+        if not act.is_a("IfcStructuralReaction"):
+            continue
+        a, b = _edge(cm)
+        x = (b - a) / np.linalg.norm(b - a)
+        load = act.AppliedLoad
+        if load.is_a("IfcStructuralLoadSingleForce"):
+            vec = np.array([load.ForceX or 0.0, load.ForceY or 0.0, load.ForceZ or 0.0])
+            n = float(vec @ x) if act.GlobalOrLocal == "GLOBAL_COORDS" else float(vec[0])
+            how = act.GlobalOrLocal
+        else:
+            assert load.is_a("IfcStructuralLoadConfiguration")
+            locs = [float(loc[0]) for loc in load.Locations]
+            start, end = load.Values[locs.index(min(locs))], load.Values[locs.index(max(locs))]
+            n_start, n_end = -start.ForceX, end.ForceX
+            assert n_start == pytest.approx(n_end, rel=1e-9)   # both ends give the same N
+            n, how = float(n_end), "end forces"
+        key = owner[cm.id()].GlobalId if cm.id() in owner else cm.GlobalId
+        out.append((key, _result_group(act).Name, n * newton, how))
+    return tuple(out)
+
+
+def analysis_forces(stem: str) -> dict[tuple[str, str], float]:
+    """(GlobalId, load case) -> N in newtons (one result per member and case in the samples)."""
+    res = analysis_results(stem)
+    d = {(k, c): n for k, c, n, _how in res}
+    assert len(d) == len(res)
+    return d
+
+
+def test_hall_analysis_model_links_braces_and_struts() -> None:
+    f = model("nettlebrook-hall")
+    (am,) = f.by_type("IfcStructuralAnalysisModel")
+    # its SharedPlacement is the world axes: edge coordinates are global coordinates
+    assert np.allclose(ifcopenshell.util.placement.get_local_placement(am.SharedPlacement), np.eye(4))
+    owner = _assigned_products(f)
+    cms = f.by_type("IfcStructuralCurveMember")
+    assert len(cms) == len(owner) == len(HALL_ANALYSED)
+    assert {p.Tag for p in owner.values()} == HALL_ANALYSED
+    assert all(p.is_a("IfcMember") for p in owner.values())
+    for cm in cms:
+        # the analysis edge lies on the physical member's axis, start to end (placement x Axis polyline)
+        el = owner[cm.id()]
+        m = np.asarray(ifcopenshell.util.placement.get_local_placement(el.ObjectPlacement), dtype=float)
+        axis = [r for r in el.Representation.Representations if r.RepresentationIdentifier == "Axis"][0]
+        pts = [m @ np.array([*p.Coordinates, 0.0][:3] + [1.0]) for p in axis.Items[0].Points]
+        a, b = _edge(cm)
+        assert np.allclose(a, pts[0][:3], atol=1e-6) and np.allclose(b, pts[-1][:3], atol=1e-6), el.Tag
+
+
+def test_hall_analysis_result_groups_are_load_cases() -> None:
+    f = model("nettlebrook-hall")
+    groups = f.by_type("IfcStructuralResultGroup")
+    names = {g.Name for g in groups}
+    assert len(names) == len(groups)                         # one group per load case
+    for g in groups:
+        assert g.ResultForLoadGroup is not None and g.ResultForLoadGroup.Name == g.Name
+    t = forces("nettlebrook-hall")
+    table_cases = set(t.loc[t["tag"].isin(HALL_ANALYSED), "load_case"])
+    assert table_cases <= names                              # the table's names, where it has those members
+    assert names - set(t["load_case"])                       # and a case only the analysis has
+    am = f.by_type("IfcStructuralAnalysisModel")[0]
+    assert set(am.HasResults) == set(groups)
+
+
+def test_hall_analysis_result_forms() -> None:
+    """LOCAL single forces; GLOBAL forces on exactly one, inclined, member; end forces on one."""
+    f = model("nettlebrook-hall")
+    owner = _assigned_products(f)
+    hows: dict[str, set[str]] = {}
+    for rel in f.by_type("IfcRelConnectsStructuralActivity"):
+        act = rel.RelatedStructuralActivity
+        assert act.is_a("IfcStructuralCurveReaction")
+        load = act.AppliedLoad
+        how = "configuration" if load.is_a("IfcStructuralLoadConfiguration") else act.GlobalOrLocal
+        hows.setdefault(how, set()).add(owner[rel.RelatingElement.id()].Tag)
+        if how == "GLOBAL_COORDS":
+            a, b = _edge(rel.RelatingElement)
+            d = (b - a) / np.linalg.norm(b - a)
+            assert 0.2 < abs(d[2]) < 0.9                      # inclined: neither level nor plumb
+            vec = np.array([load.ForceX, load.ForceY, load.ForceZ])
+            assert np.linalg.norm(vec - (vec @ d) * d) > 0    # it carries shear too: a real projection
+        if how == "configuration":
+            assert act.PredefinedType == "DISCRETE" and len(load.Values) == 2
+            a, b = _edge(rel.RelatingElement)
+            locs = sorted(float(x[0]) for x in load.Locations)
+            assert locs == pytest.approx([0.0, float(np.linalg.norm(b - a))])   # at the member's two ends
+        if how == "LOCAL_COORDS":
+            assert load.is_a("IfcStructuralLoadSingleForce") and act.PredefinedType == "CONST"
+    assert set(hows) == {"LOCAL_COORDS", "GLOBAL_COORDS", "configuration"}
+    assert len(hows["GLOBAL_COORDS"]) == 1 and len(hows["configuration"]) == 1
+    assert hows["LOCAL_COORDS"] | hows["GLOBAL_COORDS"] | hows["configuration"] == HALL_ANALYSED
+
+
+def test_pipebridge_has_one_analysis_only_member() -> None:
+    f = model("nettlebrook-pipebridge")
+    (cm,) = f.by_type("IfcStructuralCurveMember")
+    assert cm.id() not in _assigned_products(f)                           # stands for no element
+    (assoc,) = [r.RelatingMaterial for r in cm.HasAssociations if r.is_a("IfcRelAssociatesMaterial")]
+    assert assoc.is_a("IfcMaterialProfileSet")
+    (mp,) = assoc.MaterialProfiles
+    assert mp.Profile.is_a("IfcCircleProfileDef") and mp.Material is not None
+    a, b = _edge(cm)
+    assert float(np.linalg.norm(b - a)) == pytest.approx(math.hypot(6.0, 2.0))   # 6 x 2 m deck panel diagonal
+    res = analysis_results("nettlebrook-pipebridge")
+    assert res and {k for k, *_ in res} == {cm.GlobalId}
+    assert {c for _k, c, *_ in res} <= set(forces("nettlebrook-pipebridge")["load_case"])
+
+
+def test_analysis_forces_keep_every_documented_status() -> None:
+    """Where the analysis supplies a case (no table row), members pass below 0.7; where a table row
+    exists it is within a few per cent of the analysis (the table wins, README)."""
+    hall = {e.GlobalId: e.Tag for e in members("nettlebrook-hall")}
+    t = forces("nettlebrook-hall")
+    table = {(r.tag, r.load_case): r._3 * 1e3 for r in t.itertuples()}   # kN -> N
+    # EN 1993-1-1 6.2.3 (tension, A fy) and 6.3.1 (buckling, curve c, L = 4 m), γM = 1.0
+    rd = lambda d: math.pi * d * d / 4   # noqa: E731  (gross area of a round bar)
+    lam1 = lambda fy: 93.9 * math.sqrt(235 / fy)   # noqa: E731  EN 1993-1-1 6.3.1.3: λ1 = 93.9 ε
+    sections = {
+        # EN 10056-1: L 70x70x7, A = 9.40 cm² (from memory); S235 fy = 235 MPa (EN 1993-1-1 Table 3.1)
+        "BR": (940.0, 235.0, None),
+        # EN 10210-2: CHS 88.9x4.0, A = 10.7 cm², i = 3.00 cm (from memory); S355
+        "ST-01": (1070.0, 355.0, 30.0), "ST-02": (1070.0, 355.0, 30.0),
+        # EN 10219-2: SHS 80x80x4, A = 11.7 cm², i = 3.09 cm (from memory); S355
+        "ST-03": (1170.0, 355.0, 30.9),
+    }
+    supplied = 0
+    for (gid, case), n in analysis_forces("nettlebrook-hall").items():
+        tag = hall[gid]
+        if (tag, case) in table:
+            assert n / table[(tag, case)] == pytest.approx(1.0, abs=0.05), (tag, case)
+            continue
+        supplied += 1
+        area, fy, i = sections["BR" if tag.startswith("BR") else tag]
+        if n >= 0:
+            ratio = n / (area * fy)
+        else:
+            assert i is not None, tag        # braces are tension-only (L/i ≈ 281)
+            ratio = -n / (_chi(4000 / i / lam1(fy), 0.49) * area * fy)
+        assert ratio < 0.7, (tag, case, ratio)
+    assert supplied >= 2 * len(HALL_ANALYSED)
+    # the deliberate failures also fail on the analysis values alone (README: without --loads)
+    by_tag = {(hall[g], c): n for (g, c), n in analysis_forces("nettlebrook-hall").items()}
+    assert by_tag[("BR-03", "G+1.5W")] / (940 * 235) > 1.1                      # EN 10056-1 L70x70x7 (from memory)
+    assert -by_tag[("ST-02", "1.35G+1.5S")] / (_chi(4000 / 30.0 / lam1(355), 0.49) * 1070 * 355) > 1.1
+    # pipe bridge AT-01: RD 30 S355 (EN 10025-2: fy = 355 MPa for t <= 16 mm, from memory)
+    for (_gid, _case), n in analysis_forces("nettlebrook-pipebridge").items():
+        assert 0 < n / (rd(30) * 355) < 0.7
+
+
+# ------------------------------------------------------------------ the three routes through the CLI
+
+@cache
+def members_json(stem: str) -> dict[str, Any]:
+    """``modelcheck members sample_models/STEM.ifc --loads sample_models/STEM-forces.csv --format json``"""
+    r = subprocess.run([sys.executable, "-m", "modelcheck", "members", f"sample_models/{stem}.ifc",
+                        "--loads", f"sample_models/{stem}-forces.csv", "--format", "json"],
+                       capture_output=True, text=True, timeout=300, cwd=REPO)
+    assert r.returncode == 0, r.stderr
+    (m,) = json.loads(r.stdout)["models"]
+    return m
+
+
+def _newton(q: dict[str, Any]) -> float:
+    return UREG.Quantity(q["value"], q["unit"]).to("N").magnitude   # pint's definition of kN
+
+
+def test_members_command_fills_forces_from_all_three_routes() -> None:
+    m = members_json("nettlebrook-hall")
+    t = forces("nettlebrook-hall")
+    table = {(r.tag, r.load_case): r._3 * 1e3 for r in t.itertuples()}   # kN -> N
+    ana = analysis_forces("nettlebrook-hall")
+    got = {(mem["global_id"], case): q for mem in m["members"] for case, q in mem["axial_force"].items()}
+    tag = {mem["global_id"]: mem["tag"] for mem in m["members"]}
+    sources = [q["source"] for q in got.values()]
+    assert any(s.startswith("IFC analysis") for s in sources)                 # analysis route
+    assert any("nettlebrook-hall-forces.csv:row" in s for s in sources)       # load-table route
+    assert any(s.startswith("MC_MemberForces.AxialForce") for s in sources)   # model-property route
+    overridden = set()
+    for (gid, case), n in ana.items():
+        q = got[(gid, case)]
+        if (tag[gid], case) in table:     # the table wins (modelcheck/loads/join.py)
+            assert "nettlebrook-hall-forces.csv:row" in q["source"]
+            assert _newton(q) == pytest.approx(table[(tag[gid], case)], rel=1e-6)
+            overridden.add((gid, case))
+        else:
+            assert q["source"].startswith("IFC analysis"), (tag[gid], case, q)
+            assert _newton(q) == pytest.approx(n, rel=1e-5, abs=0.5)
+    # every analysis result a table row displaced is reported, and nothing else
+    rep = m["forces"]
+    assert {(o["global_id"], o["load_case"]) for o in rep["overridden"]} == overridden
+    assert all(o["overridden"].startswith("IFC analysis") for o in rep["overridden"])
+    assert rep["used_by_route"]["analysis"] == len(ana) - len(overridden)
+    # the provenance says how the analysis result was read
+    gid_of = {v: k for k, v in tag.items()}
+    assert "global force" in got[(gid_of["BR-02"], "1.35G+1.5Q+0.9W")]["source"]
+    assert "end forces" in got[(gid_of["ST-01"], "1.35G+1.5Q+0.9W")]["source"]
+    assert "local ForceX" in got[(gid_of["BR-01"], "1.35G+1.5Q+0.9W")]["source"]
+    # the case only the analysis has reaches the members; HR-09 still has no force
+    only_analysis = {c for (_g, c) in ana} - set(t["load_case"])
+    assert only_analysis
+    assert {tag[g] for (g, c) in got if c in only_analysis} == HALL_ANALYSED
+    assert rep["members_without_force"] == [gid_of["HR-09"]]
+
+
+def test_members_command_lists_the_analysis_only_member() -> None:
+    m = members_json("nettlebrook-pipebridge")
+    # 29 physical members (test_models_open_with_schema_and_members) + the analysis-only one
+    assert len(m["members"]) == MODELS["nettlebrook-pipebridge"][1] + 1
+    (mem,) = [x for x in m["members"] if x["ifc_class"] == "IfcStructuralCurveMember"]
+    assert mem["tag"] is None and "AT-01" in mem["name"]
+    # length from its edge: the 6 m x 2 m panel diagonal (geometry)
+    assert UREG.Quantity(mem["length"]["value"], mem["length"]["unit"]).to("m").magnitude == pytest.approx(
+        math.hypot(6.0, 2.0), rel=1e-5)
+    assert "IfcEdge" in mem["length"]["source"]
+    # section from its material profile set: a 30 mm round bar, π d²/4
+    area = UREG.Quantity(mem["section"]["area"]["value"], mem["section"]["area"]["unit"]).to("mm**2").magnitude
+    assert area == pytest.approx(math.pi * 30 ** 2 / 4, rel=1e-5)
+    # EN 10025-2 S355: fy = 355 MPa (t <= 16 mm, from memory)
+    assert UREG.Quantity(mem["material"]["Fy"]["value"], mem["material"]["Fy"]["unit"]).to("MPa").magnitude \
+        == pytest.approx(355.0)
+    ana = analysis_forces("nettlebrook-pipebridge")
+    assert set(mem["axial_force"]) == {c for (_g, c) in ana}
+    for case, q in mem["axial_force"].items():
+        assert q["source"].startswith("IFC analysis")
+        assert _newton(q) == pytest.approx(ana[(mem["global_id"], case)], rel=1e-6)
