@@ -47,11 +47,15 @@ MATERIAL_COLUMNS: tuple[str, ...] = (
 WARNINGS = "warnings"
 
 
+#: the element's entity id (#n) in its model file: lets later stages skip a GlobalId look-up
+ENTITY_ID = "entity_id"
+
+
 def member_columns() -> list[str]:
     cols = list(IDENTITY_COLUMNS) + list(SECTION_COLUMNS) + list(MATERIAL_COLUMNS)
     for q in QUANTITY_COLUMNS:
         cols += [q, f"{q}_source"]
-    return cols + [WARNINGS]
+    return cols + [WARNINGS, ENTITY_ID]
 
 
 #: the forces table: one row per member × load case, tension positive, newtons

@@ -22,7 +22,17 @@ from typing import Any
 
 import pint
 
-ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+
+def _registry() -> pint.UnitRegistry:
+    """The registry, from pint's parsed-definitions cache when the user cache folder is usable
+    (building it from the definitions file costs about a third of a second at every start)."""
+    try:
+        return pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=":auto:")
+    except (OSError, ValueError, RuntimeError):  # read-only home, odd platform: build it afresh
+        return pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+
+
+ureg = _registry()
 ureg.formatter.default_format = "~"
 Q_ = ureg.Quantity
 

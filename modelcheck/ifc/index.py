@@ -129,7 +129,7 @@ def _walk(model: Any, idx: ModelIndex) -> None:
             idx.type_of[obj.id()] = typ
     for rel in model.by_type("IfcRelDefinesByProperties"):
         pdef = rel.RelatingPropertyDefinition
-        pdefs = list(pdef) if isinstance(pdef, tuple) else [pdef]
+        pdefs = [d for d in (pdef if isinstance(pdef, tuple) else (pdef,)) if d is not None]  # None: dangling
         for obj in rel.RelatedObjects or ():
             idx.psets_of.setdefault(obj.id(), []).extend(pdefs)
     for rel in model.by_type("IfcRelAssociatesMaterial"):

@@ -131,10 +131,11 @@ class _Reader:
         return self._type_cache[key]
 
     # -------------------------------------------------------------------- bodies
-    def body(self, rep_items: list[Any], scale: float = 1.0) -> tuple[Section | str | None, tuple[float, str] | None]:
+    def body(self, rep_items: list[Any], scale: float = 1.0,
+             depth: int = 0) -> tuple[Section | str | None, tuple[float, str] | None]:
         """(section or reason, (length, source)) from body items; None where the body says nothing."""
         for item in rep_items:
-            sec, length = self._body_item(item, scale, 0)
+            sec, length = self._body_item(item, scale, depth)
             if sec is not None or length is not None:
                 return sec, length
         return None, None
@@ -145,7 +146,8 @@ class _Reader:
         cls = item.is_a()
         lf = self.lf
         if cls in ("IfcExtrudedAreaSolid", "IfcExtrudedAreaSolidTapered"):
-            sec = self.profile(item.SweptArea, scale)
+            sec = (self.profile(item.SweptArea, scale) if item.SweptArea is not None
+                   else f"{cls} #{item.id()} has no SweptArea (a null or dangling reference)")
             length = None
             if lf is not None and item.Depth is not None:
                 length = (float(item.Depth) * lf * scale, f"{cls}.Depth")
@@ -163,7 +165,7 @@ class _Reader:
                 rg = math.sqrt(r * r + ri * ri) / 2.0  # circle / annulus, I = π(R⁴−r⁴)/4
                 dims = {"d": 2 * r} | ({"t": r - ri} if ri > 0 else {})
                 sec = Section(area, rg, src, None, "IfcSweptDiskSolid", "round-tube" if ri > 0 else "round-bar", dims)
-            clen = self.curve_length(item.Directrix)
+            clen = self.curve_length(item.Directrix) if item.Directrix is not None else None
             length = (clen * lf * scale, "IfcSweptDiskSolid.Directrix") if clen is not None else None
             return sec, length
         if cls == "IfcMappedItem":
@@ -178,7 +180,10 @@ class _Reader:
                     if not (math.isclose(s1, s2) and math.isclose(s1, s3)):
                         return f"IfcMappedItem #{item.id()} scales non-uniformly", None
                 s = scale * float(s1)
-            return self.body(list(src.MappedRepresentation.Items or ()), s)
+            mapped = src.MappedRepresentation if src is not None else None
+            if mapped is None:
+                return f"IfcMappedItem #{item.id()} maps no representation (a null or dangling reference)", None
+            return self.body(list(mapped.Items or ()), s, depth + 1)
         if cls in ("IfcBooleanClippingResult", "IfcBooleanResult"):
             op = item.FirstOperand
             return self._body_item(op, scale, depth + 1) if op is not None else (None, None)
@@ -420,7 +425,7 @@ class _Reader:
         if storey is not None and storey_name is None:
             storey_name = self._storey_names[storey.id()] = storey.Name
         return (ga(0), cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
-                section, minfo, length, length_src, warnings)
+                section, minfo, length, length_src, warnings, eid)
 
     def _positions(self, cls: str) -> tuple[bool, int | None]:
         """(has Tag at index 7, index of PredefinedType) for an entity class; cached."""
@@ -645,7 +650,9 @@ def _has_sweep_body(el: Any) -> bool:
             cur = it
             for _ in range(8):
                 if cur.is_a("IfcMappedItem"):
-                    items = cur.MappingSource.MappedRepresentation.Items
+                    src = cur.MappingSource
+                    mapped = src.MappedRepresentation if src is not None else None
+                    items = mapped.Items if mapped is not None else None
                     cur = items[0] if items else None
                 elif cur.is_a("IfcBooleanResult"):
                     cur = cur.FirstOperand
@@ -703,7 +710,7 @@ def read_members(idx: ModelIndex, *, use_library: bool = True) -> pd.DataFrame:
             except RuntimeError:
                 gid, cls = f"#{el.id()}", el.is_a()
             rows.append((gid, cls, None, None, None, None, None, None, None, None, math.nan, None,
-                         [f"member cannot be read: {exc}"]))
+                         [f"member cannot be read: {exc}"], el.id()))
     df = _assemble(idx.path, rows)
     df.attrs["model_warnings"] = reader.model_warnings + list(idx.units.problems)
     return df
@@ -718,9 +725,10 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
     n = len(rows)
     cols: dict[str, Any] = {"model": [path] * n}
     if n:
-        (gid, cls, pre, otype, name, tag, storey, tname, secs, mats, length, length_src, warns) = zip(*rows, strict=True)
+        (gid, cls, pre, otype, name, tag, storey, tname, secs, mats, length, length_src, warns,
+         eids) = zip(*rows, strict=True)
     else:
-        gid = cls = pre = otype = name = tag = storey = tname = secs = mats = length = length_src = warns = ()
+        gid = cls = pre = otype = name = tag = storey = tname = secs = mats = length = length_src = warns = eids = ()
     cols.update(global_id=list(gid), ifc_class=list(cls), predefined_type=list(pre), object_type=list(otype),
                 name=list(name), tag=list(tag), storey=list(storey), type_name=list(tname))
     secs = [s if s is not None else _NO_SECTION for s in secs]
@@ -745,6 +753,7 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
         cols[q] = np.array([p[0] for p in pairs], dtype=float)
         cols[f"{q}_source"] = [p[1] for p in pairs]
     cols["warnings"] = [list(m.warnings) + w if m.warnings else w for m, w in zip(mats, warns, strict=True)]
+    cols["entity_id"] = np.array(eids, dtype=np.int64)
     # text columns stay object dtype with None for missing (pandas 3 would infer 'str' with NaN)
     data = {k: (v if isinstance(v, np.ndarray) else pd.Series(v, dtype=object)) for k, v in cols.items()}
     return pd.DataFrame(data, columns=member_columns())

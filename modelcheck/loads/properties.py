@@ -76,7 +76,11 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
     case = load_case if load_case is not None else DEFAULT_LOAD_CASE
     label = f"{pset_name}.{prop_name}"
     log = MessageLog(idx.path)
-    mine = members.loc[members["model"] == idx.path, "global_id"]
+    sel = members["model"] == idx.path
+    mine = members.loc[sel, "global_id"]
+    # the reader's entity ids spare a by_guid look-up per member; tables built by hand lack them
+    eids = (dict(zip(mine, members.loc[sel, "entity_id"], strict=True)) if "entity_id" in members.columns
+            else {})
     f = idx.file
     type_cache: dict[int, Any] = {}
     reading_cache: dict[int, _Reading] = {}
@@ -85,15 +89,18 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
     keys: list[str] = []
     sources: list[str] = []
     for gid in mine.dropna().unique():
-        try:
-            el = f.by_guid(gid)
-        except RuntimeError:
-            log.add("is not in the model (no such GlobalId): no property read", gid)
-            continue
-        prop = find_property(idx.psets_of.get(el.id(), ()), pset_name, prop_name)
+        eid = eids.get(gid)
+        if eid is None:
+            try:
+                eid = f.by_guid(gid).id()
+            except RuntimeError:
+                log.add("is not in the model (no such GlobalId): no property read", gid)
+                continue
+        psets = idx.psets_of.get(eid)
+        prop = find_property(psets, pset_name, prop_name) if psets else None
         origin = "occurrence"
         if prop is None:
-            typ = idx.type_of.get(el.id())
+            typ = idx.type_of.get(eid)
             if typ is None:
                 continue
             tid = typ.id()

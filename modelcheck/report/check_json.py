@@ -23,29 +23,85 @@ def _none(v: Any) -> Any:
 
 def _q(value: Any, unit: Any, source: Any) -> dict[str, Any] | None:
     if value is None or not isinstance(value, int | float) or not math.isfinite(value):
-        return None
+        return None  # a missing or infinite value is null in the contract
     return {"value": float(f"{value:.6g}"), "unit": str(unit or ""), "source": str(source or "")}
 
 
 def result_dicts(results: pd.DataFrame) -> list[dict[str, Any]]:
-    """Result rows as dicts of the JSON contract."""
-    out = []
+    """Result rows as dicts of the JSON contract (column-wise: no per-row pandas access)."""
+    n = len(results)
+    if not n:
+        return []
+
+    def col(name: str) -> list[Any]:
+        return results[name].tolist() if name in results.columns else [None] * n
+
+    def texts(name: str) -> list[Any]:
+        return [_none(v) for v in col(name)]
+
+    def qs(values: list[Any], units: list[Any], sources: list[Any]) -> list[Any]:
+        return [_q(v, u, s) for v, u, s in zip(values, units, sources, strict=True)]
+
+    unit = col("unit")
+    demand = qs(col("demand"), unit, col("demand_source"))
+    capacity = qs(col("capacity"), unit, col("capacity_source"))
+    # an infinite ratio (capacity 0, a fail) is null: JSON has no infinity; the status says fail
+    ratio = [float(f"{r:.6g}") if r is not None and math.isfinite(r) else None for r in col("ratio")]
     has_sugg = "suggestion" in results.columns
-    for rec in results.to_dict("records"):
-        ratio = _none(rec["ratio"])
-        item = {
-            "model": rec["model"], "global_id": rec["global_id"], "ifc_class": rec["ifc_class"],
-            "name": _none(rec["name"]), "tag": _none(rec["tag"]), "check": rec["check"],
-            "load_case": _none(rec["load_case"]), "status": rec["status"],
-            "demand": _q(rec["demand"], rec["unit"], rec.get("demand_source")),
-            "capacity": _q(rec["capacity"], rec["unit"], rec.get("capacity_source")),
-            "ratio": None if ratio is None else float(f"{ratio:.6g}"),
-            "missing": list(rec["missing"] or []), "message": str(rec["message"] or ""),
-        }
+    sugg = col("suggestion")
+    out = []
+    for i, (model, gid, cls, name, tag, check, case, status, missing, message) in enumerate(zip(
+            col("model"), col("global_id"), col("ifc_class"), texts("name"), texts("tag"), col("check"),
+            texts("load_case"), col("status"), col("missing"), col("message"), strict=True)):
+        item = {"model": model, "global_id": gid, "ifc_class": cls, "name": name, "tag": tag, "check": check,
+                "load_case": case, "status": status, "demand": demand[i], "capacity": capacity[i],
+                "ratio": ratio[i], "missing": list(missing or []), "message": str(message or "")}
         if has_sugg:
-            item["suggestion"] = rec["suggestion"] if isinstance(rec["suggestion"], dict) else None
+            item["suggestion"] = sugg[i] if isinstance(sugg[i], dict) else None
         out.append(item)
     return out
+
+
+def write_json(doc: dict[str, Any], fh: Any, row_keys: tuple[str, ...] = ("results",)) -> None:
+    """Write the document as JSON to the binary file ``fh``: indented, but each item of the
+    ``row_keys`` lists on one line.
+
+    Readable in a diff (one changed result is one changed line) and fast: those rows are encoded
+    by orjson and written one by one, so a report of a 100,000-member model takes a fraction of a
+    second and is never held twice in memory. Non-finite numbers never reach the file.
+    """
+    import json
+
+    import orjson
+
+    fh.write(b"{\n")
+    keys = list(doc)
+    for i, key in enumerate(keys):
+        value = doc[key]
+        fh.write(f"  {json.dumps(key)}: ".encode())
+        if key in row_keys and value:
+            enc = orjson.dumps
+            sep = b",\n    "
+            fh.write(b"[\n    ")
+            for start in range(0, len(value), 4096):  # bounded chunks: no giant intermediate buffer
+                if start:
+                    fh.write(sep)
+                fh.write(sep.join([enc(r) for r in value[start:start + 4096]]))
+            fh.write(b"\n  ]")
+        else:
+            text = json.dumps(value, indent=2, ensure_ascii=False, allow_nan=False).replace("\n", "\n  ")
+            fh.write(text.encode("utf-8"))
+        fh.write(b",\n" if i < len(keys) - 1 else b"\n")
+    fh.write(b"}\n")
+
+
+def dumps(doc: dict[str, Any], row_keys: tuple[str, ...] = ("results",)) -> str:
+    """``write_json`` into a string."""
+    import io
+
+    buf = io.BytesIO()
+    write_json(doc, buf, row_keys)
+    return buf.getvalue().decode("utf-8")
 
 
 def summary_counts(run: Any) -> dict[str, int]:

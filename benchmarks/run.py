@@ -1,0 +1,100 @@
+"""The large-model benchmark: `modelcheck check` end to end against a bare `ifcopenshell.open`.
+
+    python benchmarks/run.py                 # 10k, 30k and 100k members, and the batch run
+    python benchmarks/run.py --sizes 10000   # a quick look
+    python benchmarks/run.py --repeat 3      # best of three runs per measurement
+
+For each size it generates (once, cached in benchmarks/_work/) a synthetic IFC4 model and a load
+table with benchmarks/make_model.py, then runs, each in a fresh process:
+
+* the bare open:  python -c "import ifcopenshell; ifcopenshell.open(MODEL)"
+* the check:      modelcheck check MODEL --loads TABLE --format json --output OUT --jobs 1
+
+and prints wall time and peak memory (max resident set size of that process) of both, their
+ratios, and the check's time per member. The batch part checks 8 copies of the 10k model with
+--jobs 1 and --jobs 2 and prints the speed-up. Targets (issue "Scale and robustness"): check
+time ≤ 1.5 × open time (above 2 × is not done), peak memory ≤ 1.5 × the open's, batch speed-up
+≥ 1.7 × with two workers.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import shutil
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+HERE = Path(__file__).resolve().parent
+WORK = HERE / "_work"
+sys.path.insert(0, str(HERE.parent))
+
+
+def measure(cmd: list[str]) -> tuple[float, float]:
+    """(wall seconds, peak RSS in MiB) of one command run in a fresh process."""
+    t0 = time.perf_counter()
+    proc = subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    _, status, usage = os.wait4(proc.pid, 0)
+    wall = time.perf_counter() - t0
+    err = proc.stderr.read().decode(errors="replace") if proc.stderr else ""
+    code = os.waitstatus_to_exitcode(status)
+    if code not in (0, 1):
+        raise SystemExit(f"benchmark command failed ({code}): {' '.join(cmd)}\n{err}")
+    return wall, usage.ru_maxrss / 1024.0  # Linux reports KiB
+
+
+def best(cmd: list[str], repeat: int) -> tuple[float, float]:
+    runs = [measure(cmd) for _ in range(repeat)]
+    return min(r[0] for r in runs), max(r[1] for r in runs)
+
+
+def model_for(n: int) -> tuple[Path, Path]:
+    from benchmarks.make_model import build
+
+    model = WORK / f"m{n}.ifc"
+    table = WORK / f"m{n}-forces.csv"
+    if not model.exists() or not table.exists():
+        print(f"generating a {n}-member model …", flush=True)
+        build(n, model)
+    return model, table
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--sizes", type=int, nargs="+", default=[10_000, 30_000, 100_000])
+    ap.add_argument("--repeat", type=int, default=1)
+    ap.add_argument("--no-batch", action="store_true")
+    a = ap.parse_args()
+    py = sys.executable
+    print(f"{'members':>8} {'open s':>8} {'check s':>8} {'ratio':>6} {'open MiB':>9} {'check MiB':>10} "
+          f"{'mem ratio':>9} {'µs/member':>10}")
+    for n in a.sizes:
+        model, table = model_for(n)
+        out = WORK / f"m{n}-report.json"
+        t_open, m_open = best([py, "-c", "import sys, ifcopenshell; ifcopenshell.open(sys.argv[1])", str(model)],
+                              a.repeat)
+        t_chk, m_chk = best([py, "-m", "modelcheck", "check", str(model), "--loads", str(table), "--format", "json",
+                             "--output", str(out), "--jobs", "1", "--no-config"], a.repeat)
+        print(f"{n:>8} {t_open:>8.2f} {t_chk:>8.2f} {t_chk / t_open:>6.2f} {m_open:>9.0f} {m_chk:>10.0f} "
+              f"{m_chk / m_open:>9.2f} {t_chk / n * 1e6:>10.1f}", flush=True)
+    if not a.no_batch:
+        model, table = model_for(10_000)
+        batch = WORK / "batch"
+        batch.mkdir(exist_ok=True)
+        for i in range(8):
+            dst = batch / f"copy{i}.ifc"
+            if not dst.exists():
+                shutil.copyfile(model, dst)
+        times = {}
+        for jobs in (1, 2):
+            times[jobs], _ = best([py, "-m", "modelcheck", "check", str(batch), "--loads", str(table), "--format",
+                                   "json", "--output", str(WORK / f"batch-{jobs}.json"), "--jobs", str(jobs),
+                                   "--no-config"], a.repeat)
+        print(f"batch of 8 × 10k members: --jobs 1 {times[1]:.2f} s, --jobs 2 {times[2]:.2f} s, "
+              f"speed-up {times[1] / times[2]:.2f} ×")
+
+
+if __name__ == "__main__":
+    main()

@@ -1,0 +1,166 @@
+"""`modelcheck size`: the smallest stock size for an axial force (arguments -> sizing -> output).
+
+    modelcheck size --force "12 kip" --material A36 --shape threaded
+    modelcheck size --force "-180 kN" --rules steel-ec3 --shape catalog --family HEA --length "3.5 m"
+
+The cli registers it with two lines::
+
+    from modelcheck.design.cli_size import add_size_parser, cmd_size
+    add_size_parser(sub)            # in build_parser(); main() dispatches "size" to cmd_size
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import math
+import re
+import sys
+from typing import Any
+
+from modelcheck.errors import UsageError
+
+_FORCE_RE = re.compile(r"\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(?:\[(.+)\]|(.*?))\s*\Z")
+
+
+def add_size_parser(subparsers: Any) -> argparse.ArgumentParser:
+    """Add the ``size`` command to an argparse subparsers object; returns its parser."""
+    from modelcheck.design.sizing import SHAPES
+
+    p = subparsers.add_parser(
+        "size", help="choose the smallest stock size that carries an axial force",
+        description="Choose the smallest stock size (bar, threaded rod or catalog section) that passes "
+                    "every applicable check of a rule set for one axial force. Tension is positive, "
+                    "compression negative. Without --length the checks that need the member length "
+                    "(buckling, slenderness, elongation) are not applied; the output lists them.")
+    p.add_argument("--force", required=True, metavar="F",
+                   help="axial force with its unit, tension positive: \"12 kip\", \"50 kN\", \"-8 kip\"")
+    p.add_argument("--material", metavar="NAME", default=None,
+                   help="material grade or name from rulesets/materials.toml (default: ASTM A36 for US "
+                        "rule sets, S235 for SI)")
+    p.add_argument("--rules", metavar="RULESET", default="steel-asd-us",
+                   help="shipped rule-set name or a .toml file (default steel-asd-us)")
+    p.add_argument("--shape", choices=SHAPES, default=None,
+                   help="round or square bar, flat bar, threaded rod, or catalog section "
+                        "(default round; catalog when --family is given)")
+    p.add_argument("--family", action="append", default=None, metavar="FAMILY",
+                   help="catalog family: W, HSS, L (US tables) or IPE, HEA, L, CHS, RHS, SHS (EN tables); "
+                        "repeatable; default all of the rule set's table")
+    p.add_argument("--thickness", metavar="T", default=None,
+                   help="flat-bar thickness with its unit (\"1/4 in\", \"10 mm\"); default: every stock thickness")
+    p.add_argument("--length", metavar="L", default=None,
+                   help="member length with its unit (\"8 ft\", \"3.5 m\"): applies buckling, slenderness and "
+                        "elongation")
+    p.add_argument("--format", choices=("table", "json"), default="table")
+    return p
+
+
+def parse_force(text: str) -> float:
+    """'12 kip' -> newtons; a bare number or a unit that is not a force is a UsageError."""
+    from modelcheck.units import Q_, ureg
+
+    m = _FORCE_RE.match(text or "")
+    unit = (m.group(2) if m and m.group(2) is not None else (m.group(3) if m else "")) or ""
+    if not m:
+        raise UsageError(f"--force {text!r}: write a number and a force unit, e.g. \"12 kip\" or \"50 kN\"")
+    if not unit.strip():
+        raise UsageError(f"--force {text!r} has no unit: write e.g. \"{text.strip()} kip\" or \"{text.strip()} kN\"")
+    try:
+        q = Q_(float(m.group(1)), ureg.parse_units(unit.strip()))
+    except Exception as exc:  # pint raises many types for odd unit text
+        raise UsageError(f"--force {text!r}: {unit.strip()!r} is not a unit ({exc})") from None
+    if q.dimensionality != ureg.Unit("N").dimensionality:
+        raise UsageError(f"--force {text!r}: {unit.strip()!r} is not a unit of force")
+    return float(q.m_as("N"))
+
+
+def parse_length_arg(option: str, text: str | None) -> float | None:
+    from modelcheck.design.stock import metres, parse_length
+
+    if text is None:
+        return None
+    try:
+        value, unit = parse_length(text, option)
+    except ValueError as exc:
+        raise UsageError(str(exc)) from None
+    return metres(value, unit)
+
+
+def cmd_size(args: argparse.Namespace) -> int:
+    """Run `modelcheck size`; returns the exit code (0). Input errors raise UsageError / RuleSetError."""
+    from modelcheck.design.sizing import size
+    from modelcheck.rules.ruleset import load_ruleset
+
+    force = parse_force(args.force)
+    thickness = parse_length_arg("--thickness", args.thickness)
+    length = parse_length_arg("--length", args.length)
+    ruleset = load_ruleset(args.rules)
+    result = size(ruleset, force, material=args.material, shape=args.shape, thickness=thickness,
+                  length=length, family=tuple(args.family) if args.family else None)
+    if args.format == "json":
+        sys.stdout.write(json.dumps(result.to_dict(), indent=2, ensure_ascii=False) + "\n")
+    else:
+        from modelcheck.cli import report_console
+
+        render_size(result, report_console())
+    return 0
+
+
+def _fmt(q: dict[str, Any] | None, digits: str = ".4g") -> str:
+    if q is None:
+        return "—"
+    from modelcheck.units import ureg
+
+    unit = f"{ureg.Unit(q['unit']):~P}" if q["unit"] else ""
+    return f"{format(q['value'], digits)} {unit}".strip()
+
+
+def render_size(result: Any, console: Any) -> None:
+    """The size result as rich tables, ending with the caution."""
+    from rich.table import Table
+
+    from modelcheck.report.members import CAUTION
+
+    doc = result.to_dict()
+    sel = doc["selected"]
+    mat = doc["material"]
+    what = "tension" if result.force > 0 else "compression"
+    force = dict(doc["force"], value=abs(doc["force"]["value"]))
+    head = Table(title=f"Size for {_fmt(force)} {what} — rule set {result.ruleset}",
+                 title_justify="left", show_header=False, box=None, pad_edge=False)
+    head.add_column(style="bold")
+    head.add_column()
+    name = mat["grade"] if mat["name"] == mat["grade"] else f"{mat['name']} → {mat['grade']}"
+    head.add_row("Material", f"{name} (Fy {_fmt(mat['Fy'])}, Fu {_fmt(mat['Fu'])}, "
+                             f"E {_fmt(mat['E'], '.0f')})")
+    head.add_row("Stock", result.stock)
+    if doc["length"] is not None:
+        head.add_row("Length", _fmt(doc["length"]))
+    if doc["thickness"] is not None:
+        head.add_row("Thickness", _fmt(doc["thickness"]))
+    head.add_row("Required area", f"{_fmt(doc['required_area'])}  ({doc['required_area_basis']})"
+                 if doc["required_area"] else "—")
+    head.add_row("Selected", f"[bold green]{sel['designation']}[/]")
+    head.add_row("Area", _fmt(sel["area"]))
+    if sel["tensile_stress_area"] is not None:
+        head.add_row("Tensile-stress area", _fmt(sel["tensile_stress_area"]))
+    head.add_row("Stress", f"{_fmt(sel['stress'])}  ({sel['stress']['source']})" if sel["stress"] else "—")
+    head.add_row("Ratio", f"{sel['ratio']:.3f}  (governing: {sel['governing_check']})")
+    head.add_row("Elongation" if result.force > 0 else "Shortening",
+                 _fmt(dict(sel["elongation"], value=abs(sel["elongation"]["value"])), ".3g")
+                 if sel["elongation"] is not None else "— (give --length)")
+    console.print(head)
+
+    t = Table(title=f"Checks of {sel['designation']}", title_justify="left", header_style="bold")
+    for col, just in (("Check", "left"), ("Clause", "left"), ("Demand", "right"), ("Capacity", "right"),
+                      ("Ratio", "right"), ("Status", "left")):
+        t.add_column(col, justify=just, overflow="fold")
+    for c in doc["checks"]:
+        colour = {"pass": "green", "fail": "red"}.get(c["status"], "yellow")
+        ratio = "—" if c["ratio"] is None or not math.isfinite(c["ratio"]) else f"{c['ratio']:.3f}"
+        t.add_row(c["check"], c["clause"], _fmt(c["demand"]), _fmt(c["capacity"]), ratio,
+                  f"[{colour}]{c['status']}[/]")
+    console.print(t)
+    for na in doc["not_applicable"]:
+        console.print(f"[yellow]not applied:[/] {na['check']} — {na['reason']}", highlight=False)
+    console.print(f"\n[dim]{CAUTION}[/]")
