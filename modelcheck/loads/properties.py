@@ -31,7 +31,7 @@ import numpy as np
 import pandas as pd
 import pint
 
-from modelcheck.ifc.index import ModelIndex, find_property
+from modelcheck.ifc.index import ModelIndex
 from modelcheck.loads.messages import MessageLog
 from modelcheck.loads.tables import DEFAULT_LOAD_CASE, ForceUnitError, force_unit_factor
 from modelcheck.table import FORCE_COLUMNS, empty_forces
@@ -70,7 +70,8 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
 
     ``members`` is the member table (rows of other models are ignored: this model's rows are
     those whose ``model`` equals ``idx.path``). Returns the forces table (``FORCE_COLUMNS``,
-    newtons, load case ``load_case`` or ``'default'``) and messages for values that could not be
+    newtons, load case: a ``LoadCase`` label in the same property set, else ``load_case``, else
+    ``'default'``) and messages for values that could not be
     used. Members without the property simply get no row.
     """
     case = load_case if load_case is not None else DEFAULT_LOAD_CASE
@@ -88,6 +89,25 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
     raws: list[float] = []
     keys: list[str] = []
     sources: list[str] = []
+    cases: list[str] = []
+    # a LoadCase label beside the force in the same property set names the case of that force
+    prop_cases: dict[int, str] = {}
+
+    def _find(psets: Any, pset: str, name: str) -> Any:
+        for ps in psets:
+            if ps.is_a("IfcPropertySet") and ps.Name == pset:
+                found = label = None
+                for p in ps.HasProperties or ():
+                    if p.Name == name:
+                        found = p
+                    elif p.Name == "LoadCase" and p.is_a("IfcPropertySingleValue") and p.NominalValue is not None:
+                        label = str(p.NominalValue.wrappedValue).strip() or None
+                if found is not None:
+                    if label:
+                        prop_cases[found.id()] = label
+                    return found
+        return None
+
     for gid in mine.dropna().unique():
         eid = eids.get(gid)
         if eid is None:
@@ -97,7 +117,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
                 log.add("is not in the model (no such GlobalId): no property read", gid)
                 continue
         psets = idx.psets_of.get(eid)
-        prop = find_property(psets, pset_name, prop_name) if psets else None
+        prop = _find(psets, pset_name, prop_name) if psets else None
         origin = "occurrence"
         if prop is None:
             typ = idx.type_of.get(eid)
@@ -105,7 +125,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
                 continue
             tid = typ.id()
             if tid not in type_cache:
-                type_cache[tid] = find_property(idx.type_psets(typ), pset_name, prop_name)
+                type_cache[tid] = _find(idx.type_psets(typ), pset_name, prop_name)
             prop = type_cache[tid]
             if prop is None:
                 continue
@@ -118,6 +138,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
             continue
         gids.append(gid)
         raws.append(reading.raw)
+        cases.append(prop_cases.get(prop.id(), case))
         keys.append(reading.unit_key)
         sources.append(f"{label} ({origin})")
     if not gids:
@@ -140,7 +161,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
     out = pd.DataFrame({
         "model": idx.path,
         "global_id": np.asarray(gids, dtype=object)[ok],
-        "load_case": case,
+        "load_case": np.asarray(cases, dtype=object)[ok],
         "axial_force": forces[ok],
         "source": np.asarray(sources, dtype=object)[ok],
     }, columns=list(FORCE_COLUMNS))

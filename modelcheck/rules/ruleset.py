@@ -173,6 +173,7 @@ class RuleSet:
     select: Selector
     checks: tuple[Check, ...]
     stock: Mapping[str, Any] = field(default_factory=lambda: MappingProxyType({}))
+    force_property: str | None = None           # "Pset.Property" holding each member's axial force
 
     def check(self, check_id: str) -> Check:
         for c in self.checks:
@@ -533,14 +534,21 @@ def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetErr
         errors.add(("ruleset",), "the file needs a [ruleset] table with name, basis and units")
         meta = {}
     for k in meta:
-        if k not in ("name", "basis", "units", "description"):
-            errors.add(("ruleset", k), f"unknown key {k!r} in [ruleset] (name, basis, units, description)")
+        if k not in ("name", "basis", "units", "description", "force_property"):
+            errors.add(("ruleset", k), f"unknown key {k!r} in [ruleset] "
+                                       "(name, basis, units, description, force_property)")
     for k in ("name", "basis", "units"):
         if k not in meta and data.get("ruleset") is not None:
             errors.add(("ruleset",), f"[ruleset] needs {k}")
-    for k in ("name", "basis", "units", "description"):
+    for k in ("name", "basis", "units", "description", "force_property"):
         if k in meta and not isinstance(meta[k], str):
             errors.add(("ruleset", k), f"[ruleset] {k} is a text")
+    force_property = meta.get("force_property") if isinstance(meta.get("force_property"), str) else None
+    if force_property is not None:
+        pset_part, dot, prop_part = force_property.strip().rpartition(".")
+        if not dot or not pset_part or not prop_part:
+            errors.add(("ruleset", "force_property"),
+                       f"force_property is \"PropertySetName.PropertyName\", not {force_property!r}")
     name = meta.get("name", "") if isinstance(meta.get("name"), str) else ""
     basis = meta.get("basis", "") if isinstance(meta.get("basis"), str) else ""
     description = meta.get("description", "") if isinstance(meta.get("description"), str) else ""
@@ -800,7 +808,7 @@ def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetErr
         name=name, path=path, basis=basis, units=units, description=description,
         display=MappingProxyType(display), parameters=tuple(params.values()),
         definitions=tuple(defs.values()), select=top_select, checks=tuple(checks),
-        stock=MappingProxyType(stock),
+        stock=MappingProxyType(stock), force_property=force_property.strip() if force_property else None,
     ), []
 
 
