@@ -234,9 +234,14 @@ def cmd_members(args: argparse.Namespace) -> int:
                 entry["forces"] = force_summary(d)
             models.append(entry)
         doc = {"models": models, "unmatched_force_rows": unmatched, "caution": CAUTION}
-        from modelcheck.report.check_json import dumps
+        from modelcheck.report.check_json import write_members_json
 
-        write_text(dumps(doc, row_keys=()), args.output, paths + args.loads)
+        if args.output is None:
+            write_members_json(doc, sys.stdout.buffer)
+        else:
+            guard_output(args.output, paths + args.loads)
+            with open(args.output, "wb") as fh:
+                write_members_json(doc, fh)
     elif args.format == "csv":
         import pandas as pd
 

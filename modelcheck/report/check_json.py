@@ -95,6 +95,41 @@ def write_json(doc: dict[str, Any], fh: Any, row_keys: tuple[str, ...] = ("resul
     fh.write(b"}\n")
 
 
+def write_members_json(doc: dict[str, Any], fh: Any) -> None:
+    """The members document: like ``write_json``, each member on one line inside its model."""
+    import json
+
+    import orjson
+
+    fh.write(b'{\n  "models": [')
+    for i, model in enumerate(doc["models"]):
+        fh.write(b"\n    {" if i == 0 else b",\n    {")
+        keys = list(model)
+        for j, key in enumerate(keys):
+            fh.write(f"\n      {json.dumps(key)}: ".encode())
+            value = model[key]
+            if key == "members" and value:
+                sep = b",\n        "
+                fh.write(b"[\n        ")
+                for start in range(0, len(value), 4096):
+                    if start:
+                        fh.write(sep)
+                    fh.write(sep.join([orjson.dumps(m) for m in value[start:start + 4096]]))
+                fh.write(b"\n      ]")
+            else:
+                fh.write(json.dumps(value, indent=2, ensure_ascii=False, allow_nan=False)
+                         .replace("\n", "\n      ").encode("utf-8"))
+            if j < len(keys) - 1:
+                fh.write(b",")
+        fh.write(b"\n    }")
+    fh.write(b"\n  ]" if doc["models"] else b"]")
+    rest = {k: v for k, v in doc.items() if k != "models"}
+    for key, value in rest.items():
+        text = json.dumps(value, indent=2, ensure_ascii=False, allow_nan=False).replace("\n", "\n  ")
+        fh.write(f",\n  {json.dumps(key)}: {text}".encode())
+    fh.write(b"\n}\n")
+
+
 def dumps(doc: dict[str, Any], row_keys: tuple[str, ...] = ("results",)) -> str:
     """``write_json`` into a string."""
     import io
