@@ -146,11 +146,12 @@ class _Reader:
         cls = item.is_a()
         lf = self.lf
         if cls in ("IfcExtrudedAreaSolid", "IfcExtrudedAreaSolidTapered"):
-            sec = (self.profile(item.SweptArea, scale) if item.SweptArea is not None
+            swept, depth_value = item.get_argument(0), item.get_argument(3)  # SweptArea, Depth
+            sec = (self.profile(swept, scale) if swept is not None
                    else f"{cls} #{item.id()} has no SweptArea (a null or dangling reference)")
             length = None
-            if lf is not None and item.Depth is not None:
-                length = (float(item.Depth) * lf * scale, f"{cls}.Depth")
+            if lf is not None and depth_value is not None:
+                length = (float(depth_value) * lf * scale, f"{cls}.Depth")
             return sec, length
         if cls == "IfcSweptDiskSolid":
             if lf is None:
