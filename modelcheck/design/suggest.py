@@ -1,0 +1,290 @@
+"""Suggestions: for each failing member, the smallest replacement of the same shape family that passes.
+
+Candidates per member (its material, length, names and load cases are kept):
+
+* round bar → if its diameter is a standard thread (ASME B1.1 UNC / ISO 261 coarse) and one of
+  its names says rod or thread, the sizes of that thread series; otherwise the round bars of the
+  rule set's stock series;
+* square bar → the square bars of the series;
+* flat bar → the series' widths at its own thickness and at the next stock thickness;
+* catalog section (W, HSS, L, IPE, HEA, CHS, SHS, RHS, recognised from the section name) → the
+  sections of that family and shape in the shape tables; a rolled I, hollow or angle section
+  whose name names no family there → every section of that shape in the rule set's table;
+* any other shape (T, U, C, Z, ellipse, arbitrary, composite) → no suggestion, with a note.
+
+A net area the member carries (column ``net_area``) is scaled with the gross area (the same
+share of holes). All (failing member × candidate) pairs become one synthetic member table,
+run through the rule set with the member's own forces (one :func:`run_checks` per chunk of
+at most :data:`CHUNK` pairs). A candidate qualifies when none of its results fails and every
+result is "pass", except a check that was already unchecked for the member itself (missing
+data the section does not change, e.g. no length); such checks are listed in the suggestion's
+``unchecked``. The smallest qualifying candidate (by area, then series order) is suggested.
+
+The ``suggestion`` goes on every failing result row of the member, None elsewhere; a failing
+member without one gets a ``suggestion_note`` saying why.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from modelcheck.design import stock
+from modelcheck.units import Q_
+
+#: pairs per run_checks call (a memory bound for very large failing sets)
+CHUNK = 200_000
+
+_ROD_COLUMNS = ("name", "object_type", "type_name", "predefined_type", "tag")
+_CATALOG_SHAPES = ("I", "rect-tube", "round-tube", "L")
+
+
+def _key(models: Any, gids: Any) -> np.ndarray:
+    m = pd.Series(models, dtype=object).fillna("").astype(str).to_numpy(dtype=object)
+    g = pd.Series(gids, dtype=object).fillna("").astype(str).to_numpy(dtype=object)
+    return m + "\x00" + g
+
+
+def _rodlike(members: pd.DataFrame) -> np.ndarray:
+    hit = np.zeros(len(members), dtype=bool)
+    for c in _ROD_COLUMNS:
+        if c in members.columns:
+            hit |= members[c].astype("string").str.contains(r"rod|thread", case=False, regex=True,
+                                                            na=False).to_numpy(dtype=bool)
+    return hit
+
+
+def _groups(members: pd.DataFrame, series: stock.StockSeries) -> tuple[list[Any], np.ndarray, np.ndarray]:
+    """Candidate-group key of every member (None: no suggestion) and a note where None."""
+    from modelcheck.threads import thread_tensile_area
+
+    n = len(members)
+    keys: list[Any] = [None] * n
+    notes = np.full(n, None, dtype=object)
+    shape = members["shape"].to_numpy(dtype=object) if "shape" in members.columns else np.full(n, None)
+    d = pd.to_numeric(members.get("d", pd.Series(np.nan, index=members.index)), errors="coerce").to_numpy(float)
+    h = pd.to_numeric(members.get("h", pd.Series(np.nan, index=members.index)), errors="coerce").to_numpy(float)
+    b = pd.to_numeric(members.get("b", pd.Series(np.nan, index=members.index)), errors="coerce").to_numpy(float)
+    names = members["section_name"].to_numpy(dtype=object) if "section_name" in members.columns else np.full(n, None)
+    _, thread = thread_tensile_area(np.where(shape == "round-bar", d, np.nan))
+    rod = _rodlike(members)
+    for i in range(n):
+        s = shape[i]
+        if s == "round-bar":
+            if thread[i] is not None and rod[i]:
+                keys[i] = ("threaded", "UNC" if str(thread[i]).endswith("UNC") else "ISO coarse")
+            else:
+                keys[i] = ("round",)
+        elif s == "square-bar":
+            keys[i] = ("square",)
+        elif s == "flat-bar":
+            t = np.nanmin([h[i], b[i]]) if np.isfinite([h[i], b[i]]).any() else math.nan
+            if math.isfinite(t) and t > 0:
+                keys[i] = ("flat", float(t))
+            else:
+                notes[i] = "no suggestion: the flat bar has no thickness"
+        elif s in _CATALOG_SHAPES:
+            fam = stock.catalog_family(names[i])
+            if fam is not None:
+                keys[i] = ("catalog", fam[0], (fam[1],), s)
+            else:
+                keys[i] = ("catalog", series.shapes, None, s)
+        else:
+            notes[i] = (f"no suggestion: no stock series or shape table for shape {s!r}" if s
+                        else "no suggestion: the section's shape is unknown")
+    return keys, notes, rod
+
+
+def _candidates(key: Any, series: stock.StockSeries) -> tuple[pd.DataFrame, str]:
+    kind = key[0]
+    if kind == "round":
+        return stock.round_bars(series), "round bar"
+    if kind == "square":
+        return stock.square_bars(series), "square bar"
+    if kind == "threaded":
+        return stock.threaded_rods(key[1]), f"threaded rod ({key[1]})"
+    if kind == "flat":
+        t = key[1]
+        thicker = [x for x in series.flat_thickness if x > t * (1 + 1e-9)]
+        ts = (t,) + ((thicker[0],) if thicker else ())
+        return stock.flat_bars(series, ts), "flat bar"
+    _, table, families, shape = key
+    fam = families[0] if families else f"any {shape} in {table}"
+    return stock.catalog_shapes(table, families, shape), fam
+
+
+def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, results: pd.DataFrame,
+            *, units: Any = None) -> pd.DataFrame:
+    """``results`` with a ``suggestion`` column (dict or None) and a ``suggestion_note`` column.
+
+    ``suggestion`` = ``{"designation", "area": Q, "ratio", "family", "check", "unchecked"}``:
+    the replacement's area in the rule set's display unit of area (or ``units``'), its governing
+    ratio over all its checks and load cases and the check that sets it.
+    """
+    from modelcheck.rules.engine import _force_rows, run_checks
+
+    out = results.copy()
+    out["suggestion"] = pd.Series([None] * len(out), index=out.index, dtype=object)
+    out["suggestion_note"] = pd.Series([None] * len(out), index=out.index, dtype=object)
+    if not len(out) or not (out["status"] == "fail").any():
+        return out
+    mem = members.reset_index(drop=True)
+    mkeys = _key(mem["model"] if "model" in mem.columns else None, mem["global_id"])
+    fail_rows = out["status"] == "fail"
+    fkeys = _key(out.loc[fail_rows, "model"], out.loc[fail_rows, "global_id"])
+    failing = pd.unique(fkeys)
+    pos = pd.Index(mkeys).get_indexer(failing)
+    pos = pos[pos >= 0]
+    if not len(pos):
+        return out
+    sub = mem.iloc[pos].reset_index(drop=True)
+    sub_keys = mkeys[pos]
+    series = stock.stock_series(ruleset)
+    group_keys, notes, _ = _groups(sub, series)
+
+    # (member, candidate) pairs, group by group
+    parts: list[pd.DataFrame] = []
+    cand_info: list[pd.DataFrame] = []
+    offset = 0
+    by_group: dict[Any, list[int]] = {}
+    for i, k in enumerate(group_keys):
+        if k is not None:
+            by_group.setdefault(k, []).append(i)
+    for k, idx in by_group.items():
+        cands, family = _candidates(k, series)
+        if not len(cands):
+            notes[idx] = f"no suggestion: no {family} sizes"
+            continue
+        nc = len(cands)
+        rep = np.repeat(np.asarray(idx), nc)
+        tiled = pd.concat([cands] * len(idx), ignore_index=True)
+        pair = sub.iloc[rep].reset_index(drop=True)
+        old_area = pd.to_numeric(pair["area"], errors="coerce").to_numpy(float) if "area" in pair.columns else None
+        for c in stock.SECTION_OVERRIDES:      # nothing of the old section survives
+            pair[c] = np.nan if c in stock.GEOMETRY_COLUMNS else None
+        pair["shape"] = tiled["shape"].to_numpy(dtype=object)
+        pair["section_name"] = tiled["designation"].to_numpy(dtype=object)
+        for c in stock.GEOMETRY_COLUMNS:
+            pair[c] = tiled[c].to_numpy(dtype=float)
+        pair["area_source"] = tiled["source"].to_numpy(dtype=object)
+        pair["r_min_source"] = tiled["source"].to_numpy(dtype=object)
+        if "net_area" in pair.columns and old_area is not None:
+            with np.errstate(all="ignore"):
+                share = pd.to_numeric(pair["net_area"], errors="coerce").to_numpy(float) / old_area
+            pair["net_area"] = share * tiled["area"].to_numpy(dtype=float)
+        ids = np.asarray([f"sg{offset + j}" for j in range(len(pair))], dtype=object)
+        pair["global_id"] = ids
+        parts.append(pair)
+        cand_info.append(pd.DataFrame({
+            "pair": ids, "member": rep, "order": np.tile(np.arange(nc), len(idx)),
+            "area": tiled["area"].to_numpy(dtype=float), "designation": tiled["designation"].to_numpy(dtype=object),
+            "family": family, "source": tiled["source"].to_numpy(dtype=object)}))
+        offset += len(pair)
+    chosen: dict[int, dict[str, Any]] = {}
+    if parts:
+        pairs = pd.concat(parts, ignore_index=True)
+        info = pd.concat(cand_info, ignore_index=True)
+        # the member's own forces, per pair
+        fr = _force_rows(sub, forces)
+        fdf = pd.DataFrame({"member": fr["member"], "P": fr["P"], "load_case": fr["load_case"], "rank": fr["rank"]})
+        fdf = fdf[np.isfinite(fdf["P"])].sort_values(["member", "rank"], kind="stable")
+        # results the member itself could not check (allowed to stay unchecked)
+        own_unchecked = out[out["status"] == "unchecked"]
+        allowed = set(_key(own_unchecked["model"], own_unchecked["global_id"])
+                      + "\x00" + own_unchecked["check"].astype(str).to_numpy(dtype=object)
+                      + "\x00" + own_unchecked["load_case"].astype("string").fillna("").to_numpy(dtype=object))
+        verdicts = []
+        for start in range(0, len(pairs), CHUNK):
+            chunk = pairs.iloc[start:start + CHUNK]
+            cinfo = info.iloc[start:start + CHUNK]
+            pf = cinfo[["pair", "member"]].merge(fdf, on="member", how="inner")
+            forces_pairs = pd.DataFrame({
+                "model": chunk.set_index("global_id").loc[pf["pair"], "model"].to_numpy(dtype=object)
+                if "model" in chunk.columns else None,
+                "global_id": pf["pair"].to_numpy(dtype=object), "load_case": pf["load_case"].to_numpy(dtype=object),
+                "axial_force": pf["P"].to_numpy(dtype=float), "source": "suggestion"})
+            res = run_checks(ruleset, chunk, forces_pairs)
+            verdicts.append(_verdicts(res, cinfo, sub_keys, allowed))
+        ver = pd.concat(verdicts, ignore_index=True)
+        ok = ver[ver["qualifies"]].sort_values(["member", "area", "order"], kind="stable").drop_duplicates("member")
+        area_unit = _area_unit(ruleset, units)
+        factor = float(Q_(1.0, "m**2").m_as(area_unit))
+        for rec in ok.to_dict("records"):
+            chosen[int(rec["member"])] = {
+                "designation": rec["designation"],
+                "area": {"value": float(f"{rec['area'] * factor:.6g}"), "unit": area_unit, "source": rec["source"]},
+                "ratio": float(f"{rec['ratio']:.6g}"),
+                "family": rec["family"],
+                "check": rec["check"],
+                "unchecked": list(rec["unchecked"]),
+            }
+        for i, k in enumerate(group_keys):
+            if k is not None and i not in chosen and notes[i] is None:
+                notes[i] = "no suggestion: no size of the same family passes every check"
+    # onto the failing rows
+    row_member = pd.Index(sub_keys).get_indexer(_key(out["model"], out["global_id"]))
+    sugg = np.full(len(out), None, dtype=object)
+    note_col = np.full(len(out), None, dtype=object)
+    is_fail = (out["status"] == "fail").to_numpy()
+    for r in np.flatnonzero(is_fail & (row_member >= 0)).tolist():
+        m = int(row_member[r])
+        if m in chosen:
+            sugg[r] = chosen[m]
+        else:
+            note_col[r] = notes[m]
+    out["suggestion"] = pd.Series(sugg, index=out.index, dtype=object)
+    out["suggestion_note"] = pd.Series(note_col, index=out.index, dtype=object)
+    return out
+
+
+def _verdicts(res: pd.DataFrame, cinfo: pd.DataFrame, sub_keys: np.ndarray, allowed: set[str]) -> pd.DataFrame:
+    """Per pair: qualifies, governing ratio and check, and the checks left unchecked (as for the member)."""
+    v = cinfo.copy()
+    if not len(res):
+        v["qualifies"] = False
+        v["ratio"] = np.nan
+        v["check"] = None
+        v["unchecked"] = [[] for _ in range(len(v))]
+        return v
+    pair_pos = pd.Index(cinfo["pair"]).get_indexer(res["global_id"].to_numpy(dtype=object))
+    member = cinfo["member"].to_numpy()[pair_pos]
+    own = (sub_keys[member] + "\x00" + res["check"].astype(str).to_numpy(dtype=object) + "\x00"
+           + res["load_case"].astype("string").fillna("").to_numpy(dtype=object))
+    status = res["status"].to_numpy(dtype=object)
+    excused = (status == "unchecked") & np.isin(own, np.asarray(list(allowed), dtype=object))
+    bad = (status == "fail") | ((status == "unchecked") & ~excused)
+    frame = pd.DataFrame({"pair": pair_pos, "bad": bad, "pass": status == "pass",
+                          "ratio": res["ratio"].to_numpy(dtype=float), "check": res["check"].to_numpy(dtype=object),
+                          "excused": excused})
+    agg = frame.groupby("pair").agg(bad=("bad", "any"), n_pass=("pass", "sum"))
+    gov = frame[frame["pass"]].sort_values(["pair", "ratio"], ascending=[True, False],
+                                           kind="stable").drop_duplicates("pair").set_index("pair")
+    exc = frame[frame["excused"]].groupby("pair")["check"].agg(lambda s: sorted(set(s)))
+    n = len(v)
+    bad_arr = np.ones(n, dtype=bool)
+    npass = np.zeros(n, dtype=int)
+    bad_arr[agg.index.to_numpy()] = agg["bad"].to_numpy(dtype=bool)
+    npass[agg.index.to_numpy()] = agg["n_pass"].to_numpy(dtype=int)
+    ratio = np.full(n, np.nan)
+    check = np.full(n, None, dtype=object)
+    ratio[gov.index.to_numpy()] = gov["ratio"].to_numpy(dtype=float)
+    check[gov.index.to_numpy()] = gov["check"].to_numpy(dtype=object)
+    unchecked = np.empty(n, dtype=object)
+    for i in range(n):
+        unchecked[i] = []
+    for p, lst in exc.items():
+        unchecked[int(p)] = lst
+    v["qualifies"] = ~bad_arr & (npass > 0)
+    v["ratio"] = ratio
+    v["check"] = check
+    v["unchecked"] = unchecked
+    return v
+
+
+def _area_unit(ruleset: Any, units: Any) -> str:
+    if units is not None and getattr(units, "system", None) in ("US", "SI"):
+        return str(units.unit("area"))
+    return str(ruleset.display["area"])
