@@ -82,11 +82,19 @@ def read_model(path: str, forces: ForceOptions | None = None, *, validate: bool 
     data.system = system_for_model(idx)
     if validate:
         data.validation = validate_model(idx)
-    data.members = read_members(idx)
-    data.member_count = len(data.members)
-    data.warnings = list(data.members.attrs.get("model_warnings", []))
-    if forces is not None:
-        attach_forces(data, idx, forces)
+    try:
+        data.members = read_members(idx)
+        data.member_count = len(data.members)
+        data.warnings = list(data.members.attrs.get("model_warnings", []))
+        if forces is not None:
+            attach_forces(data, idx, forces)
+    except (AttributeError, TypeError, ValueError, ArithmeticError, RuntimeError) as exc:
+        # ifcopenshell returns what the file holds even where the schema forbids it (text for a
+        # number, a number for a reference); a member's own data is guarded in the reader, this
+        # is the rest of the model (property sets, relationships, units of forces)
+        data.error = (f"{path}: cannot be read: a value the IFC schema does not allow "
+                      f"({type(exc).__name__}: {exc}); 'modelcheck check --validate' lists where")
+        data.members, data.member_count, data.forces = None, 0, empty_forces()
     return data
 
 

@@ -112,14 +112,21 @@ def build_index(path: str | os.PathLike[str], model: Any = None) -> ModelIndex:
     schema = _schema_of(model)
     try:
         units = UnitContext.from_model(model)
-    except (UnitDefinitionError, AttributeError, RuntimeError) as exc:
-        raise ModelReadError(f"unit assignment cannot be read: {exc}", path=str(path)) from None
+    except (UnitDefinitionError, AttributeError, RuntimeError, TypeError, ValueError, ArithmeticError) as exc:
+        raise ModelReadError(f"unit assignment cannot be read: {exc}{_VALIDATE_HINT}", path=str(path)) from None
     idx = ModelIndex(path=str(path), file=model, schema=schema, units=units)
     try:
         _walk(model, idx)
     except RuntimeError as exc:  # dangling reference or unparsable instance deep in the file
         raise ModelReadError(f"broken relationship in the model: {exc}", path=str(path)) from None
+    except (AttributeError, TypeError) as exc:  # a relationship holding a value of the wrong type
+        raise ModelReadError(f"broken relationship in the model: {type(exc).__name__}: {exc}{_VALIDATE_HINT}",
+                             path=str(path)) from None
     return idx
+
+
+#: ifcopenshell reads values the schema forbids as they are; the validator names each one
+_VALIDATE_HINT = " ('modelcheck check --validate' lists where the file breaks the IFC schema)"
 
 
 def _walk(model: Any, idx: ModelIndex) -> None:

@@ -116,7 +116,7 @@ class _Reader:
             ps: ProfileSection = section_of(prof, angle_factor=self.angle)
         except UnsupportedProfile as exc:
             return str(exc)
-        except (RuntimeError, AttributeError, TypeError, ValueError, ZeroDivisionError) as exc:
+        except (RuntimeError, AttributeError, TypeError, ValueError, ArithmeticError) as exc:
             return f"{prof.is_a()} #{prof.id()} cannot be computed: {exc}"
         lf = self.lf
         return Section(ps.area * lf * lf, ps.r_min * lf, ps.source, ps.name, prof.is_a(), ps.shape,
@@ -425,7 +425,11 @@ class _Reader:
         storey_name = self._storey_names.get(storey.id()) if storey is not None else None
         if storey is not None and storey_name is None:
             storey_name = self._storey_names[storey.id()] = storey.Name
-        return (ga(0), cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
+        gid = ga(0)
+        if not isinstance(gid, str):  # the schema requires one; name the member by its entity instead
+            warnings.append(f"has no GlobalId (IFC requires one): named #{eid} here")
+            gid = f"#{eid}"
+        return (gid, cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
                 section, minfo, length, length_src, warnings, eid)
 
     def _positions(self, cls: str) -> tuple[bool, int | None]:
@@ -706,15 +710,27 @@ def read_members(idx: ModelIndex, *, use_library: bool = True) -> pd.DataFrame:
         try:
             rows.append(reader.member(el, analysis))
         except RuntimeError as exc:  # a dangling or malformed entity deep below this member
-            try:
-                gid, cls = el.GlobalId, el.is_a()
-            except RuntimeError:
-                gid, cls = f"#{el.id()}", el.is_a()
-            rows.append((gid, cls, None, None, None, None, None, None, None, None, math.nan, None,
-                         [f"member cannot be read: {exc}"], el.id()))
+            rows.append(_unreadable_member(el, f"member cannot be read: {exc}"))
+        except (AttributeError, TypeError, ValueError, ArithmeticError) as exc:
+            # ifcopenshell hands back whatever the file holds, even where the schema allows
+            # no such value (text for a number, a number for a reference): this member only
+            rows.append(_unreadable_member(
+                el, f"member cannot be read: an entity below #{el.id()} holds a value the IFC schema does "
+                    f"not allow ({type(exc).__name__}: {exc}); 'modelcheck check --validate' lists them"))
     df = _assemble(idx.path, rows)
     df.attrs["model_warnings"] = reader.model_warnings + list(idx.units.problems)
     return df
+
+
+def _unreadable_member(el: Any, warning: str) -> tuple[Any, ...]:
+    """The row of a member whose data could not be read: identity only, unchecked, the reason."""
+    try:
+        gid = el.GlobalId
+    except RuntimeError:
+        gid = None
+    if not isinstance(gid, str):
+        gid = f"#{el.id()}"
+    return (gid, el.is_a(), None, None, None, None, None, None, None, None, math.nan, None, [warning], el.id())
 
 
 _NO_SECTION = Section(math.nan, math.nan, "")
