@@ -16,7 +16,9 @@ from __future__ import annotations
 
 import math
 import os
+import re
 import zipfile
+import zlib
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -53,6 +55,7 @@ class ModelIndex:
     material_props: dict[int, list[Any]] = field(default_factory=dict)  # material id -> property entities
     profile_props: dict[int, list[Any]] = field(default_factory=dict)   # profile id -> property entities
     object_profile_props: dict[int, list[Any]] = field(default_factory=dict)  # IFC2X3: element id -> profile props
+    parse_problems: tuple[str, ...] = ()   # what ifcopenshell's parser logged while reading the file
 
     def type_psets(self, typ: Any) -> list[Any]:
         return list(typ.HasPropertySets or ()) if typ is not None else []
@@ -60,6 +63,12 @@ class ModelIndex:
 
 def open_model(path: str | os.PathLike[str]) -> Any:
     """``ifcopenshell.open`` with every way a file can be broken turned into one clear error."""
+    return open_model_checked(path)[0]
+
+
+def open_model_checked(path: str | os.PathLike[str]) -> tuple[Any, tuple[str, ...]]:
+    """``open_model``, and what the parser logged on the way (text it skipped, instances with
+    attributes missing), one line each naming the file's line where the parser gives an offset."""
     p = Path(path)
     name = str(path)
     if not p.exists():
@@ -74,6 +83,10 @@ def open_model(path: str | os.PathLike[str]) -> Any:
     if zipfile.is_zipfile(p):
         if p.suffix.lower() != ".ifczip":
             raise ModelReadError("is a zip archive, not an IFC model (rename to .ifczip if it holds one)", path=name)
+        tail = _zipped_model_tail(p)
+        if tail is not None and b"END-ISO-10303-21" not in tail:
+            raise ModelReadError("the model in the zip archive is truncated or empty: it does not end with "
+                                 "END-ISO-10303-21;", path=name)
     elif not head.lstrip().startswith(b"ISO-10303-21"):
         if head.lstrip().startswith(b"<"):
             raise ModelReadError("is XML; only IFC-SPF (.ifc) and .ifczip are read", path=name)
@@ -84,15 +97,64 @@ def open_model(path: str | os.PathLike[str]) -> Any:
             tail = fh.read()
         if b"END-ISO-10303-21" not in tail:
             raise ModelReadError("file is truncated: it does not end with END-ISO-10303-21;", path=name)
+    ifcopenshell.get_log()  # drop what earlier opens in this process left in the parser's log
     try:
         model = ifcopenshell.open(str(p))
-    except (ifcopenshell.Error, RuntimeError, OSError, ValueError, UnicodeDecodeError, IndexError, KeyError) as exc:
+    except (ifcopenshell.Error, RuntimeError, OSError, ValueError, UnicodeDecodeError, LookupError) as exc:
         text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+        logged = _parser_messages(p, ifcopenshell.get_log())
+        if logged:  # "Syntax error during parse, check logs": say what the log says, and where
+            line, msg = logged[0]
+            text = text.removesuffix(", check logs") + (f" at line {line}" if line else "") + f": {msg}"
         raise ModelReadError(f"cannot be parsed as IFC: {text}", path=name) from None
     schema = _schema_of(model)
     if schema not in SUPPORTED_SCHEMAS:
         raise ModelReadError(f"schema {model.schema!r} is not supported (IFC2X3, IFC4, IFC4X3)", path=name)
-    return model
+    return model, _parser_problems(p, ifcopenshell.get_log())
+
+
+def _zipped_model_tail(p: Path) -> bytes | None:
+    """The last bytes of the IFC-SPF file in a zip (the one ifcopenshell.open would read), or None."""
+    try:
+        with zipfile.ZipFile(p) as zf:
+            name = next((n for n in zf.namelist() if Path(n).suffix.lower() in (".ifc", ".ifcxml")), None)
+            if name is None or Path(name).suffix.lower() != ".ifc":
+                return None  # no model in it, or ifcXML: ifcopenshell.open says so
+            tail = b""
+            with zf.open(name) as fh:
+                while chunk := fh.read(1 << 20):
+                    tail = (tail + chunk)[-256:]
+            return tail
+    except (zipfile.BadZipFile, zlib.error, OSError, EOFError, NotImplementedError) as exc:
+        raise ModelReadError(f"the zip archive cannot be read: {exc}", path=str(p)) from None
+
+
+_LOG_LINE = re.compile(r"^\[(?:error|warning)\]\s+(?:\[[A-Z]+\d*\]\s+)?\[[^\]]*\]\s*(?P<msg>\S.*)$")
+_LOG_LIMIT = 10
+
+
+def _parser_messages(p: Path, log: str, limit: int = _LOG_LIMIT) -> list[tuple[int | None, str]]:
+    """(line, message) of the first ``limit`` messages in ifcopenshell's parser log; the line where
+    the message gives a byte offset into a plain IFC-SPF file."""
+    msgs = [m["msg"] for ln in log.splitlines() if (m := _LOG_LINE.match(ln.strip()))][:limit]
+    offsets = [int(m.group(1)) if (m := re.search(r"at offset (\d+)", s)) else None for s in msgs]
+    lines: dict[int, int] = {}
+    wanted = sorted({o for o in offsets if o is not None})
+    if wanted and not zipfile.is_zipfile(p):
+        with open(p, "rb") as fh:
+            data = fh.read(wanted[-1])
+        lines = {o: data.count(b"\n", 0, o) + 1 for o in wanted}
+    return [(lines.get(o) if o is not None else None, s) for s, o in zip(msgs, offsets, strict=True)]
+
+
+def _parser_problems(p: Path, log: str) -> tuple[str, ...]:
+    """ifcopenshell's parser log as model warnings: 'file:line: IFC parser: message'."""
+    total = sum(1 for ln in log.splitlines() if _LOG_LINE.match(ln.strip()))
+    out = [f"{p}:{line}: IFC parser: {msg}" if line else f"{p}: IFC parser: {msg}"
+           for line, msg in _parser_messages(p, log)]
+    if total > len(out):
+        out.append(f"{p}: IFC parser: {total - len(out)} more message(s)")
+    return tuple(out)
 
 
 def _schema_of(model: Any) -> str:
@@ -108,13 +170,15 @@ def _schema_of(model: Any) -> str:
 
 def build_index(path: str | os.PathLike[str], model: Any = None) -> ModelIndex:
     """Open ``path`` (unless ``model`` is given) and walk its relationships once."""
-    model = model if model is not None else open_model(path)
+    problems: tuple[str, ...] = ()
+    if model is None:
+        model, problems = open_model_checked(path)
     schema = _schema_of(model)
     try:
         units = UnitContext.from_model(model)
     except (UnitDefinitionError, AttributeError, RuntimeError, TypeError, ValueError, ArithmeticError) as exc:
         raise ModelReadError(f"unit assignment cannot be read: {exc}{_VALIDATE_HINT}", path=str(path)) from None
-    idx = ModelIndex(path=str(path), file=model, schema=schema, units=units)
+    idx = ModelIndex(path=str(path), file=model, schema=schema, units=units, parse_problems=problems)
     try:
         _walk(model, idx)
     except RuntimeError as exc:  # dangling reference or unparsable instance deep in the file

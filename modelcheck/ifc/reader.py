@@ -718,7 +718,7 @@ def read_members(idx: ModelIndex, *, use_library: bool = True) -> pd.DataFrame:
                 el, f"member cannot be read: an entity below #{el.id()} holds a value the IFC schema does "
                     f"not allow ({type(exc).__name__}: {exc}); 'modelcheck check --validate' lists them"))
     df = _assemble(idx.path, rows)
-    df.attrs["model_warnings"] = reader.model_warnings + list(idx.units.problems)
+    df.attrs["model_warnings"] = list(idx.parse_problems) + reader.model_warnings + list(idx.units.problems)
     return df
 
 
