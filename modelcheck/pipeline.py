@@ -143,31 +143,45 @@ def _join_lines(report: Any) -> list[str]:
 
 
 def validate_model(idx: Any) -> list[str]:
-    """Schema-validation findings of ifcopenshell's own validator, one line each."""
-    import logging
-
+    """Schema-validation findings of ifcopenshell's own validator, one line each:
+    ``file:line: #id IfcClass 'GlobalId': attribute: what is wrong`` (no line number in a zip)."""
     import ifcopenshell.validate
 
-    class _Collect(logging.Handler):
-        def __init__(self) -> None:
-            super().__init__()
-            self.lines: list[str] = []
+    log = ifcopenshell.validate.json_logger()
+    ifcopenshell.validate.validate(idx.file, log)
+    found = [(st.get("instance"), st.get("attribute"), " ".join(str(st.get("message", "")).split()))
+             for st in log.statements]
+    lines = _entity_lines(idx.path, {inst.id() for inst, _, _ in found if hasattr(inst, "id")})
+    out = []
+    for inst, attr, msg in found:
+        if not hasattr(inst, "id"):
+            out.append(f"{idx.path}: {msg}"[:400])
+            continue
+        where = f"{idx.path}:{lines[inst.id()]}" if inst.id() in lines else idx.path
+        gid = getattr(inst, "GlobalId", None)
+        who = f"#{inst.id()} {inst.is_a()}" + (f" {gid!r}" if isinstance(gid, str) else "")
+        out.append(f"{where}: {who}: " + (f"{attr}: " if attr else "") + msg[:300])
+    return out
 
-        def emit(self, record: logging.LogRecord) -> None:
-            msg = record.getMessage().strip().splitlines()
-            if msg:
-                self.lines.append(msg[0][:300])
 
-    logger = logging.getLogger("modelcheck.validate")
-    logger.propagate = False
-    handler = _Collect()
-    logger.addHandler(handler)
-    logger.setLevel(logging.INFO)
-    try:
-        ifcopenshell.validate.validate(idx.file, logger)
-    finally:
-        logger.removeHandler(handler)
-    return [f"{idx.path}: {line}" for line in handler.lines]
+def _entity_lines(path: str, ids: set[int]) -> dict[int, int]:
+    """The line on which each of ``ids`` is defined ('#id=' at the start of a line) in an IFC-SPF
+    file; {} for a zipped model."""
+    import re
+    import zipfile
+
+    if not ids or zipfile.is_zipfile(path):
+        return {}
+    head = re.compile(rb"\s*#(\d+)\s*=")
+    out: dict[int, int] = {}
+    with open(path, "rb") as fh:
+        for no, line in enumerate(fh, 1):
+            m = head.match(line)
+            if m and int(m.group(1)) in ids:
+                out[int(m.group(1))] = no
+                if len(out) == len(ids):
+                    break
+    return out
 
 
 # ------------------------------------------------------------------------------ check
