@@ -254,7 +254,7 @@ def _verdicts(res: pd.DataFrame, cinfo: pd.DataFrame, sub_keys: np.ndarray, allo
     own = (sub_keys[member] + "\x00" + res["check"].astype(str).to_numpy(dtype=object) + "\x00"
            + res["load_case"].astype("string").fillna("").to_numpy(dtype=object))
     status = res["status"].to_numpy(dtype=object)
-    excused = (status == "unchecked") & np.isin(own, np.asarray(list(allowed), dtype=object))
+    excused = (status == "unchecked") & pd.Series(own, dtype=object).isin(allowed).to_numpy()
     bad = (status == "fail") | ((status == "unchecked") & ~excused)
     frame = pd.DataFrame({"pair": pair_pos, "bad": bad, "pass": status == "pass",
                           "ratio": res["ratio"].to_numpy(dtype=float), "check": res["check"].to_numpy(dtype=object),
