@@ -81,6 +81,10 @@ def build_parser() -> argparse.ArgumentParser:
     r = sub.add_parser("rules", help="list, show or validate rule sets")
     r.add_argument("action", nargs="?", choices=("list", "show", "validate"), default="list")
     r.add_argument("target", nargs="?", metavar="NAME_OR_FILE")
+
+    from modelcheck.design.cli_size import add_size_parser
+
+    add_size_parser(sub)
     return p
 
 
@@ -100,6 +104,10 @@ def main(argv: list[str] | None = None) -> int:
             return cmd_check(args)
         if args.command == "rules":
             return cmd_rules(args)
+        if args.command == "size":
+            from modelcheck.design.cli_size import cmd_size
+
+            return cmd_size(args)
     except ModelcheckError as exc:
         print(f"modelcheck: error: {exc}", file=sys.stderr)
         return EXIT_INPUT

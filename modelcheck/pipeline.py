@@ -208,8 +208,12 @@ def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: boo
     data = read_model(path, forces, validate=validate)
     if data.error is not None or data.members is None:
         return CheckedModel(data)
+    from modelcheck.design.suggest import suggest
+
     ruleset = load_ruleset(ruleset_ref)
     results = run_checks(ruleset, data.members, data.forces)
+    if (results["status"] == "fail").any():
+        results = suggest(ruleset, data.members, data.forces, results)
     return CheckedModel(data, results)
 
 
