@@ -113,7 +113,8 @@ class _Reader:
         if self.lf is None:
             return "no LENGTHUNIT in the model"
         try:
-            ps: ProfileSection = section_of(prof, angle_factor=self.angle)
+            with np.errstate(all="ignore"):  # absurd dimensions overflow; the result is refused below, quietly
+                ps: ProfileSection = section_of(prof, angle_factor=self.angle)
         except UnsupportedProfile as exc:
             return str(exc)
         except (RuntimeError, AttributeError, TypeError, ValueError, ArithmeticError) as exc:
@@ -403,7 +404,7 @@ class _Reader:
             if math.isnan(section.r_min) and not math.isnan(cand.r_min):
                 section = replace(section, r_min=cand.r_min, r_source=cand.source)
         if section is None and problems:
-            warnings.extend(problems)
+            warnings.extend(dict.fromkeys(problems))  # the profile set and the body often name one profile
 
         # --- length candidates, ranked
         lengths = [x for x in (axis_len, body_len, qlen) if x is not None]
