@@ -14,8 +14,8 @@ from modelcheck.design.rating import rate_members
 from modelcheck.report.quantities import DisplayUnits
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import load_ruleset
-from modelcheck.table import member_columns
 from modelcheck.units import Q_
+from tests.tables import member_table
 
 NAN = np.nan
 IN, IN2 = 0.0254, 0.0254**2
@@ -25,15 +25,7 @@ US, SI = DisplayUnits("US"), DisplayUnits("SI")
 
 
 def members(*rows: dict[str, Any]) -> pd.DataFrame:
-    data = []
-    for i, row in enumerate(rows):
-        full: dict[str, Any] = {c: None for c in member_columns()}
-        full.update({"model": "m.ifc", "global_id": f"G{i}", "ifc_class": "IfcMember", "name": "Member",
-                     "material_category": "steel", "alpha": NAN})
-        full.update(row)
-        full["warnings"] = []
-        data.append(full)
-    return pd.DataFrame(data, columns=member_columns())
+    return member_table(*rows)
 
 
 def w8x31_a992(length_ft: float) -> dict[str, Any]:

@@ -15,8 +15,8 @@ from modelcheck.design import stock
 from modelcheck.design.suggest import suggest
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import load_ruleset
-from modelcheck.table import member_columns
 from modelcheck.units import Q_
+from tests.tables import member_table
 
 NAN = np.nan
 IN = 0.0254
@@ -26,15 +26,7 @@ ROOT = Path(__file__).resolve().parents[1]
 
 
 def members(*rows: dict[str, Any]) -> pd.DataFrame:
-    data = []
-    for i, row in enumerate(rows):
-        full: dict[str, Any] = {c: None for c in member_columns()}
-        full.update({"model": "m.ifc", "global_id": f"G{i}", "ifc_class": "IfcMember", "name": "Member",
-                     "material_category": "steel", "alpha": NAN})
-        full.update(row)
-        full["warnings"] = []
-        data.append(full)
-    return pd.DataFrame(data, columns=member_columns())
+    return member_table(*rows)
 
 
 def forces(*rows: tuple[str, str, float]) -> pd.DataFrame:

@@ -13,8 +13,9 @@ import pytest
 from modelcheck.errors import RuleSetError
 from modelcheck.rules.engine import evaluate_expression, run_checks
 from modelcheck.rules.ruleset import RuleSet, load_ruleset
-from modelcheck.table import RESULT_COLUMNS, member_columns
+from modelcheck.table import RESULT_COLUMNS
 from modelcheck.units import Q_, ureg
+from tests.tables import member_table
 
 NAN = np.nan
 
@@ -27,15 +28,7 @@ BASE: dict[str, Any] = {
 
 
 def members(*rows: dict[str, Any]) -> pd.DataFrame:
-    data = []
-    for i, row in enumerate(rows):
-        full: dict[str, Any] = {c: None for c in member_columns()}
-        full.update(BASE)
-        full["global_id"] = f"G{i}"
-        full.update(row)
-        full["warnings"] = []
-        data.append(full)
-    return pd.DataFrame(data, columns=list(dict.fromkeys(member_columns() + [k for r in data for k in r])))
+    return member_table(*rows, defaults=BASE)
 
 
 def forces(*rows: tuple[str, str, float], model: str | None = "m1.ifc") -> pd.DataFrame:

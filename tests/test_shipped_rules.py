@@ -17,8 +17,8 @@ import pytest
 from modelcheck.data import data_path
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import RuleSet, load_ruleset
-from modelcheck.table import member_columns
 from modelcheck.units import Q_
+from tests.tables import member_table
 
 NAN = np.nan
 
@@ -28,15 +28,7 @@ def si(value: float, unit: str) -> float:
 
 
 def members(*rows: dict[str, Any]) -> pd.DataFrame:
-    data = []
-    for i, row in enumerate(rows):
-        full: dict[str, Any] = {c: None for c in member_columns()}
-        full.update({"model": "m.ifc", "global_id": f"G{i}", "ifc_class": "IfcMember", "name": "Member",
-                     "material_category": "steel", "alpha": NAN})
-        full.update(row)
-        full["warnings"] = []
-        data.append(full)
-    return pd.DataFrame(data, columns=list(dict.fromkeys(member_columns() + [k for r in data for k in r])))
+    return member_table(*rows)
 
 
 def forces(*pairs: tuple[str, float]) -> pd.DataFrame:

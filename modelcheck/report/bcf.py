@@ -28,7 +28,6 @@ results carry no coordinates, so a viewer is left to zoom to the selected compon
 from __future__ import annotations
 
 import datetime as _dt
-import math
 import os
 import re
 import uuid
@@ -40,6 +39,7 @@ from typing import Any
 from modelcheck.report.console import governing
 from modelcheck.report.csv_report import member_info
 from modelcheck.report.members import CAUTION
+from modelcheck.report.text import number, xml_text
 
 #: namespace of every UUID this module derives (a fixed random UUID of our own)
 BCF_NAMESPACE = uuid.UUID("5e0f3c1a-8b27-4d6e-9a41-2f7c6b90d3e8")
@@ -51,17 +51,6 @@ UNCHECKED_COLOUR = "FFA500"
 def topic_guid(model: str, global_id: str, check: str) -> str:
     """Stable topic GUID: the same member and check in a model of the same file name."""
     return str(uuid.uuid5(BCF_NAMESPACE, f"{os.path.basename(model)}\n{global_id}\n{check}"))
-
-
-def _fmt(v: Any) -> str:
-    if v is None or (isinstance(v, float) and not math.isfinite(v)):
-        return "—"
-    return f"{v:.4g}"
-
-
-def _clean(text: Any) -> str:
-    s = "" if text is None or (isinstance(text, float) and math.isnan(text)) else str(text)
-    return "".join(ch for ch in s if ch in "\t\n\r" or ord(ch) >= 0x20)
 
 
 def _str(v: Any) -> str | None:
@@ -76,7 +65,7 @@ def _xml(root: ET.Element) -> bytes:
 def _sub(parent: ET.Element, tag: str, text: str | None = None, **attrs: str) -> ET.Element:
     el = ET.SubElement(parent, tag, attrs)
     if text is not None:
-        el.text = _clean(text)
+        el.text = xml_text(text)
     return el
 
 
@@ -133,13 +122,13 @@ def _title_and_description(t: dict[str, Any], run: Any) -> tuple[str, str]:
     rs = run.ruleset
     if t["kind"] == "fail":
         title = f"{rec['check']} ratio {float(rec['ratio']):.2f} — {rec['ifc_class']} {who}"
-        lines = [f"{rec['check']} fails in load case {_case(rec)}: demand {_fmt(rec['demand'])}{unit}, "
-                 f"capacity {_fmt(rec['capacity'])}{unit}, ratio {_fmt(rec['ratio'])}."]
+        lines = [f"{rec['check']} fails in load case {_case(rec)}: demand {number(rec['demand'])}{unit}, "
+                 f"capacity {number(rec['capacity'])}{unit}, ratio {number(rec['ratio'])}."]
         if _str(rec.get("message")):
             lines.append(str(rec["message"]))
         if t["others"]:
             lines.append("Other failing checks: " + "; ".join(
-                f"{o['check']} ratio {_fmt(o['ratio'])} (load case {_case(o)})" for o in t["others"]) + ".")
+                f"{o['check']} ratio {number(o['ratio'])} (load case {_case(o)})" for o in t["others"]) + ".")
     else:
         missing = sorted({m for r in [rec, *t["others"]] for m in (r["missing"] or [])})
         checks = ", ".join(r["check"] for r in [rec, *t["others"]])

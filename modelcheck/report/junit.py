@@ -27,7 +27,6 @@ testcases in the order of the results table.
 
 from __future__ import annotations
 
-import math
 import os
 import xml.etree.ElementTree as ET
 from pathlib import Path
@@ -35,18 +34,7 @@ from typing import Any
 
 from modelcheck.report.console import governing
 from modelcheck.report.csv_report import member_info
-
-
-def _fmt(v: Any) -> str:
-    if v is None or (isinstance(v, float) and not math.isfinite(v)):
-        return "—"
-    return f"{v:.4g}"
-
-
-def _clean(text: Any) -> str:
-    """Text safe for XML 1.0 (control characters other than tab/newline are dropped)."""
-    s = "" if text is None or (isinstance(text, float) and math.isnan(text)) else str(text)
-    return "".join(ch for ch in s if ch in "\t\n\r" or ord(ch) >= 0x20)
+from modelcheck.report.text import number, xml_text
 
 
 def _stem(model: str) -> str:
@@ -57,9 +45,9 @@ def _details(rec: dict[str, Any], info: dict[str, Any] | None) -> str:
     lines = [
         f"check: {rec['check']}",
         f"status: {rec['status']}",
-        f"demand: {_fmt(rec['demand'])} {rec['unit'] or ''}".rstrip(),
-        f"capacity: {_fmt(rec['capacity'])} {rec['unit'] or ''}".rstrip(),
-        f"ratio: {_fmt(rec['ratio'])}",
+        f"demand: {number(rec['demand'])} {rec['unit'] or ''}".rstrip(),
+        f"capacity: {number(rec['capacity'])} {rec['unit'] or ''}".rstrip(),
+        f"ratio: {number(rec['ratio'])}",
         f"load case: {rec['load_case'] if isinstance(rec['load_case'], str) else '—'}",
         f"GlobalId: {rec['global_id']}",
         f"class: {rec['ifc_class']}",
@@ -75,17 +63,17 @@ def _details(rec: dict[str, Any], info: dict[str, Any] | None) -> str:
         lines.append("missing: " + "; ".join(rec["missing"]))
     if rec.get("message"):
         lines.append(f"message: {rec['message']}")
-    return _clean("\n".join(lines))
+    return xml_text("\n".join(lines))
 
 
 def _message(rec: dict[str, Any]) -> str:
     case = rec["load_case"] if isinstance(rec["load_case"], str) else "—"
     unit = f" {rec['unit']}" if rec.get("unit") else ""
-    text = (f"{rec['check']}: ratio {_fmt(rec['ratio'])} (demand {_fmt(rec['demand'])}{unit}, "
-            f"capacity {_fmt(rec['capacity'])}{unit}) in load case {case}; GlobalId {rec['global_id']}")
+    text = (f"{rec['check']}: ratio {number(rec['ratio'])} (demand {number(rec['demand'])}{unit}, "
+            f"capacity {number(rec['capacity'])}{unit}) in load case {case}; GlobalId {rec['global_id']}")
     if rec.get("message"):
         text += f"; {rec['message']}"
-    return _clean(text)
+    return xml_text(text)
 
 
 def junit_tree(run: Any, *, strict: bool = False) -> ET.Element:
@@ -103,17 +91,17 @@ def junit_tree(run: Any, *, strict: bool = False) -> ET.Element:
     root = ET.Element("testsuites", {"name": "modelcheck"})
     totals = {"tests": 0, "failures": 0, "errors": 0, "skipped": 0}
     for model in run.models:
-        suite = ET.SubElement(root, "testsuite", {"name": _clean(model.path)})
+        suite = ET.SubElement(root, "testsuite", {"name": xml_text(model.path)})
         props = ET.SubElement(suite, "properties")
         for name, value in (("ruleset", rs.name), ("ruleset_basis", getattr(rs, "basis", "") or ""),
                             ("schema", model.schema or ""), ("members", str(int(model.member_count)))):
-            ET.SubElement(props, "property", {"name": name, "value": _clean(value)})
+            ET.SubElement(props, "property", {"name": name, "value": xml_text(value)})
         counts = {"tests": 0, "failures": 0, "errors": 0, "skipped": 0}
         if model.error:
             case = ET.SubElement(suite, "testcase", {"classname": _stem(model.path), "name": "read model",
                                                      "time": "0"})
-            err = ET.SubElement(case, "error", {"message": _clean(model.error), "type": "ModelReadError"})
-            err.text = _clean(model.error)
+            err = ET.SubElement(case, "error", {"message": xml_text(model.error), "type": "ModelReadError"})
+            err.text = xml_text(model.error)
             counts["tests"] = counts["errors"] = 1
         for rec in by_model.get(model.path, []):
             case = ET.SubElement(suite, "testcase", {
@@ -122,18 +110,18 @@ def junit_tree(run: Any, *, strict: bool = False) -> ET.Element:
             counts["tests"] += 1
             status = rec["status"]
             if status == "fail":
-                el = ET.SubElement(case, "failure", {"message": _message(rec), "type": _clean(rec["check"])})
+                el = ET.SubElement(case, "failure", {"message": _message(rec), "type": xml_text(rec["check"])})
                 el.text = _details(rec, info.get((rec["model"], rec["global_id"])))
                 counts["failures"] += 1
             elif status == "unchecked":
                 missing = "; ".join(rec["missing"] or []) or "(no reason given)"
                 if strict:
-                    el = ET.SubElement(case, "failure", {"message": _clean(f"unchecked: missing {missing}"),
+                    el = ET.SubElement(case, "failure", {"message": xml_text(f"unchecked: missing {missing}"),
                                                          "type": "unchecked"})
                     el.text = _details(rec, info.get((rec["model"], rec["global_id"])))
                     counts["failures"] += 1
                 else:
-                    ET.SubElement(case, "skipped", {"message": _clean(f"unchecked: missing {missing}")})
+                    ET.SubElement(case, "skipped", {"message": xml_text(f"unchecked: missing {missing}")})
                     counts["skipped"] += 1
         for k, v in counts.items():
             suite.set(k, str(v))
