@@ -205,6 +205,8 @@ def unmatched_rows(tables: tuple[Any, ...], used: set[str]) -> list[dict[str, st
 
 # ---------------------------------------------------------------------------- members
 def cmd_members(args: argparse.Namespace) -> int:
+    from rich.markup import escape
+
     from modelcheck.pipeline import expand_paths, read_model
     from modelcheck.report.members import CAUTION, member_dicts, members_csv, members_table
     from modelcheck.report.quantities import DisplayUnits
@@ -262,17 +264,17 @@ def cmd_members(args: argparse.Namespace) -> int:
         con = report_console(file=open(args.output, "w", encoding="utf-8") if args.output else None)  # noqa: SIM115
         for d in datas:
             if d.error:
-                con.print(f"[bold red]{d.path}: cannot be read[/] — {d.error}")
+                con.print(f"[bold red]{escape(d.path)}: cannot be read[/] — {escape(d.error)}", highlight=False)
                 continue
             u = units_for(d)
             con.print(members_table(d.members, u, f"{d.path} ({d.schema}, {len(d.members)} members)"))
             for w in d.warnings + d.force_messages:
-                con.print(f"[yellow]warning:[/] {w}")
+                con.print(f"[yellow]warning:[/] {escape(w)}", highlight=False)
             for gid, ws in zip(d.members["global_id"], d.members["warnings"], strict=True):
                 for w in ws or []:
-                    con.print(f"[yellow]{gid}:[/] {w}", highlight=False)
+                    con.print(f"[yellow]{escape(gid)}:[/] {escape(w)}", highlight=False)
         for line in unmatched_lines(unmatched):
-            con.print(f"[yellow]warning:[/] {line}", highlight=False)
+            con.print(f"[yellow]warning:[/] {escape(line)}", highlight=False)
         con.print(f"\n[dim]{CAUTION}[/]")
     for d in datas:
         if d.error:

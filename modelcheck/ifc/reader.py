@@ -396,11 +396,11 @@ class _Reader:
             if section is None:
                 section = cand
                 continue
-            rel = abs(cand.area - section.area) / section.area
-            if rel > AREA_TOLERANCE:
+            rel = (cand.area - section.area) / section.area
+            if abs(rel) > AREA_TOLERANCE:
                 warnings.append(
                     f"inconsistent area: {section.source} gives {section.area * 1e6:.6g} mm², "
-                    f"{cand.source} gives {cand.area * 1e6:.6g} mm² ({rel:+.1%} apart); using the first")
+                    f"{cand.source} gives {cand.area * 1e6:.6g} mm² ({rel:+.1%}); using the first")
             if math.isnan(section.r_min) and not math.isnan(cand.r_min):
                 section = replace(section, r_min=cand.r_min, r_source=cand.source)
         if section is None and problems:

@@ -72,15 +72,17 @@ def failing_table(results: pd.DataFrame, members: pd.DataFrame, units: Any) -> T
         cls = rec["ifc_class"].removeprefix("Ifc")
         typ = None if m is None else (m["object_type"] or m["predefined_type"] or m["type_name"])
         label = " / ".join(str(x) for x in (rec["name"], rec["tag"]) if x)
-        row = [rec["global_id"], f"{cls} {typ}" if typ else cls, label or "—",
-               (m["storey"] if m is not None else None) or "—",
-               (m["section_name"] or m["profile_type"] or "—") if m is not None else "—",
-               (m["material"] or "—") if m is not None else "—", rec["check"],
-               f"{_num(rec['demand'])} {rec['unit']}", f"{_num(rec['capacity'])} {rec['unit']}",
-               Text(f"{rec['ratio']:.2f}", style="bold red"), str(rec["load_case"] or "—")]
+        ratio = rec["ratio"]
+        row = [Text(str(x)) for x in (
+            rec["global_id"], f"{cls} {typ}" if typ else cls, label or "—",
+            (m["storey"] if m is not None else None) or "—",
+            (m["section_name"] or m["profile_type"] or "—") if m is not None else "—",
+            (m["material"] or "—") if m is not None else "—", rec["check"],
+            f"{_num(rec['demand'])} {rec['unit']}", f"{_num(rec['capacity'])} {rec['unit']}")]
+        row += [Text(f"{ratio:.2f}" if ratio == ratio else "—", style="bold red"), Text(str(rec["load_case"] or "—"))]
         if has_sugg:
             s = rec.get("suggestion")
-            row.append(f"{s['designation']} (ratio {s['ratio']:.2f})" if isinstance(s, dict) else "—")
+            row.append(Text(f"{s['designation']} (ratio {s['ratio']:.2f})" if isinstance(s, dict) else "—"))
         t.add_row(*row)
     return t
 
@@ -101,7 +103,7 @@ def unchecked_table(results: pd.DataFrame) -> Table | None:
     t.add_column("GlobalIds", overflow="fold", min_width=24)
     for missing, gids in groups.items():
         shown = ", ".join(gids[:8]) + (f" … (+{len(gids) - 8})" if len(gids) > 8 else "")
-        t.add_row("\n".join(missing) or "(no reason given)", str(len(gids)), shown)
+        t.add_row(Text("\n".join(missing) or "(no reason given)"), str(len(gids)), Text(shown))
     return t
 
 

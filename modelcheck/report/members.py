@@ -81,9 +81,10 @@ def members_csv(members: pd.DataFrame, units: DisplayUnits) -> pd.DataFrame:
 
 def members_table(members: pd.DataFrame, units: DisplayUnits, title: str) -> Any:
     """A rich Table of the members of one model."""
+    from rich.markup import escape
     from rich.table import Table
 
-    t = Table(title=title, title_justify="left", header_style="bold")
+    t = Table(title=escape(title), title_justify="left", header_style="bold")
     for col, just in (("GlobalId", "left"), ("Class", "left"), ("Name / tag", "left"), ("Section", "left"),
                       (f"A [{units.unit('area')}]", "right"), (f"r min [{units.unit('r_min')}]", "right"),
                       (f"L [{units.unit('length')}]", "right"), ("Material", "left"),
@@ -97,8 +98,9 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str) -> Any
         label = " / ".join(x for x in (rec["name"], rec["tag"]) if x)
         sec = rec["section_name"] or (rec["profile_type"] or "").removeprefix("Ifc").removesuffix("ProfileDef")
         warn = rec["warnings"] or []
-        t.add_row(rec["global_id"], rec["ifc_class"].removeprefix("Ifc"), label or "—", sec or "[red]none[/]",
+        t.add_row(escape(rec["global_id"]), rec["ifc_class"].removeprefix("Ifc"), escape(label or "—"),
+                  escape(sec) if sec else "[red]none[/]",
                   num(rec["area"], "area"), num(rec["r_min"], "r_min"), num(rec["length"], "length"),
-                  rec["material"] or "[red]none[/]", num(rec["Fy"], "Fy"),
+                  escape(rec["material"]) if rec["material"] else "[red]none[/]", num(rec["Fy"], "Fy"),
                   (f"[yellow]{len(warn)} warning(s)[/]" if warn else ""))
     return t
