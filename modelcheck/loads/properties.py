@@ -183,9 +183,13 @@ def _read(prop: Any, idx: ModelIndex) -> _Reading:
     nv = prop.NominalValue
     if nv is None:
         return _Reading(problem="has no value")
+    if not (hasattr(nv, "is_a") and hasattr(nv, "wrappedValue")):  # the schema allows a typed value only
+        return _Reading(problem=f"holds {nv!r}, not a typed IFC value (the file breaks the IFC schema)")
     measure = nv.is_a()
     value = nv.wrappedValue
     unit = getattr(prop, "Unit", None)
+    if unit is not None and not hasattr(unit, "is_a"):
+        return _Reading(problem=f"its unit is {unit!r}, not a unit entity (the file breaks the IFC schema)")
     if measure in _TEXT_MEASURES:
         return _read_text(str(value))
     if isinstance(value, bool) or not isinstance(value, int | float):
