@@ -267,12 +267,15 @@ def measure_si(idx: ModelIndex, measure: str, raw: float, unit_entity: Any = Non
 def property_si(idx: ModelIndex, prop: Any) -> SIValue | None:
     """An IfcPropertySingleValue's NominalValue in SI (None when it has none)."""
     nv = getattr(prop, "NominalValue", None)
-    if nv is None:
+    if nv is None or not hasattr(nv, "wrappedValue"):  # none, or no typed value (which the schema requires)
         return None
     raw = nv.wrappedValue
     if isinstance(raw, bool) or not isinstance(raw, int | float):
         return None
-    return measure_si(idx, nv.is_a(), float(raw), getattr(prop, "Unit", None))
+    unit = getattr(prop, "Unit", None)
+    if unit is not None and not hasattr(unit, "is_a"):
+        raise MissingUnit(f"usable unit (the property's Unit is {unit!r})")
+    return measure_si(idx, nv.is_a(), float(raw), unit)
 
 
 def find_property(psets: list[Any], pset_name: str, prop_name: str) -> Any:
