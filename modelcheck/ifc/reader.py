@@ -731,7 +731,17 @@ def _unreadable_member(el: Any, warning: str) -> tuple[Any, ...]:
         gid = None
     if not isinstance(gid, str):
         gid = f"#{el.id()}"
-    return (gid, el.is_a(), None, None, None, None, None, None, None, None, math.nan, None, [warning], el.id())
+    name, tag = (_text_attribute(el, "Name"), _text_attribute(el, "Tag"))
+    return (gid, el.is_a(), None, None, name, tag, None, None, None, None, math.nan, None, [warning], el.id())
+
+
+def _text_attribute(el: Any, attr: str) -> str | None:
+    """A text attribute of an entity whose data may break the schema: the text, or None."""
+    try:
+        value = getattr(el, attr, None)
+    except RuntimeError:
+        return None
+    return value if isinstance(value, str) else None
 
 
 _NO_SECTION = Section(math.nan, math.nan, "")
