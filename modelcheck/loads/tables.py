@@ -157,6 +157,10 @@ def _decode(data: bytes, name: str) -> tuple[str, str]:
         except UnicodeDecodeError as exc:
             raise LoadTableError(f"is not valid UTF-16 ({exc.reason})", path=name) from None
     if b"\x00" in data:
+        head = data[:400]
+        if len(head) >= 8 and (head[1::2].count(0) == len(head[1::2]) or head[0::2].count(0) == len(head[0::2])):
+            raise LoadTableError("looks like UTF-16 text without a byte-order mark; save it as UTF-8 "
+                                 "(or as UTF-16 with one)", path=name, where="line 1")
         line = data.count(b"\n", 0, data.index(b"\x00")) + 1
         raise LoadTableError("holds binary data (NUL bytes), not a CSV table", path=name, where=f"line {line}")
     try:
