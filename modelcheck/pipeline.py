@@ -131,8 +131,10 @@ def _join_lines(report: Any) -> list[str]:
         return ", ".join(vals[:10]) + (f" … (+{len(vals) - 10})" if len(vals) > 10 else "")
 
     if report.duplicates:
-        out.append(f"{len(report.duplicates)} duplicate force row(s) for the same member and load case; "
-                   f"the first was used: {ids(report.duplicates, 'global_id')}")
+        rows = [f"{d.global_id} [{d.load_case}]: {d.used} used, {', '.join(d.ignored)} not"
+                for d in report.duplicates]
+        out.append(f"{len(report.duplicates)} member(s) have several force rows for the same load case; "
+                   "the first was used: " + "; ".join(rows[:10]) + (f" … (+{len(rows) - 10})" if len(rows) > 10 else ""))
     if report.ambiguous:
         out.append(f"{len(report.ambiguous)} tag(s) match several members and were applied to none: "
                    f"{ids(report.ambiguous, 'tag')}")
