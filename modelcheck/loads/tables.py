@@ -133,6 +133,8 @@ def read_load_table(path: str | os.PathLike[str]) -> pd.DataFrame:
     if not data.strip():
         raise LoadTableError("empty file, not a load table", path=name)
     if data.startswith(_ZIP_MAGIC):
+        if p.suffix.lower() not in (".xlsx", ".xlsm"):
+            raise LoadTableError("is a zip archive, not CSV text (name an Excel workbook .xlsx)", path=name)
         return _read_xlsx(p, name)
     if data.startswith(_OLE_MAGIC):
         raise LoadTableError("is an old binary Excel (.xls) file; save it as .xlsx or .csv", path=name)
@@ -268,6 +270,20 @@ def _find_header(records: Sequence[Sequence[Any]]) -> _Header | None:
     return None
 
 
+def _repeated_column(rec: Sequence[Any]) -> tuple[str, str, str] | None:
+    """(meaning, first label, second label) of two header cells with one meaning, or None."""
+    seen: dict[str, str] = {}
+    for cell in rec:
+        m = _HEADER_RE.match(_cell_text(cell))
+        canon = _CANONICAL.get(re.sub(r"[\s_\-.]", "", m.group("name").lower())) if m else None
+        if canon is None:
+            continue
+        if canon in seen:
+            return canon, seen[canon], _cell_text(cell)
+        seen[canon] = _cell_text(cell)
+    return None
+
+
 def _header_problem(records: Sequence[Sequence[Any]], name: str) -> LoadTableError:
     for i, rec in enumerate(records[:_HEADER_SEARCH_ROWS]):
         cells = [_cell_text(c) for c in rec if _cell_text(c)]
@@ -295,6 +311,10 @@ def _parse(records: list[list[Any]], name: str, sheet: str | None, all_text: boo
     header = _find_header(records)
     if header is None:
         raise _header_problem(records, name)
+    twice = _repeated_column(records[header.row])
+    if twice is not None:
+        raise LoadTableError(f"columns {twice[1]!r} and {twice[2]!r} both name the {twice[0]}; keep one",
+                             path=name, where=where(header.row + 1))
     body = records[header.row + 1:]
     first_row = header.row + 2  # spreadsheet row number of body[0]
     ci = header.cols
