@@ -511,6 +511,24 @@ def _toml_error_line(exc: tomllib.TOMLDecodeError) -> tuple[int, str]:
     return 0, f"not valid TOML: {message} (at the end of the file)"
 
 
+def _deepest_line(text: str, limit: int = 100) -> int:
+    """The first line at which '[' and '{' outside strings are open more than ``limit`` deep."""
+    depth, quote = 0, ""
+    for no, line in enumerate(text.splitlines(), 1):
+        for ch in line:
+            if quote:
+                quote = "" if ch == quote else quote
+            elif ch in "\"'":
+                quote = ch
+            elif ch in "[{":
+                depth += 1
+                if depth > limit:
+                    return no
+            elif ch in "]}":
+                depth -= 1
+    return 1
+
+
 def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetError]]:
     """Parse rule-set ``text`` (read from ``path``); returns the rule set and every error found."""
     try:
@@ -520,6 +538,9 @@ def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetErr
         if line == 0:
             line = max(1, text.count("\n") + 1)
         return None, [RuleSetError(message, path=path, where=str(line))]
+    except RecursionError:  # tomllib descends once per nested array or inline table
+        return None, [RuleSetError("not valid TOML for a rule set: arrays or tables nested too deeply",
+                                   path=path, where=str(_deepest_line(text)))]
     errors = _Errors(path, line_map(text))
 
     for key in data:
@@ -818,7 +839,7 @@ def _read(path: Path) -> str:
     except OSError as exc:
         raise RuleSetError(f"cannot read the rule set: {exc.strerror or exc}", path=str(path)) from exc
     try:
-        return raw.decode("utf-8")
+        return raw.decode("utf-8").removeprefix("\ufeff")  # a byte-order mark, as some editors save
     except UnicodeDecodeError as exc:
         line = raw[:exc.start].count(b"\n") + 1
         raise RuleSetError("not UTF-8 text", path=str(path), where=str(line)) from exc
