@@ -390,6 +390,12 @@ def _check_tree(tree: ast.Expression) -> tuple[set[str], set[str]]:
     return names, known
 
 
+def _quoted(source: str, limit: int = 80) -> str:
+    """An expression quoted in an error message: on one line, long ones shortened."""
+    flat = " ".join(source.split())
+    return repr(flat if len(flat) <= limit else flat[: limit - 1] + "…")
+
+
 def parse_expression(text: str, known_names: Collection[str] | None = None) -> Expression:
     """Parse and whitelist ``text``; with ``known_names``, every free name must be one of them.
 
@@ -412,9 +418,9 @@ def parse_expression(text: str, known_names: Collection[str] | None = None) -> E
             warnings.simplefilter("ignore")   # e.g. invalid escape sequences in a text
             tree = ast.parse("(" + processed.strip() + "\n)", mode="eval")
     except SyntaxError as exc:
-        raise ExpressionError(f"{source!r} is not a valid expression: {exc.msg}") from None
+        raise ExpressionError(f"{_quoted(source)} is not a valid expression: {exc.msg}") from None
     except (ValueError, RecursionError, MemoryError, OverflowError) as exc:
-        raise ExpressionError(f"{source!r} cannot be parsed: {type(exc).__name__}") from None
+        raise ExpressionError(f"{_quoted(source)} cannot be parsed: {type(exc).__name__}") from None
     names, known = _check_tree(tree)
     if known_names is not None:
         unknown = sorted(names - set(known_names))
