@@ -199,7 +199,10 @@ def display_unit_for(display: Mapping[str, str], q: pint.Quantity | pint.Unit) -
     for key, d in _DIMENSIONALITY.items():
         if d == dim:
             return display[key]
-    return f"{Q_(1.0, q.units if isinstance(q, pint.Quantity) else q).to_base_units().units:~}"
+    try:
+        return f"{Q_(1.0, q.units if isinstance(q, pint.Quantity) else q).to_base_units().units:~}"
+    except OverflowError:  # a unit raised so high that its size in base units is no float
+        return str(dim)
 
 
 # ---------------------------------------------------------------------------------------------
