@@ -15,7 +15,9 @@ class ModelcheckError(Exception):
         self.where = where
         parts = [p for p in (path, where) if p]
         prefix = ":".join(parts)
-        super().__init__(f"{prefix}: {message}" if prefix else message)
+        text = f"{prefix}: {message}" if prefix else message
+        # one line, always: a message may quote the user's text, and that text may hold line breaks
+        super().__init__(" ".join(text.splitlines()) if len(text.splitlines()) > 1 else text)
 
 
 class ModelReadError(ModelcheckError):
