@@ -194,6 +194,14 @@ class RuleSet:
         return display_unit_for(self.display, q)
 
 
+def _unit_fits(unit: str, q: pint.Quantity) -> bool:
+    """Whether numbers of ``q`` can be given in ``unit`` (the text of a unit, as a check stores it)."""
+    try:
+        return bool(Q_(1.0, unit).dimensionality == q.dimensionality)
+    except Exception:  # pint raises many types for text that is no unit
+        return False
+
+
 def display_unit_for(display: Mapping[str, str], q: pint.Quantity | pint.Unit) -> str:
     dim = q.dimensionality
     for key, d in _DIMENSIONALITY.items():
@@ -787,6 +795,10 @@ def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetErr
                        f"({display_unit_for(display, cval) or 'no unit'}); they must have one dimension", label)
             ok = False
         unit = display_unit_for(display, dval)
+        if ok and "unit" not in raw and not _unit_fits(unit, dval):
+            errors.add(base + ("demand",), f"demand {demand.source!r} is {describe(dval)}, a unit that cannot be "
+                                           "written down (powers must be whole numbers or simple fractions)", label)
+            ok = False
         if isinstance(raw.get("unit"), str):
             try:
                 u = ureg.parse_units(raw["unit"]) if raw["unit"].strip() else ureg.Unit("")
