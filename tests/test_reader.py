@@ -158,3 +158,40 @@ def test_area_agrees_with_the_geometry_kernel(tmp_model):
     shape = ifcopenshell.geom.create_shape(settings, f.by_type("IfcColumn")[0])
     volume = ifcopenshell.util.shape.get_volume(shape.geometry)  # m³ (kernel works in SI)
     assert math.isclose(m["area"], volume / m["length"], rel_tol=0.02)
+
+
+def test_proxy_with_a_profile_sweep_is_a_member_and_one_without_is_not(tmp_model):
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    rod = mb.f.createIfcCircleProfileDef("AREA", "RD12", None, 6.0)
+    mb.member("IfcBuildingElementProxy", name="swept proxy", profile=rod, length=800.0)
+    mb.member("IfcDiscreteAccessory", name="swept accessory", profile=rod, length=600.0)
+    mb.member("IfcBuildingElementProxy", name="bodiless proxy", length=800.0, body=None)
+    ms = members_of(tmp_model(mb))
+    assert set(ms.index) == {"swept proxy", "swept accessory"}
+    assert math.isclose(ms.loc["swept proxy", "area"], math.pi * 36e-6, rel_tol=1e-12)  # πr², r = 6 mm
+
+
+@pytest.mark.parametrize("kind", ["constituents", "list", "layers"])
+def test_material_through_sets_and_lists(tmp_model, kind):
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    f = mb.f
+    steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    paint = mb.material("Paint")
+    if kind == "constituents":
+        sel = f.createIfcMaterialConstituentSet("Rod", None, [
+            f.createIfcMaterialConstituent("core", None, steel, None, None),
+            f.createIfcMaterialConstituent("coat", None, paint, None, None)])
+    elif kind == "list":
+        sel = f.createIfcMaterialList([steel, paint])
+    else:
+        layers = f.createIfcMaterialLayerSet([f.createIfcMaterialLayer(steel, 10.0, None, None, None, None, None)],
+                                             "plate", None)
+        sel = f.createIfcMaterialLayerSetUsage(layers, "AXIS2", "POSITIVE", 0.0, None)
+    rod = f.createIfcCircleProfileDef("AREA", "RD20", None, 10.0)
+    el = mb.member("IfcMember", name="m", profile=rod, length=1000.0)
+    mb.associate_material([el], sel)
+    m = members_of(tmp_model(mb)).loc["m"]
+    assert m["material"] == "S355" and math.isclose(m["Fy"], 355e6)  # the first material, as written
+    if kind in ("constituents", "list"):
+        assert any("several materials" in w for w in m["warnings"])  # the others are named, not dropped
+
