@@ -94,7 +94,18 @@ def section_of(profile: Any, angle_factor: float = 1.0) -> ProfileSection:
     src = _src(profile)
     if getattr(profile, "ProfileType", None) == "CURVE":
         raise UnsupportedProfile(f"{src}: ProfileType is CURVE (an outline, not an area)")
-    return _dispatch(profile, angle_factor)
+    import numpy as np
+
+    try:
+        with np.errstate(all="ignore"):  # absurd dimensions are judged below, not warned about
+            sec = _dispatch(profile, angle_factor)
+    except (OverflowError, ZeroDivisionError) as exc:
+        raise UnsupportedProfile(f"{src}: dimensions too large or too small to compute ({exc})") from None
+    except AttributeError as exc:  # a null or dangling reference where a curve or point belongs
+        raise UnsupportedProfile(f"{src}: a referenced curve or point is missing ({exc})") from None
+    if not (math.isfinite(sec.area) and math.isfinite(sec.r_min)):
+        raise UnsupportedProfile(f"{src}: area or radius of gyration is not a finite number")
+    return sec
 
 
 def _dispatch(profile: Any, angle_factor: float) -> ProfileSection:
