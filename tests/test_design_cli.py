@@ -110,3 +110,10 @@ def test_parse_force_against_pint(text: str, kip: float) -> None:
 def test_bare_number_raises_usage_error() -> None:
     with pytest.raises(UsageError, match="no unit"):
         parse_force("12")
+
+
+def test_shape_choices_of_the_command_line_are_the_sizing_shapes():
+    from modelcheck.design.cli_size import SHAPE_CHOICES
+    from modelcheck.design.sizing import SHAPES
+
+    assert SHAPE_CHOICES == SHAPES

@@ -20,13 +20,15 @@ from typing import Any
 
 from modelcheck.errors import UsageError
 
+#: the --shape choices (modelcheck.design.sizing.SHAPES; written here so that building the
+#: command line does not import the sizing machinery — start-up time counts)
+SHAPE_CHOICES: tuple[str, ...] = ("round", "square", "flat", "threaded", "catalog")
+
 _FORCE_RE = re.compile(r"\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(?:\[(.+)\]|(.*?))\s*\Z")
 
 
 def add_size_parser(subparsers: Any) -> argparse.ArgumentParser:
     """Add the ``size`` command to an argparse subparsers object; returns its parser."""
-    from modelcheck.design.sizing import SHAPES
-
     p = subparsers.add_parser(
         "size", help="choose the smallest stock size that carries an axial force",
         description="Choose the smallest stock size (bar, threaded rod or catalog section) that passes "
@@ -40,7 +42,7 @@ def add_size_parser(subparsers: Any) -> argparse.ArgumentParser:
                         "rule sets, S235 for SI)")
     p.add_argument("--rules", metavar="RULESET", default="steel-asd-us",
                    help="shipped rule-set name or a .toml file (default steel-asd-us)")
-    p.add_argument("--shape", choices=SHAPES, default=None,
+    p.add_argument("--shape", choices=SHAPE_CHOICES, default=None,
                    help="round or square bar, flat bar, threaded rod, or catalog section "
                         "(default round; catalog when --family is given)")
     p.add_argument("--family", action="append", default=None, metavar="FAMILY",

@@ -42,7 +42,7 @@ from modelcheck.design import stock
 from modelcheck.errors import UsageError
 from modelcheck.units import Q_, ureg
 
-SHAPES: tuple[str, ...] = ("round", "square", "flat", "threaded", "catalog")
+SHAPES: tuple[str, ...] = ("round", "square", "flat", "threaded", "catalog")  # = cli_size.SHAPE_CHOICES
 
 #: material used when none is named, by the rule set's units
 DEFAULT_MATERIAL: Mapping[str, str] = {"US": "ASTM A36", "SI": "S235"}
