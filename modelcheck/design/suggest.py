@@ -183,7 +183,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
                 if "model" in chunk.columns else None,
                 "global_id": pf["pair"].to_numpy(dtype=object), "load_case": pf["load_case"].to_numpy(dtype=object),
                 "axial_force": pf["P"].to_numpy(dtype=float), "source": "suggestion"})
-            res = run_checks(ruleset, chunk, forces_pairs)
+            res = run_checks(ruleset, chunk, forces_pairs, messages=False)
             verdicts.append(_verdicts(res, cinfo, sub_keys, allowed))
         return pd.concat(verdicts, ignore_index=True)
 

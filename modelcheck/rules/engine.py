@@ -285,7 +285,8 @@ def _evaluate(check: Check, scope: Scope, n: int) -> tuple[np.ndarray, np.ndarra
 
 
 def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
-               member: np.ndarray, p: np.ndarray, case: np.ndarray, rank: np.ndarray) -> dict[str, Any] | None:
+               member: np.ndarray, p: np.ndarray, case: np.ndarray, rank: np.ndarray,
+               messages: bool = True) -> dict[str, Any] | None:
     n = len(member)
     if n == 0:
         return None
@@ -319,7 +320,7 @@ def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
             else:
                 message[pos] = "not checked: the demand or capacity is not a finite number (e.g. division by zero)"
     c_pos = np.flatnonzero(~unchecked_k)
-    if len(c_pos):
+    if len(c_pos) and messages:
         c_rows = rows[c_pos]
         if check.message:
             extra.update({"demand": Q_(demand, check.unit), "capacity": Q_(capacity, check.unit),
@@ -356,13 +357,15 @@ def empty_results() -> pd.DataFrame:
 
 
 def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | None = None,
-               checks: list[str] | None = None) -> pd.DataFrame:
+               checks: list[str] | None = None, *, messages: bool = True) -> pd.DataFrame:
     """Results of ``ruleset`` (or of the listed ``checks`` of it) over ``members`` and ``forces``.
 
     ``members`` has the columns of :func:`modelcheck.table.member_columns` (absent columns count
     as missing values); ``forces`` those of :data:`modelcheck.table.FORCE_COLUMNS` (tension
     positive, newtons). Returns the columns :data:`COLUMNS` in the order (model, global_id,
     check order in the file, load case in order of first appearance in ``forces``).
+    ``messages=False`` leaves the message of checked results empty (sizing and suggestions
+    evaluate many candidates whose messages nobody reads).
     """
     members = members.reset_index(drop=True)
     data = MemberData(members)
@@ -392,7 +395,7 @@ def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
         else:
             args = (all_members[mask], no_force[mask], no_case[mask], np.full(int(mask.sum()), -1))
         try:
-            part = _run_check(check, order, ruleset, data, *args)
+            part = _run_check(check, order, ruleset, data, *args, messages=messages)
         except ExpressionError as exc:
             raise RuleSetError(f"check {check.id}: {exc}", path=ruleset.path, where=str(check.line)) from exc
         if part is not None and len(part["member"]):
