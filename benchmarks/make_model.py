@@ -6,6 +6,9 @@ Mixed profile classes (round, tube, flat, rectangular tube, I, L, U, T), materia
 profile sets on type objects (a shared IfcMaterialProfileSetUsage per type), half the members
 with a force in the model property set MC_MemberForces.AxialForce, and a load table
 ``<model>-forces.csv`` with one row per member (load case "LC1", header units in kN).
+Forces are drawn as a share of each section's tension yield force (A·235 MPa): uniform in
+5–103 % in tension, 2–25 % in compression — a screened model in which a few per cent of the
+members fail, as in practice, rather than one in five.
 Each member has its own placement, Axis polyline and extruded body, as exported models do.
 """
 
@@ -51,6 +54,11 @@ def build(n: int, out: Path, seed: int = 7) -> None:
                                   PredefinedType="MEMBER")
             mb.associate_material([typ], pset)
             types.append((typ, pset, prof, []))
+    from modelcheck.ifc.profiles import section_of
+
+    sections = {prof.id(): section_of(prof) for prof in {t[2] for t in types}}
+    areas = {k: s.area * 1e-6 for k, s in sections.items()}   # mm² -> m²
+    radii = {k: s.r_min for k, s in sections.items()}         # mm
     storey = mb.storey("Level 1")
     zdir, xdir = f.createIfcDirection((0.0, 0.0, 1.0)), f.createIfcDirection((1.0, 0.0, 0.0))
     origin = mb.origin
@@ -59,7 +67,13 @@ def build(n: int, out: Path, seed: int = 7) -> None:
     rows = []
     for k in range(n):
         typ, pset, prof, occ = types[k % len(types)]
-        length = float(rnd.choice((1200.0, 1800.0, 2400.0, 3000.0, 3600.0)))
+        rod = prof.is_a("IfcCircleProfileDef")
+        # rods hang services (tension only); other sections brace and strut at lengths their
+        # radius of gyration allows (L/r well under 200), as a designed model would have them
+        r_min = radii[prof.id()]
+        length = float(min(rnd.choice((1200.0, 1800.0, 2400.0, 3000.0, 3600.0)), 150.0 * r_min))
+        if rod:
+            length = float(rnd.choice((600.0, 900.0, 1200.0)))
         pt = f.createIfcCartesianPoint((float(k % 1000) * 500.0, float(k // 1000) * 500.0, 0.0))
         place = f.createIfcLocalPlacement(storey.ObjectPlacement, f.createIfcAxis2Placement3D(pt, zdir, xdir))
         body = f.createIfcShapeRepresentation(mb.body_ctx, "Body", "SweptSolid", [
@@ -67,13 +81,16 @@ def build(n: int, out: Path, seed: int = 7) -> None:
         axis = f.createIfcShapeRepresentation(mb.axis_ctx, "Axis", "Curve3D", [f.createIfcPolyline(
             [origin, f.createIfcCartesianPoint((0.0, 0.0, length))])])
         shape = f.createIfcProductDefinitionShape(None, None, [axis, body])
-        cls = "IfcColumn" if k % 10 == 0 else "IfcMember"
-        el = f.create_entity(cls, GlobalId=mb.guid(), Name=f"M{k}", ObjectPlacement=place,
+        cls = "IfcColumn" if (k % 10 == 0 and not rod) else "IfcMember"
+        el = f.create_entity(cls, GlobalId=mb.guid(), Name=f"Hanger rod {k}" if rod else f"M{k}",
+                             ObjectPlacement=place,
                              Representation=shape, Tag=f"M-{k:06d}",
                              PredefinedType="COLUMN" if cls == "IfcColumn" else "BRACE")
         occ.append(el)
         members.append(el)
-        force = rnd.uniform(-60.0, 90.0)  # kN
+        yield_kn = areas[prof.id()] * 235e6 / 1000.0  # A [m²] · 235 MPa, in kN
+        share = rnd.uniform(0.05, 1.03) if (rod or rnd.random() < 0.7) else -rnd.uniform(0.02, 0.25)
+        force = share * yield_kn / 1.67
         if k % 2 == 0:
             prop = f.createIfcPropertySingleValue("AxialForce", None, f.createIfcForceMeasure(force * 1000.0), None)
             ps = f.create_entity("IfcPropertySet", GlobalId=mb.guid(), Name="MC_MemberForces", HasProperties=[prop])
