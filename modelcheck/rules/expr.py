@@ -40,6 +40,7 @@ from types import MappingProxyType
 from typing import Any
 
 import numpy as np
+import pandas as pd
 import pint
 
 from modelcheck.errors import RuleSetError
@@ -686,5 +687,7 @@ def glob_match(values: Any, patterns: tuple[str, ...]) -> Cond:
     arr = np.asarray(values, dtype=object)
     uniq = {v for v in arr.tolist() if v is not None}
     hits = [v for v in uniq if regex.match(str(v)) is not None]
-    value = np.isin(arr, np.asarray(hits, dtype=object)) if hits else np.zeros(arr.shape, dtype=bool)
+    # hashed membership: np.isin on object arrays compares every value with every hit (n × m)
+    value = (pd.Series(arr.ravel(), dtype=object).isin(set(hits)).to_numpy(dtype=bool).reshape(arr.shape)
+             if hits else np.zeros(arr.shape, dtype=bool))
     return Cond(value=value, known=np.ones(arr.shape, dtype=bool))
