@@ -379,7 +379,8 @@ def cmd_check(args: argparse.Namespace) -> int:
     jobs = args.jobs if args.jobs is not None else (os.cpu_count() or 1)
     if jobs < 1:
         raise UsageError("--jobs must be at least 1")
-    run = _run_with_progress(paths, ruleset, fopts, jobs, bool(args.validate), args.scheduler)
+    run = _run_with_progress(paths, ruleset, fopts, jobs, bool(args.validate), args.scheduler,
+                             encode_json="json" in files)
     now = dt.datetime.now(dt.UTC).replace(microsecond=0)
     comparison = None
     if baseline is not None:
@@ -407,19 +408,20 @@ def cmd_check(args: argparse.Namespace) -> int:
 
 
 def _run_with_progress(paths: list[str], ruleset: Any, fopts: Any, jobs: int, validate: bool,
-                       scheduler: str | None) -> Any:
+                       scheduler: str | None, encode_json: bool = False) -> Any:
     """Run the batch; a rich progress bar on a terminal with several models, quiet otherwise."""
     from modelcheck.pipeline import run_check
 
     if len(paths) < 2 or not sys.stderr.isatty():
-        return run_check(paths, ruleset, fopts, jobs=jobs, validate=validate, scheduler=scheduler)
+        return run_check(paths, ruleset, fopts, jobs=jobs, validate=validate, scheduler=scheduler,
+                         encode_json=encode_json)
     from rich.console import Console
     from rich.progress import Progress
 
     with Progress(transient=True, console=Console(stderr=True)) as bar:
         task = bar.add_task("checking models", total=len(paths))
         return run_check(paths, ruleset, fopts, jobs=jobs, validate=validate, scheduler=scheduler,
-                         progress=lambda: bar.advance(task))
+                         progress=lambda: bar.advance(task), encode_json=encode_json)
 
 
 def _write_format(fmt: str, run: Any, out: str | None, inputs: list[str], now: Any, comparison: Any,
@@ -435,7 +437,7 @@ def _write_format(fmt: str, run: Any, out: str | None, inputs: list[str], now: A
     if fmt == "json":
         from modelcheck.report.check_json import check_document, write_json
 
-        doc = check_document(run, comparison=comparison, now=now)
+        doc = check_document(run, comparison=comparison, now=now, encoded=True)
         if out is None:
             write_json(doc, sys.stdout.buffer)
         else:

@@ -200,10 +200,15 @@ class CheckedModel:
 
     data: ModelData
     results: pd.DataFrame | None = None
+    json_rows: bytes | None = None   # the results as JSON rows, encoded where the work ran
 
 
-def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: bool = False) -> CheckedModel:
-    """Read one model, join its forces, run the rule set: the unit of work of a batch."""
+def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: bool = False,
+                encode_json: bool = False) -> CheckedModel:
+    """Read one model, join its forces, run the rule set: the unit of work of a batch.
+
+    ``encode_json`` also encodes the results as the JSON report's rows here, in the worker, so
+    a batch does not encode every model's results one after another in the parent."""
     from modelcheck.rules.engine import run_checks
     from modelcheck.rules.ruleset import load_ruleset
 
@@ -216,7 +221,15 @@ def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: boo
     results = run_checks(ruleset, data.members, data.forces)
     if (results["status"] == "fail").any():
         results = suggest(ruleset, data.members, data.forces, results)
-    return CheckedModel(data, results)
+    rows = None
+    if encode_json:
+        from modelcheck.report.check_json import encode_rows, result_dicts
+
+        rows = encode_rows(result_dicts(results))
+    # send back only what the reports read: a batch worker's result crosses a process boundary
+    data.members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
+    data.forces = data.forces.iloc[0:0]
+    return CheckedModel(data, results, rows)
 
 
 @dataclass
@@ -226,10 +239,12 @@ class CheckRun:
     results: pd.DataFrame
     members: pd.DataFrame            # REPORT_MEMBER_COLUMNS of every readable model
     unmatched_rows: list[dict[str, str]]
+    json_rows: list[bytes] | None = None   # per model, when encoded in the workers
 
 
 def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int = 1,
-              validate: bool = False, progress: Any = None, scheduler: str | None = None) -> CheckRun:
+              validate: bool = False, progress: Any = None, scheduler: str | None = None,
+              encode_json: bool = False) -> CheckRun:
     """Check every model; unreadable ones are recorded with their error, the rest go on.
 
     ``jobs`` > 1 runs models in that many local worker processes; ``scheduler`` sends them to a
@@ -246,8 +261,9 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
     elif jobs > 1 and len(paths) > 1:
         from concurrent.futures import ProcessPoolExecutor
 
+
         with ProcessPoolExecutor(max_workers=min(jobs, len(paths))) as pool:
-            futures = [pool.submit(check_model, p, ref, forces, validate) for p in paths]
+            futures = [pool.submit(check_model, p, ref, forces, validate, encode_json) for p in paths]
             for fut in futures:
                 checked.append(fut.result())
                 if progress is not None:
@@ -270,4 +286,6 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
     used = set().union(*(c.data.matched_rows for c in checked)) if checked else set()
     unmatched = [{"key": str(k), "source": s} for t in forces.tables
                  for k, s in zip(t["key"], t["source"], strict=True) if s not in used]
-    return CheckRun(ruleset, [c.data for c in checked], results, members, unmatched)
+    rows = [c.json_rows or b"" for c in checked] if all(
+        c.json_rows is not None or c.results is None for c in checked) and encode_json else None
+    return CheckRun(ruleset, [c.data for c in checked], results, members, unmatched, rows)

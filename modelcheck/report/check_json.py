@@ -62,6 +62,27 @@ def result_dicts(results: pd.DataFrame) -> list[dict[str, Any]]:
     return out
 
 
+_ROW_SEP = b",\n    "
+
+
+def encode_rows(rows: list[dict[str, Any]]) -> bytes:
+    """JSON rows as the report writes them (one per line, orjson), joined by the row separator."""
+    import orjson
+
+    enc = orjson.dumps
+    return _ROW_SEP.join([enc(r) for r in rows])
+
+
+class EncodedRows:
+    """Result rows already encoded (per model, in the batch workers): written as they are."""
+
+    def __init__(self, chunks: list[bytes]) -> None:
+        self.chunks = [c for c in chunks if c]
+
+    def __bool__(self) -> bool:
+        return bool(self.chunks)
+
+
 def write_json(doc: dict[str, Any], fh: Any, row_keys: tuple[str, ...] = ("results",)) -> None:
     """Write the document as JSON to the binary file ``fh``: indented, but each item of the
     ``row_keys`` lists on one line.
@@ -72,21 +93,24 @@ def write_json(doc: dict[str, Any], fh: Any, row_keys: tuple[str, ...] = ("resul
     """
     import json
 
-    import orjson
 
     fh.write(b"{\n")
     keys = list(doc)
     for i, key in enumerate(keys):
         value = doc[key]
         fh.write(f"  {json.dumps(key)}: ".encode())
-        if key in row_keys and value:
-            enc = orjson.dumps
-            sep = b",\n    "
+        if isinstance(value, EncodedRows) and value:
+            fh.write(b"[\n    ")
+            fh.write(_ROW_SEP.join(value.chunks))
+            fh.write(b"\n  ]")
+        elif isinstance(value, EncodedRows):
+            fh.write(b"[]")
+        elif key in row_keys and value:
             fh.write(b"[\n    ")
             for start in range(0, len(value), 4096):  # bounded chunks: no giant intermediate buffer
                 if start:
-                    fh.write(sep)
-                fh.write(sep.join([enc(r) for r in value[start:start + 4096]]))
+                    fh.write(_ROW_SEP)
+                fh.write(encode_rows(value[start:start + 4096]))
             fh.write(b"\n  ]")
         else:
             text = json.dumps(value, indent=2, ensure_ascii=False, allow_nan=False).replace("\n", "\n  ")
@@ -147,7 +171,9 @@ def summary_counts(run: Any) -> dict[str, int]:
 
 
 def check_document(run: Any, *, comparison: dict[str, Any] | None = None,
-                   now: _dt.datetime | None = None) -> dict[str, Any]:
+                   now: _dt.datetime | None = None, encoded: bool = False) -> dict[str, Any]:
+    """The JSON document of a check run; ``encoded=True`` takes the result rows the workers
+    encoded (for ``write_json``) instead of building them here."""
     rs = run.ruleset
     doc: dict[str, Any] = {
         "generated": (now or _dt.datetime.now(_dt.UTC)).replace(microsecond=0).isoformat(),
@@ -156,7 +182,8 @@ def check_document(run: Any, *, comparison: dict[str, Any] | None = None,
         "models": [{"path": m.path, "schema": m.schema, "error": m.error, "members": int(m.member_count),
                     "warnings": list(m.warnings) + list(m.force_messages) + list(m.validation)}
                    for m in run.models],
-        "results": result_dicts(run.results),
+        "results": (EncodedRows(run.json_rows) if encoded and getattr(run, "json_rows", None) is not None
+                    else result_dicts(run.results)),
         "unmatched_force_rows": run.unmatched_rows,
     }
     if comparison is not None:
