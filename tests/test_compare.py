@@ -127,7 +127,7 @@ def test_load_baseline_reads_a_report(tmp_path):
 
 
 @pytest.mark.parametrize("content, words", [
-    (None, "not found"),
+    (None, "no such file"),
     ('{"results": [\n  1,,\n]}', "line 2"),
     ('{"members": []}', "not a JSON report of 'modelcheck check'"),
     ('[1, 2]', "not a JSON report of 'modelcheck check'"),

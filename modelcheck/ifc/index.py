@@ -26,6 +26,7 @@ from typing import Any
 import ifcopenshell
 
 from modelcheck.errors import ModelReadError
+from modelcheck.files import input_file
 from modelcheck.units import (
     MEASURE_UNIT_TYPE,
     UNITLESS_MEASURES,
@@ -69,12 +70,8 @@ def open_model(path: str | os.PathLike[str]) -> Any:
 def open_model_checked(path: str | os.PathLike[str]) -> tuple[Any, tuple[str, ...]]:
     """``open_model``, and what the parser logged on the way (text it skipped, instances with
     attributes missing), one line each naming the file's line where the parser gives an offset."""
-    p = Path(path)
+    p = input_file(path, ModelReadError, "an IFC file")
     name = str(path)
-    if not p.exists():
-        raise ModelReadError("no such file", path=name)
-    if p.is_dir():
-        raise ModelReadError("is a folder, not an IFC file", path=name)
     size = p.stat().st_size
     if size == 0:
         raise ModelReadError("empty file, not an IFC model", path=name)

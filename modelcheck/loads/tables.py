@@ -57,6 +57,7 @@ import pandas as pd
 import pint
 
 from modelcheck.errors import LoadTableError
+from modelcheck.files import input_file
 from modelcheck.units import Q_, ureg
 
 #: columns of the table ``read_load_table`` returns
@@ -121,11 +122,7 @@ def read_load_table(path: str | os.PathLike[str]) -> pd.DataFrame:
     (None for XLSX).
     """
     name = str(path)
-    p = Path(path)
-    if not p.exists():
-        raise LoadTableError("no such file", path=name)
-    if p.is_dir():
-        raise LoadTableError("is a folder, not a load table", path=name)
+    p = input_file(path, LoadTableError, "a load table")
     try:
         data = p.read_bytes()
     except OSError as exc:

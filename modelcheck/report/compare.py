@@ -32,10 +32,10 @@ from __future__ import annotations
 import json
 import os
 from collections.abc import Iterable
-from pathlib import Path
 from typing import Any
 
 from modelcheck.errors import UsageError
+from modelcheck.files import input_file
 
 Key = tuple[str, str, str, str]      # model name, GlobalId, check, load case ("" when none)
 _RANK = {"fail": 0, "unchecked": 1, "pass": 2}
@@ -154,12 +154,8 @@ _RESULT_KEYS = ("model", "global_id", "check", "status")
 
 def load_baseline(path: str | os.PathLike[str]) -> dict[str, Any]:
     """Read an earlier JSON check report; a clear UsageError naming the file when it is not one."""
-    p = Path(path)
+    p = input_file(path, UsageError, "a JSON check report (baseline)")
     name = str(path)
-    if not p.exists():
-        raise UsageError("baseline report not found", path=name)
-    if p.is_dir():
-        raise UsageError("baseline is a folder, not a JSON check report", path=name)
     try:
         text = p.read_text(encoding="utf-8")
     except UnicodeDecodeError as exc:
