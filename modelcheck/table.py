@@ -25,6 +25,7 @@ QUANTITY_COLUMNS: dict[str, str] = {
     "Fy": "Pa",           # yield strength (0.2 % proof strength for non-ferrous)
     "Fu": "Pa",           # ultimate tensile strength
     "alpha": "1/K",       # linear thermal expansion coefficient
+    "net_area": "m**2",   # net area at holes or threads (property MC_NetSection.NetArea), rarely modelled
 }
 
 #: other section / material columns

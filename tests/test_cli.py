@@ -246,3 +246,22 @@ def test_reports_are_deterministic_apart_from_the_timestamp(tmp_path):
         texts.append(((out / "modelcheck-report.csv").read_bytes(), (out / "modelcheck-report.xml").read_bytes()))
     assert docs[0] == docs[1]
     assert texts[0] == texts[1]  # CSV and JUnit carry no timestamp at all: byte-identical
+
+
+def test_net_area_from_the_model_brings_in_the_rupture_check(tmp_path):
+    mb = ModelBuilder(schema="IFC4", units="inch-kip")
+    steel = mb.material("ASTM A36")
+    flat = mb.f.createIfcRectangleProfileDef("AREA", "PL4x1/2", None, 4.0, 0.5)
+    net = {"MC_NetSection": {"NetArea": ("IfcAreaMeasure", 1.5)}}         # 2.0 in² gross, 1.5 in² net
+    mb.member("IfcMember", name="tie", tag="T1", profile=flat, material=steel, length=60.0,
+              psets={**net, "MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 40.0)}})  # 40 kip
+    p = tmp_path / "tie.ifc"
+    mb.write(str(p))
+    out = tmp_path / "r.json"
+    run("check", str(p), "--rules", "steel-asd-us", "--format", "json", "--output", str(out))
+    res = {r["check"]: r for r in json.loads(out.read_text())["results"]}
+    # AISC 360-16 D2(b), U = 1 (D3): f = P/Ae = 40/1.5 = 26.67 ksi against Fu/2.00 = 58/2 = 29 ksi
+    # (ASTM A36 Fu = 58 ksi, from memory)
+    assert math.isclose(res["tension-rupture"]["ratio"], (40 / 1.5) / (58 / 2.0), rel_tol=1e-4)
+    # D2(a) on the gross area: 40/2.0 = 20 ksi against 36/1.67 = 21.56 ksi
+    assert math.isclose(res["tension-yield"]["ratio"], (40 / 2.0) / (36 / 1.67), rel_tol=1e-4)

@@ -33,7 +33,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from modelcheck.ifc.index import ModelIndex, SIValue, measure_si, property_si
+from modelcheck.ifc.index import ModelIndex, SIValue, find_property, measure_si, property_si
 from modelcheck.ifc.profiles import ProfileSection, UnsupportedProfile, section_of
 from modelcheck.table import member_columns
 from modelcheck.units import MissingUnit
@@ -42,6 +42,11 @@ from modelcheck.units import MissingUnit
 MEMBER_CLASSES = ("IfcMember", "IfcColumn", "IfcBeam", "IfcTendon")
 #: classes taken only when their body is a profile sweep
 SWEEP_CLASSES = ("IfcBuildingElementProxy", "IfcDiscreteAccessory", "IfcFastener", "IfcMechanicalFastener")
+
+#: where a member's net area (at holes or threads) is read: property set and property, our own
+#: names (buildingSMART defines none for it), an IfcAreaMeasure on the occurrence or its type
+NET_AREA_PROPERTY = ("MC_NetSection", "NetArea")
+_NO_NET: tuple[float, str | None] = (math.nan, None)
 
 AREA_TOLERANCE = 0.02     # 2 % between two sources of the cross-section area
 LENGTH_TOLERANCE = 0.05   # 5 % between two sources of the length (end cuts make axis ≠ body)
@@ -376,6 +381,7 @@ class _Reader:
             if tendon is not None:
                 candidates.append(tendon)
         psets = idx.psets_of.get(eid)
+        net = self._net_area(psets, typ, warnings) if (psets or typ is not None) else _NO_NET
         if idx.profile_props or psets or idx.object_profile_props:
             mech = self._profile_mechanical(self._profiles_of(own_sel, type_sel) if idx.profile_props else [],
                                             psets or [], eid)
@@ -431,7 +437,25 @@ class _Reader:
             warnings.append(f"has no GlobalId (IFC requires one): named #{eid} here")
             gid = f"#{eid}"
         return (gid, cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
-                section, minfo, length, length_src, warnings, eid)
+                section, minfo, length, length_src, warnings, eid, net)
+
+    def _net_area(self, psets: list[Any] | None, typ: Any, warnings: list[str]) -> tuple[float, str | None]:
+        """The net area at holes or threads: NET_AREA_PROPERTY on the occurrence, else its type."""
+        pset_name, prop_name = NET_AREA_PROPERTY
+        for where, sets in (("occurrence", psets or ()), ("type", self.type_info(typ)[2] if typ is not None else ())):
+            prop = find_property(list(sets), pset_name, prop_name)
+            if prop is None:
+                continue
+            try:
+                v = property_si(self.idx, prop)
+            except MissingUnit as exc:
+                warnings.append(f"{pset_name}.{prop_name} not used: {exc}")
+                return _NO_NET
+            if v is None or not (math.isfinite(v.value) and v.value > 0):
+                warnings.append(f"{pset_name}.{prop_name} is not a positive area; not used")
+                return _NO_NET
+            return v.value, f"{pset_name}.{prop_name} ({where}) [{v.unit}]"
+        return _NO_NET
 
     def _positions(self, cls: str) -> tuple[bool, int | None]:
         """(has Tag at index 7, index of PredefinedType) for an entity class; cached."""
@@ -732,7 +756,8 @@ def _unreadable_member(el: Any, warning: str) -> tuple[Any, ...]:
     if not isinstance(gid, str):
         gid = f"#{el.id()}"
     name, tag = (_text_attribute(el, "Name"), _text_attribute(el, "Tag"))
-    return (gid, el.is_a(), None, None, name, tag, None, None, None, None, math.nan, None, [warning], el.id())
+    return (gid, el.is_a(), None, None, name, tag, None, None, None, None, math.nan, None, [warning], el.id(),
+            _NO_NET)
 
 
 def _text_attribute(el: Any, attr: str) -> str | None:
@@ -754,9 +779,10 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
     cols: dict[str, Any] = {"model": [path] * n}
     if n:
         (gid, cls, pre, otype, name, tag, storey, tname, secs, mats, length, length_src, warns,
-         eids) = zip(*rows, strict=True)
+         eids, nets) = zip(*rows, strict=True)
     else:
         gid = cls = pre = otype = name = tag = storey = tname = secs = mats = length = length_src = warns = eids = ()
+        nets = ()
     cols.update(global_id=list(gid), ifc_class=list(cls), predefined_type=list(pre), object_type=list(otype),
                 name=list(name), tag=list(tag), storey=list(storey), type_name=list(tname))
     secs = [s if s is not None else _NO_SECTION for s in secs]
@@ -782,6 +808,8 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
         cols[f"{q}_source"] = [p[1] for p in pairs]
     cols["warnings"] = [list(m.warnings) + w if m.warnings else w for m, w in zip(mats, warns, strict=True)]
     cols["entity_id"] = np.array(eids, dtype=np.int64)
+    cols["net_area"] = np.array([x[0] for x in nets], dtype=float)
+    cols["net_area_source"] = [x[1] for x in nets]
     # text columns stay object dtype with None for missing (pandas 3 would infer 'str' with NaN)
     data = {k: (v if isinstance(v, np.ndarray) else pd.Series(v, dtype=object)) for k, v in cols.items()}
     return pd.DataFrame(data, columns=member_columns())

@@ -54,7 +54,8 @@ def member_dicts(members: pd.DataFrame, forces: pd.DataFrame | None, units: Disp
             "section": {"name": _s(rec["section_name"]), "profile_type": _s(rec["profile_type"]),
                         "shape": _s(rec["shape"]),
                         "area": q("area", rec["area"], rec["area_source"]),
-                        "r_min": q("r_min", rec["r_min"], rec["r_min_source"])},
+                        "r_min": q("r_min", rec["r_min"], rec["r_min_source"]),
+                        "net_area": q("area", rec.get("net_area", math.nan), rec.get("net_area_source"))},
             "length": q("length", rec["length"], rec["length_source"]),
             "material": material,
             "axial_force": force_map.get(rec["global_id"], {}),
@@ -69,9 +70,12 @@ def member_dicts(members: pd.DataFrame, forces: pd.DataFrame | None, units: Disp
 def members_csv(members: pd.DataFrame, units: DisplayUnits) -> pd.DataFrame:
     """A flat table for spreadsheets: one row per member, values in display units."""
     df = members.copy()
-    for col in ("area", "r_min", "length", "E", "Fy", "Fu", "alpha"):
-        df[col] = df[col] * units.convert(col, 1.0)
-        df = df.rename(columns={col: f"{col} [{units.unit(col)}]"})
+    for col in ("area", "r_min", "length", "E", "Fy", "Fu", "alpha", "net_area"):
+        if col not in df.columns:
+            continue
+        kind = "area" if col == "net_area" else col
+        df[col] = df[col] * units.convert(kind, 1.0)
+        df = df.rename(columns={col: f"{col} [{units.unit(kind)}]"})
     for col in ("d", "h", "b", "tf", "tw", "t"):
         df[col] = df[col] * units.convert("small_length", 1.0)
         df = df.rename(columns={col: f"{col} [{units.unit('small_length')}]"})

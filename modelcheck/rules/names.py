@@ -52,9 +52,9 @@ MEMBER_QUANTITIES: Mapping[str, MemberQuantity] = MappingProxyType({q.name: q fo
     _Q("As", "tensile-stress area of the standard coarse thread of diameter d "
             "(ASME B1.1 UNC or ISO 261 coarse, round bars only)", "m**2", None,
        "As: no standard thread size for this member", 2.5e-4),
-    _Q("An", "net area (at holes or threads); read from a member-table column 'net_area' "
-            "when one is present, missing otherwise", "m**2", "net_area",
-       "An: no net area (member-table column net_area)", 0.9e-3),
+    _Q("An", "net area (at holes or threads); read from the model property MC_NetSection.NetArea "
+            "(occurrence or type), missing otherwise", "m**2", "net_area",
+       "An: no net area (model property MC_NetSection.NetArea)", 0.9e-3),
 )})
 
 #: text names for conditions: name -> (member-table column, description)
