@@ -223,9 +223,9 @@ def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: boo
         results = suggest(ruleset, data.members, data.forces, results)
     rows = None
     if encode_json:
-        from modelcheck.report.check_json import encode_rows, result_dicts
+        from modelcheck.report.check_json import encode_results
 
-        rows = encode_rows(result_dicts(results))
+        rows = encode_results(results)
     # send back only what the reports read: a batch worker's result crosses a process boundary
     data.members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
     data.forces = data.forces.iloc[0:0]

@@ -265,3 +265,12 @@ def test_net_area_from_the_model_brings_in_the_rupture_check(tmp_path):
     assert math.isclose(res["tension-rupture"]["ratio"], (40 / 1.5) / (58 / 2.0), rel_tol=1e-4)
     # D2(a) on the gross area: 40/2.0 = 20 ksi against 36/1.67 = 21.56 ksi
     assert math.isclose(res["tension-yield"]["ratio"], (40 / 2.0) / (36 / 1.67), rel_tol=1e-4)
+
+
+def test_results_encoded_in_chunks_are_the_rows_encoded_at_once():
+    from modelcheck.pipeline import ForceOptions, check_model
+    from modelcheck.report.check_json import encode_results, encode_rows, result_dicts
+
+    c = check_model(str(SAMPLES / "nettlebrook-hall.ifc"), "steel-asd-us",
+                    ForceOptions(property=("MC_MemberForces", "AxialForce")))
+    assert encode_results(c.results, chunk=7) == encode_rows(result_dicts(c.results))

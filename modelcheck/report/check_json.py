@@ -73,6 +73,13 @@ def encode_rows(rows: list[dict[str, Any]]) -> bytes:
     return _ROW_SEP.join([enc(r) for r in rows])
 
 
+def encode_results(results: pd.DataFrame, chunk: int = 8192) -> bytes:
+    """``encode_rows(result_dicts(results))``, a chunk of rows at a time: the dicts of a
+    400,000-result report never all exist at once (they would take several hundred MB)."""
+    return _ROW_SEP.join(encode_rows(result_dicts(results.iloc[i:i + chunk]))
+                         for i in range(0, len(results), chunk))
+
+
 class EncodedRows:
     """Result rows already encoded (per model, in the batch workers): written as they are."""
 
