@@ -88,11 +88,20 @@ def read_model(path: str, forces: ForceOptions | None = None, *, validate: bool 
         data.warnings = list(data.members.attrs.get("model_warnings", []))
         if forces is not None:
             attach_forces(data, idx, forces)
+            if idx.drain_log():  # entities the force routes read were parsed (lazily) just now
+                n = data.members.attrs.get("parse_problem_count", 0)
+                data.warnings = list(idx.parse_problems) + data.warnings[n:]
+    except ModelcheckError as exc:  # a syntax error met while reading an entity (lazy parsing)
+        data.error = str(exc)
+        data.members, data.member_count, data.forces = None, 0, empty_forces()
     except (AttributeError, TypeError, ValueError, ArithmeticError, RuntimeError) as exc:
         # ifcopenshell returns what the file holds even where the schema forbids it (text for a
         # number, a number for a reference); a member's own data is guarded in the reader, this
         # is the rest of the model (property sets, relationships, units of forces)
-        data.error = (f"{path}: cannot be read: a value the IFC schema does not allow "
+        from modelcheck.ifc.index import explain_parse_error, is_parse_error
+
+        data.error = (f"{path}: cannot be parsed as IFC: {explain_parse_error(path, exc)}" if is_parse_error(exc)
+                      else f"{path}: cannot be read: a value the IFC schema does not allow "
                       f"({type(exc).__name__}: {exc}); 'modelcheck check --validate' lists where")
         data.members, data.member_count, data.forces = None, 0, empty_forces()
     return data

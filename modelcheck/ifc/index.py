@@ -56,7 +56,25 @@ class ModelIndex:
     material_props: dict[int, list[Any]] = field(default_factory=dict)  # material id -> property entities
     profile_props: dict[int, list[Any]] = field(default_factory=dict)   # profile id -> property entities
     object_profile_props: dict[int, list[Any]] = field(default_factory=dict)  # IFC2X3: element id -> profile props
-    parse_problems: tuple[str, ...] = ()   # what ifcopenshell's parser logged while reading the file
+    parse_log: list[str] = field(default_factory=list)  # ifcopenshell's parser log, as drained
+
+    @property
+    def parse_problems(self) -> tuple[str, ...]:
+        """What ifcopenshell's parser logged while reading the file, one line each with its line."""
+        return _parser_problems(Path(self.path), "".join(self.parse_log))
+
+    def drain_log(self) -> bool:
+        """Take what the parser logged since the last call (the file is parsed lazily: an entity
+        is parsed when first read); True when it logged something."""
+        text = ifcopenshell.get_log()
+        if text and text.strip():
+            self.parse_log.append(text)
+            return True
+        return False
+
+    def explain(self, exc: BaseException) -> str:
+        """An ifcopenshell error about the file's text, with its byte offset turned into a line."""
+        return explain_parse_error(self.path, exc)
 
     def type_psets(self, typ: Any) -> list[Any]:
         return list(typ.HasPropertySets or ()) if typ is not None else []
@@ -70,6 +88,19 @@ def open_model(path: str | os.PathLike[str]) -> Any:
 def open_model_checked(path: str | os.PathLike[str]) -> tuple[Any, tuple[str, ...]]:
     """``open_model``, and what the parser logged on the way (text it skipped, instances with
     attributes missing), one line each naming the file's line where the parser gives an offset."""
+    model, log = _open(path)
+    return model, _parser_problems(Path(path), log)
+
+
+def _open(path: str | os.PathLike[str]) -> tuple[Any, str]:
+    """The opened model and the parser's raw log of the open.
+
+    The model is opened lazily (``ifcopenshell.open(..., lazy=True)``): one quick indexing pass,
+    and each entity parsed when it is first read. A checker reads a small part of a model's
+    entities (none of its placements, styles or most of its geometry), so this is where it saves
+    most of the open's time and memory. The price: a syntax error inside an entity shows when
+    that entity is read, as a RuntimeError naming its byte offset (see ``explain_parse_error``).
+    """
     p = input_file(path, ModelReadError, "an IFC file")
     name = str(path)
     size = p.stat().st_size
@@ -96,7 +127,7 @@ def open_model_checked(path: str | os.PathLike[str]) -> tuple[Any, tuple[str, ..
             raise ModelReadError("file is truncated: it does not end with END-ISO-10303-21;", path=name)
     ifcopenshell.get_log()  # drop what earlier opens in this process left in the parser's log
     try:
-        model = ifcopenshell.open(str(p))
+        model = ifcopenshell.open(str(p), lazy=True)
     except (ifcopenshell.Error, RuntimeError, OSError, ValueError, UnicodeDecodeError, LookupError) as exc:
         text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
         logged = _parser_messages(p, ifcopenshell.get_log())
@@ -107,7 +138,38 @@ def open_model_checked(path: str | os.PathLike[str]) -> tuple[Any, tuple[str, ..
     schema = _schema_of(model)
     if schema not in SUPPORTED_SCHEMAS:
         raise ModelReadError(f"schema {model.schema!r} is not supported (IFC2X3, IFC4, IFC4X3)", path=name)
-    return model, _parser_problems(p, ifcopenshell.get_log())
+    return model, ifcopenshell.get_log()
+
+
+def explain_parse_error(path: str | os.PathLike[str], exc: BaseException) -> str:
+    """``str(exc)`` with ifcopenshell's 'at offset N' turned into 'at line L' of a plain IFC-SPF file."""
+    text = " ".join(str(exc).split()) or type(exc).__name__
+    m = re.search(r"\bat offset (\d+)", text)
+    if m is None:
+        return text
+    p = Path(path)
+    try:
+        if zipfile.is_zipfile(p):
+            return text
+        offset = int(m.group(1))
+        with open(p, "rb") as fh:
+            line = fh.read(offset).count(b"\n") + 1
+    except OSError:
+        return text
+    text = text[:m.start()] + f"at line {line}" + text[m.end():]
+    return text.replace("invalid valid token", "is not a valid token")
+
+
+def is_parse_error(exc: BaseException) -> bool:
+    """Whether an ifcopenshell RuntimeError is the lazy parser meeting text that is not IFC-SPF."""
+    return isinstance(exc, RuntimeError) and re.search(r"\bat offset \d+", str(exc)) is not None
+
+
+def raise_if_parse_error(path: str | os.PathLike[str], exc: BaseException) -> None:
+    """A syntax error found while reading an entity makes the whole model unreadable, as it would
+    have at the open had the file been parsed eagerly: one line naming the file and its line."""
+    if is_parse_error(exc):
+        raise ModelReadError(f"cannot be parsed as IFC: {explain_parse_error(path, exc)}", path=str(path)) from None
 
 
 def _zipped_model_tail(p: Path) -> bytes | None:
@@ -167,22 +229,26 @@ def _schema_of(model: Any) -> str:
 
 def build_index(path: str | os.PathLike[str], model: Any = None) -> ModelIndex:
     """Open ``path`` (unless ``model`` is given) and walk its relationships once."""
-    problems: tuple[str, ...] = ()
+    log = ""
     if model is None:
-        model, problems = open_model_checked(path)
+        model, log = _open(path)
     schema = _schema_of(model)
     try:
         units = UnitContext.from_model(model)
     except (UnitDefinitionError, AttributeError, RuntimeError, TypeError, ValueError, ArithmeticError) as exc:
-        raise ModelReadError(f"unit assignment cannot be read: {exc}{_VALIDATE_HINT}", path=str(path)) from None
-    idx = ModelIndex(path=str(path), file=model, schema=schema, units=units, parse_problems=problems)
+        raise ModelReadError(f"unit assignment cannot be read: {explain_parse_error(path, exc)}{_VALIDATE_HINT}",
+                             path=str(path)) from None
+    idx = ModelIndex(path=str(path), file=model, schema=schema, units=units, parse_log=[log] if log else [])
     try:
         _walk(model, idx)
     except RuntimeError as exc:  # dangling reference or unparsable instance deep in the file
-        raise ModelReadError(f"broken relationship in the model: {exc}", path=str(path)) from None
+        raise_if_parse_error(path, exc)
+        raise ModelReadError(f"broken relationship in the model: {explain_parse_error(path, exc)}",
+                             path=str(path)) from None
     except (AttributeError, TypeError) as exc:  # a relationship holding a value of the wrong type
         raise ModelReadError(f"broken relationship in the model: {type(exc).__name__}: {exc}{_VALIDATE_HINT}",
                              path=str(path)) from None
+    idx.drain_log()
     return idx
 
 

@@ -33,7 +33,14 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from modelcheck.ifc.index import ModelIndex, SIValue, find_property, measure_si, property_si
+from modelcheck.ifc.index import (
+    ModelIndex,
+    SIValue,
+    find_property,
+    measure_si,
+    property_si,
+    raise_if_parse_error,
+)
 from modelcheck.ifc.profiles import ProfileSection, UnsupportedProfile, section_of
 from modelcheck.table import member_columns
 from modelcheck.units import MissingUnit
@@ -123,6 +130,7 @@ class _Reader:
         except UnsupportedProfile as exc:
             return str(exc)
         except (RuntimeError, AttributeError, TypeError, ValueError, ArithmeticError) as exc:
+            raise_if_parse_error(self.idx.path, exc)
             return f"{prof.is_a()} #{prof.id()} cannot be computed: {exc}"
         lf = self.lf
         return Section(ps.area * lf * lf, ps.r_min * lf, ps.source, ps.name, prof.is_a(), ps.shape,
@@ -735,7 +743,8 @@ def read_members(idx: ModelIndex, *, use_library: bool = True) -> pd.DataFrame:
         try:
             rows.append(reader.member(el, analysis))
         except RuntimeError as exc:  # a dangling or malformed entity deep below this member
-            rows.append(_unreadable_member(el, f"member cannot be read: {exc}"))
+            raise_if_parse_error(idx.path, exc)
+            rows.append(_unreadable_member(el, f"member cannot be read: {idx.explain(exc)}"))
         except (AttributeError, TypeError, ValueError, ArithmeticError) as exc:
             # ifcopenshell hands back whatever the file holds, even where the schema allows
             # no such value (text for a number, a number for a reference): this member only
@@ -743,7 +752,10 @@ def read_members(idx: ModelIndex, *, use_library: bool = True) -> pd.DataFrame:
                 el, f"member cannot be read: an entity below #{el.id()} holds a value the IFC schema does "
                     f"not allow ({type(exc).__name__}: {exc}); 'modelcheck check --validate' lists them"))
     df = _assemble(idx.path, rows)
-    df.attrs["model_warnings"] = list(idx.parse_problems) + reader.model_warnings + list(idx.units.problems)
+    idx.drain_log()  # what parsing the members' entities logged (the file is parsed lazily)
+    problems = idx.parse_problems
+    df.attrs["model_warnings"] = list(problems) + reader.model_warnings + list(idx.units.problems)
+    df.attrs["parse_problem_count"] = len(problems)
     return df
 
 
