@@ -735,11 +735,32 @@ def member_entities(idx: ModelIndex) -> list[tuple[Any, bool]]:
     return out
 
 
-def read_members(idx: ModelIndex, *, use_library: bool = True) -> pd.DataFrame:
-    """The member table of one model (see ``modelcheck.table``)."""
+def member_keys(idx: ModelIndex, entities: list[tuple[Any, bool]]) -> tuple[list[str], list[str | None]]:
+    """(GlobalId, Tag) of each entity as the member table will hold them: '#id' for a member with
+    no GlobalId, None for no Tag. Reads two attributes per member, nothing below them."""
+    reader = _Reader(idx, False)
+    gids: list[str] = []
+    tags: list[str | None] = []
+    for el, _ in entities:
+        gid = tag = None
+        try:
+            gid = el.get_argument(0)
+            if reader._positions(el.is_a())[0]:
+                tag = el.get_argument(7)
+        except RuntimeError as exc:
+            raise_if_parse_error(idx.path, exc)
+        gids.append(gid if isinstance(gid, str) else f"#{el.id()}")
+        tags.append(tag if isinstance(tag, str) else None)
+    return gids, tags
+
+
+def read_members(idx: ModelIndex, *, use_library: bool = True,
+                 entities: list[tuple[Any, bool]] | None = None) -> pd.DataFrame:
+    """The member table of one model (see ``modelcheck.table``); of ``entities`` only (as
+    ``member_entities`` gives them) when given."""
     reader = _Reader(idx, use_library)
     rows: list[tuple[Any, ...]] = []
-    for el, analysis in member_entities(idx):
+    for el, analysis in (member_entities(idx) if entities is None else entities):
         try:
             rows.append(reader.member(el, analysis))
         except RuntimeError as exc:  # a dangling or malformed entity deep below this member

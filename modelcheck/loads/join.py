@@ -38,7 +38,7 @@ Example::
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import asdict, dataclass, field
+from dataclasses import dataclass, field
 from typing import Any, Literal
 
 import numpy as np
@@ -108,29 +108,38 @@ class ForceReport:
                 "ambiguous": len(self.ambiguous), "missing": len(self.missing),
                 "overridden": len(self.overridden), "messages": len(self.messages)}
 
-    def to_dict(self) -> dict[str, Any]:
-        """Plain lists, dicts, strings and ints (``json.dumps`` works on it)."""
-        return {
+    def to_dict(self, *, unmatched: bool = True) -> dict[str, Any]:
+        """Plain lists, dicts, strings and ints (``json.dumps`` works on it); without the
+        ``unmatched`` list when ``unmatched=False`` (a row unmatched in one model may match in
+        another: that is judged over all models)."""
+        out: dict[str, Any] = {
             "counts": self.counts,
             "used_by_route": {r: int(self.used_by_route.get(r, 0)) for r in ROUTES},
-            "unmatched": [asdict(x) for x in self.unmatched],
-            "duplicates": [{**asdict(x), "ignored": list(x.ignored)} for x in self.duplicates],
-            "ambiguous": [{**asdict(x), "global_ids": list(x.global_ids)} for x in self.ambiguous],
-            "missing": [asdict(x) for x in self.missing],
-            "overridden": [asdict(x) for x in self.overridden],
-            "messages": list(self.messages),
         }
+        if unmatched:
+            out["unmatched"] = [dict(vars(x)) for x in self.unmatched]
+        out.update({
+            "duplicates": [{**vars(x), "ignored": list(x.ignored)} for x in self.duplicates],
+            "ambiguous": [{**vars(x), "global_ids": list(x.global_ids)} for x in self.ambiguous],
+            "missing": [dict(vars(x)) for x in self.missing],
+            "overridden": [dict(vars(x)) for x in self.overridden],
+            "messages": list(self.messages),
+        })
+        return out
 
 
 def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
                 property_forces: pd.DataFrame | None = None, analysis_forces: pd.DataFrame | None = None,
                 *, messages: Sequence[str] = (),
-                precedence_by: Literal["case", "member"] = "case") -> tuple[pd.DataFrame, ForceReport]:
+                precedence_by: Literal["case", "member"] = "case",
+                shared_tags: dict[str, tuple[str, ...]] | None = None) -> tuple[pd.DataFrame, ForceReport]:
     """The forces table (``FORCE_COLUMNS``) of ``members`` and the report of the join.
 
     ``tables``: results of ``read_load_table`` in command-line order. ``property_forces`` /
     ``analysis_forces``: forces tables of those routes (None when not used); ``messages``: the
     routes' messages, copied into the report. See the module docstring for the rules.
+    ``shared_tags``: when ``members`` is a part of one model, the tags several members of the
+    whole model share (tag -> their GlobalIds): rows with those tags are ambiguous here too.
     """
     ids = members[["model", "global_id", "tag"]].copy()
     ids = ids[ids["global_id"].notna()]
@@ -141,7 +150,7 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
     parts: list[pd.DataFrame] = []
     rows = _table_rows(tables, extra_messages)
     if not rows.empty:
-        matched, um, amb = _match_table(rows, ids)
+        matched, um, amb = _match_table(rows, ids, shared_tags or {})
         unmatched += um
         ambiguous += amb
         parts.append(matched.assign(_route=0))
@@ -187,8 +196,9 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
 
     have = forces[["model", "global_id"]].drop_duplicates()
     miss = ids[["model", "global_id"]].drop_duplicates().merge(have, how="left", indicator=True)
-    missing = [MissingForce(m, g) for m, g in
-               miss.loc[miss["_merge"] == "left_only", ["model", "global_id"]].itertuples(index=False)]
+    missing = sorted((MissingForce(m, g) for m, g in   # by GlobalId: the same order in whatever parts
+                      miss.loc[miss["_merge"] == "left_only", ["model", "global_id"]].itertuples(index=False)),
+                     key=lambda x: (str(x.model), str(x.global_id)))
 
     report = ForceReport(unmatched=tuple(unmatched), duplicates=tuple(duplicates), ambiguous=tuple(ambiguous),
                          missing=tuple(missing), overridden=tuple(overridden),
@@ -210,7 +220,8 @@ def _table_rows(tables: Sequence[pd.DataFrame], notes: list[str]) -> pd.DataFram
     return rows
 
 
-def _match_table(rows: pd.DataFrame, ids: pd.DataFrame) -> tuple[pd.DataFrame, list[UnmatchedRow], list[AmbiguousTag]]:
+def _match_table(rows: pd.DataFrame, ids: pd.DataFrame, shared: dict[str, tuple[str, ...]]
+                 ) -> tuple[pd.DataFrame, list[UnmatchedRow], list[AmbiguousTag]]:
     """Table rows -> (member rows, unmatched rows, ambiguous tags), per model, by merges."""
     by_gid = rows[rows["key_kind"] == "global_id"]
     by_tag = rows[rows["key_kind"] == "tag"]
@@ -225,10 +236,11 @@ def _match_table(rows: pd.DataFrame, ids: pd.DataFrame) -> tuple[pd.DataFrame, l
     t = by_tag.merge(tagged, left_on="key", right_on="tag", how="left")
     t_hit = t[t["model"].notna()]
     per_model = t_hit.groupby(["_order", "model"])["global_id"].transform("size")
-    t_ok = t_hit[per_model == 1]
-    t_amb = t_hit[per_model > 1]
+    in_shared = t_hit["key"].isin(list(shared)) if shared else np.zeros(len(t_hit), dtype=bool)
+    t_ok = t_hit[(per_model == 1) & ~in_shared]
+    t_amb = t_hit[(per_model > 1) | in_shared]
     ambiguous = [
-        AmbiguousTag(str(model), str(tag), tuple(sorted(map(str, gids))), str(src))
+        AmbiguousTag(str(model), str(tag), shared.get(str(tag)) or tuple(sorted(map(str, gids))), str(src))
         for (_o, model, tag, src), gids in t_amb.groupby(["_order", "model", "key", "source"], sort=True)["global_id"]
     ]
     matched = pd.concat([g_hit[cols], t_ok[cols]], ignore_index=True)

@@ -28,13 +28,19 @@ class MessageLog:
         if ident is not None:
             ids.append(str(ident))
 
+    def merge(self, other: MessageLog) -> None:
+        """Add another log's messages (of another part of the same model) to this one."""
+        for text, ids in other._ids.items():
+            self._nouns.setdefault(text, other._nouns[text])
+            self._ids.setdefault(text, []).extend(ids)
+
     def messages(self) -> list[str]:
         out = []
         for text, ids in self._ids.items():
             if not ids:
                 out.append(f"{self.model}: {text}")
                 continue
-            uniq = list(dict.fromkeys(ids))
+            uniq = sorted(set(ids))  # the same listing however the model was shared out
             shown = ", ".join(uniq[:SHOWN_IDS])
             more = f" and {len(uniq) - SHOWN_IDS} more" if len(uniq) > SHOWN_IDS else ""
             one, many = self._nouns[text]

@@ -65,18 +65,22 @@ def parse_property_name(text: str) -> tuple[str, str]:
 
 
 def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str, prop_name: str,
-                         load_case: str | None = None) -> tuple[pd.DataFrame, list[str]]:
+                         load_case: str | None = None, *,
+                         log: MessageLog | None = None) -> tuple[pd.DataFrame, list[str]]:
     """Forces of this model's members from property ``pset_name.prop_name``.
 
     ``members`` is the member table (rows of other models are ignored: this model's rows are
     those whose ``model`` equals ``idx.path``). Returns the forces table (``FORCE_COLUMNS``,
     newtons, load case: a ``LoadCase`` label in the same property set, else ``load_case``, else
     ``'default'``) and messages for values that could not be
-    used. Members without the property simply get no row.
+    used. Members without the property simply get no row. With ``log`` given, the messages go
+    into it instead (the returned list is empty): a model checked in parts merges the parts' logs.
     """
+    own_log = log is None
     case = load_case if load_case is not None else DEFAULT_LOAD_CASE
     label = f"{pset_name}.{prop_name}"
-    log = MessageLog(idx.path)
+    if log is None:
+        log = MessageLog(idx.path)
     sel = members["model"] == idx.path
     mine = members.loc[sel, "global_id"]
     # the reader's entity ids spare a by_guid look-up per member; tables built by hand lack them
@@ -142,7 +146,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
         keys.append(reading.unit_key)
         sources.append(f"{label} ({origin})")
     if not gids:
-        return empty_forces(), log.messages()
+        return empty_forces(), log.messages() if own_log else []
     # unit factors: one per distinct unit, then one vectorised multiplication
     key_arr = np.asarray(keys, dtype=object)
     codes, uniques = pd.factorize(key_arr)
@@ -165,7 +169,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
         "axial_force": forces[ok],
         "source": np.asarray(sources, dtype=object)[ok],
     }, columns=list(FORCE_COLUMNS))
-    return out, log.messages()
+    return out, log.messages() if own_log else []
 
 
 def _factor(idx: ModelIndex, key: str) -> float:
