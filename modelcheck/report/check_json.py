@@ -8,8 +8,10 @@ from __future__ import annotations
 
 import datetime as _dt
 import math
+from json.encoder import encode_basestring as _escape  # noqa: E402  (C escaper: "…" with \" \\ \n \u00XX)
 from typing import Any
 
+import numpy as np
 import pandas as pd
 
 from modelcheck.report.members import CAUTION
@@ -73,11 +75,138 @@ def encode_rows(rows: list[dict[str, Any]]) -> bytes:
     return _ROW_SEP.join([enc(r) for r in rows])
 
 
-def encode_results(results: pd.DataFrame, chunk: int = 8192) -> bytes:
-    """``encode_rows(result_dicts(results))``, a chunk of rows at a time: the dicts of a
-    400,000-result report never all exist at once (they would take several hundred MB)."""
-    return _ROW_SEP.join(encode_rows(result_dicts(results.iloc[i:i + chunk]))
-                         for i in range(0, len(results), chunk))
+def join_rows(chunks: list[bytes]) -> bytes:
+    """Encoded rows of consecutive parts as one run of rows."""
+    return _ROW_SEP.join(c for c in chunks if c)
+
+
+def encode_results(results: pd.DataFrame, chunk: int = 65536) -> bytes:
+    """The result rows of the JSON report, encoded: the bytes ``encode_rows(result_dicts(results))``
+    gives, built without a dict per row.
+
+    What many rows share is encoded once (a member's identity, a check's unit and sources, the
+    combinations of check, load case and status); the numbers of a chunk are rounded to six
+    significant digits over arrays and written by one orjson call; each row is then joined
+    from those pieces. About five times faster than a dict per row, which matters at 400,000
+    results."""
+    pieces = []
+    for start in range(0, len(results), chunk):
+        pieces.append(_encode_chunk(results.iloc[start:start + chunk]))
+    return _ROW_SEP.join(p for p in pieces if p)
+
+
+def round_sig6(values: Any) -> np.ndarray:
+    """``float(f"{v:.6g}")`` of each value, over an array (NaN where not finite).
+
+    A power of ten up to 10^22 is exact in binary, so rounding the scaled value to an integer
+    and dividing it back gives the double nearest the six-digit decimal, as the text round trip
+    does; the few values within a hair of a rounding tie are rounded through the text."""
+    x = np.asarray(values, dtype=float)
+    out = np.where(np.isfinite(x), 0.0, np.nan)
+    ok = np.flatnonzero(np.isfinite(x) & (x != 0))
+    v = x[ok]
+    if len(v):
+        with np.errstate(all="ignore"):
+            k = 5 - np.floor(np.log10(np.abs(v))).astype(np.int64)
+            up = 10.0 ** np.clip(k, 0, 308)
+            down = 10.0 ** np.clip(-k, 0, 308)
+            scaled = np.where(k >= 0, v * up, v / down)
+            whole = np.round(scaled)
+            out[ok] = np.where(k >= 0, whole / up, whole * down)
+            tie = np.abs(np.abs(scaled - np.trunc(scaled)) - 0.5) < 1e-6
+            near_edge = (np.abs(scaled) < 1e5 * (1 + 1e-9)) | (np.abs(scaled) >= 1e6 * (1 - 1e-9))
+        for j in np.flatnonzero(tie | near_edge | ~np.isfinite(scaled)).tolist():
+            out[ok[j]] = float(f"{v[j]:.6g}")
+    return out
+
+
+def _number_texts(values: np.ndarray) -> np.ndarray:
+    """JSON texts (bytes) of rounded numbers (b'null' for NaN), from a single orjson call."""
+    import orjson
+
+    return _objects(orjson.dumps([None if v != v else v for v in values.tolist()])[1:-1].split(b","))
+
+
+def _text(value: Any) -> str:
+    """A JSON string (or null) as orjson writes it: the standard library's C escaper gives the
+    same text (checked in the tests) and is several times faster per call on short strings."""
+    if value is None:
+        return "null"
+    if not isinstance(value, str):
+        import orjson
+
+        return orjson.dumps(value).decode("utf-8")
+    return _escape(value)
+
+
+def _encode_all(texts: list[str]) -> np.ndarray:
+    """UTF-8 of each text, in one encode: escaped JSON text holds no NUL, so NUL separates them."""
+    return _objects("\x00".join(texts).encode("utf-8").split(b"\x00"))
+
+
+def _objects(items: list[Any]) -> np.ndarray:
+    out = np.empty(len(items), dtype=object)
+    out[:] = items
+    return out
+
+
+def _encode_chunk(res: pd.DataFrame) -> bytes:
+    """One chunk of rows, assembled column by column (object arrays of bytes) and joined once."""
+    import orjson
+
+    n = len(res)
+    if not n:
+        return b""
+
+    def col(name: str) -> list[Any]:
+        return res[name].tolist() if name in res.columns else [None] * n
+
+    # a member's identity, encoded once per member
+    models, gids = col("model"), col("global_id")
+    codes, uniq = pd.factorize(pd.Series([f"{m}\x00{g}" for m, g in zip(models, gids, strict=True)], dtype=object))
+    first = np.zeros(len(uniq), dtype=np.int64)
+    first[codes[::-1]] = np.arange(n)[::-1]
+    classes, names, tags = col("ifc_class"), col("name"), col("tag")
+    prefix = _encode_all([f'{{"model":{_text(models[i])},"global_id":{_text(gids[i])},'
+                          f'"ifc_class":{_text(classes[i])},"name":{_text(_none(names[i]))},'
+                          f'"tag":{_text(_none(tags[i]))},"check":' for i in first.tolist()])[codes]
+
+    def encoded(columns: list[str], make: Any) -> np.ndarray:
+        """make(key) for each row's values of ``columns``, computed once per distinct key."""
+        frame = res.reindex(columns=columns).astype(object)
+        frame = frame.where(frame.notna(), None)
+        kc, ku = pd.factorize(pd.MultiIndex.from_frame(frame), use_na_sentinel=False)
+        return _encode_all([make(k) for k in ku])[kc]
+
+    mid = encoded(["check", "load_case", "status"],
+                  lambda k: f'{_text(k[0])},"load_case":{_text(_none(k[1]))},"status":{_text(k[2])},"demand":')
+
+    def quantity(values: str, sources: str) -> np.ndarray:
+        tail = encoded(["unit", sources],
+                       lambda k: f',"unit":{_text(str(k[0] or ""))},"source":{_text(str(k[1] or ""))}}}')
+        rounded = round_sig6(col(values))
+        out = _objects([b"null"] * n)
+        ok = np.flatnonzero(~np.isnan(rounded))
+        out[ok] = b'{"value":' + _number_texts(rounded[ok]) + tail[ok]
+        return out
+
+    messages = col("message")
+    message = _encode_all([_escape(m) if type(m) is str else _text(str(m or "")) for m in messages])
+    missing = _objects([orjson.dumps(list(m)) if m else b"[]" for m in col("missing")])
+    pieces = [prefix, mid, quantity("demand", "demand_source"), b',"capacity":',
+              quantity("capacity", "capacity_source"), b',"ratio":', _number_texts(round_sig6(col("ratio"))),
+              b',"missing":', missing, b',"message":', message]
+    if "suggestion" in res.columns:
+        sugg = _objects([b"null"] * n)
+        for i, x in enumerate(col("suggestion")):
+            if isinstance(x, dict):
+                sugg[i] = orjson.dumps(x)
+        pieces += [b',"suggestion":', sugg]
+    pieces.append(b"}" + _ROW_SEP)
+    grid = np.empty((n, len(pieces)), dtype=object)
+    for j, p in enumerate(pieces):
+        grid[:, j] = p
+    return b"".join(grid.ravel().tolist())[:-len(_ROW_SEP)]
 
 
 class EncodedRows:
