@@ -374,13 +374,19 @@ def cmd_check(args: argparse.Namespace) -> int:
         from modelcheck.report.compare import load_baseline
 
         baseline = load_baseline(args.baseline)
-    ruleset = load_ruleset(args.rules or "steel-asd-us")
-    fopts = force_options(args, ruleset)
+    from modelcheck.timing import stage
+
+    with stage("rule set + load tables"):
+        ruleset = load_ruleset(args.rules or "steel-asd-us")
+        fopts = force_options(args, ruleset)
     jobs = args.jobs if args.jobs is not None else (os.cpu_count() or 1)
     if jobs < 1:
         raise UsageError("--jobs must be at least 1")
-    run = _run_with_progress(paths, ruleset, fopts, jobs, bool(args.validate), args.scheduler,
-                             encode_json="json" in files)
+    # the JSON report alone needs no results table beyond the statuses (summary, exit code)
+    only_json = formats == ["json"] and not args.baseline and not args.annotate
+    with stage("check models"):
+        run = _run_with_progress(paths, ruleset, fopts, jobs, bool(args.validate), args.scheduler,
+                                 encode_json="json" in files, slim=only_json)
     now = dt.datetime.now(dt.UTC).replace(microsecond=0)
     comparison = None
     if baseline is not None:
@@ -389,8 +395,11 @@ def cmd_check(args: argparse.Namespace) -> int:
         comparison = compare(check_document(run, now=now), baseline)
     if len(files) > 1:
         os.makedirs(args.output, exist_ok=True)
+    from modelcheck.timing import stage
+
     for fmt in files:
-        _write_format(fmt, run, targets[fmt], inputs, now, comparison, bool(args.strict))
+        with stage(f"write {fmt}"):
+            _write_format(fmt, run, targets[fmt], inputs, now, comparison, bool(args.strict))
     if args.annotate:
         _annotate(run, args.annotate, inputs)
     if "console" in formats:
@@ -408,20 +417,20 @@ def cmd_check(args: argparse.Namespace) -> int:
 
 
 def _run_with_progress(paths: list[str], ruleset: Any, fopts: Any, jobs: int, validate: bool,
-                       scheduler: str | None, encode_json: bool = False) -> Any:
+                       scheduler: str | None, encode_json: bool = False, slim: bool = False) -> Any:
     """Run the batch; a rich progress bar on a terminal with several models, quiet otherwise."""
     from modelcheck.pipeline import run_check
 
     if len(paths) < 2 or not sys.stderr.isatty():
         return run_check(paths, ruleset, fopts, jobs=jobs, validate=validate, scheduler=scheduler,
-                         encode_json=encode_json)
+                         encode_json=encode_json, slim=slim)
     from rich.console import Console
     from rich.progress import Progress
 
     with Progress(transient=True, console=Console(stderr=True)) as bar:
         task = bar.add_task("checking models", total=len(paths))
         return run_check(paths, ruleset, fopts, jobs=jobs, validate=validate, scheduler=scheduler,
-                         progress=lambda: bar.advance(task), encode_json=encode_json)
+                         progress=lambda: bar.advance(task), encode_json=encode_json, slim=slim)
 
 
 def _write_format(fmt: str, run: Any, out: str | None, inputs: list[str], now: Any, comparison: Any,

@@ -37,6 +37,7 @@ class ModelData:
     force_report: dict[str, Any] = field(default_factory=dict)   # ForceReport.to_dict() less 'unmatched'
     warnings: list[str] = field(default_factory=list)      # model-level warnings
     validation: list[str] = field(default_factory=list)    # schema validation findings (--validate)
+    report: Any = None   # the join's ForceReport, kept only for a part of a model (modelcheck.parallel)
 
 
 @dataclass(frozen=True)
@@ -69,8 +70,6 @@ def expand_paths(items: list[str]) -> list[str]:
 def read_model(path: str, forces: ForceOptions | None = None, *, validate: bool = False) -> ModelData:
     """Read one model into a ModelData; a model that cannot be read gets ``error`` set."""
     from modelcheck.ifc.index import build_index
-    from modelcheck.ifc.reader import read_members
-    from modelcheck.report.quantities import system_for_model
 
     data = ModelData(path=path)
     try:
@@ -78,16 +77,38 @@ def read_model(path: str, forces: ForceOptions | None = None, *, validate: bool 
     except ModelcheckError as exc:
         data.error = str(exc)
         return data
+    describe_model(data, idx, validate)
+    read_into(data, idx, forces)
+    return data
+
+
+def describe_model(data: ModelData, idx: Any, validate: bool) -> None:
+    """Schema, display system and (``validate``) the schema-validation findings of an opened model."""
+    from modelcheck.report.quantities import system_for_model
+
     data.schema = idx.schema
     data.system = system_for_model(idx)
     if validate:
         data.validation = validate_model(idx)
+
+
+def read_into(data: ModelData, idx: Any, forces: ForceOptions | None, entities: list[Any] | None = None,
+              **join: Any) -> None:
+    """Members (of ``entities`` only, when given) and their forces into ``data``; whatever the
+    file holds that the schema forbids makes the model's error, not a traceback. ``join``: the
+    extra arguments of ``attach_forces`` for a part of a model."""
+    from modelcheck.ifc.reader import read_members
+
+    path = data.path
+    from modelcheck.timing import stage
+
     try:
-        data.members = read_members(idx)
+        with stage("read members"):
+            data.members = read_members(idx, entities=entities)
         data.member_count = len(data.members)
         data.warnings = list(data.members.attrs.get("model_warnings", []))
         if forces is not None:
-            attach_forces(data, idx, forces)
+            attach_forces(data, idx, forces, **join)
             if idx.drain_log():  # entities the force routes read were parsed (lazily) just now
                 n = data.members.attrs.get("parse_problem_count", 0)
                 data.warnings = list(idx.parse_problems) + data.warnings[n:]
@@ -104,34 +125,47 @@ def read_model(path: str, forces: ForceOptions | None = None, *, validate: bool 
                       else f"{path}: cannot be read: a value the IFC schema does not allow "
                       f"({type(exc).__name__}: {exc}); 'modelcheck check --validate' lists where")
         data.members, data.member_count, data.forces = None, 0, empty_forces()
-    return data
 
 
-def attach_forces(data: ModelData, idx: Any, opts: ForceOptions) -> None:
-    """Join the forces of every route onto one model's members (precedence: modelcheck.loads.join)."""
+def attach_forces(data: ModelData, idx: Any, opts: ForceOptions, *, analysis: Any = None,
+                  prop_log: Any = None, shared_tags: dict[str, tuple[str, ...]] | None = None) -> None:
+    """Join the forces of every route onto one model's members (precedence: modelcheck.loads.join).
+
+    For a part of a model (``modelcheck.parallel``): ``analysis`` is the (forces, messages) of the
+    analysis route read over the whole model, ``prop_log`` collects the property route's messages
+    and ``shared_tags`` are the model's tags several members share; ``data.report`` keeps the
+    join's ForceReport for merging."""
     from modelcheck.loads.analysis import forces_from_analysis
     from modelcheck.loads.join import join_forces
     from modelcheck.loads.properties import forces_from_property
 
     messages: list[str] = []
     prop = ana = None
+    from modelcheck.timing import stage
+
     if opts.property is not None:
-        prop, msgs = forces_from_property(idx, data.members, opts.property[0], opts.property[1])
+        with stage("forces from property"):
+            prop, msgs = forces_from_property(idx, data.members, opts.property[0], opts.property[1], log=prop_log)
         messages += list(msgs)
-    if opts.analysis:
+    if analysis is not None:
+        ana, msgs = analysis
+        messages += list(msgs)
+    elif opts.analysis:
         ana, msgs = forces_from_analysis(idx, data.members)
         messages += list(msgs)
-    forces, report = join_forces(data.members, list(opts.tables), prop, ana, messages=messages)
+    with stage("join forces"):
+        forces, report = join_forces(data.members, list(opts.tables), prop, ana, messages=messages,
+                                     shared_tags=shared_tags)
     data.forces = forces
     unmatched_here = {u.source for u in report.unmatched}
     data.matched_rows = {s for t in opts.tables for s in t["source"] if s not in unmatched_here}
-    rep = report.to_dict()
-    rep.pop("unmatched", None)  # a row unmatched here may match another model: judged over all models
-    data.force_report = rep
-    data.force_messages = list(report.messages) + _join_lines(report)
+    data.force_report = report.to_dict(unmatched=False)  # unmatched: judged over all models
+    data.force_messages = list(report.messages) + join_lines(report)
+    if prop_log is not None:
+        data.report = report
 
 
-def _join_lines(report: Any) -> list[str]:
+def join_lines(report: Any) -> list[str]:
     """One line per kind of join problem, naming up to ten ids."""
     out = []
 
@@ -213,15 +247,30 @@ class CheckedModel:
 
 
 def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: bool = False,
-                encode_json: bool = False) -> CheckedModel:
+                encode_json: bool = False, parts: int = 1, slim: bool = False) -> CheckedModel:
     """Read one model, join its forces, run the rule set: the unit of work of a batch.
 
     ``encode_json`` also encodes the results as the JSON report's rows here, in the worker, so
-    a batch does not encode every model's results one after another in the parent."""
+    a batch does not encode every model's results one after another in the parent. ``parts`` > 1
+    shares a large model out to that many processes (``modelcheck.parallel``). ``slim`` (with
+    ``encode_json``): the JSON rows are the only report wanted, so of the results table only the
+    status column comes back (what the summary and the exit code read)."""
+    if parts > 1:
+        from modelcheck.parallel import check_model_split
+
+        split = check_model_split(path, ruleset_ref, forces, parts=parts, validate=validate,
+                                  encode_json=encode_json, slim=slim)
+        if split is not None:
+            return split
+    data = read_model(path, forces, validate=validate)
+    return finish_check(data, ruleset_ref, encode_json, slim)
+
+
+def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: bool = False) -> CheckedModel:
+    """Rules, suggestions and (``encode_json``) JSON rows of a model read into ``data``."""
     from modelcheck.rules.engine import run_checks
     from modelcheck.rules.ruleset import load_ruleset
 
-    data = read_model(path, forces, validate=validate)
     if data.error is not None or data.members is None:
         return CheckedModel(data)
     from modelcheck.design.suggest import suggest
@@ -235,6 +284,8 @@ def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: boo
         from modelcheck.report.check_json import encode_results
 
         rows = encode_results(results)
+        if slim:
+            results = results.loc[:, ["status"]]
     # send back only what the reports read: a batch worker's result crosses a process boundary
     data.members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
     data.forces = data.forces.iloc[0:0]
@@ -253,7 +304,7 @@ class CheckRun:
 
 def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int = 1,
               validate: bool = False, progress: Any = None, scheduler: str | None = None,
-              encode_json: bool = False) -> CheckRun:
+              encode_json: bool = False, slim: bool = False) -> CheckRun:
     """Check every model; unreadable ones are recorded with their error, the rest go on.
 
     ``jobs`` > 1 runs models in that many local worker processes; ``scheduler`` sends them to a
@@ -272,14 +323,16 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
 
 
         with ProcessPoolExecutor(max_workers=min(jobs, len(paths))) as pool:
-            futures = [pool.submit(check_model, p, ref, forces, validate, encode_json) for p in paths]
+            futures = [pool.submit(check_model, p, ref, forces, validate, encode_json, 1, slim) for p in paths]
             for fut in futures:
                 checked.append(fut.result())
                 if progress is not None:
                     progress()
     else:
+        # one model and several processes: the model is shared out among them
+        parts = jobs if len(paths) == 1 else 1
         for p in paths:
-            checked.append(check_model(p, ref, forces, validate))
+            checked.append(check_model(p, ref, forces, validate, encode_json and parts > 1, parts, slim))
             if progress is not None:
                 progress()
     frames = [c.results for c in checked if c.results is not None and len(c.results)]

@@ -57,6 +57,7 @@ class ModelIndex:
     profile_props: dict[int, list[Any]] = field(default_factory=dict)   # profile id -> property entities
     object_profile_props: dict[int, list[Any]] = field(default_factory=dict)  # IFC2X3: element id -> profile props
     parse_log: list[str] = field(default_factory=list)  # ifcopenshell's parser log, as drained
+    file_fds: tuple[int, ...] = ()   # descriptors the (lazily reading) parser keeps open on the file
 
     @property
     def parse_problems(self) -> tuple[str, ...]:
@@ -88,12 +89,30 @@ def open_model(path: str | os.PathLike[str]) -> Any:
 def open_model_checked(path: str | os.PathLike[str]) -> tuple[Any, tuple[str, ...]]:
     """``open_model``, and what the parser logged on the way (text it skipped, instances with
     attributes missing), one line each naming the file's line where the parser gives an offset."""
-    model, log = _open(path)
+    model, log, _ = _open(path)
     return model, _parser_problems(Path(path), log)
 
 
-def _open(path: str | os.PathLike[str]) -> tuple[Any, str]:
-    """The opened model and the parser's raw log of the open.
+def _fds_on(p: Path) -> tuple[int, ...]:
+    """This process's open descriptors on file ``p`` (Linux; () elsewhere)."""
+    try:
+        st = p.stat()
+        names = os.listdir("/proc/self/fd")
+    except OSError:  # no /proc: not Linux; such systems do not share a model among processes
+        return ()
+    out = []
+    for name in names:
+        try:
+            s = os.fstat(int(name))
+        except (OSError, ValueError):
+            continue
+        if (s.st_dev, s.st_ino) == (st.st_dev, st.st_ino):
+            out.append(int(name))
+    return tuple(sorted(out))
+
+
+def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
+    """The opened model, the parser's raw log of the open and the descriptors it keeps open.
 
     The model is opened lazily (``ifcopenshell.open(..., lazy=True)``): one quick indexing pass,
     and each entity parsed when it is first read. A checker reads a small part of a model's
@@ -138,7 +157,7 @@ def _open(path: str | os.PathLike[str]) -> tuple[Any, str]:
     schema = _schema_of(model)
     if schema not in SUPPORTED_SCHEMAS:
         raise ModelReadError(f"schema {model.schema!r} is not supported (IFC2X3, IFC4, IFC4X3)", path=name)
-    return model, ifcopenshell.get_log()
+    return model, ifcopenshell.get_log(), _fds_on(p)
 
 
 def explain_parse_error(path: str | os.PathLike[str], exc: BaseException) -> str:
@@ -229,16 +248,17 @@ def _schema_of(model: Any) -> str:
 
 def build_index(path: str | os.PathLike[str], model: Any = None) -> ModelIndex:
     """Open ``path`` (unless ``model`` is given) and walk its relationships once."""
-    log = ""
+    log, fds = "", ()
     if model is None:
-        model, log = _open(path)
+        model, log, fds = _open(path)
     schema = _schema_of(model)
     try:
         units = UnitContext.from_model(model)
     except (UnitDefinitionError, AttributeError, RuntimeError, TypeError, ValueError, ArithmeticError) as exc:
         raise ModelReadError(f"unit assignment cannot be read: {explain_parse_error(path, exc)}{_VALIDATE_HINT}",
                              path=str(path)) from None
-    idx = ModelIndex(path=str(path), file=model, schema=schema, units=units, parse_log=[log] if log else [])
+    idx = ModelIndex(path=str(path), file=model, schema=schema, units=units, parse_log=[log] if log else [],
+                     file_fds=fds)
     try:
         _walk(model, idx)
     except RuntimeError as exc:  # dangling reference or unparsable instance deep in the file

@@ -1,0 +1,317 @@
+"""One large model checked by several processes at once.
+
+The model is opened and its relationships walked once, in this process. Its members are then
+sorted by GlobalId and shared out in contiguous runs, one per process; each process is a fork of
+this one (it inherits the opened model and the maps, nothing is copied or re-read), reads its
+members, joins their forces, runs the rule set, makes its suggestions and encodes its rows of
+the JSON report. The parts come back in GlobalId order, so their results and JSON rows simply
+follow one another: the report is the one a single process writes, byte for byte.
+
+What a part cannot judge alone is settled over the whole model, here, before the fork or after:
+
+* a tag that several members of the model share is ambiguous in every part (``shared_tags``);
+* the structural-analysis route reads every result of the model once (it also reports results
+  of elements that are not members);
+* a load-table row is unmatched only when no part used it (``matched_rows``, as across models);
+* the parser's log, the property route's messages and the join's report are merged, and their
+  lines written once.
+
+The model is opened lazily (``modelcheck.ifc.index``), so each process also parses only the
+entities of its own members. Forking needs a POSIX system; elsewhere, and for models too small
+to gain from it, the model is checked in one process. Forking needs Linux here (see
+``_own_file_offset``).
+
+Example::
+
+    checked = check_model_split("big.ifc", "steel-asd-us", ForceOptions(), parts=2)
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+from dataclasses import dataclass
+from typing import Any
+
+import pandas as pd
+
+from modelcheck.errors import ModelcheckError
+from modelcheck.pipeline import REPORT_MEMBER_COLUMNS, CheckedModel, ForceOptions, ModelData, describe_model
+from modelcheck.timing import stage
+
+#: below this many members a model is checked in one process (forking costs more than it saves)
+MIN_MEMBERS_PER_PART = 2_000
+
+
+def can_split() -> bool:
+    """Whether this system can fork worker processes (POSIX)."""
+    import multiprocessing
+
+    return sys.platform.startswith("linux") and "fork" in multiprocessing.get_all_start_methods()
+
+
+@dataclass
+class _Shared:
+    """What the forked processes inherit (set just before the fork, cleared after)."""
+
+    idx: Any
+    entities: list[Any]            # member entities in file order
+    parts: list[list[int]]         # each part's members: positions in ``entities``, in file order
+    ruleset_ref: str
+    forces: ForceOptions
+    shared_tags: dict[str, tuple[str, ...]]
+    analysis: pd.DataFrame | None  # forces of the analysis route, whole model
+    encode_json: bool
+    slim: bool                     # only the status column of the results comes back
+    log_start: int                 # parse-log entries before the fork
+    parent_pid: int
+    offsets: dict[int, int]        # file offsets of the parser's descriptors at the fork
+
+
+_SHARED: _Shared | None = None
+
+
+@dataclass
+class _PartResult:
+    error: str | None
+    members: pd.DataFrame | None
+    results: pd.DataFrame | None
+    json_rows: bytes | None
+    report: Any
+    prop_log: Any
+    new_log: list[str]
+    warnings: list[str]            # reader and unit warnings (parse problems are merged from new_log)
+    matched_rows: set[str]
+    route_messages: list[str]      # the join's own notes (table encodings)
+    member_count: int
+
+
+def _bounds(gids: list[str], parts: int) -> list[tuple[int, int]]:
+    """Contiguous runs of about equal size that never split members sharing a GlobalId."""
+    n = len(gids)
+    cuts = [0]
+    for k in range(1, parts):
+        c = max(cuts[-1], round(n * k / parts))
+        while 0 < c < n and gids[c] == gids[c - 1]:
+            c += 1
+        if cuts[-1] < c < n:
+            cuts.append(c)
+    cuts.append(n)
+    return list(zip(cuts[:-1], cuts[1:], strict=True))
+
+
+def _file_offsets(fds: tuple[int, ...]) -> dict[int, int]:
+    """The current offset of each descriptor (just before the fork: what the parser believes)."""
+    out = {}
+    for fd in fds:
+        try:
+            out[fd] = os.lseek(fd, 0, os.SEEK_CUR)
+        except OSError:
+            continue
+    return out
+
+
+def _own_file_offset(offsets: dict[int, int]) -> None:
+    """Give this (forked) process its own open file description of the model.
+
+    The lazy parser reads entities from the file as they are first used, through a descriptor
+    it keeps open. A fork shares that descriptor's file offset with the parent, so two processes
+    seeking and reading at once would read each other's bytes. The descriptor is re-pointed, at
+    the same number, to a fresh open of the same file (through /proc, which works even for a
+    file already deleted, like the one extracted from an .ifczip), at the offset the parser
+    believes it is at: the one it had at the fork."""
+    for fd, offset in offsets.items():
+        try:
+            fresh = os.open(f"/proc/self/fd/{fd}", os.O_RDONLY)
+        except OSError:
+            continue
+        os.lseek(fresh, offset, os.SEEK_SET)
+        os.dup2(fresh, fd)
+        os.close(fresh)
+
+
+def _run_part(k: int) -> _PartResult:
+    """Check part ``k`` of the shared model (in a forked process, or in this one)."""
+    from modelcheck.loads.messages import MessageLog
+    from modelcheck.pipeline import read_into
+    from modelcheck.rules.ruleset import load_ruleset
+
+    st = _SHARED
+    assert st is not None, "the parts of a model run only under check_model_split"
+    idx = st.idx
+    if os.getpid() != st.parent_pid:
+        _own_file_offset(st.offsets)
+    positions = st.parts[k]
+    # read in file order: the lazy parser reads the file in blocks, and members in GlobalId order
+    # would be scattered over it (each read wasting most of its block)
+    entities = [st.entities[i] for i in positions]
+    data = ModelData(path=idx.path)
+    log = MessageLog(idx.path)
+    analysis = None
+    if st.forces.analysis:
+        ana = st.analysis
+        if ana is not None and len(ana):
+            gids = {g for g in _gids(idx, entities)}
+            ana = ana[ana["global_id"].isin(gids)]
+        analysis = (ana, [])
+    with stage(f"part {k}: read + forces"):
+        read_into(data, idx, st.forces, entities, analysis=analysis, prop_log=log, shared_tags=st.shared_tags)
+    new_log = list(idx.parse_log[st.log_start:])
+    if data.error is not None or data.members is None:
+        return _PartResult(data.error, None, None, None, None, log, new_log, [], set(), [], 0)
+    n_parse = data.members.attrs.get("parse_problem_count", 0)
+    # what the model-wide parts of the warnings were is rebuilt by the caller from the merged log
+    warnings = [w for w in data.warnings[n_parse:]]
+    ruleset = load_ruleset(st.ruleset_ref)
+    from modelcheck.design.suggest import suggest
+    from modelcheck.rules.engine import run_checks
+
+    with stage(f"part {k}: rules"):
+        results = run_checks(ruleset, data.members, data.forces)
+    with stage(f"part {k}: suggestions"):
+        if (results["status"] == "fail").any():
+            results = suggest(ruleset, data.members, data.forces, results)
+    rows = None
+    if st.encode_json:
+        from modelcheck.report.check_json import encode_results
+
+        with stage(f"part {k}: encode JSON"):
+            rows = encode_results(results)
+        if st.slim:
+            results = results.loc[:, ["status"]]
+    members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
+    members["_pos"] = positions
+    if st.slim:  # no report reads them
+        members = members.iloc[0:0]
+    report = data.report
+    return _PartResult(None, members, results, rows, report, log, new_log, warnings, data.matched_rows,
+                       list(report.messages) if report is not None else [], data.member_count)
+
+
+def _gids(idx: Any, entities: list[Any]) -> list[str]:
+    from modelcheck.ifc.reader import member_keys
+
+    return member_keys(idx, entities)[0]
+
+
+def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, parts: int, validate: bool = False,
+                      encode_json: bool = False, slim: bool = False) -> CheckedModel | None:
+    """Check one model in ``parts`` processes; None when it is too small to share out (or this
+    system cannot fork): the caller then checks it in one process as usual."""
+    global _SHARED
+    from modelcheck.ifc.index import build_index
+    from modelcheck.ifc.reader import member_entities, member_keys
+
+    if parts < 2 or not can_split():
+        return None
+    data = ModelData(path=path)
+    try:
+        with stage("open + walk"):
+            idx = build_index(path)
+        entities = member_entities(idx)
+        if len(entities) < 2 * MIN_MEMBERS_PER_PART:
+            return _in_one_process(data, idx, ruleset_ref, forces, validate, encode_json, slim)
+        gids, tags = member_keys(idx, entities)
+    except ModelcheckError as exc:
+        data.error = str(exc)
+        return CheckedModel(data)
+    describe_model(data, idx, validate)
+    parts = min(parts, len(entities) // MIN_MEMBERS_PER_PART)
+    order = sorted(range(len(entities)), key=gids.__getitem__)
+    sorted_gids = [gids[i] for i in order]
+    by_tag: dict[str, list[str]] = {}
+    for g, t in zip(gids, tags, strict=True):
+        if t is not None and t.strip():
+            by_tag.setdefault(t, []).append(g)
+    shared_tags = {t: tuple(sorted(gs)) for t, gs in by_tag.items() if len(gs) > 1}
+    analysis, analysis_msgs = None, []
+    if forces.analysis:
+        from modelcheck.loads.analysis import forces_from_analysis
+
+        try:
+            analysis, analysis_msgs = forces_from_analysis(
+                idx, pd.DataFrame({"model": [path] * len(gids), "global_id": gids}))
+        except (AttributeError, TypeError, ValueError, ArithmeticError, RuntimeError) as exc:
+            from modelcheck.ifc.index import explain_parse_error
+
+            data.error = (f"{path}: cannot be read: a value the IFC schema does not allow "
+                          f"({type(exc).__name__}: {explain_parse_error(path, exc)}); "
+                          "'modelcheck check --validate' lists where")
+            return CheckedModel(data)
+    idx.drain_log()
+    runs = [sorted(order[a:b]) for a, b in _bounds(sorted_gids, parts)]
+    _SHARED = _Shared(idx, entities, runs, ruleset_ref,
+                      forces, shared_tags, analysis, encode_json, slim, len(idx.parse_log),
+                      os.getpid(), _file_offsets(idx.file_fds))
+    try:
+        with stage("parts"):
+            outs = _run_parts(len(_SHARED.parts))
+    finally:
+        _SHARED = None
+    with stage("merge parts"):
+        return _merge(data, idx, outs, analysis_msgs)
+
+
+def _run_parts(n: int) -> list[_PartResult]:
+    """Part 0 here, the others in forked processes at the same time."""
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+
+    with ProcessPoolExecutor(max_workers=n - 1, mp_context=multiprocessing.get_context("fork")) as pool:
+        futures = [pool.submit(_run_part, k) for k in range(1, n)]
+        first = _run_part(0)
+        with stage("parts: wait + transfer"):
+            return [first] + [f.result() for f in futures]
+
+
+def _in_one_process(data: ModelData, idx: Any, ruleset_ref: str, forces: ForceOptions, validate: bool,
+                    encode_json: bool, slim: bool) -> CheckedModel:
+    from modelcheck.pipeline import finish_check, read_into
+
+    describe_model(data, idx, validate)
+    read_into(data, idx, forces)
+    return finish_check(data, ruleset_ref, encode_json, slim)
+
+
+def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: list[str]) -> CheckedModel:
+    """The parts' members, results, JSON rows and messages as one model's."""
+    from modelcheck.loads.join import ForceReport
+    from modelcheck.pipeline import join_lines
+
+    for out in outs:
+        idx.parse_log.extend(out.new_log)
+    errors = [o.error for o in outs if o.error]
+    if errors:
+        data.error = errors[0]
+        return CheckedModel(data)
+    members = pd.concat([o.members for o in outs], ignore_index=True)
+    members = members.sort_values("_pos", kind="stable").drop(columns="_pos").reset_index(drop=True)
+    results = pd.concat([o.results for o in outs], ignore_index=True)
+    data.members = members
+    data.member_count = sum(o.member_count for o in outs)
+    data.warnings = list(idx.parse_problems) + list(dict.fromkeys(w for o in outs for w in o.warnings))
+    data.matched_rows = set().union(*(o.matched_rows for o in outs))
+    log = outs[0].prop_log
+    for o in outs[1:]:
+        log.merge(o.prop_log)
+    reports = [o.report for o in outs if o.report is not None]
+    if reports:
+        ambiguous = list(dict.fromkeys(a for r in reports for a in r.ambiguous))
+        used: dict[str, int] = {}
+        for r in reports:
+            for route, count in r.used_by_route.items():
+                used[route] = used.get(route, 0) + count
+        notes = list(dict.fromkeys(m for o in outs for m in o.route_messages))
+        report = ForceReport(
+            duplicates=tuple(d for r in reports for d in r.duplicates), ambiguous=tuple(ambiguous),
+            missing=tuple(sorted((m for r in reports for m in r.missing), key=lambda x: (x.model, x.global_id))),
+            overridden=tuple(o for r in reports for o in r.overridden),
+            messages=tuple(notes) + tuple(log.messages()) + tuple(analysis_msgs), used_by_route=used)
+        data.force_report = report.to_dict(unmatched=False)
+        data.force_messages = list(report.messages) + join_lines(report)
+    rows = None
+    if all(o.json_rows is not None for o in outs):
+        from modelcheck.report.check_json import join_rows
+
+        rows = join_rows([o.json_rows for o in outs if o.json_rows is not None])
+    return CheckedModel(data, results, rows)

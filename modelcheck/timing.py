@@ -1,0 +1,32 @@
+"""Stage timings on standard error when MODELCHECK_TIMING is set: how the benchmark's figures
+per stage are measured (``MODELCHECK_TIMING=1 modelcheck check ...``).
+
+    with stage("extract"):
+        ...
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+import time
+from collections.abc import Iterator
+from contextlib import contextmanager
+
+_ON = bool(os.environ.get("MODELCHECK_TIMING"))
+_T0 = time.perf_counter()
+
+
+@contextmanager
+def stage(name: str) -> Iterator[None]:
+    """Time the block; print 'pid stage seconds (at seconds since start)' when enabled."""
+    if not _ON:
+        yield
+        return
+    t = time.perf_counter()
+    try:
+        yield
+    finally:
+        now = time.perf_counter()
+        print(f"[timing] {os.getpid()} {name:<24} {now - t:6.2f} s (at {now - _T0:5.2f} s)", file=sys.stderr,
+              flush=True)
