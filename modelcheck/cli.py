@@ -342,12 +342,12 @@ def cmd_check(args: argparse.Namespace) -> int:
     import datetime as dt
     import os
 
+    args = merge_config(args)
     from modelcheck.pipeline import expand_paths
     from modelcheck.report.check_json import check_document
     from modelcheck.report.console import render_check
     from modelcheck.rules.ruleset import load_ruleset
 
-    args = merge_config(args)
     if not args.models:
         raise UsageError("no model given (name files, folders or patterns, or set 'models' in modelcheck.toml)")
     formats = [f.strip() for f in (args.format or "console").split(",") if f.strip()]

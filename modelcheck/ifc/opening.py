@@ -1,0 +1,182 @@
+"""Open an IFC file: every way a file can be broken turned into one clear error; parsed lazily."""
+
+from __future__ import annotations
+
+import os
+import re
+import zipfile
+import zlib
+from pathlib import Path
+from typing import Any
+
+import ifcopenshell
+
+from modelcheck.errors import ModelReadError
+from modelcheck.files import input_file
+
+SUPPORTED_SCHEMAS = ("IFC2X3", "IFC4", "IFC4X3")
+
+
+def open_model(path: str | os.PathLike[str]) -> Any:
+    """``ifcopenshell.open`` with every way a file can be broken turned into one clear error."""
+    return open_model_checked(path)[0]
+
+
+def open_model_checked(path: str | os.PathLike[str]) -> tuple[Any, tuple[str, ...]]:
+    """``open_model``, and what the parser logged on the way (text it skipped, instances with
+    attributes missing), one line each naming the file's line where the parser gives an offset."""
+    model, log, _ = _open(path)
+    return model, _parser_problems(Path(path), log)
+
+
+def _fds_on(p: Path) -> tuple[int, ...]:
+    """This process's open descriptors on file ``p`` (Linux; () elsewhere)."""
+    try:
+        st = p.stat()
+        names = os.listdir("/proc/self/fd")
+    except OSError:  # no /proc: not Linux; such systems do not share a model among processes
+        return ()
+    out = []
+    for name in names:
+        try:
+            s = os.fstat(int(name))
+        except (OSError, ValueError):
+            continue
+        if (s.st_dev, s.st_ino) == (st.st_dev, st.st_ino):
+            out.append(int(name))
+    return tuple(sorted(out))
+
+
+def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
+    """The opened model, the parser's raw log of the open and the descriptors it keeps open.
+
+    The model is opened lazily (``ifcopenshell.open(..., lazy=True)``): one quick indexing pass,
+    and each entity parsed when it is first read. A checker reads a small part of a model's
+    entities (none of its placements, styles or most of its geometry), so this is where it saves
+    most of the open's time and memory. The price: a syntax error inside an entity shows when
+    that entity is read, as a RuntimeError naming its byte offset (see ``explain_parse_error``).
+    """
+    p = input_file(path, ModelReadError, "an IFC file")
+    name = str(path)
+    size = p.stat().st_size
+    if size == 0:
+        raise ModelReadError("empty file, not an IFC model", path=name)
+    with open(p, "rb") as fh:
+        head = fh.read(64)
+    if zipfile.is_zipfile(p):
+        if p.suffix.lower() != ".ifczip":
+            raise ModelReadError("is a zip archive, not an IFC model (rename to .ifczip if it holds one)", path=name)
+        tail = _zipped_model_tail(p)
+        if tail is not None and b"END-ISO-10303-21" not in tail:
+            raise ModelReadError("the model in the zip archive is truncated or empty: it does not end with "
+                                 "END-ISO-10303-21;", path=name)
+    elif not head.lstrip().startswith(b"ISO-10303-21"):
+        if head.lstrip().startswith(b"<"):
+            raise ModelReadError("is XML; only IFC-SPF (.ifc) and .ifczip are read", path=name)
+        raise ModelReadError("not an IFC-SPF file (it does not start with ISO-10303-21)", path=name)
+    if not zipfile.is_zipfile(p):
+        with open(p, "rb") as fh:
+            fh.seek(max(0, size - 256))
+            tail = fh.read()
+        if b"END-ISO-10303-21" not in tail:
+            raise ModelReadError("file is truncated: it does not end with END-ISO-10303-21;", path=name)
+    ifcopenshell.get_log()  # drop what earlier opens in this process left in the parser's log
+    try:
+        model = ifcopenshell.open(str(p), lazy=True)
+    except (ifcopenshell.Error, RuntimeError, OSError, ValueError, UnicodeDecodeError, LookupError) as exc:
+        text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+        logged = _parser_messages(p, ifcopenshell.get_log())
+        if logged:  # "Syntax error during parse, check logs": say what the log says, and where
+            line, msg = logged[0]
+            text = text.removesuffix(", check logs") + (f" at line {line}" if line else "") + f": {msg}"
+        raise ModelReadError(f"cannot be parsed as IFC: {text}", path=name) from None
+    schema = _schema_of(model)
+    if schema not in SUPPORTED_SCHEMAS:
+        raise ModelReadError(f"schema {model.schema!r} is not supported (IFC2X3, IFC4, IFC4X3)", path=name)
+    return model, ifcopenshell.get_log(), _fds_on(p)
+
+
+def explain_parse_error(path: str | os.PathLike[str], exc: BaseException) -> str:
+    """``str(exc)`` with ifcopenshell's 'at offset N' turned into 'at line L' of a plain IFC-SPF file."""
+    text = " ".join(str(exc).split()) or type(exc).__name__
+    m = re.search(r"\bat offset (\d+)", text)
+    if m is None:
+        return text
+    p = Path(path)
+    try:
+        if zipfile.is_zipfile(p):
+            return text
+        offset = int(m.group(1))
+        with open(p, "rb") as fh:
+            line = fh.read(offset).count(b"\n") + 1
+    except OSError:
+        return text
+    text = text[:m.start()] + f"at line {line}" + text[m.end():]
+    return text.replace("invalid valid token", "is not a valid token")
+
+
+def is_parse_error(exc: BaseException) -> bool:
+    """Whether an ifcopenshell RuntimeError is the lazy parser meeting text that is not IFC-SPF."""
+    return isinstance(exc, RuntimeError) and re.search(r"\bat offset \d+", str(exc)) is not None
+
+
+def raise_if_parse_error(path: str | os.PathLike[str], exc: BaseException) -> None:
+    """A syntax error found while reading an entity makes the whole model unreadable, as it would
+    have at the open had the file been parsed eagerly: one line naming the file and its line."""
+    if is_parse_error(exc):
+        raise ModelReadError(f"cannot be parsed as IFC: {explain_parse_error(path, exc)}", path=str(path)) from None
+
+
+def _zipped_model_tail(p: Path) -> bytes | None:
+    """The last bytes of the IFC-SPF file in a zip (the one ifcopenshell.open would read), or None."""
+    try:
+        with zipfile.ZipFile(p) as zf:
+            name = next((n for n in zf.namelist() if Path(n).suffix.lower() in (".ifc", ".ifcxml")), None)
+            if name is None or Path(name).suffix.lower() != ".ifc":
+                return None  # no model in it, or ifcXML: ifcopenshell.open says so
+            tail = b""
+            with zf.open(name) as fh:
+                while chunk := fh.read(1 << 20):
+                    tail = (tail + chunk)[-256:]
+            return tail
+    except (zipfile.BadZipFile, zlib.error, OSError, EOFError, NotImplementedError) as exc:
+        raise ModelReadError(f"the zip archive cannot be read: {exc}", path=str(p)) from None
+
+
+_LOG_LINE = re.compile(r"^\[(?:error|warning)\]\s+(?:\[[A-Z]+\d*\]\s+)?\[[^\]]*\]\s*(?P<msg>\S.*)$")
+_LOG_LIMIT = 10
+
+
+def _parser_messages(p: Path, log: str, limit: int = _LOG_LIMIT) -> list[tuple[int | None, str]]:
+    """(line, message) of the first ``limit`` messages in ifcopenshell's parser log; the line where
+    the message gives a byte offset into a plain IFC-SPF file."""
+    msgs = [m["msg"] for ln in log.splitlines() if (m := _LOG_LINE.match(ln.strip()))][:limit]
+    offsets = [int(m.group(1)) if (m := re.search(r"at offset (\d+)", s)) else None for s in msgs]
+    lines: dict[int, int] = {}
+    wanted = sorted({o for o in offsets if o is not None})
+    if wanted and not zipfile.is_zipfile(p):
+        with open(p, "rb") as fh:
+            data = fh.read(wanted[-1])
+        lines = {o: data.count(b"\n", 0, o) + 1 for o in wanted}
+    return [(lines.get(o) if o is not None else None, s) for s, o in zip(msgs, offsets, strict=True)]
+
+
+def _parser_problems(p: Path, log: str) -> tuple[str, ...]:
+    """ifcopenshell's parser log as model warnings: 'file:line: IFC parser: message'."""
+    total = sum(1 for ln in log.splitlines() if _LOG_LINE.match(ln.strip()))
+    out = [f"{p}:{line}: IFC parser: {msg}" if line else f"{p}: IFC parser: {msg}"
+           for line, msg in _parser_messages(p, log)]
+    if total > len(out):
+        out.append(f"{p}: IFC parser: {total - len(out)} more message(s)")
+    return tuple(out)
+
+
+def _schema_of(model: Any) -> str:
+    s = str(getattr(model, "schema_identifier", None) or model.schema).upper()
+    if s.startswith("IFC4X3"):
+        return "IFC4X3"
+    if s.startswith("IFC2X3"):
+        return "IFC2X3"
+    if s.startswith("IFC4"):
+        return "IFC4"
+    return s
