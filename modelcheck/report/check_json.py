@@ -58,8 +58,8 @@ def result_dicts(results: pd.DataFrame) -> list[dict[str, Any]]:
         item = {"model": model, "global_id": gid, "ifc_class": cls, "name": name, "tag": tag, "check": check,
                 "load_case": case, "status": status, "demand": demand[i], "capacity": capacity[i],
                 "ratio": ratio[i], "missing": list(missing or []), "message": str(message or "")}
-        if has_sugg:
-            item["suggestion"] = sugg[i] if isinstance(sugg[i], dict) else None
+        # every row has the key (null where there is none), however the results were produced
+        item["suggestion"] = sugg[i] if has_sugg and isinstance(sugg[i], dict) else None
         out.append(item)
     return out
 
@@ -115,7 +115,8 @@ def round_sig6(values: Any) -> np.ndarray:
             out[ok] = np.where(k >= 0, whole / up, whole * down)
             tie = np.abs(np.abs(scaled - np.trunc(scaled)) - 0.5) < 1e-6
             near_edge = (np.abs(scaled) < 1e5 * (1 + 1e-9)) | (np.abs(scaled) >= 1e6 * (1 - 1e-9))
-        for j in np.flatnonzero(tie | near_edge | ~np.isfinite(scaled)).tolist():
+            inexact = np.abs(k) > 22   # 10^k is exact in binary only up to 10^22
+        for j in np.flatnonzero(tie | near_edge | inexact | ~np.isfinite(scaled)).tolist():
             out[ok[j]] = float(f"{v[j]:.6g}")
     return out
 
@@ -161,12 +162,12 @@ def _encode_chunk(res: pd.DataFrame) -> bytes:
     def col(name: str) -> list[Any]:
         return res[name].tolist() if name in res.columns else [None] * n
 
-    # a member's identity, encoded once per member
-    models, gids = col("model"), col("global_id")
-    codes, uniq = pd.factorize(pd.Series([f"{m}\x00{g}" for m, g in zip(models, gids, strict=True)], dtype=object))
+    # a member's identity, encoded once per member (all five values: GlobalIds can repeat in a bad model)
+    models, gids, classes, names, tags = col("model"), col("global_id"), col("ifc_class"), col("name"), col("tag")
+    codes, uniq = pd.factorize(pd.Series([f"{m!r}\x00{g!r}\x00{c!r}\x00{a!r}\x00{t!r}" for m, g, c, a, t in
+                                          zip(models, gids, classes, names, tags, strict=True)], dtype=object))
     first = np.zeros(len(uniq), dtype=np.int64)
     first[codes[::-1]] = np.arange(n)[::-1]
-    classes, names, tags = col("ifc_class"), col("name"), col("tag")
     prefix = _encode_all([f'{{"model":{_text(models[i])},"global_id":{_text(gids[i])},'
                           f'"ifc_class":{_text(classes[i])},"name":{_text(_none(names[i]))},'
                           f'"tag":{_text(_none(tags[i]))},"check":' for i in first.tolist()])[codes]
@@ -196,12 +197,12 @@ def _encode_chunk(res: pd.DataFrame) -> bytes:
     pieces = [prefix, mid, quantity("demand", "demand_source"), b',"capacity":',
               quantity("capacity", "capacity_source"), b',"ratio":', _number_texts(round_sig6(col("ratio"))),
               b',"missing":', missing, b',"message":', message]
+    sugg = _objects([b"null"] * n)   # every row has the key, null where there is none
     if "suggestion" in res.columns:
-        sugg = _objects([b"null"] * n)
         for i, x in enumerate(col("suggestion")):
             if isinstance(x, dict):
                 sugg[i] = orjson.dumps(x)
-        pieces += [b',"suggestion":', sugg]
+    pieces += [b',"suggestion":', sugg]
     pieces.append(b"}" + _ROW_SEP)
     grid = np.empty((n, len(pieces)), dtype=object)
     for j, p in enumerate(pieces):

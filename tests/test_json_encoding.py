@@ -1,0 +1,65 @@
+"""The JSON report's fast row encoder writes exactly what orjson writes for the same rows.
+
+References: orjson (PyPI) for the bytes of each row and string, Python's own float formatting
+(``f"{v:.6g}"``) for six-significant-digit rounding.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import numpy as np
+import orjson
+import pandas as pd
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from modelcheck.report.check_json import _text, encode_results, encode_rows, result_dicts, round_sig6
+from tests.report_runs import NASTY, result_row
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.lists(st.floats(allow_nan=True, allow_infinity=True), max_size=40))
+def test_six_digit_rounding_matches_python_formatting(values):
+    got = round_sig6(values)
+    for v, g in zip(values, got.tolist(), strict=True):
+        if math.isfinite(v):
+            assert g == float(f"{v:.6g}"), v       # Python's correctly rounded %g
+        else:
+            assert math.isnan(g)
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.text())
+def test_json_strings_are_the_bytes_orjson_writes(text):
+    try:
+        expected = orjson.dumps(text)
+    except orjson.JSONEncodeError:     # lone surrogates: not UTF-8, neither encoder writes them
+        return
+    assert _text(text).encode("utf-8") == expected
+
+
+def test_encoded_rows_are_the_rows_of_the_dict_encoder():
+    rows = [
+        result_row("a.ifc", "0aaaaaaaaaaaaaaaaaaaaA", "tension-yield", "LC1", 123.456789, 250.0,
+                   name=NASTY, tag="T-1", message="f = P/Ag = 123.5 MPa vs Fy/Ωt = 250 MPa"),
+        result_row("a.ifc", "0aaaaaaaaaaaaaaaaaaaaA", "elongation", None, 1e-7, 3.0, unit="mm",
+                   message='quote " backslash \\ newline \n tab \t'),
+        result_row("a.ifc", "0bbbbbbbbbbbbbbbbbbbbB", "tension-yield", "LC2", None, 250.0,
+                   missing=["P: load case 'LC2' has no axial force value for this member"]),
+        result_row("b.ifc", "0cccccccccccccccccccc$", "compression", "LC1", 9.99999949e12, 1.0),
+        result_row("b.ifc", "0dddddddddddddddddddd_", "compression", "LC1", -0.000123456789, 1.0),
+    ]
+    frame = pd.DataFrame(rows)
+    frame.loc[3, ["capacity", "ratio"]] = [0.0, math.inf]   # zero capacity: a fail with no finite ratio
+    frame["suggestion"] = [None, None, None,
+                           {"designation": "RD 24", "area": {"value": 452.4, "unit": "mm²", "source": "stock"},
+                            "ratio": 0.91, "family": "round bar", "check": "compression", "unchecked": []}, np.nan]
+    expected = encode_rows(result_dicts(frame))
+    assert encode_results(frame) == expected
+    assert encode_results(frame, chunk=2) == expected
+    parsed = json.loads(b"[" + expected + b"]")
+    assert parsed[3]["ratio"] is None and parsed[3]["suggestion"]["designation"] == "RD 24"
+    assert all("suggestion" in r for r in parsed)
+    assert parsed[0]["demand"]["value"] == 123.457   # six significant digits
