@@ -1,3 +1,3 @@
-from modelcheck.cli import main
+from modelcheck.cli import run
 
-raise SystemExit(main())
+run()

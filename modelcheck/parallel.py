@@ -76,7 +76,7 @@ class _PartResult:
     error: str | None
     members: pd.DataFrame | None
     results: pd.DataFrame | None
-    json_rows: bytes | None
+    json_rows: bytes | str | None   # a forked part's rows come back as a temporary file
     report: Any
     prop_log: Any
     new_log: list[str]
@@ -177,6 +177,9 @@ def _run_part(k: int) -> _PartResult:
 
         with stage(f"part {k}: encode JSON"):
             rows = encode_results(results)
+        if os.getpid() != st.parent_pid:
+            with stage(f"part {k}: rows to file"):
+                rows = _to_temp_file(rows)
         if st.slim:
             results = results.loc[:, ["status"]]
     members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
@@ -184,8 +187,45 @@ def _run_part(k: int) -> _PartResult:
     if st.slim:  # no report reads them
         members = members.iloc[0:0]
     report = data.report
+    if report is not None and os.getpid() != st.parent_pid:
+        from dataclasses import replace
+
+        report = replace(report, unmatched=())   # judged from matched_rows; not worth the pickling
     return _PartResult(None, members, results, rows, report, log, new_log, warnings, data.matched_rows,
                        list(report.messages) if report is not None else [], data.member_count)
+
+
+def _to_temp_file(data: bytes) -> str:
+    """Hand a forked part's JSON rows back through a temporary file: written without waiting for
+    the parent (which is busy with its own part), streamed into the report, never pickled."""
+    import tempfile
+
+    fd, path = tempfile.mkstemp(prefix="modelcheck-rows-", suffix=".json")
+    with os.fdopen(fd, "wb") as fh:
+        fh.write(data)
+    return path
+
+
+_AT_EXIT: list[str] = []
+
+
+def _remove_at_exit(paths: list[str]) -> None:
+    """Whatever stops the command before its report is written, these files go at exit."""
+    import atexit
+
+    if paths and not _AT_EXIT:
+        atexit.register(lambda: remove_temp_files(list(_AT_EXIT)))
+    _AT_EXIT.extend(paths)
+
+
+def remove_temp_files(chunks: list[bytes | str] | None) -> None:
+    """Delete the temporary files among encoded row chunks (once the report is written)."""
+    for chunk in chunks or ():
+        if isinstance(chunk, str):
+            try:
+                os.unlink(chunk)
+            except OSError:
+                pass
 
 
 def _gids(idx: Any, entities: list[Any]) -> list[str]:
@@ -208,10 +248,12 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     try:
         with stage("open + walk"):
             idx = build_index(path)
-        entities = member_entities(idx)
+        with stage("member entities"):
+            entities = member_entities(idx)
         if len(entities) < 2 * MIN_MEMBERS_PER_PART:
             return _in_one_process(data, idx, ruleset_ref, forces, validate, encode_json, slim)
-        gids, tags = member_keys(idx, entities)
+        with stage("member keys"):
+            gids, tags = member_keys(idx, entities)
     except ModelcheckError as exc:
         data.error = str(exc)
         return CheckedModel(data)
@@ -257,11 +299,15 @@ def _run_parts(n: int) -> list[_PartResult]:
     import multiprocessing
     from concurrent.futures import ProcessPoolExecutor
 
-    with ProcessPoolExecutor(max_workers=n - 1, mp_context=multiprocessing.get_context("fork")) as pool:
+    pool = ProcessPoolExecutor(max_workers=n - 1, mp_context=multiprocessing.get_context("fork"))
+    try:
         futures = [pool.submit(_run_part, k) for k in range(1, n)]
         first = _run_part(0)
         with stage("parts: wait + transfer"):
             return [first] + [f.result() for f in futures]
+    finally:
+        # the workers free a part's worth of objects as they exit: not waited for
+        pool.shutdown(wait=False, cancel_futures=True)
 
 
 def _in_one_process(data: ModelData, idx: Any, ruleset_ref: str, forces: ForceOptions, validate: bool,
@@ -282,6 +328,7 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
         idx.parse_log.extend(out.new_log)
     errors = [o.error for o in outs if o.error]
     if errors:
+        remove_temp_files([o.json_rows for o in outs if isinstance(o.json_rows, str)])
         data.error = errors[0]
         return CheckedModel(data)
     members = pd.concat([o.members for o in outs], ignore_index=True)
@@ -311,7 +358,6 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
         data.force_messages = list(report.messages) + join_lines(report)
     rows = None
     if all(o.json_rows is not None for o in outs):
-        from modelcheck.report.check_json import join_rows
-
-        rows = join_rows([o.json_rows for o in outs if o.json_rows is not None])
+        rows = [o.json_rows for o in outs if o.json_rows is not None]
+        _remove_at_exit([r for r in rows if isinstance(r, str)])
     return CheckedModel(data, results, rows)

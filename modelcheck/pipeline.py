@@ -243,7 +243,8 @@ class CheckedModel:
 
     data: ModelData
     results: pd.DataFrame | None = None
-    json_rows: bytes | None = None   # the results as JSON rows, encoded where the work ran
+    json_rows: bytes | list[bytes | str] | None = None   # the results as JSON rows, encoded where the
+    # work ran: bytes, or consecutive chunks, each bytes or the path of a temporary file holding them
 
 
 def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: bool = False,
@@ -299,7 +300,8 @@ class CheckRun:
     results: pd.DataFrame
     members: pd.DataFrame            # REPORT_MEMBER_COLUMNS of every readable model
     unmatched_rows: list[dict[str, str]]
-    json_rows: list[bytes] | None = None   # per model, when encoded in the workers
+    json_rows: list[bytes | str] | None = None   # consecutive chunks of rows (bytes or temporary files),
+    # when encoded in the workers
 
 
 def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int = 1,
@@ -348,6 +350,8 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
     used = set().union(*(c.data.matched_rows for c in checked)) if checked else set()
     unmatched = [{"key": str(k), "source": s} for t in forces.tables
                  for k, s in zip(t["key"], t["source"], strict=True) if s not in used]
-    rows = [c.json_rows or b"" for c in checked] if all(
-        c.json_rows is not None or c.results is None for c in checked) and encode_json else None
+    rows = None
+    if encode_json and all(c.json_rows is not None or c.results is None for c in checked):
+        rows = [chunk for c in checked for chunk in
+                (c.json_rows if isinstance(c.json_rows, list) else [c.json_rows or b""])]
     return CheckRun(ruleset, [c.data for c in checked], results, members, unmatched, rows)

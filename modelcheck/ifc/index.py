@@ -55,6 +55,7 @@ class ModelIndex:
     units: UnitContext
     type_of: dict[int, Any] = field(default_factory=dict)          # occurrence id -> type object
     psets_of: dict[int, list[Any]] = field(default_factory=dict)   # object id -> psets / qsets
+    named_psets: dict[str, dict[int, list[Any]]] = field(default_factory=dict)  # set name -> object id -> sets
     material_of: dict[int, Any] = field(default_factory=dict)      # object id -> material select
     storey_of: dict[int, Any] = field(default_factory=dict)        # element id -> spatial structure
     assigned_to: dict[int, list[Any]] = field(default_factory=dict)  # product id -> assigned objects
@@ -81,6 +82,18 @@ class ModelIndex:
     def explain(self, exc: BaseException) -> str:
         """An ifcopenshell error about the file's text, with its byte offset turned into a line."""
         return explain_parse_error(self.path, exc)
+
+    def psets_named(self, eid: int, name: str) -> list[Any]:
+        """The property or quantity sets called ``name`` of object ``eid`` (occurrence only)."""
+        return self.named_psets.get(name, {}).get(eid, [])
+
+    def qto_psets(self, eid: int) -> list[Any]:
+        """The object's sets whose name starts with ``Qto_``, in the order the walk met them."""
+        out: list[Any] = []
+        for name, by_object in self.named_psets.items():
+            if name.startswith("Qto_"):
+                out += by_object.get(eid, [])
+        return out
 
     def type_psets(self, typ: Any) -> list[Any]:
         return list(typ.HasPropertySets or ()) if typ is not None else []
@@ -121,11 +134,19 @@ def _walk(model: Any, idx: ModelIndex) -> None:
         typ = rel.RelatingType
         for obj in rel.RelatedObjects or ():
             idx.type_of[obj.id()] = typ
+    named = idx.named_psets
     for rel in model.by_type("IfcRelDefinesByProperties"):
-        pdef = rel.RelatingPropertyDefinition
+        pdef = rel.get_argument(5)   # RelatingPropertyDefinition (the same place in every schema)
         pdefs = [d for d in (pdef if isinstance(pdef, tuple) else (pdef,)) if d is not None]  # None: dangling
-        for obj in rel.RelatedObjects or ():
-            idx.psets_of.setdefault(obj.id(), []).extend(pdefs)
+        ids = [obj.id() for obj in rel.get_argument(4) or ()]   # RelatedObjects
+        for oid in ids:
+            idx.psets_of.setdefault(oid, []).extend(pdefs)
+        for d in pdefs:  # by name too: a member's sets are then found without reading each one
+            name = d.get_argument(2) if hasattr(d, "get_argument") else None   # IfcRoot.Name
+            if isinstance(name, str):
+                by_object = named.setdefault(name, {})
+                for oid in ids:
+                    by_object.setdefault(oid, []).append(d)
     for rel in model.by_type("IfcRelAssociatesMaterial"):
         mat = rel.RelatingMaterial
         for obj in rel.RelatedObjects or ():

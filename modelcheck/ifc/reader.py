@@ -389,15 +389,18 @@ class _Reader:
             if tendon is not None:
                 candidates.append(tendon)
         psets = idx.psets_of.get(eid)
-        net = self._net_area(psets, typ, warnings) if (psets or typ is not None) else _NO_NET
-        if idx.profile_props or psets or idx.object_profile_props:
+        net = self._net_area(eid, typ, warnings) if (psets or typ is not None) else _NO_NET
+        mech_sets = idx.psets_named(eid, "Pset_ProfileMechanical") if psets else []
+        if idx.profile_props or mech_sets or idx.object_profile_props:
             mech = self._profile_mechanical(self._profiles_of(own_sel, type_sel) if idx.profile_props else [],
-                                            psets or [], eid)
+                                            mech_sets, eid)
             if mech is not None:
                 candidates.append(mech)
         qarea = qlen = None
         if psets:
-            qarea, qlen = self._quantities(psets, warnings)
+            qsets = idx.qto_psets(eid)
+            if qsets:
+                qarea, qlen = self._quantities(qsets, warnings)
         if qarea is not None:
             candidates.append(qarea)
 
@@ -447,10 +450,11 @@ class _Reader:
         return (gid, cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
                 section, minfo, length, length_src, warnings, eid, net)
 
-    def _net_area(self, psets: list[Any] | None, typ: Any, warnings: list[str]) -> tuple[float, str | None]:
+    def _net_area(self, eid: int, typ: Any, warnings: list[str]) -> tuple[float, str | None]:
         """The net area at holes or threads: NET_AREA_PROPERTY on the occurrence, else its type."""
         pset_name, prop_name = NET_AREA_PROPERTY
-        for where, sets in (("occurrence", psets or ()), ("type", self.type_info(typ)[2] if typ is not None else ())):
+        own = self.idx.psets_named(eid, pset_name)
+        for where, sets in (("occurrence", own), ("type", self.type_info(typ)[2] if typ is not None else ())):
             prop = find_property(list(sets), pset_name, prop_name)
             if prop is None:
                 continue

@@ -39,7 +39,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import Any, Literal
+from typing import Any, Literal, NamedTuple
 
 import numpy as np
 import pandas as pd
@@ -50,8 +50,10 @@ from modelcheck.table import FORCE_COLUMNS, empty_forces
 ROUTES: tuple[str, ...] = ("table", "analysis", "property")
 
 
-@dataclass(frozen=True)
-class UnmatchedRow:
+class UnmatchedRow(NamedTuple):
+    """A row that matched no member here (a named tuple: a model checked in parts makes one for
+    each row of a large table that belongs to the other parts, so it must be cheap)."""
+
     key_kind: str   # "global_id" | "tag"
     key: str
     load_case: str
@@ -117,7 +119,7 @@ class ForceReport:
             "used_by_route": {r: int(self.used_by_route.get(r, 0)) for r in ROUTES},
         }
         if unmatched:
-            out["unmatched"] = [dict(vars(x)) for x in self.unmatched]
+            out["unmatched"] = [x._asdict() for x in self.unmatched]
         out.update({
             "duplicates": [{**vars(x), "ignored": list(x.ignored)} for x in self.duplicates],
             "ambiguous": [{**vars(x), "global_ids": list(x.global_ids)} for x in self.ambiguous],
@@ -245,10 +247,12 @@ def _match_table(rows: pd.DataFrame, ids: pd.DataFrame, shared: dict[str, tuple[
     ]
     matched = pd.concat([g_hit[cols], t_ok[cols]], ignore_index=True)
 
-    hit_orders = set(g_hit["_order"]) | set(t_hit["_order"])
-    um = rows[~rows["_order"].isin(hit_orders)]
-    unmatched = [UnmatchedRow(k, key, c, s) for k, key, c, s in
-                 um[["key_kind", "key", "load_case", "source"]].itertuples(index=False)]
+    hit = np.zeros(len(rows), dtype=bool)
+    hit[np.searchsorted(rows["_order"].to_numpy(), np.union1d(g_hit["_order"].to_numpy(dtype=np.int64),
+                                                               t_hit["_order"].to_numpy(dtype=np.int64)))] = True
+    um = rows[~hit]
+    unmatched = list(map(UnmatchedRow._make, zip(*(um[c].tolist() for c in ("key_kind", "key", "load_case",
+                                                                             "source")), strict=True)))
     return matched, unmatched, ambiguous
 
 

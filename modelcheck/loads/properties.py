@@ -98,14 +98,17 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
     prop_cases: dict[int, str] = {}
 
     def _find(psets: Any, pset: str, name: str) -> Any:
+        # attributes by position (IfcPropertySet: Name 2, HasProperties 4; IfcProperty: Name 0;
+        # IfcPropertySingleValue: NominalValue 2, in every schema): several times faster than by name
         for ps in psets:
-            if ps.is_a("IfcPropertySet") and ps.Name == pset:
+            if ps.is_a("IfcPropertySet") and ps.get_argument(2) == pset:
                 found = label = None
-                for p in ps.HasProperties or ():
-                    if p.Name == name:
+                for p in ps.get_argument(4) or ():
+                    pname = p.get_argument(0)
+                    if pname == name:
                         found = p
-                    elif p.Name == "LoadCase" and p.is_a("IfcPropertySingleValue") and p.NominalValue is not None:
-                        label = str(p.NominalValue.wrappedValue).strip() or None
+                    elif pname == "LoadCase" and p.is_a("IfcPropertySingleValue") and p.get_argument(2) is not None:
+                        label = str(p.get_argument(2).wrappedValue).strip() or None
                 if found is not None:
                     if label:
                         prop_cases[found.id()] = label
@@ -120,7 +123,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
             except RuntimeError:
                 log.add("is not in the model (no such GlobalId): no property read", gid)
                 continue
-        psets = idx.psets_of.get(eid)
+        psets = idx.psets_named(eid, pset_name)
         prop = _find(psets, pset_name, prop_name) if psets else None
         origin = "occurrence"
         if prop is None:
@@ -184,14 +187,14 @@ def _read(prop: Any, idx: ModelIndex) -> _Reading:
     """The raw number and unit key of one property entity (cached per entity)."""
     if not prop.is_a("IfcPropertySingleValue"):
         return _Reading(problem=f"is an {prop.is_a()}, not a single value")
-    nv = prop.NominalValue
+    nv = prop.get_argument(2)   # NominalValue
     if nv is None:
         return _Reading(problem="has no value")
     if not (hasattr(nv, "is_a") and hasattr(nv, "wrappedValue")):  # the schema allows a typed value only
         return _Reading(problem=f"holds {nv!r}, not a typed IFC value (the file breaks the IFC schema)")
     measure = nv.is_a()
     value = nv.wrappedValue
-    unit = getattr(prop, "Unit", None)
+    unit = prop.get_argument(3)   # Unit
     if unit is not None and not hasattr(unit, "is_a"):
         return _Reading(problem=f"its unit is {unit!r}, not a unit entity (the file breaks the IFC schema)")
     if measure in _TEXT_MEASURES:

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import datetime as _dt
 import math
+import os
 from json.encoder import encode_basestring as _escape  # noqa: E402  (C escaper: "…" with \" \\ \n \u00XX)
 from typing import Any
 
@@ -73,11 +74,6 @@ def encode_rows(rows: list[dict[str, Any]]) -> bytes:
 
     enc = orjson.dumps
     return _ROW_SEP.join([enc(r) for r in rows])
-
-
-def join_rows(chunks: list[bytes]) -> bytes:
-    """Encoded rows of consecutive parts as one run of rows."""
-    return _ROW_SEP.join(c for c in chunks if c)
 
 
 def encode_results(results: pd.DataFrame, chunk: int = 65536) -> bytes:
@@ -211,13 +207,27 @@ def _encode_chunk(res: pd.DataFrame) -> bytes:
 
 
 class EncodedRows:
-    """Result rows already encoded (per model, in the batch workers): written as they are."""
+    """Result rows already encoded (in the batch workers, or the parts of a model): a list of
+    consecutive chunks, each bytes or the path of a temporary file that holds them; written as
+    they are, a file streamed, never loaded whole."""
 
-    def __init__(self, chunks: list[bytes]) -> None:
-        self.chunks = [c for c in chunks if c]
+    def __init__(self, chunks: list[bytes | str]) -> None:
+        self.chunks = [c for c in chunks if (os.path.getsize(c) if isinstance(c, str) else c)]
 
     def __bool__(self) -> bool:
         return bool(self.chunks)
+
+    def write(self, fh: Any) -> None:
+        import shutil
+
+        for i, chunk in enumerate(self.chunks):
+            if i:
+                fh.write(_ROW_SEP)
+            if isinstance(chunk, str):
+                with open(chunk, "rb") as src:
+                    shutil.copyfileobj(src, fh, 1 << 22)
+            else:
+                fh.write(chunk)
 
 
 def write_json(doc: dict[str, Any], fh: Any, row_keys: tuple[str, ...] = ("results",)) -> None:
@@ -238,7 +248,7 @@ def write_json(doc: dict[str, Any], fh: Any, row_keys: tuple[str, ...] = ("resul
         fh.write(f"  {json.dumps(key)}: ".encode())
         if isinstance(value, EncodedRows) and value:
             fh.write(b"[\n    ")
-            fh.write(_ROW_SEP.join(value.chunks))
+            value.write(fh)
             fh.write(b"\n  ]")
         elif isinstance(value, EncodedRows):
             fh.write(b"[]")
