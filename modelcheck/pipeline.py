@@ -289,6 +289,8 @@ def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: boo
             results = results.loc[:, ["status"]]
     # send back only what the reports read: a batch worker's result crosses a process boundary
     data.members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
+    if slim and rows is not None:
+        data.members = data.members.iloc[0:0]
     data.forces = data.forces.iloc[0:0]
     return CheckedModel(data, results, rows)
 

@@ -30,9 +30,20 @@ def _since_start() -> float:
 _T0 = time.perf_counter()
 
 
+def _rss() -> str:
+    """Resident and peak resident memory of this process (Linux), e.g. '512/640 MiB'."""
+    try:
+        with open("/proc/self/status") as fh:
+            fields = dict(line.split(":", 1) for line in fh if ":" in line)
+        return f"{int(fields['VmRSS'].split()[0]) // 1024}/{int(fields['VmHWM'].split()[0]) // 1024} MiB"
+    except (OSError, KeyError, ValueError):
+        return "?"
+
+
 @contextmanager
 def stage(name: str) -> Iterator[None]:
-    """Time the block; print 'pid stage seconds (at seconds since the process started)' when enabled."""
+    """Time the block; print 'pid stage seconds (at seconds since the process started) rss now/peak'
+    when enabled."""
     if not _ON:
         yield
         return
@@ -41,5 +52,5 @@ def stage(name: str) -> Iterator[None]:
         yield
     finally:
         now = time.perf_counter()
-        print(f"[timing] {os.getpid()} {name:<24} {now - t:6.2f} s (at {_since_start():5.2f} s)", file=sys.stderr,
-              flush=True)
+        print(f"[timing] {os.getpid()} {name:<24} {now - t:6.2f} s (at {_since_start():5.2f} s) "
+              f"rss {_rss()}", file=sys.stderr, flush=True)

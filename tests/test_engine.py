@@ -134,9 +134,14 @@ def test_one_result_per_load_case_in_a_stable_order(tmp_path: Path) -> None:
         ("m1.ifc", "B", "slender", None),
         ("m1.ifc", "B", "compression", "W"),
     ]
-    # load cases in the order they first appear in the forces table: W before D
+    # load cases in the natural order of their names, whatever the order of the forces table:
+    # D before W, and LC2 before LC10 (how load-case lists are numbered and read, common practice)
     res2 = run_checks(ruleset(tmp_path, SLENDER.replace('demand = "L / r"', 'demand = "where(P > 0, L / r, L / r)"')), m, f)
-    assert list(res2[res2.global_id == "B"].load_case) == ["W", "D"]
+    assert list(res2[res2.global_id == "B"].load_case) == ["D", "W"]
+    f3 = forces(("B", "LC10", 1e3), ("B", "LC2", 1e3), ("B", "lc1", 1e3))
+    res3 = run_checks(ruleset(tmp_path, SLENDER.replace('demand = "L / r"', 'demand = "where(P > 0, L / r, L / r)"')),
+                      m, f3)
+    assert list(res3[(res3.global_id == "B") & (res3.model == "m1.ifc")].load_case) == ["lc1", "LC2", "LC10"]
 
 
 def test_forces_without_model_apply_to_every_model_and_unknown_members_are_ignored(tmp_path: Path) -> None:

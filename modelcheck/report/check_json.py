@@ -319,8 +319,8 @@ def summary_counts(run: Any) -> dict[str, int]:
 
 def check_document(run: Any, *, comparison: dict[str, Any] | None = None,
                    now: _dt.datetime | None = None, encoded: bool = False) -> dict[str, Any]:
-    """The JSON document of a check run; ``encoded=True`` takes the result rows the workers
-    encoded (for ``write_json``) instead of building them here."""
+    """The JSON document of a check run; ``encoded=True`` gives the result rows encoded (for
+    ``write_json``): as the workers encoded them, or encoded here, instead of as dicts."""
     rs = run.ruleset
     doc: dict[str, Any] = {
         "generated": (now or _dt.datetime.now(_dt.UTC)).replace(microsecond=0).isoformat(),
@@ -329,7 +329,8 @@ def check_document(run: Any, *, comparison: dict[str, Any] | None = None,
         "models": [{"path": m.path, "schema": m.schema, "error": m.error, "members": int(m.member_count),
                     "warnings": list(m.warnings) + list(m.force_messages) + list(m.validation)}
                    for m in run.models],
-        "results": (EncodedRows(run.json_rows) if encoded and getattr(run, "json_rows", None) is not None
+        "results": ((EncodedRows(run.json_rows) if getattr(run, "json_rows", None) is not None
+                     else EncodedRows([encode_results(run.results)])) if encoded
                     else result_dicts(run.results)),
         "unmatched_force_rows": run.unmatched_rows,
     }

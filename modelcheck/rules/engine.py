@@ -86,7 +86,7 @@ class MemberData:
 def _force_rows(members: pd.DataFrame, forces: pd.DataFrame | None) -> dict[str, np.ndarray]:
     """Every member × load case of the forces table, and one row with no force for other members.
 
-    ``rank`` is the load case's order of first appearance in the forces table (-1: no case).
+    ``rank`` is the load case's place in the natural order of the case names (-1: no case).
     A force row whose model is empty applies to that GlobalId in every model.
     """
     n = len(members)
@@ -99,7 +99,7 @@ def _force_rows(members: pd.DataFrame, forces: pd.DataFrame | None) -> dict[str,
     f_gid = _objects(forces, "global_id")
     f_case = _objects(forces, "load_case")
     f_p = np.asarray(pd.to_numeric(forces["axial_force"], errors="coerce"), dtype=float)
-    codes = pd.factorize(pd.Series(f_case, dtype=object), use_na_sentinel=True)[0]
+    codes = _case_ranks(f_case)
     member_keys = pd.Index(_key(models, gids))
     if member_keys.is_unique and not pd.isna(pd.Series(f_model, dtype=object)).any():
         pos = member_keys.get_indexer(_key(f_model, f_gid))
@@ -127,6 +127,25 @@ def _force_rows(members: pd.DataFrame, forces: pd.DataFrame | None) -> dict[str,
         "load_case": np.concatenate([f_case[f], np.full(len(unmatched), None, dtype=object)]),
         "rank": np.concatenate([codes[f], np.full(len(unmatched), -1)]),
     }
+
+
+def _natural_key(text: str) -> tuple[Any, ...]:
+    """'LC2' before 'LC10': digits compare as numbers."""
+    import re
+
+    return tuple(int(t) if t.isdigit() else t.casefold() for t in re.split(r"(\d+)", text)) + (text,)
+
+
+def _case_ranks(cases: np.ndarray) -> np.ndarray:
+    """Each row's load case as its rank in the natural order of the load-case names (-1: none).
+
+    An order of the names, not of the rows: a member's results come out in the same order
+    whatever else is in the forces table (a model checked in parts, a batch)."""
+    codes, uniques = pd.factorize(pd.Series(cases, dtype=object), use_na_sentinel=True)
+    order = sorted(range(len(uniques)), key=lambda i: _natural_key(str(uniques[i])))
+    rank = np.empty(len(uniques), dtype=np.int64)
+    rank[order] = np.arange(len(uniques))
+    return np.where(codes >= 0, rank[np.maximum(codes, 0)], -1)
 
 
 def _objects(frame: pd.DataFrame, column: str) -> np.ndarray:
@@ -363,7 +382,7 @@ def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
     ``members`` has the columns of :func:`modelcheck.table.member_columns` (absent columns count
     as missing values); ``forces`` those of :data:`modelcheck.table.FORCE_COLUMNS` (tension
     positive, newtons). Returns the columns :data:`COLUMNS` in the order (model, global_id,
-    check order in the file, load case in order of first appearance in ``forces``).
+    check order in the file, load case in the natural order of its name: LC2 before LC10).
     ``messages=False`` leaves the message of checked results empty (sizing and suggestions
     evaluate many candidates whose messages nobody reads).
     """
