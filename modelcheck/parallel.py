@@ -163,25 +163,21 @@ def _run_part(k: int) -> _PartResult:
     # what the model-wide parts of the warnings were is rebuilt by the caller from the merged log
     warnings = [w for w in data.warnings[n_parse:]]
     ruleset = load_ruleset(st.ruleset_ref)
-    from modelcheck.design.suggest import suggest
-    from modelcheck.rules.engine import run_checks
+    from modelcheck.pipeline import evaluate_members
 
-    with stage(f"part {k}: rules"):
-        results = run_checks(ruleset, data.members, data.forces)
-    with stage(f"part {k}: suggestions"):
-        if (results["status"] == "fail").any():
-            results = suggest(ruleset, data.members, data.forces, results)
     rows = None
-    if st.encode_json:
-        from modelcheck.report.check_json import encode_results
+    with stage(f"part {k}: rules, suggestions, JSON"):
+        if st.encode_json:
+            # every part's rows go to a temporary file as they are encoded: none is held in memory,
+            # none is pickled back; the report streams them
+            import tempfile
 
-        with stage(f"part {k}: encode JSON"):
-            rows = encode_results(results)
-        if os.getpid() != st.parent_pid:
-            with stage(f"part {k}: rows to file"):
-                rows = _to_temp_file(rows)
-        if st.slim:
-            results = results.loc[:, ["status"]]
+            fd, rows = tempfile.mkstemp(prefix="modelcheck-rows-", suffix=".json")
+            with os.fdopen(fd, "wb") as sink:
+                results, _ = evaluate_members(ruleset, data.members, data.forces, encode_json=True, slim=st.slim,
+                                              sink=sink)
+        else:
+            results, _ = evaluate_members(ruleset, data.members, data.forces)
     members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
     members["_pos"] = positions
     if st.slim:  # no report reads them
@@ -193,17 +189,6 @@ def _run_part(k: int) -> _PartResult:
         report = replace(report, unmatched=())   # judged from matched_rows; not worth the pickling
     return _PartResult(None, members, results, rows, report, log, new_log, warnings, data.matched_rows,
                        list(report.messages) if report is not None else [], data.member_count)
-
-
-def _to_temp_file(data: bytes) -> str:
-    """Hand a forked part's JSON rows back through a temporary file: written without waiting for
-    the parent (which is busy with its own part), streamed into the report, never pickled."""
-    import tempfile
-
-    fd, path = tempfile.mkstemp(prefix="modelcheck-rows-", suffix=".json")
-    with os.fdopen(fd, "wb") as fh:
-        fh.write(data)
-    return path
 
 
 _AT_EXIT: list[str] = []

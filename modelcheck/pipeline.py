@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+import numpy as np
 import pandas as pd
 
 from modelcheck.errors import ModelcheckError, UsageError
@@ -269,30 +270,81 @@ def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: boo
 
 def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: bool = False) -> CheckedModel:
     """Rules, suggestions and (``encode_json``) JSON rows of a model read into ``data``."""
-    from modelcheck.rules.engine import run_checks
     from modelcheck.rules.ruleset import load_ruleset
 
     if data.error is not None or data.members is None:
         return CheckedModel(data)
-    from modelcheck.design.suggest import suggest
-
     ruleset = load_ruleset(ruleset_ref)
-    results = run_checks(ruleset, data.members, data.forces)
-    if (results["status"] == "fail").any():
-        results = suggest(ruleset, data.members, data.forces, results)
-    rows = None
-    if encode_json:
-        from modelcheck.report.check_json import encode_results
-
-        rows = encode_results(results)
-        if slim:
-            results = results.loc[:, ["status"]]
+    results, rows = evaluate_members(ruleset, data.members, data.forces, encode_json=encode_json, slim=slim)
     # send back only what the reports read: a batch worker's result crosses a process boundary
     data.members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
     if slim and rows is not None:
         data.members = data.members.iloc[0:0]
     data.forces = data.forces.iloc[0:0]
     return CheckedModel(data, results, rows)
+
+
+#: members evaluated at a time when the JSON rows are encoded as they come (a memory bound)
+EVALUATE_CHUNK = 65536
+
+
+def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, *, encode_json: bool = False,
+                     slim: bool = False, sink: Any = None) -> tuple[pd.DataFrame, Any]:
+    """Results (with suggestions) of ``members`` and, with ``encode_json``, their JSON rows.
+
+    With ``encode_json`` the members go through in runs of ``EVALUATE_CHUNK`` consecutive
+    GlobalIds, each run's rows encoded at once and handed to ``sink`` (a writable binary file;
+    bytes returned when None): the results of a large model never exist whole as rows of text
+    beside their table. ``slim`` keeps only the status column of the results. The rows are in the
+    report's order (GlobalId, check, load case), as one run over all members would give them.
+    """
+    from modelcheck.design.suggest import suggest
+    from modelcheck.report.check_json import ROW_SEPARATOR, encode_results
+    from modelcheck.rules.engine import run_checks
+
+    def evaluate(m: pd.DataFrame, f: pd.DataFrame) -> pd.DataFrame:
+        res = run_checks(ruleset, m, f)
+        if (res["status"] == "fail").any():
+            res = suggest(ruleset, m, f, res)
+        return res
+
+    if not encode_json:
+        return evaluate(members, forces), None
+    if len(members) <= EVALUATE_CHUNK:  # one run: no reordering needed (the engine orders its rows)
+        res = evaluate(members, forces)
+        text = encode_results(res)
+        if sink is not None:
+            sink.write(text)
+        return (res.loc[:, ["status"]] if slim else res), (text if sink is None else None)
+    order = members["global_id"].astype(str).to_numpy(dtype=object)
+    ranked = members.iloc[np.argsort(order, kind="stable")].reset_index(drop=True)
+    gids = ranked["global_id"].astype(str).to_numpy(dtype=object)
+    runs: list[tuple[int, int]] = []
+    start, n = 0, len(ranked)
+    while start < n or not runs:
+        stop = min(n, start + EVALUATE_CHUNK)
+        while 0 < stop < n and gids[stop] == gids[stop - 1]:   # a repeated GlobalId stays in one run
+            stop += 1
+        runs.append((start, stop))
+        start = stop
+    run_of = {g: r for r, (a, b) in enumerate(runs) for g in gids[a:b].tolist()}
+    f_run = np.fromiter((run_of.get(g, -1) for g in forces["global_id"].astype(str).tolist()), dtype=np.int64,
+                        count=len(forces))
+    kept: list[pd.DataFrame] = []
+    encoded: list[bytes] = []
+    for r, (start, stop) in enumerate(runs):
+        res = evaluate(ranked.iloc[start:stop], forces[f_run == r])
+        text = encode_results(res)
+        if text:
+            if sink is None:
+                encoded.append(text)
+            else:
+                if sink.tell():
+                    sink.write(ROW_SEPARATOR)
+                sink.write(text)
+        kept.append(res.loc[:, ["status"]] if slim else res)
+    results = pd.concat(kept, ignore_index=True) if len(kept) > 1 else kept[0]
+    return results, (ROW_SEPARATOR.join(encoded) if sink is None else None)
 
 
 @dataclass

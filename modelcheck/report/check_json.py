@@ -66,6 +66,7 @@ def result_dicts(results: pd.DataFrame) -> list[dict[str, Any]]:
 
 
 _ROW_SEP = b",\n    "
+ROW_SEPARATOR = _ROW_SEP   # between two encoded rows
 
 
 def encode_rows(rows: list[dict[str, Any]]) -> bytes:
