@@ -159,22 +159,31 @@ def _encode_chunk(res: pd.DataFrame) -> bytes:
     def col(name: str) -> list[Any]:
         return res[name].tolist() if name in res.columns else [None] * n
 
-    # a member's identity, encoded once per member (all five values: GlobalIds can repeat in a bad model)
+    # a member's identity, encoded once per run of rows that share it (a member's rows are
+    # consecutive; a row that differs in any of the five values starts a new run)
     models, gids, classes, names, tags = col("model"), col("global_id"), col("ifc_class"), col("name"), col("tag")
-    codes, uniq = pd.factorize(pd.Series([f"{m!r}\x00{g!r}\x00{c!r}\x00{a!r}\x00{t!r}" for m, g, c, a, t in
-                                          zip(models, gids, classes, names, tags, strict=True)], dtype=object))
-    first = np.zeros(len(uniq), dtype=np.int64)
-    first[codes[::-1]] = np.arange(n)[::-1]
+    starts = np.zeros(n, dtype=bool)
+    starts[0] = True
+    for values in (gids, models, names, tags, classes):
+        arr = _objects(values)
+        starts[1:] |= arr[1:] != arr[:-1]   # NaN != NaN: a new run, which costs a little, never a wrong row
+    first = np.flatnonzero(starts)
+    codes = np.cumsum(starts) - 1
     prefix = _encode_all([f'{{"model":{_text(models[i])},"global_id":{_text(gids[i])},'
                           f'"ifc_class":{_text(classes[i])},"name":{_text(_none(names[i]))},'
                           f'"tag":{_text(_none(tags[i]))},"check":' for i in first.tolist()])[codes]
 
     def encoded(columns: list[str], make: Any) -> np.ndarray:
         """make(key) for each row's values of ``columns``, computed once per distinct key."""
-        frame = res.reindex(columns=columns).astype(object)
-        frame = frame.where(frame.notna(), None)
-        kc, ku = pd.factorize(pd.MultiIndex.from_frame(frame), use_na_sentinel=False)
-        return _encode_all([make(k) for k in ku])[kc]
+        lists = [col(c) for c in columns]
+        combo = np.zeros(n, dtype=np.int64)
+        for values in lists:   # one integer per combination of the columns' values (few of each)
+            c, u = pd.factorize(pd.Series(values, dtype=object), use_na_sentinel=False)
+            combo = combo * (len(u) + 1) + c
+        kc, ku = pd.factorize(combo)
+        first_row = np.zeros(len(ku), dtype=np.int64)
+        first_row[kc[::-1]] = np.arange(n)[::-1]
+        return _encode_all([make(tuple(v[i] for v in lists)) for i in first_row.tolist()])[kc]
 
     mid = encoded(["check", "load_case", "status"],
                   lambda k: f'{_text(k[0])},"load_case":{_text(_none(k[1]))},"status":{_text(k[2])},"demand":')
