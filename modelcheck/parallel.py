@@ -30,9 +30,10 @@ from __future__ import annotations
 
 import os
 import sys
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any
 
+import numpy as np
 import pandas as pd
 
 from modelcheck.errors import ModelcheckError
@@ -66,6 +67,7 @@ class _Shared:
     log_start: int                 # parse-log entries before the fork
     parent_pid: int
     offsets: dict[int, int]        # file offsets of the parser's descriptors at the fork
+    tables: tuple[list[pd.DataFrame], ...]   # each load table's rows for each part
 
 
 _SHARED: _Shared | None = None
@@ -84,6 +86,14 @@ class _PartResult:
     matched_rows: set[str]
     route_messages: list[str]      # the join's own notes (table encodings)
     member_count: int
+
+
+def _table_parts(table: pd.DataFrame, part_of: dict[str, int], parts: int) -> list[pd.DataFrame]:
+    """A load table's rows for each part: a GlobalId row goes to the part holding that member (to
+    none when the model has no such member: unmatched here), a tag row to every part."""
+    where = table["key"].map(part_of).where(table["key_kind"] == "global_id", -2).fillna(-1)
+    where = where.to_numpy(dtype=np.int64)
+    return [table[(where == k) | (where == -2)] for k in range(parts)]
 
 
 def _bounds(gids: list[str], parts: int) -> list[tuple[int, int]]:
@@ -154,8 +164,10 @@ def _run_part(k: int) -> _PartResult:
             gids = {g for g in _gids(idx, entities)}
             ana = ana[ana["global_id"].isin(gids)]
         analysis = (ana, [])
+    # each load table cut down to the rows this part can match: its GlobalIds, and every tag row
+    opts = replace(st.forces, tables=tuple(t[k] for t in st.tables))
     with stage(f"part {k}: read + forces"):
-        read_into(data, idx, st.forces, entities, analysis=analysis, prop_log=log, shared_tags=st.shared_tags)
+        read_into(data, idx, opts, entities, analysis=analysis, prop_log=log, shared_tags=st.shared_tags)
     new_log = list(idx.parse_log[st.log_start:])
     if data.error is not None or data.members is None:
         return _PartResult(data.error, None, None, None, None, log, new_log, [], set(), [], 0)
@@ -184,8 +196,6 @@ def _run_part(k: int) -> _PartResult:
         members = members.iloc[0:0]
     report = data.report
     if report is not None and os.getpid() != st.parent_pid:
-        from dataclasses import replace
-
         report = replace(report, unmatched=())   # judged from matched_rows; not worth the pickling
     return _PartResult(None, members, results, rows, report, log, new_log, warnings, data.matched_rows,
                        list(report.messages) if report is not None else [], data.member_count)
@@ -266,10 +276,13 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
                           "'modelcheck check --validate' lists where")
             return CheckedModel(data)
     idx.drain_log()
-    runs = [sorted(order[a:b]) for a, b in _bounds(sorted_gids, parts)]
+    bounds = _bounds(sorted_gids, parts)
+    runs = [sorted(order[a:b]) for a, b in bounds]
+    part_of = {g: k for k, (a, b) in enumerate(bounds) for g in sorted_gids[a:b]}
+    tables = tuple(_table_parts(t, part_of, len(bounds)) for t in forces.tables)
     _SHARED = _Shared(idx, entities, runs, ruleset_ref,
                       forces, shared_tags, analysis, encode_json, slim, len(idx.parse_log),
-                      os.getpid(), _file_offsets(idx.file_fds))
+                      os.getpid(), _file_offsets(idx.file_fds), tables)
     try:
         with stage("parts"):
             outs = _run_parts(len(_SHARED.parts))

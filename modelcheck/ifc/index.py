@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import math
 import os
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -129,11 +130,27 @@ def build_index(path: str | os.PathLike[str], model: Any = None) -> ModelIndex:
 _VALIDATE_HINT = " ('modelcheck check --validate' lists where the file breaks the IFC schema)"
 
 
+#: the end of a relationship's text whose last two attributes are its list of related objects and
+#: the relating one: "…,(#1,#2,#3),#9)"
+_RELATED_TAIL = re.compile(r",\((#\d+(?:,#\d+)*)\),#\d+\)$")
+
+
+def _related_ids(rel: Any) -> list[int]:
+    """Entity ids of attribute 4 (RelatedObjects / RelatedElements) of a relationship whose
+    relating object is its last attribute, read from the relationship's STEP text: a type or a
+    storey may relate tens of thousands of elements, and making an entity object for each only to
+    ask its id is most of the walk's time. Any other shape of text: read the usual way."""
+    m = _RELATED_TAIL.search(rel.to_string())
+    if m is None:
+        return [obj.id() for obj in rel.get_argument(4) or ()]
+    return [int(x) for x in m.group(1).replace("#", "").split(",")]
+
+
 def _walk(model: Any, idx: ModelIndex) -> None:
     for rel in model.by_type("IfcRelDefinesByType"):
-        typ = rel.RelatingType
-        for obj in rel.RelatedObjects or ():
-            idx.type_of[obj.id()] = typ
+        typ = rel.get_argument(5)   # RelatingType
+        for oid in _related_ids(rel):
+            idx.type_of[oid] = typ
     named = idx.named_psets
     for rel in model.by_type("IfcRelDefinesByProperties"):
         pdef = rel.get_argument(5)   # RelatingPropertyDefinition (the same place in every schema)
@@ -148,13 +165,13 @@ def _walk(model: Any, idx: ModelIndex) -> None:
                 for oid in ids:
                     by_object.setdefault(oid, []).append(d)
     for rel in model.by_type("IfcRelAssociatesMaterial"):
-        mat = rel.RelatingMaterial
-        for obj in rel.RelatedObjects or ():
-            idx.material_of[obj.id()] = mat
+        mat = rel.get_argument(5)   # RelatingMaterial
+        for oid in _related_ids(rel):
+            idx.material_of[oid] = mat
     for rel in model.by_type("IfcRelContainedInSpatialStructure"):
-        st = rel.RelatingStructure
-        for el in rel.RelatedElements or ():
-            idx.storey_of[el.id()] = st
+        st = rel.get_argument(5)   # RelatingStructure
+        for oid in _related_ids(rel):
+            idx.storey_of[oid] = st
     for rel in model.by_type("IfcRelAssignsToProduct"):
         prod = rel.RelatingProduct
         if prod is not None:

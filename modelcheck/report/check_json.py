@@ -235,9 +235,32 @@ class EncodedRows:
                 fh.write(_ROW_SEP)
             if isinstance(chunk, str):
                 with open(chunk, "rb") as src:
-                    shutil.copyfileobj(src, fh, 1 << 22)
+                    if not _send(src, fh):
+                        shutil.copyfileobj(src, fh, 1 << 22)
             else:
                 fh.write(chunk)
+
+
+def _send(src: Any, fh: Any) -> bool:
+    """Copy an open file into ``fh`` inside the kernel (os.sendfile); False where that cannot be done."""
+    try:
+        out = fh.fileno()
+    except (AttributeError, OSError, ValueError):   # an in-memory buffer
+        return False
+    fh.flush()
+    size = os.fstat(src.fileno()).st_size
+    sent = 0
+    try:
+        while sent < size:
+            n = os.sendfile(out, src.fileno(), sent, size - sent)
+            if n == 0:
+                break
+            sent += n
+    except OSError:
+        if sent:
+            raise
+        return False
+    return sent == size
 
 
 def write_json(doc: dict[str, Any], fh: Any, row_keys: tuple[str, ...] = ("results",)) -> None:
