@@ -285,7 +285,7 @@ def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: boo
 
 
 #: members evaluated at a time when the JSON rows are encoded as they come (a memory bound)
-EVALUATE_CHUNK = 10000
+EVALUATE_CHUNK = 65536
 
 
 def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, *, encode_json: bool = False,
