@@ -63,3 +63,15 @@ def test_encoded_rows_are_the_rows_of_the_dict_encoder():
     assert parsed[3]["ratio"] is None and parsed[3]["suggestion"]["designation"] == "RD 24"
     assert all("suggestion" in r for r in parsed)
     assert parsed[0]["demand"]["value"] == 123.457   # six significant digits
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.lists(st.floats(allow_nan=True, allow_infinity=True), max_size=30))
+def test_message_numbers_are_formatted_as_one_by_one(values):
+    """The engine formats a message's numbers a magnitude class at a time: the same text as
+    formatting each number on its own (Python's own format, the reference)."""
+    from modelcheck.rules.engine import _number_text, _number_texts
+
+    arr = np.asarray(values, dtype=float)
+    assert _number_texts(arr).tolist() == [_number_text(x) for x in arr.tolist()]
+    assert _number_texts(arr, ".2f").tolist() == [format(x, ".2f") if x == x else "n/a" for x in arr.tolist()]

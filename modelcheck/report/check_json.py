@@ -169,9 +169,14 @@ def _encode_chunk(res: pd.DataFrame) -> bytes:
         starts[1:] |= arr[1:] != arr[:-1]   # NaN != NaN: a new run, which costs a little, never a wrong row
     first = np.flatnonzero(starts)
     codes = np.cumsum(starts) - 1
-    prefix = _encode_all([f'{{"model":{_text(models[i])},"global_id":{_text(gids[i])},'
-                          f'"ifc_class":{_text(classes[i])},"name":{_text(_none(names[i]))},'
-                          f'"tag":{_text(_none(tags[i]))},"check":' for i in first.tolist()])[codes]
+    at = first.tolist()
+
+    def texts(values: list[Any]) -> np.ndarray:   # JSON texts of the first row of each run
+        return _objects([_escape(v) if type(v) is str else _text(_none(v)) for v in (values[i] for i in at)])
+
+    prefix = _encode_all(('{"model":' + texts(models) + ',"global_id":' + texts(gids) + ',"ifc_class":'
+                          + texts(classes) + ',"name":' + texts(names) + ',"tag":' + texts(tags)
+                          + ',"check":').tolist())[codes]
 
     def encoded(columns: list[str], make: Any) -> np.ndarray:
         """make(key) for each row's values of ``columns``, computed once per distinct key."""

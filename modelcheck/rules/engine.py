@@ -190,6 +190,25 @@ def _number_text(x: float) -> str:
     return f"{x:.3e}"
 
 
+def _number_texts(values: np.ndarray, spec: str = "") -> np.ndarray:
+    """``format(x, spec)`` (``_number_text(x)`` without a spec) of each value, as an object array;
+    'n/a' for NaN. One formatting pass per magnitude class instead of a call per value."""
+    out = np.full(len(values), "n/a", dtype=object)
+    ok = ~np.isnan(values)
+    if spec:
+        out[ok] = [format(x, spec) for x in values[ok].tolist()]
+        return out
+    a = np.abs(values)
+    with np.errstate(invalid="ignore"):
+        plain = ok & ((a == 0) | ((a >= 1e-4) & (a < 1e4)))
+        whole = ok & (a >= 1e4) & (a < 1e9)
+    sci = ok & ~plain & ~whole
+    out[plain] = [f"{x:.4g}" for x in values[plain].tolist()]
+    out[whole] = [f"{x:.0f}" for x in values[whole].tolist()]
+    out[sci] = [f"{x:.3e}" for x in values[sci].tolist()]
+    return out
+
+
 def _unit_label(unit: str) -> str:
     if not unit:
         return ""
@@ -206,9 +225,7 @@ def _format(value: Value, spec: str, unit: str | None, ruleset: RuleSet, idx: np
         mags = _broadcast(value.m_as(u), n)[idx]
         codes, uniques = pd.factorize(mags, use_na_sentinel=False)
         label = "" if "%" in spec or not u else " " + _unit_label(u)
-        texts = [(format(x, spec) if spec else _number_text(x)) + label if x == x else "n/a"
-                 for x in np.asarray(uniques, dtype=float).tolist()]
-        return np.asarray(texts, dtype=object)[codes]
+        return (_number_texts(np.asarray(uniques, dtype=float), spec) + label)[codes]
     if isinstance(value, Text):
         vals = np.broadcast_to(np.asarray(value.values, dtype=object), (n,))[idx]
         return np.where(pd.isna(pd.Series(vals, dtype=object)).to_numpy(), "", vals).astype(object)
@@ -403,10 +420,13 @@ def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
     no_force = np.full(data.n, np.nan)
     parts: list[dict[str, Any]] = []
     selected_ids = {c.id for c in selected_checks}
+    select_masks: dict[Any, np.ndarray] = {}
     for order, check in enumerate(ruleset.checks):
         if check.id not in selected_ids:
             continue
-        mask = base_mask & check.select.mask(members)
+        if check.select not in select_masks:   # checks often share a selection
+            select_masks[check.select] = check.select.mask(members)
+        mask = base_mask & select_masks[check.select]
         if check.needs_force:
             assert frows is not None
             take = mask[frows["member"]]
