@@ -268,6 +268,9 @@ def test_rect_tube_area_matches_shapely(d):
         return
     s = section_of(p)
     ref = outer.difference(inner)
-    assert s.area == pytest.approx(ref.area, rel=1e-4)  # shapely
+    # shapely's arcs are chords: each full circle of radius r loses about π r² (2π/n)² / 6 with n
+    # chords; in a thin wall the outer and inner losses no longer cancel (geometry of the polygon)
+    chord = math.pi * (ro * ro + ri * ri) * (math.pi / (2 * QUAD)) ** 2 / 6
+    assert s.area == pytest.approx(ref.area, rel=1e-4, abs=1.5 * chord)  # shapely
     wider = section_of(FILE.createIfcRectangleHollowProfileDef("AREA", None, None, b * 1.01, h, t, ri, ro))
     assert wider.area > s.area  # common practice
