@@ -133,7 +133,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
     """
     from modelcheck.rules.engine import _force_rows, run_checks
 
-    out = results.copy()
+    out = results.copy(deep=False)   # the new columns are added to this frame only
     out["suggestion"] = pd.Series([None] * len(out), index=out.index, dtype=object)
     out["suggestion_note"] = pd.Series([None] * len(out), index=out.index, dtype=object)
     if not len(out) or not (out["status"] == "fail").any():
@@ -193,6 +193,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
             by_group.setdefault(k, []).append(i)
     exhaustive: list[tuple[np.ndarray, pd.DataFrame, str]] = []
     qualifying: list[pd.DataFrame] = []
+    searches: list[tuple[np.ndarray, pd.DataFrame, str, np.ndarray, np.ndarray, dict[int, Any]]] = []
     for k, members_of_group in by_group.items():
         cands, family = _candidates(k, series)
         idx = np.asarray(members_of_group)
@@ -204,21 +205,31 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
             exhaustive.append((np.repeat(idx, nc), pd.concat([cands] * len(idx), ignore_index=True)
                                .assign(_order=np.tile(np.arange(nc), len(idx))), family))
             continue
-        # one size family whose every check only improves with size: bisection for the first
-        # size that qualifies, all members of the group at once (log2(n) rounds instead of n)
-        lo = np.zeros(len(idx), dtype=int)
-        hi = np.full(len(idx), nc, dtype=int)
-        best: dict[int, pd.Series] = {}
-        while (lo < hi).any():
+        searches.append((idx, cands, family, np.zeros(len(idx), dtype=int), np.full(len(idx), nc, dtype=int), {}))
+    # a size family whose every check only improves with size: bisection for the first size that
+    # qualifies, every member of every such family at once (log2(n) rounds, one evaluation each)
+    while True:
+        specs, spans = [], []
+        for idx, cands, family, lo, hi, best in searches:
             act = np.flatnonzero(lo < hi)
-            mid = (lo[act] + hi[act]) // 2
-            ver = evaluate([(idx[act], cands.iloc[mid].reset_index(drop=True).assign(_order=mid), family)])
-            q = ver["qualifies"].to_numpy(dtype=bool)
+            if len(act):
+                mid = (lo[act] + hi[act]) // 2
+                specs.append((idx[act], cands.iloc[mid].reset_index(drop=True).assign(_order=mid), family))
+                spans.append((lo, hi, best, act, mid))
+        if not specs:
+            break
+        ver = evaluate(specs)   # one verdict per pair, in the order of the specs
+        start = 0
+        for lo, hi, best, act, mid in spans:
+            part = ver.iloc[start:start + len(act)]
+            start += len(act)
+            q = part["qualifies"].to_numpy(dtype=bool)
             hi[act[q]] = mid[q]
             lo[act[~q]] = mid[~q] + 1
-            for j, row in zip(act[q], ver[q].to_dict("records"), strict=True):
+            for j, row in zip(act[q], part[q].to_dict("records"), strict=True):
                 best[int(j)] = row
-        qualifying.append(pd.DataFrame([best[j] for j in range(len(idx)) if j in best and lo[j] < nc]))
+    for idx, cands, _family, lo, _hi, best in searches:
+        qualifying.append(pd.DataFrame([best[j] for j in range(len(idx)) if j in best and lo[j] < len(cands)]))
     if exhaustive:
         ver = evaluate(exhaustive)
         qualifying.append(ver[ver["qualifies"]])

@@ -104,6 +104,8 @@ class _Reader:
         self._profile_cache: dict[int, Section | str] = {}
         self._material_cache: dict[int, MaterialInfo] = {}
         self._body_cache: dict[int, tuple[Section | str | None, tuple[float, str] | None]] = {}
+        self._via_type: dict[tuple[int, str | None], Section] = {}
+        self._doubts: dict[int, tuple[Section, str | None]] = {}   # sections are shared: judged once
         self._type_cache: dict[int, tuple[str | None, Any, list[Any]]] = {}
         self._select_cache: dict[int, tuple[MaterialInfo | None, Section | str | None]] = {}
         self._pos_cache: dict[str, tuple[bool, int | None]] = {}
@@ -211,6 +213,8 @@ class _Reader:
             pts = [p.get_argument(0) for p in curve.get_argument(0)]
             if len(pts) < 2:
                 return None
+            if len(pts) == 2:
+                return math.dist(pts[0], pts[1])
             return sum(math.dist(a, b) for a, b in zip(pts[:-1], pts[1:], strict=True))
         elif cls == "IfcIndexedPolyCurve":
             if curve.Segments:
@@ -372,7 +376,11 @@ class _Reader:
             (candidates if isinstance(own_sec, Section) else problems).append(own_sec)
         elif type_sec is not None:
             if isinstance(type_sec, Section):
-                candidates.append(replace(type_sec, source=f"{type_sec.source} (via type {type_name!r})"))
+                key = (id(type_sec), type_name)   # shared by the type's members: made once
+                via = self._via_type.get(key)
+                if via is None:
+                    via = self._via_type[key] = replace(type_sec, source=f"{type_sec.source} (via type {type_name!r})")
+                candidates.append(via)
             else:
                 problems.append(type_sec)
         rep = ga(6)
@@ -406,7 +414,10 @@ class _Reader:
 
         section = None
         for cand in candidates:
-            doubt = _doubt_section(cand)
+            hit = self._doubts.get(id(cand))
+            if hit is None or hit[0] is not cand:
+                hit = self._doubts[id(cand)] = (cand, _doubt_section(cand))   # the entry keeps cand alive
+            doubt = hit[1]
             if doubt:
                 warnings.append(doubt)
                 continue
@@ -454,7 +465,10 @@ class _Reader:
         """The net area at holes or threads: NET_AREA_PROPERTY on the occurrence, else its type."""
         pset_name, prop_name = NET_AREA_PROPERTY
         own = self.idx.psets_named(eid, pset_name)
-        for where, sets in (("occurrence", own), ("type", self.type_info(typ)[2] if typ is not None else ())):
+        type_sets = self.type_info(typ)[2] if typ is not None else ()
+        if not own and not type_sets:
+            return _NO_NET
+        for where, sets in (("occurrence", own), ("type", type_sets)):
             prop = find_property(list(sets), pset_name, prop_name)
             if prop is None:
                 continue
