@@ -506,3 +506,19 @@ def test_missing_unit_assignments_leave_members_unchecked_and_say_why(capsys, tm
     assert missing_of(doc, "H1") == {"P"}
     line = next(w for w in doc["models"][0]["warnings"] if "FORCEUNIT" in w)
     assert str(p) in line and all(gid in line for gid in member_ids(mb).values())
+
+
+def test_a_syntax_error_where_no_check_reads_is_found_by_validate(capsys, tmp_path):
+    """Models are parsed lazily: a bad number in an entity the check never reads (the site's
+    placement) does not stop the check; --validate reads every entity and names the line
+    (ifcopenshell's validator; the number 1.E400 overflows a double: IEEE 754)."""
+    good = write_model(good_builder(), tmp_path / "good.ifc")
+    # the first cartesian point of the file: the origin of the project's placements
+    no, line = next((no, ln) for no, ln in data_lines(good) if "IFCCARTESIANPOINT((" in ln)
+    bad = with_line(good, tmp_path / "bad-point.ifc", no, re.sub(r"\(\(([-0-9.E]+),", "((1.E400,", line, count=1))
+    out, doc = check_json(capsys, bad)
+    ref_out, ref = check_json(capsys, good)
+    assert out.code == ref_out.code and out.lines == []
+    assert [r["status"] for r in doc["results"]] == [r["status"] for r in ref["results"]]
+    out, doc = check_json(capsys, bad, extra=("--validate",))
+    assert any(w.startswith(f"{bad}:{no}: ") and "IfcCartesianPoint" in w for w in doc["models"][0]["warnings"])
