@@ -98,6 +98,8 @@ def run() -> None:
     import os
 
     code = main()
+    if "modelcheck.parallel" in sys.modules:   # temporary files of a run that stopped early
+        sys.modules["modelcheck.parallel"].cleanup()
     try:
         sys.stdout.flush()
         sys.stderr.flush()

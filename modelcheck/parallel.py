@@ -214,6 +214,12 @@ def _remove_at_exit(paths: list[str]) -> None:
     _AT_EXIT.extend(paths)
 
 
+def cleanup() -> None:
+    """Remove the temporary files still left (the command ends with os._exit: no atexit)."""
+    remove_temp_files(list(_AT_EXIT))
+    _AT_EXIT.clear()
+
+
 def remove_temp_files(chunks: list[bytes | str] | None) -> None:
     """Delete the temporary files among encoded row chunks (once the report is written)."""
     for chunk in chunks or ():

@@ -126,3 +126,24 @@ def test_a_syntax_error_met_in_a_forked_part_is_one_line_naming_its_line(tmp_pat
     assert out.errors == [out.lines[0]] and len(out.errors) == 1
     assert str(broken) in out.errors[0] and f"line {no + 1}" in out.errors[0]
 
+
+
+def test_every_report_format_is_the_same_when_a_model_is_shared_out(tmp_path, capsys, monkeypatch, shared_model):
+    """CSV, JUnit, HTML and BCF read the whole results and member tables: a model shared out gives
+    the same files (the time stamps aside)."""
+    model, table, _ = shared_model
+    monkeypatch.setattr(parallel, "MIN_MEMBERS_PER_PART", 50)
+    outs = []
+    for jobs in ("1", "2"):
+        folder = tmp_path / f"jobs{jobs}"
+        res = run_inprocess(capsys, ["check", str(model), "--loads", str(table), "--format", "csv,junit,html,json",
+                                     "--output", str(folder), "--jobs", jobs, "--no-config"], [model, table])
+        assert res.code == 1, res.stderr
+        texts = {}
+        for f in sorted(folder.iterdir()):
+            text = f.read_text(encoding="utf-8")
+            texts[f.name] = re.sub(r"\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d(?:\+00:00|Z)?|timestamp=\"[^\"]*\"", "T", text)
+        outs.append(texts)
+    assert outs[0].keys() == outs[1].keys() and len(outs[0]) == 4
+    for name in outs[0]:
+        assert outs[0][name] == outs[1][name], name
