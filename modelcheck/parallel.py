@@ -180,9 +180,12 @@ def _run_part(k: int) -> _PartResult:
 
     rows = None
     with stage(f"part {k}: rules, suggestions, JSON"):
-        if st.encode_json:
-            # every part's rows go to a temporary file as they are encoded: none is held in memory,
-            # none is pickled back; the report streams them
+        if st.encode_json and os.getpid() == st.parent_pid:
+            # this process's own rows stay in memory: written once, into the report
+            results, rows = evaluate_members(ruleset, data.members, data.forces, encode_json=True, slim=st.slim)
+        elif st.encode_json:
+            # a forked part's rows go to a temporary file as they are encoded: never held whole in
+            # memory, never pickled back; the report streams them in
             import tempfile
 
             fd, rows = tempfile.mkstemp(prefix="modelcheck-rows-", suffix=".json")
