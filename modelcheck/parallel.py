@@ -306,13 +306,19 @@ def _run_parts(n: int) -> list[_PartResult]:
     """Part 0 here, the others in forked processes at the same time."""
     import multiprocessing
     from concurrent.futures import ProcessPoolExecutor
+    from concurrent.futures.process import BrokenProcessPool
 
     pool = ProcessPoolExecutor(max_workers=n - 1, mp_context=multiprocessing.get_context("fork"))
     try:
         futures = [pool.submit(_run_part, k) for k in range(1, n)]
         first = _run_part(0)
         with stage("parts: wait + transfer"):
-            return [first] + [f.result() for f in futures]
+            try:
+                return [first] + [f.result() for f in futures]
+            except BrokenProcessPool:
+                raise ModelcheckError(f"{_SHARED.idx.path if _SHARED else 'the model'}: a process checking part "
+                                      "of the model stopped unexpectedly (out of memory?); "
+                                      "'--jobs 1' checks it in one process") from None
     finally:
         # the workers free a part's worth of objects as they exit: not waited for
         pool.shutdown(wait=False, cancel_futures=True)

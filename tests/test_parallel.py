@@ -11,7 +11,9 @@ route cannot use, and a syntax error inside an entity that only a forked part re
 from __future__ import annotations
 
 import json
+import os
 import re
+import signal
 from pathlib import Path
 from typing import Any
 
@@ -25,6 +27,14 @@ from tests.corpus import run_inprocess
 pytestmark = pytest.mark.skipif(not parallel.can_split(), reason="sharing a model out needs fork (Linux)")
 
 N = 240
+_REAL_RUN_PART = parallel._run_part
+
+
+def _dying(k: int) -> Any:
+    """A part that is killed in its forked process (the parent's own part runs normally)."""
+    if k > 0:
+        os.kill(os.getpid(), signal.SIGKILL)
+    return _REAL_RUN_PART(k)
 
 
 @pytest.fixture(scope="module")
@@ -53,6 +63,7 @@ def shared_model(tmp_path_factory: Any) -> tuple[Path, Path, Path]:
     dropped = {m.GlobalId for m in members[1::9]}
     body = [r for r in body if r.split(",")[0] not in dropped]
     body += [body[5], "3vvvvvvvvvvvvvvvvvvvvv,LC1,12.0"]    # a duplicate row, a row for no member
+    body.append(f"{members[20].GlobalId},LC9,5000")   # far beyond any of these sections: one failure for sure
     table.write_text("\n".join([header, *body]) + "\n", encoding="utf-8")
     tags = d / "tag-forces.csv"
     tags.write_text("tag,load_case,axial_force [kN]\nSHARED-1,LC2,10\nSOLO-1,LC2,11\nNO-SUCH-TAG,LC2,12\n",
@@ -147,3 +158,15 @@ def test_every_report_format_is_the_same_when_a_model_is_shared_out(tmp_path, ca
     assert outs[0].keys() == outs[1].keys() and len(outs[0]) == 4
     for name in outs[0]:
         assert outs[0][name] == outs[1][name], name
+
+
+def test_a_part_whose_process_dies_is_one_clear_line(tmp_path, capsys, monkeypatch, shared_model):
+    """A forked part killed from outside (the kernel's out-of-memory killer, say): one line naming
+    the model and what to do, exit 2 (common practice: no traceback for a user)."""
+    model, table, _ = shared_model
+    monkeypatch.setattr(parallel, "MIN_MEMBERS_PER_PART", 50)
+    monkeypatch.setattr(parallel, "_run_part", _dying)
+    out = run_inprocess(capsys, ["check", str(model), "--loads", str(table), "--format", "json", "--jobs", "2",
+                                 "--no-config"], [model, table])
+    assert out.code == 2
+    assert len(out.lines) == 1 and str(model) in out.lines[0] and "--jobs 1" in out.lines[0]
