@@ -170,3 +170,24 @@ def test_a_part_whose_process_dies_is_one_clear_line(tmp_path, capsys, monkeypat
                                  "--no-config"], [model, table])
     assert out.code == 2
     assert len(out.lines) == 1 and str(model) in out.lines[0] and "--jobs 1" in out.lines[0]
+
+
+@pytest.mark.parametrize("name", ["nettlebrook-hall.ifc", "nettlebrook-canopy.ifc", "nettlebrook-pipebridge.ifc"])
+def test_the_sample_models_shared_out_give_their_single_process_reports(capsys, monkeypatch, name):
+    """The demo models carry all three force routes (a load table, model properties, IFC
+    structural-analysis results) and three schemas and unit systems: shared out in parts of a
+    few members each, every report is the single-process one."""
+    from tests.conftest import REPO
+
+    model = REPO / "sample_models" / name
+    tables = sorted((REPO / "sample_models").glob("*-forces.csv"))
+    monkeypatch.setattr(parallel, "MIN_MEMBERS_PER_PART", 4)
+    args = ["check", str(model), *[a for t in tables for a in ("--loads", str(t))], "--format", "json",
+            "--no-config"]
+    one = run_inprocess(capsys, [*args, "--jobs", "1"], [model, *tables])
+    two = run_inprocess(capsys, [*args, "--jobs", "2"], [model, *tables])
+    assert one.code == two.code and one.code in (0, 1), one.stderr + two.stderr
+    a, b = json.loads(one.stdout), json.loads(two.stdout)
+    a.pop("generated")
+    b.pop("generated")
+    assert a == b
