@@ -191,3 +191,29 @@ def test_the_sample_models_shared_out_give_their_single_process_reports(capsys, 
     a.pop("generated")
     b.pop("generated")
     assert a == b
+
+
+def test_repeated_and_missing_globalids_shared_out_give_the_single_process_report(tmp_path, capsys, monkeypatch,
+                                                                                 shared_model):
+    """A broken model: two members share a GlobalId, one has none ('$', which IFC forbids). The
+    members of one GlobalId stay in one part, the unnamed one is '#id' in both runs."""
+    model, table, _ = shared_model
+    monkeypatch.setattr(parallel, "MIN_MEMBERS_PER_PART", 50)
+    text = model.read_text(encoding="ascii")
+    lines = text.splitlines()
+    rows = [i for i, ln in enumerate(lines) if re.match(r"#\d+=IFCMEMBER\('", ln)]
+    gid_of = [re.match(r"#\d+=IFCMEMBER\('([^']+)'", lines[i]).group(1) for i in rows]
+    lines[rows[5]] = lines[rows[5]].replace(f"'{gid_of[5]}'", f"'{gid_of[60]}'", 1)   # a repeated GlobalId
+    lines[rows[9]] = lines[rows[9]].replace(f"'{gid_of[9]}'", "$", 1)                  # no GlobalId
+    broken = tmp_path / "broken-ids.ifc"
+    broken.write_text("\n".join(lines) + "\n", encoding="ascii")
+    args = ["check", str(broken), "--loads", str(table), "--format", "json", "--no-config"]
+    one = run_inprocess(capsys, [*args, "--jobs", "1"], [broken, table])
+    two = run_inprocess(capsys, [*args, "--jobs", "2"], [broken, table])
+    assert one.code == two.code
+    a, b = json.loads(one.stdout), json.loads(two.stdout)
+    a.pop("generated")
+    b.pop("generated")
+    assert a == b
+    gids = [r["global_id"] for r in a["results"]]
+    assert any(g.startswith("#") for g in gids) and gid_of[60] in gids

@@ -143,7 +143,18 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
     fail_rows = out["status"] == "fail"
     fkeys = _key(out.loc[fail_rows, "model"], out.loc[fail_rows, "global_id"])
     failing = pd.unique(fkeys)
-    pos = pd.Index(mkeys).get_indexer(failing)
+    mindex = pd.Index(mkeys)
+    shared: set[str] = set()
+    if mindex.is_unique:
+        pos = mindex.get_indexer(failing)
+    else:   # a broken model: members sharing a GlobalId cannot be told apart in the results
+        shared = set(mkeys[mindex.duplicated(keep=False)])
+        first = {k: i for i, k in reversed(list(enumerate(mkeys.tolist())))}
+        pos = np.array([-1 if k in shared else first.get(k, -1) for k in failing], dtype=np.int64)
+        rows = np.flatnonzero(fail_rows.to_numpy() & pd.Series(_key(out["model"], out["global_id"])).isin(shared)
+                              .to_numpy())
+        out.iloc[rows, out.columns.get_loc("suggestion_note")] = \
+            "no suggestion: its GlobalId is shared by several members, so its results are theirs too"
     pos = pos[pos >= 0]
     if not len(pos):
         return out
@@ -255,7 +266,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
     # onto the failing rows
     row_member = pd.Index(sub_keys).get_indexer(_key(out["model"], out["global_id"]))
     sugg = np.full(len(out), None, dtype=object)
-    note_col = np.full(len(out), None, dtype=object)
+    note_col = out["suggestion_note"].to_numpy(dtype=object).copy()
     is_fail = (out["status"] == "fail").to_numpy()
     for r in np.flatnonzero(is_fail & (row_member >= 0)).tolist():
         m = int(row_member[r])
