@@ -115,6 +115,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
                     return found
         return None
 
+    source_of: dict[str, str] = {}   # one source text per origin, shared by its rows
     for gid in mine.dropna().unique():
         eid = eids.get(gid)
         if eid is None:
@@ -137,17 +138,18 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
             if prop is None:
                 continue
             origin = f"type {typ.Name}" if typ.Name else f"type #{tid}"
-        reading = reading_cache.get(prop.id())
+        pid = prop.id()
+        reading = reading_cache.get(pid)
         if reading is None:
-            reading = reading_cache[prop.id()] = _read(prop, idx)
+            reading = reading_cache[pid] = _read(prop, idx)
         if reading.problem:
             log.add(f"{label} ({origin}): {reading.problem}; no force taken", gid)
             continue
         gids.append(gid)
         raws.append(reading.raw)
-        cases.append(prop_cases.get(prop.id(), case))
+        cases.append(prop_cases.get(pid, case))
         keys.append(reading.unit_key)
-        sources.append(f"{label} ({origin})")
+        sources.append(source_of.get(origin) or source_of.setdefault(origin, f"{label} ({origin})"))
     if not gids:
         return empty_forces(), log.messages() if own_log else []
     # unit factors: one per distinct unit, then one vectorised multiplication
@@ -190,10 +192,11 @@ def _read(prop: Any, idx: ModelIndex) -> _Reading:
     nv = prop.get_argument(2)   # NominalValue
     if nv is None:
         return _Reading(problem="has no value")
-    if not (hasattr(nv, "is_a") and hasattr(nv, "wrappedValue")):  # the schema allows a typed value only
+    try:   # a typed value (IfcForceMeasure(…)) is all the schema allows here
+        measure = nv.is_a()
+        value = nv.get_argument(0)   # wrappedValue
+    except (AttributeError, TypeError, IndexError, RuntimeError):
         return _Reading(problem=f"holds {nv!r}, not a typed IFC value (the file breaks the IFC schema)")
-    measure = nv.is_a()
-    value = nv.wrappedValue
     unit = prop.get_argument(3)   # Unit
     if unit is not None and not hasattr(unit, "is_a"):
         return _Reading(problem=f"its unit is {unit!r}, not a unit entity (the file breaks the IFC schema)")
