@@ -58,6 +58,7 @@ class _Shared:
     idx: Any
     entities: list[Any]            # member entities in file order
     parts: list[list[int]]         # each part's members: positions in ``entities``, in file order
+    gids: list[str]                # GlobalId of each entity (as the member table holds it)
     ruleset_ref: str
     forces: ForceOptions
     shared_tags: dict[str, tuple[str, ...]]
@@ -162,7 +163,7 @@ def _run_part(k: int) -> _PartResult:
     if st.forces.analysis:
         ana = st.analysis
         if ana is not None and len(ana):
-            gids = {g for g in _gids(idx, entities)}
+            gids = {st.gids[i] for i in positions}
             ana = ana[ana["global_id"].isin(gids)]
         analysis = (ana, [])
     # each load table cut down to the rows this part can match: its GlobalIds, and every tag row
@@ -233,12 +234,6 @@ def remove_temp_files(chunks: list[bytes | str] | None) -> None:
                 pass
 
 
-def _gids(idx: Any, entities: list[Any]) -> list[str]:
-    from modelcheck.ifc.reader import member_keys
-
-    return member_keys(idx, entities)[0]
-
-
 def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, parts: int, validate: bool = False,
                       encode_json: bool = False, slim: bool = False) -> CheckedModel | None:
     """Check one model in ``parts`` processes; None when it is too small to share out (or this
@@ -290,7 +285,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     runs = [sorted(order[a:b]) for a, b in bounds]
     part_of = {g: k for k, (a, b) in enumerate(bounds) for g in sorted_gids[a:b]}
     tables = tuple(_table_parts(t, part_of, len(bounds)) for t in forces.tables)
-    _SHARED = _Shared(idx, entities, runs, ruleset_ref,
+    _SHARED = _Shared(idx, entities, runs, gids, ruleset_ref,
                       forces, shared_tags, analysis, encode_json, slim, len(idx.parse_log),
                       os.getpid(), _file_offsets(idx.file_fds), tables)
     try:
