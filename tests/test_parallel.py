@@ -217,3 +217,17 @@ def test_repeated_and_missing_globalids_shared_out_give_the_single_process_repor
     assert a == b
     gids = [r["global_id"] for r in a["results"]]
     assert any(g.startswith("#") for g in gids) and gid_of[60] in gids
+
+
+def test_members_evaluated_in_runs_give_the_report_of_one_run(capsys, monkeypatch, shared_model):
+    """Beyond EVALUATE_CHUNK members the rules, suggestions and JSON rows go run by run of
+    GlobalIds (a memory bound); the rows must be those of one run over all members (common
+    practice: how the work is cut never shows in the result)."""
+    import modelcheck.pipeline as pipeline
+
+    model, table, tags = shared_model
+    args = ["check", str(model), "--loads", str(table), "--loads", str(tags), "--format", "json", "--no-config"]
+    whole = _report(capsys, [*args, "--jobs", "1"], [model, table, tags])
+    monkeypatch.setattr(pipeline, "EVALUATE_CHUNK", 37)       # several runs, none aligned with anything
+    monkeypatch.setattr(parallel, "MIN_MEMBERS_PER_PART", 50)
+    assert _report(capsys, [*args, "--jobs", "2"], [model, table, tags]) == whole
