@@ -97,6 +97,13 @@ def run() -> None:
     such as the tests)."""
     import os
 
+    from modelcheck import lifetime
+
+    # numpy asks for transparent huge pages for arrays of 4 MiB and more; where the system backs
+    # them lazily (virtual machines), faulting them in costs more than the check's arithmetic
+    if "numpy" not in sys.modules:
+        os.environ.setdefault("NUMPY_MADVISE_HUGEPAGE", "0")
+    lifetime.ENDS_WITH_EXIT = True
     code = main()
     if "modelcheck.parallel" in sys.modules:   # temporary files of a run that stopped early
         sys.modules["modelcheck.parallel"].cleanup()

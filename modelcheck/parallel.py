@@ -36,6 +36,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from modelcheck import lifetime
 from modelcheck.errors import ModelcheckError
 from modelcheck.pipeline import REPORT_MEMBER_COLUMNS, CheckedModel, ForceOptions, ModelData, describe_model
 from modelcheck.timing import stage
@@ -292,6 +293,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
         with stage("parts"):
             outs = _run_parts(len(_SHARED.parts))
     finally:
+        lifetime.keep(_SHARED, order, sorted_gids, part_of, by_tag)
         _SHARED = None
     with stage("merge parts"):
         return _merge(data, idx, outs, analysis_msgs)

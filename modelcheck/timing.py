@@ -47,10 +47,15 @@ def stage(name: str) -> Iterator[None]:
     if not _ON:
         yield
         return
+    import resource
+
     t = time.perf_counter()
+    faults = resource.getrusage(resource.RUSAGE_SELF).ru_minflt
     try:
         yield
     finally:
         now = time.perf_counter()
+        faults = resource.getrusage(resource.RUSAGE_SELF).ru_minflt - faults
         print(f"[timing] {os.getpid()} {name:<24} {now - t:6.2f} s (at {_since_start():5.2f} s) "
-              f"rss {_rss()}", file=sys.stderr, flush=True)
+              f"rss {_rss()}, {faults * resource.getpagesize() >> 20} MiB faulted in",
+              file=sys.stderr, flush=True)
