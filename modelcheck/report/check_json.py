@@ -193,28 +193,35 @@ def _encode_chunk(res: pd.DataFrame) -> bytes:
     mid = encoded(["check", "load_case", "status"],
                   lambda k: f'{_text(k[0])},"load_case":{_text(_none(k[1]))},"status":{_text(k[2])},"demand":')
 
-    def quantity(values: str, sources: str) -> np.ndarray:
-        tail = encoded(["unit", sources],
-                       lambda k: f',"unit":{_text(str(k[0] or ""))},"source":{_text(str(k[1] or ""))}}}')
+    def quantity(values: str, sources: str, after: str) -> list[np.ndarray]:
+        """Three pieces per row: '{"value":', the number and the rest of the object followed by
+        ``after``; '', 'null' and ``after`` where the value is null. The pieces go into the row
+        as they are: no text is made per row that the final join would only copy again."""
         rounded = round_sig6(col(values))
-        out = _objects([b"null"] * n)
-        ok = np.flatnonzero(~np.isnan(rounded))
-        out[ok] = b'{"value":' + _number_texts(rounded[ok]) + tail[ok]
-        return out
+        known = ~np.isnan(rounded)
+        head = np.full(n, b'{"value":', dtype=object)
+        head[~known] = b""
+        number = np.full(n, b"null", dtype=object)
+        number[known] = _number_texts(rounded[known])
+        tail = encoded(["unit", sources],
+                       lambda k: f',"unit":{_text(str(k[0] or ""))},"source":{_text(str(k[1] or ""))}}}' + after)
+        tail[~known] = after.encode()
+        return [head, number, tail]
 
     messages = col("message")
     message = _encode_all([_escape(m) if type(m) is str else _text(str(m or "")) for m in messages])
-    missing = _objects([orjson.dumps(list(m)) if m else b"[]" for m in col("missing")])
-    pieces = [prefix, mid, quantity("demand", "demand_source"), b',"capacity":',
-              quantity("capacity", "capacity_source"), b',"ratio":', _number_texts(round_sig6(col("ratio"))),
-              b',"missing":', missing, b',"message":', message]
-    sugg = _objects([b"null"] * n)   # every row has the key, null where there is none
+    missing = np.full(n, b',"missing":[],"message":', dtype=object)
+    for i, m in enumerate(col("missing")):
+        if m:
+            missing[i] = b',"missing":' + orjson.dumps(list(m)) + b',"message":'
+    end = np.full(n, b',"suggestion":null}' + _ROW_SEP, dtype=object)   # every row has the key
     if "suggestion" in res.columns:
         for i, x in enumerate(col("suggestion")):
             if isinstance(x, dict):
-                sugg[i] = orjson.dumps(x)
-    pieces += [b',"suggestion":', sugg]
-    pieces.append(b"}" + _ROW_SEP)
+                end[i] = b',"suggestion":' + orjson.dumps(x) + b"}" + _ROW_SEP
+    pieces = [prefix, mid, *quantity("demand", "demand_source", ',"capacity":'),
+              *quantity("capacity", "capacity_source", ',"ratio":'), _number_texts(round_sig6(col("ratio"))),
+              missing, message, end]
     grid = np.empty((n, len(pieces)), dtype=object)
     for j, p in enumerate(pieces):
         grid[:, j] = p
