@@ -16,11 +16,29 @@ Rules followed (IFC 4.3, IfcSIUnit / IfcConversionBasedUnit / IfcDerivedUnit):
 from __future__ import annotations
 
 import math
+import sys
 from dataclasses import dataclass, field
 from functools import lru_cache
 from typing import Any
 
-import pint
+
+def _import_pint() -> Any:
+    """pint, imported without its optional dask support when dask is not loaded yet: pint looks
+    for dask at import and loads it if installed (a tenth of a second at every start), and no
+    quantity here is a dask array (dask serves only ``--scheduler``, which imports it itself)."""
+    if "pint" in sys.modules or "dask" in sys.modules:
+        import pint
+
+        return pint
+    sys.modules["dask"] = None   # type: ignore[assignment]  # an import of dask now fails at once
+    try:
+        import pint
+    finally:
+        del sys.modules["dask"]
+    return pint
+
+
+pint = _import_pint()
 
 
 def _registry() -> pint.UnitRegistry:
