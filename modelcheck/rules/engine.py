@@ -412,7 +412,8 @@ def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
             raise RuleSetError(f"no check {unknown_ids[0]!r} in rule set {ruleset.name}", path=ruleset.path)
     if data.n == 0 or not selected_checks:
         return empty_results()
-    base_mask = ruleset.select.mask(members)
+    match_cache: dict[Any, np.ndarray] = {}   # selectors share columns and patterns
+    base_mask = ruleset.select.mask(members, match_cache)
     need_force = any(c.needs_force for c in selected_checks)
     frows = _force_rows(members, forces) if need_force else None
     all_members = np.arange(data.n)
@@ -425,7 +426,7 @@ def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
         if check.id not in selected_ids:
             continue
         if check.select not in select_masks:   # checks often share a selection
-            select_masks[check.select] = check.select.mask(members)
+            select_masks[check.select] = check.select.mask(members, match_cache)
         mask = base_mask & select_masks[check.select]
         if check.needs_force:
             assert frows is not None

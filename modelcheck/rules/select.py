@@ -12,6 +12,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -106,8 +107,14 @@ class Selector:
             text += "; except " + self.exclude.describe()
         return text
 
-    def mask(self, members: pd.DataFrame) -> np.ndarray:
-        """Boolean array: which rows of ``members`` this selector selects."""
+    def mask(self, members: pd.DataFrame, cache: dict[Any, np.ndarray] | None = None) -> np.ndarray:
+        """Boolean array: which rows of ``members`` this selector selects.
+
+        ``cache`` (a dict kept by the caller for one member table) holds each column's match of
+        a set of patterns, so selectors that share keys (a check's and its exclusion's, several
+        checks' on one kind of member) match each column once."""
+        if cache is None:
+            cache = {}
         n = len(members)
         result = np.ones(n, dtype=bool)
         for key, patterns in self.keys:
@@ -119,8 +126,12 @@ class Selector:
             else:
                 hit = np.zeros(n, dtype=bool)
                 for column in SELECTOR_KEYS[key]:
-                    hit |= np.asarray(glob_match(_column(members, column), patterns).value, dtype=bool)
+                    found = cache.get((column, patterns))
+                    if found is None:
+                        found = cache[(column, patterns)] = np.asarray(
+                            glob_match(_column(members, column), patterns).value, dtype=bool)
+                    hit |= found
             result &= hit
         if self.exclude is not None and self.exclude.keys:
-            result &= ~self.exclude.mask(members)
+            result &= ~self.exclude.mask(members, cache)
         return result
