@@ -180,11 +180,20 @@ def main(argv: list[str] | None = None) -> int:
 
 
 # ---------------------------------------------------------------------------- helpers
-def force_options(args: argparse.Namespace, ruleset: Any = None) -> Any:
+def force_options(args: argparse.Namespace, ruleset: Any = None, read_ahead: bool = False) -> Any:
+    """The force routes of a command. ``read_ahead``: one model will be opened next and shared
+    out among processes, so a forked helper reads the load tables meanwhile (``TablesReadAhead``)."""
     from modelcheck.loads.tables import read_load_table
     from modelcheck.pipeline import ForceOptions
 
-    tables = tuple(read_load_table(p) for p in expand_load_paths(args.loads))
+    load_paths = expand_load_paths(args.loads)
+    tables: Any
+    if read_ahead and load_paths:
+        from modelcheck.parallel import TablesReadAhead, can_split
+
+        tables = TablesReadAhead(load_paths) if can_split() else tuple(read_load_table(p) for p in load_paths)
+    else:
+        tables = tuple(read_load_table(p) for p in load_paths)
     prop_text = args.force_property or getattr(ruleset, "force_property", None) or "MC_MemberForces.AxialForce"
     if "." not in prop_text:
         raise UsageError(f"--force-property {prop_text!r}: write it as PSET.PROPERTY")
@@ -425,12 +434,13 @@ def cmd_check(args: argparse.Namespace) -> int:
         baseline = load_baseline(args.baseline)
     from modelcheck.timing import stage
 
-    with stage("rule set + load tables"):
-        ruleset = load_ruleset(args.rules or "steel-asd-us")
-        fopts = force_options(args, ruleset)
     jobs = args.jobs if args.jobs is not None else (os.cpu_count() or 1)
     if jobs < 1:
         raise UsageError("--jobs must be at least 1")
+    with stage("rule set + load tables"):
+        ruleset = load_ruleset(args.rules or "steel-asd-us")
+        # one model for several processes: its tables are read while it opens
+        fopts = force_options(args, ruleset, read_ahead=len(paths) == 1 and jobs > 1 and not args.scheduler)
     # the JSON report alone needs no results table beyond the statuses (summary, exit code)
     only_json = formats == ["json"] and not args.baseline and not args.annotate
     with stage("check models"):

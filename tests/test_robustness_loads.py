@@ -99,6 +99,8 @@ def test_a_bad_table_is_one_line_naming_file_and_row_through_function_and_cli(ca
     assert fragment in message, message
     model_path, _ = model
     for command in (["check", str(model_path), "--jobs", "1", "--no-config", "--format", "json"],
+                    # one model, two processes: the table is read by a helper while the model opens
+                    ["check", str(model_path), "--jobs", "2", "--no-config", "--format", "json"],
                     ["members", str(model_path), "--format", "json"]):
         out = run_inprocess(capsys, [*command, "--loads", str(table)], inputs=[table, model_path])
         assert out.code == 2
