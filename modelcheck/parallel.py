@@ -98,13 +98,21 @@ def _table_parts(table: pd.DataFrame, part_of: dict[str, int], parts: int) -> li
     return [table[(where == k) | (where == -2)] for k in range(parts)]
 
 
+#: the share of the members the parent checks, against an equal share. The parent also starts the
+#: other processes and writes the report; a forked part also writes its rows to a temporary file.
+#: Measured on 100,000 members, two processes: 1.05 left the parent finishing about 0.8 s after the
+#: other part, 0.95 the other part about 0.8 s after the parent; equal shares balance them.
+PARENT_SHARE = 1.0
+
+
 def _bounds(gids: list[str], parts: int) -> list[tuple[int, int]]:
-    """Contiguous runs of about equal size that never split members sharing a GlobalId; the first
-    (checked by this process, which needs no fork and faults in no copied pages) a little larger."""
+    """Contiguous runs that never split members sharing a GlobalId: the first (checked by this
+    process) ``PARENT_SHARE`` of an equal share, the others equal."""
     n = len(gids)
+    first = PARENT_SHARE / parts
     cuts = [0]
     for k in range(1, parts):
-        c = max(cuts[-1], min(n, round(n * k / parts * (1 + 0.1 / parts))))
+        c = max(cuts[-1], min(n, round(n * (first + (k - 1) * (1 - first) / (parts - 1)))))
         while 0 < c < n and gids[c] == gids[c - 1]:
             c += 1
         if cuts[-1] < c < n:
