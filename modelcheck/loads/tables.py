@@ -401,26 +401,25 @@ def _forces_si(raw: pd.Series, header: _Header, name: str, where: Callable[[int]
         text = raw
     else:
         text = raw.map(lambda v: v if isinstance(v, str) else None)
+
+    def no_unit(bad: np.ndarray) -> LoadTableError:
+        return _row_error(name, where, rows, bad,
+                          f"a number with no unit, and the header {header.force_label!r} states none; "
+                          "give the unit in the header ('axial_force [kN]') or in the cell ('12.5 kN')",
+                          value=raw.iloc[int(np.flatnonzero(bad)[0])])
+
     numeric_cell = text.isna().to_numpy()
     if numeric_cell.any():
-        first = raw.iloc[int(np.flatnonzero(numeric_cell)[0])]
-        raise _row_error(name, where, rows, numeric_cell,
-                         f"a number with no unit, and the header {header.force_label!r} states none; "
-                         "give the unit in the header ('axial_force [kN]') or in the cell ('12.5 kN')",
-                         value=first)
+        raise no_unit(numeric_cell)
     parts = text.str.extract(_VALUE_RE)
     unmatched = parts["num"].isna().to_numpy()
     if unmatched.any():
         first = raw.iloc[int(np.flatnonzero(unmatched)[0])]
         raise _row_error(name, where, rows, unmatched, _why_not_number(first, None), value=first)
     units = parts["unit"].fillna("").str.strip()
-    no_unit = (units == "").to_numpy()
-    if no_unit.any():
-        first = raw.iloc[int(np.flatnonzero(no_unit)[0])]
-        raise _row_error(name, where, rows, no_unit,
-                         f"a number with no unit, and the header {header.force_label!r} states none; "
-                         "give the unit in the header ('axial_force [kN]') or in the cell ('12.5 kN')",
-                         value=first)
+    unitless = (units == "").to_numpy()
+    if unitless.any():
+        raise no_unit(unitless)
     codes, uniques = pd.factorize(units)
     factors = np.empty(len(uniques), dtype=float)
     for k, u in enumerate(uniques):
