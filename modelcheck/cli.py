@@ -443,9 +443,13 @@ def cmd_check(args: argparse.Namespace) -> int:
         fopts = force_options(args, ruleset, read_ahead=len(paths) == 1 and jobs > 1 and not args.scheduler)
     # the JSON report alone needs no results table beyond the statuses (summary, exit code)
     only_json = formats == ["json"] and not args.baseline and not args.annotate
-    with stage("check models"):
-        run = _run_with_progress(paths, ruleset, fopts, jobs, bool(args.validate), args.scheduler,
-                                 encode_json="json" in files, slim=only_json)
+    try:
+        with stage("check models"):
+            run = _run_with_progress(paths, ruleset, fopts, jobs, bool(args.validate), args.scheduler,
+                                     encode_json="json" in files, slim=only_json)
+    finally:
+        if hasattr(fopts.tables, "close"):   # tables read ahead by a helper process
+            fopts.tables.close()
     now = dt.datetime.now(dt.UTC).replace(microsecond=0)
     comparison = None
     if baseline is not None:

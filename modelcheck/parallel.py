@@ -29,6 +29,7 @@ Example::
 from __future__ import annotations
 
 import os
+import signal
 import sys
 from dataclasses import dataclass, replace
 from typing import Any
@@ -279,6 +280,18 @@ class TablesReadAhead:
         if kind == "crash":
             raise RuntimeError(f"reading the load tables failed: {value}")
         return value
+
+    def close(self) -> None:
+        """Stop the helper if its tables were never asked for (the check stopped before): it would
+        otherwise wait on a full pipe for as long as this process lives."""
+        if self._tables is None and self._error is None:
+            self._error = ModelcheckError("the load tables were not read (the check had stopped)")
+            os.close(self._fd)
+            try:
+                os.kill(self._pid, signal.SIGKILL)
+            except ProcessLookupError:
+                pass
+            os.waitpid(self._pid, 0)
 
     def __iter__(self) -> Any:
         return iter(self._get())

@@ -196,6 +196,31 @@ def test_a_table_helper_that_dies_is_one_clear_line(tmp_path, capsys, monkeypatc
     assert len(out.lines) == 1 and "load tables" in out.lines[0] and "--jobs 1" in out.lines[0]
 
 
+def test_a_check_stopped_before_its_tables_are_used_leaves_no_helper_behind(capsys, monkeypatch, shared_model):
+    """The helper would otherwise wait on its full pipe for as long as the caller lives."""
+    import modelcheck.pipeline as pipeline
+
+    model, table, _ = shared_model
+    helpers: list[parallel.TablesReadAhead] = []
+    real = parallel.TablesReadAhead.__init__
+
+    def record(self: Any, paths: list[str]) -> None:
+        real(self, paths)
+        helpers.append(self)
+
+    def stopped(*args: Any, **kwargs: Any) -> Any:
+        raise pipeline.ModelcheckError("stopped before the tables were used")
+
+    monkeypatch.setattr(parallel.TablesReadAhead, "__init__", record)
+    monkeypatch.setattr(pipeline, "check_model", stopped)
+    out = run_inprocess(capsys, ["check", str(model), "--loads", str(table), "--format", "json", "--jobs", "2",
+                                 "--no-config"], [model, table])
+    assert out.code == 2 and out.lines == ["modelcheck: error: stopped before the tables were used"]
+    assert len(helpers) == 1
+    with pytest.raises(ChildProcessError):   # reaped: no such child any more
+        os.waitpid(helpers[0]._pid, os.WNOHANG)
+
+
 @pytest.mark.parametrize("name", ["nettlebrook-hall.ifc", "nettlebrook-canopy.ifc", "nettlebrook-pipebridge.ifc"])
 def test_the_sample_models_shared_out_give_their_single_process_reports(capsys, monkeypatch, name):
     """The demo models carry all three force routes (a load table, model properties, IFC
