@@ -263,7 +263,7 @@ def test_net_area_from_the_model_brings_in_the_rupture_check(tmp_path):
     # AISC 360-16 D2(b), U = 1 (D3): f = P/Ae = 40/1.5 = 26.67 ksi against Fu/2.00 = 58/2 = 29 ksi
     # (ASTM A36 Fu = 58 ksi, from memory)
     assert math.isclose(res["tension-rupture"]["ratio"], (40 / 1.5) / (58 / 2.0), rel_tol=1e-4)
-    # D2(a) on the gross area: 40/2.0 = 20 ksi against 36/1.67 = 21.56 ksi
+    # D2(a) on the gross area: 40/2.0 = 20 ksi against 36/1.67 = 21.56 ksi (ASTM A36 Fy = 36 ksi, from memory)
     assert math.isclose(res["tension-yield"]["ratio"], (40 / 2.0) / (36 / 1.67), rel_tol=1e-4)
 
 

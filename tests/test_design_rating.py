@@ -29,7 +29,8 @@ def members(*rows: dict[str, Any]) -> pd.DataFrame:
 
 
 def w8x31_a992(length_ft: float) -> dict[str, Any]:
-    # AISC Shapes Database v15.0: W8X31 A = 9.13 in², ry = 2.02 in (from memory); ASTM A992 Fy 50 ksi
+    # AISC Shapes Database v15.0: W8X31 A = 9.13 in², ry = 2.02 in (from memory); ASTM A992 Fy 50 ksi,
+    # Fu 65 ksi; E = 29,000 ksi (AISC 360-16 B3 user note); all from memory
     return {"shape": "I", "section_name": "W8X31", "area": 9.13 * IN2, "r_min": 2.02 * IN,
             "h": 8.0 * IN, "b": 8.0 * IN, "tf": 0.435 * IN, "tw": 0.285 * IN,
             "length": length_ft * 0.3048, "E": 29000 * KSI, "Fy": 50 * KSI, "Fu": 65 * KSI}

@@ -128,7 +128,8 @@ def test_a_conversion_chain_is_the_files_factors_whatever_the_names(prefix, base
     assert close(got, renamed, rel=0.0)  # the name never changes the size
 
 
-#: conversion-based units spelled out as the files of US practice write them, and pint's name for each
+#: conversion-based units spelled out as the files of US practice write them, and pint's name for each;
+#: the factors are NIST SP 811's (from memory), and each is also checked against pint below
 US_UNITS = {
     "inch": ("METRE", None, [(0.0254, "INCH")]),                                    # NIST SP 811 (from memory)
     "foot": ("METRE", None, [(0.0254, "INCH"), (12.0, "FOOT")]),
