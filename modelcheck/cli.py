@@ -7,6 +7,7 @@ Exit codes: 0 no failure; 1 at least one failing member (with --strict also any 
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 from pathlib import Path
 from typing import Any
@@ -165,6 +166,10 @@ def main(argv: list[str] | None = None) -> int:
         return 130
     except BrokenPipeError:
         return EXIT_OK
+    except OSError as exc:   # a file that could not be read or written (permissions, a full disk, ...)
+        where = f"{exc.filename}: " if exc.filename else ""
+        print(f"modelcheck: error: {where}{exc.strerror or exc}", file=sys.stderr)
+        return EXIT_INPUT
     except Exception as exc:  # a bug of ours: still one line, never a traceback for the user
         import os
 
@@ -235,12 +240,34 @@ def write_text(text: str, output: str | None, inputs: list[str]) -> None:
     Path(output).write_text(text, encoding="utf-8")
 
 
-def guard_output(output: str, inputs: list[str]) -> None:
-    """Refuse to write over an input file."""
-    out = Path(output).resolve()
+def guard_output(output: str, inputs: list[str], option: str = "--output", new_folder: bool = False) -> None:
+    """Refuse to write over an input file (by any name: a link to it counts), into a folder that
+    does not exist (``new_folder``: the command makes the file's own folder, whose parent must
+    exist), or onto a folder."""
+    out = Path(output)
+    if out.is_dir():
+        raise UsageError(f"{option} {output} is a folder; name a file to write")
+    parent = out.resolve().parent
+    if new_folder and not parent.exists():
+        parent = parent.parent
+    if not parent.is_dir():
+        raise UsageError(f"{option} {output}: the folder {parent} does not exist")
     for p in inputs:
-        if Path(p).exists() and Path(p).resolve() == out:
-            raise UsageError(f"--output {output} is one of the input files; refusing to overwrite it")
+        if not Path(p).is_file():
+            continue
+        if Path(p).resolve() == out.resolve() or (out.exists() and os.path.samefile(p, out)):
+            raise UsageError(f"{option} {output} is one of the input files ({p}); refusing to overwrite it")
+
+
+def read_inputs(args: argparse.Namespace, paths: list[str], load_paths: list[str]) -> list[str]:
+    """Every file a command reads: models, load tables, rule set, baseline, configuration."""
+    from modelcheck.config import config_path
+
+    extra = [getattr(args, "rules", None), getattr(args, "baseline", None)]
+    if not getattr(args, "no_config", True):
+        cfg = config_path(Path.cwd())
+        extra.append(str(cfg) if cfg is not None else None)
+    return paths + load_paths + [str(x) for x in extra if x]
 
 
 def unmatched_lines(rows: list[dict[str, str]]) -> list[str]:
@@ -270,6 +297,9 @@ def cmd_members(args: argparse.Namespace) -> int:
     from modelcheck.report.quantities import DisplayUnits
 
     paths = expand_paths(args.models)
+    inputs = read_inputs(args, paths, expand_load_paths(args.loads))
+    if args.output:
+        guard_output(args.output, inputs)
     ruleset = None
     if args.capacity:
         from modelcheck.rules.ruleset import load_ruleset
@@ -307,7 +337,7 @@ def cmd_members(args: argparse.Namespace) -> int:
         if args.output is None:
             write_members_json(doc, sys.stdout.buffer)
         else:
-            guard_output(args.output, paths + args.loads)
+            guard_output(args.output, inputs)
             with open(args.output, "wb") as fh:
                 write_members_json(doc, fh)
     elif args.format == "csv":
@@ -315,10 +345,10 @@ def cmd_members(args: argparse.Namespace) -> int:
 
         frames = [members_csv(d.members, units_for(d)) for d in datas if d.members is not None]
         df = pd.concat(frames, ignore_index=True) if frames else pd.DataFrame()
-        write_text(df.to_csv(index=False), args.output, paths + args.loads)
+        write_text(df.to_csv(index=False), args.output, inputs)
     else:
         if args.output:
-            guard_output(args.output, paths + args.loads)
+            guard_output(args.output, inputs)
         con = report_console(file=open(args.output, "w", encoding="utf-8") if args.output else None)  # noqa: SIM115
         for d in datas:
             if d.error:
@@ -421,12 +451,14 @@ def cmd_check(args: argparse.Namespace) -> int:
         raise UsageError("--fail-on new needs --baseline PREVIOUS.json")
     paths = expand_paths(args.models)
     load_paths = expand_load_paths(args.loads)
-    inputs = paths + load_paths + ([args.baseline] if args.baseline else [])
+    inputs = read_inputs(args, paths, load_paths)
+    if len(files) > 1 and Path(args.output).exists() and not Path(args.output).is_dir():
+        raise UsageError(f"--output {args.output}: several formats are written into a folder, and this is a file")
     targets = {fmt: (os.path.join(args.output, f"modelcheck-report.{ext}") if len(files) > 1 else args.output)
                for fmt, ext in FILE_FORMATS.items() if fmt in files}
     for out in targets.values():
         if out:
-            guard_output(out, inputs)
+            guard_output(out, inputs, new_folder=len(files) > 1)
     baseline = None
     if args.baseline:
         from modelcheck.report.compare import load_baseline
@@ -545,11 +577,18 @@ def _annotate(run: Any, target: str, inputs: list[str]) -> None:
 
     readable = [m for m in run.models if not m.error]
     several = len(readable) > 1 or os.path.isdir(target)
+    names: dict[str, str] = {}
+    for m in readable:
+        if several and names.setdefault(Path(m.path).name, m.path) != m.path:
+            raise UsageError(f"--annotate {target}: {names[Path(m.path).name]} and {m.path} would both be written "
+                             f"as {Path(m.path).name} in that folder; annotate them one at a time")
+    for m in readable:
+        out = os.path.join(target, Path(m.path).name) if several else target
+        guard_output(out, inputs, option="--annotate", new_folder=several)
     for m in readable:
         out = os.path.join(target, Path(m.path).name) if several else target
         if several:
             os.makedirs(target, exist_ok=True)
-        guard_output(out, inputs)
         annotate_model(m.path, out, run.results)
 
 

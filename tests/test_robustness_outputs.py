@@ -1,0 +1,80 @@
+"""Robustness corpus, outputs: a report is never written over a file the command reads (by any
+name), nor into a folder that does not exist, nor onto a folder; each such case is one line naming
+the path, exit code 2, every input byte-for-byte unchanged (common practice: a checker must never
+damage what it was given).
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+from pathlib import Path
+
+import pytest
+
+from tests.corpus import run_inprocess
+
+SAMPLES = Path(__file__).resolve().parent.parent / "sample_models"
+RULES = Path(__file__).resolve().parent.parent / "rulesets" / "steel-ec3.toml"
+
+
+@pytest.fixture
+def project(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
+    for name in ("nettlebrook-hall.ifc", "nettlebrook-hall-forces.csv", "nettlebrook-canopy.ifc"):
+        shutil.copy(SAMPLES / name, tmp_path / name)
+    shutil.copy(RULES, tmp_path / "my.toml")
+    os.link(tmp_path / "nettlebrook-hall-forces.csv", tmp_path / "linked.csv")   # one file, two names
+    (tmp_path / "sub").mkdir()
+    shutil.copy(SAMPLES / "nettlebrook-hall.ifc", tmp_path / "sub" / "nettlebrook-hall.ifc")
+    monkeypatch.chdir(tmp_path)
+    return tmp_path
+
+
+CASES = {
+    # a load table named by a pattern
+    "table by pattern": (["members", "nettlebrook-hall.ifc", "--loads", "*-forces.csv", "--format", "csv",
+                          "--output", "nettlebrook-hall-forces.csv"], "is one of the input files"),
+    "rule file": (["check", "nettlebrook-hall.ifc", "--rules", "my.toml", "--format", "json",
+                   "--output", "my.toml"], "is one of the input files"),
+    "rule file of --capacity": (["members", "nettlebrook-hall.ifc", "--capacity", "--rules", "my.toml",
+                                 "--format", "json", "--output", "my.toml"], "is one of the input files"),
+    "a second name of a table": (["check", "nettlebrook-hall.ifc", "--loads", "linked.csv", "--format", "json",
+                                  "--output", "nettlebrook-hall-forces.csv"], "is one of the input files"),
+    "missing folder": (["check", "nettlebrook-hall.ifc", "--format", "json", "--output", "nosuch/r.json"],
+                       "does not exist"),
+    "missing folder, members": (["members", "nettlebrook-hall.ifc", "--output", "nosuch/m.txt"], "does not exist"),
+    "a folder as the file": (["check", "nettlebrook-hall.ifc", "--format", "json", "--output", "sub"],
+                             "is a folder"),
+    "a file as the folder": (["check", "nettlebrook-hall.ifc", "--format", "json", "--output", "my.toml/r.json"],
+                             "does not exist"),
+    "a file for several formats": (["check", "nettlebrook-hall.ifc", "--format", "json,csv", "--output", "my.toml"],
+                                   "several formats"),
+    "two models of one name": (["check", "nettlebrook-hall.ifc", "sub/nettlebrook-hall.ifc", "--annotate", "out"],
+                               "would both be written"),
+}
+
+
+@pytest.mark.parametrize("case", list(CASES))
+def test_an_output_that_would_damage_an_input_or_cannot_be_written_is_one_line(capsys, project, case):
+    args, fragment = CASES[case]
+    inputs = [p for p in project.rglob("*") if p.is_file()]
+    out = run_inprocess(capsys, [*args, "--no-config"] if args[0] == "check" else args, inputs)
+    assert out.code == 2, out.stderr
+    assert len(out.lines) == 1 and out.lines == out.errors, out.stderr
+    assert fragment in out.lines[0]
+
+
+def test_the_configuration_file_is_an_input_too(capsys, project):
+    (project / "modelcheck.toml").write_text('models = ["nettlebrook-hall.ifc"]\nformat = "json"\n'
+                                             'output = "modelcheck.toml"\n', encoding="utf-8")
+    out = run_inprocess(capsys, ["check"], [project / "modelcheck.toml", project / "nettlebrook-hall.ifc"])
+    assert out.code == 2 and len(out.lines) == 1 and "modelcheck.toml is one of the input files" in out.lines[0]
+
+
+def test_several_formats_go_into_a_new_folder(capsys, project):
+    out = run_inprocess(capsys, ["check", "nettlebrook-hall.ifc", "--loads", "nettlebrook-hall-forces.csv",
+                                 "--format", "json,csv", "--output", "reports", "--no-config"],
+                        [project / "nettlebrook-hall.ifc"])
+    assert out.code == 1, out.stderr   # the sample's deliberate failures
+    assert sorted(p.name for p in (project / "reports").iterdir()) == ["modelcheck-report.csv",
+                                                                      "modelcheck-report.json"]
