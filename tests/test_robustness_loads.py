@@ -9,6 +9,7 @@ said so. No traceback, no hang, the table and the model byte-for-byte unchanged.
 
 from __future__ import annotations
 
+import datetime as dt
 import io
 import zipfile
 from pathlib import Path
@@ -66,6 +67,9 @@ BAD_TABLES: dict[str, tuple[bytes, str | None, str]] = {
     "no-key-column.csv": (b"mark,axial_force [kN]\nH1,1\n", "row 1", "key column"),
     "two-tag-columns.csv": (b"tag,tag,axial_force [kN]\nH1,H2,3\n", "row 1", "keep one"),
     "two-force-columns.csv": (b"tag,axial_force [kN],axial_force [kip]\nH1,1,2\n", "row 1", "keep one"),
+    # a value beyond the header: a decimal comma or an unquoted list would lose its tail
+    "decimal-comma.csv": (b"tag,axial_force [kN]\nH1,12\nH2,1,5\n", "row 3", "beyond the header"),
+    "extra-cells.csv": (b"tag,load_case,axial_force [kN]\nH1,LC1,18,5\n", "row 2", "beyond the header"),
 }
 
 
@@ -194,3 +198,24 @@ def test_encodings_are_read_and_a_guess_is_said(capsys, model, tmp_path, encodin
         assert df.attrs["encoding"] == "cp1252" and guessed and str(table) in guessed[0]
     else:
         assert not guessed
+
+
+@pytest.mark.parametrize(("cell", "shown"), [(True, "True"), (dt.datetime(2024, 1, 1), "datetime"),
+                                             (dt.time(12, 0), "time")])
+def test_a_spreadsheet_cell_of_truth_value_or_date_is_not_a_force(tmp_path, cell, shown):
+    """Excel stores TRUE as 1 and a date as a day count: neither is a force (common practice)."""
+    import openpyxl
+
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.append(["tag", "axial_force [kN]"])
+    ws.append(["H1", 12])
+    ws.append(["H2", cell])
+    path = tmp_path / "typed.xlsx"
+    wb.save(path)
+    with pytest.raises(LoadTableError) as info:
+        read_load_table(path)
+    message = str(info.value)
+    assert message.startswith(f"{path}:Sheet:row 3: axial_force ") and shown in message, message
+    assert "not a force" in message
+

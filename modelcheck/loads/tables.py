@@ -42,6 +42,7 @@ Example::
 from __future__ import annotations
 
 import csv
+import datetime as _dt
 import io
 import math
 import os
@@ -331,6 +332,14 @@ def _parse(records: list[list[Any]], name: str, sheet: str | None, all_text: boo
     if not keep.any():
         raise LoadTableError("has a header but no rows of forces", path=name, where=where(header.row + 1))
     rows = rows[keep]
+    # a value beyond the header's last column: a decimal comma or a list written unquoted would
+    # otherwise lose its tail without a word ("1,200" read as 1)
+    width = max((j for j, c in enumerate(records[header.row]) if _cell_text(c)), default=-1) + 1
+    wide = np.fromiter((len(r) > width and not _blank(r[width:]) for r in body), dtype=bool, count=len(body))[keep]
+    if wide.any():
+        raise _row_error(name, where, rows, wide,
+                         f"has a value beyond the header's {width} columns (a decimal comma, or a list not in "
+                         "quotes?); put each value under its header, or quote a cell that holds a comma")
 
     def texts(key: str) -> pd.Series:
         return _texts(pd.Series(np.asarray(column(key), dtype=object)[keep], dtype=object))
@@ -352,6 +361,11 @@ def _parse(records: list[list[Any]], name: str, sheet: str | None, all_text: boo
         case = pd.Series([DEFAULT_LOAD_CASE] * len(rows), dtype=object)
 
     raw = pd.Series(np.asarray(column("axial_force"), dtype=object)[keep])
+    if not all_text:   # a spreadsheet's TRUE/FALSE or date cell would otherwise read as a number
+        typed = raw.map(lambda v: isinstance(v, bool | _dt.date | _dt.time | _dt.timedelta)).to_numpy(dtype=bool)
+        if typed.any():
+            raise _row_error(name, where, rows, typed, "a TRUE/FALSE, date or time cell is not a force",
+                             value=raw.iloc[int(np.flatnonzero(typed)[0])])
     force = _forces_si(raw, header, name, where, rows)
     source_prefix = f"{name}:{row_label}"  # "<path>:row " or "<path>:<sheet>:row "
     out = pd.DataFrame({
