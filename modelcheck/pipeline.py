@@ -50,15 +50,20 @@ class ForceOptions:
 
 def expand_paths(items: list[str]) -> list[str]:
     """Model files from files, folders (searched recursively) and glob patterns, sorted, unique."""
+    def in_folder(folder: str) -> list[str]:
+        return sorted(str(p) for p in Path(folder).rglob("*") if p.suffix.lower() in IFC_SUFFIXES and p.is_file())
+
     out: list[str] = []
     for item in items:
         if any(ch in item for ch in "*?["):
-            hits = sorted(glob.glob(item, recursive=True))
-            if not hits:
-                raise UsageError(f"pattern {item!r} matches no file")
-            out += [h for h in hits if os.path.isfile(h)]
+            # a file the pattern names is a model; a folder it names is searched like a folder given
+            found = [m for h in sorted(glob.glob(item, recursive=True))
+                     for m in (in_folder(h) if os.path.isdir(h) else [h] if os.path.isfile(h) else [])]
+            if not found:
+                raise UsageError(f"pattern {item!r} matches no model file (nor a folder holding one)")
+            out += found
         elif os.path.isdir(item):
-            found = sorted(str(p) for p in Path(item).rglob("*") if p.suffix.lower() in IFC_SUFFIXES)
+            found = in_folder(item)
             if not found:
                 raise UsageError(f"folder {item!r} holds no .ifc or .ifczip file")
             out += found

@@ -78,3 +78,23 @@ def test_several_formats_go_into_a_new_folder(capsys, project):
     assert out.code == 1, out.stderr   # the sample's deliberate failures
     assert sorted(p.name for p in (project / "reports").iterdir()) == ["modelcheck-report.csv",
                                                                       "modelcheck-report.json"]
+
+
+# ------------------------------------------------------------------ which models a pattern names
+
+
+def test_a_pattern_naming_folders_searches_them_like_folders(project):
+    from modelcheck.pipeline import expand_paths
+
+    (project / "proj" / "a").mkdir(parents=True)
+    (project / "proj" / "b").mkdir()
+    shutil.copy(project / "nettlebrook-hall.ifc", project / "proj" / "a" / "hall.ifc")
+    shutil.copy(project / "nettlebrook-canopy.ifc", project / "proj" / "b" / "canopy.ifc")
+    assert expand_paths(["proj/*"]) == ["proj/a/hall.ifc", "proj/b/canopy.ifc"]
+    assert expand_paths(["proj/*/"]) == ["proj/a/hall.ifc", "proj/b/canopy.ifc"]
+
+
+def test_a_pattern_naming_only_a_folder_without_models_is_one_line(capsys, project):
+    (project / "d.ifc").mkdir()     # a folder that looks like a model
+    out = run_inprocess(capsys, ["check", "d*.ifc", "--no-config"], [project / "nettlebrook-hall.ifc"])
+    assert out.code == 2 and len(out.lines) == 1 and "'d*.ifc' matches no model file" in out.lines[0]
