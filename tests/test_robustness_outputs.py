@@ -98,3 +98,10 @@ def test_a_pattern_naming_only_a_folder_without_models_is_one_line(capsys, proje
     (project / "d.ifc").mkdir()     # a folder that looks like a model
     out = run_inprocess(capsys, ["check", "d*.ifc", "--no-config"], [project / "nettlebrook-hall.ifc"])
     assert out.code == 2 and len(out.lines) == 1 and "'d*.ifc' matches no model file" in out.lines[0]
+
+
+@pytest.mark.parametrize("value", ["NoDot", ".AxialForce", "MC_MemberForces.", "", " . "])
+def test_a_force_property_not_written_as_pset_dot_property_is_one_line(capsys, project, value):
+    out = run_inprocess(capsys, ["check", "nettlebrook-hall.ifc", "--force-property", value, "--no-config"],
+                        [project / "nettlebrook-hall.ifc"])
+    assert out.code == 2 and len(out.lines) == 1 and "write it as PSET.PROPERTY" in out.lines[0], out.stderr
