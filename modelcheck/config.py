@@ -90,6 +90,8 @@ def _read(path: Path) -> dict[str, Any]:
             return tomllib.load(fh)
     except tomllib.TOMLDecodeError as exc:
         raise UsageError(f"not valid TOML: {exc}", path=str(path)) from None
+    except UnicodeDecodeError as exc:
+        raise UsageError(f"not UTF-8 text (byte {exc.start}); TOML files are UTF-8", path=str(path)) from None
     except OSError as exc:
         raise UsageError(f"cannot be read: {exc.strerror}", path=str(path)) from None
 

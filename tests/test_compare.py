@@ -131,6 +131,7 @@ def test_load_baseline_reads_a_report(tmp_path):
     ('{"results": [\n  1,,\n]}', "line 2"),
     ('{"members": []}', "not a JSON report of 'modelcheck check'"),
     ('[1, 2]', "not a JSON report of 'modelcheck check'"),
+    ('{"ruleset": "steel-asd-us", "models": [], "results": []}', "not a JSON report of 'modelcheck check'"),
     ('{"ruleset": {}, "models": [], "results": [{"model": "a.ifc"}]}', "results[0]"),
     ('{"ruleset": {}, "models": [], "results": [{"model": "a", "global_id": "g", "check": "c", '
      '"status": "maybe"}]}', "unknown status"),

@@ -89,3 +89,11 @@ def test_invalid_toml_names_file_and_line(tmp_path):
     with pytest.raises(UsageError) as exc:
         load_config(tmp_path)
     assert str(p) in str(exc.value) and "line 2" in str(exc.value)
+
+
+def test_a_configuration_that_is_not_utf8_names_the_file(tmp_path):
+    p = tmp_path / "modelcheck.toml"
+    p.write_bytes('rules = "Stahl-\u00fc"\n'.encode("latin-1"))
+    with pytest.raises(UsageError) as exc:
+        load_config(tmp_path)
+    assert str(p) in str(exc.value) and "not UTF-8" in str(exc.value)

@@ -167,7 +167,7 @@ def load_baseline(path: str | os.PathLike[str]) -> dict[str, Any]:
         raise UsageError(f"not valid JSON: {exc.msg} (column {exc.colno})", path=name,
                          where=f"line {exc.lineno}") from None
     if not isinstance(doc, dict) or not isinstance(doc.get("results"), list) or \
-            not isinstance(doc.get("models"), list) or "ruleset" not in doc:
+            not isinstance(doc.get("models"), list) or not isinstance(doc.get("ruleset"), dict):
         raise UsageError("not a JSON report of 'modelcheck check' (needs 'ruleset', 'models' and 'results'; "
                          "write one with --format json)", path=name)
     for i, m in enumerate(doc["models"]):
