@@ -138,6 +138,12 @@ def _keep_freed_memory() -> None:
     mallopt(m_trim_threshold, (1 << 31) - 1)
 
 
+def _say(line: str) -> None:
+    """One line on standard error, whatever its encoding: a file name in another encoding than
+    UTF-8 (undecodable bytes, kept by Python as lone surrogates) is written as escapes."""
+    print(line.encode("utf-8", "backslashreplace").decode("utf-8"), file=sys.stderr)
+
+
 def main(argv: list[str] | None = None) -> int:
     import gc
 
@@ -159,7 +165,7 @@ def main(argv: list[str] | None = None) -> int:
 
             return cmd_size(args)
     except ModelcheckError as exc:
-        print(f"modelcheck: error: {exc}", file=sys.stderr)
+        _say(f"modelcheck: error: {exc}")
         return EXIT_INPUT
     except KeyboardInterrupt:
         print("modelcheck: interrupted", file=sys.stderr)
@@ -168,15 +174,13 @@ def main(argv: list[str] | None = None) -> int:
         return EXIT_OK
     except OSError as exc:   # a file that could not be read or written (permissions, a full disk, ...)
         where = f"{exc.filename}: " if exc.filename else ""
-        print(f"modelcheck: error: {where}{exc.strerror or exc}", file=sys.stderr)
+        _say(f"modelcheck: error: {where}{exc.strerror or exc}")
         return EXIT_INPUT
     except Exception as exc:  # a bug of ours: still one line, never a traceback for the user
-        import os
-
         if os.environ.get("MODELCHECK_DEBUG"):
             raise
-        print(f"modelcheck: internal error: {type(exc).__name__}: {exc} "
-              "(set MODELCHECK_DEBUG=1 for details and please report it)", file=sys.stderr)
+        _say(f"modelcheck: internal error: {type(exc).__name__}: {exc} "
+             "(set MODELCHECK_DEBUG=1 for details and please report it)")
         return EXIT_INPUT
     finally:
         gc.enable()
@@ -245,6 +249,10 @@ def guard_output(output: str, inputs: list[str], option: str = "--output", new_f
     """Refuse to write over an input file (by any name: a link to it counts), into a folder that
     does not exist (``new_folder``: the command makes the file's own folder, whose parent must
     exist), or onto a folder."""
+    from modelcheck.files import utf8_name
+
+    if not utf8_name(output):
+        raise UsageError(f"{option} {output}: the file name is not UTF-8 text; choose another name")
     out = Path(output)
     if out.is_dir():
         raise UsageError(f"{option} {output} is a folder; name a file to write")

@@ -14,8 +14,22 @@ def input_file(path: str | os.PathLike[str], error: type[ModelcheckError], what:
     ``what`` completes "is a folder, not …" (e.g. "an IFC file", "a load table").
     """
     p = Path(path)
+    if not utf8_name(str(path)):
+        raise error("the file name is not UTF-8 text (reports are UTF-8 and name every file); rename the file",
+                    path=str(path))
     if not p.exists():
         raise error("no such file", path=str(path))
     if p.is_dir():
         raise error(f"is a folder, not {what}", path=str(path))
     return p
+
+
+def utf8_name(name: str) -> bool:
+    """Whether a file name can be written as UTF-8 (a name in another encoding reaches Python with
+    undecodable bytes kept as lone surrogates, which no report, nor the IFC parser, can take)."""
+    try:
+        name.encode("utf-8")
+    except UnicodeEncodeError:
+        return False
+    return True
+

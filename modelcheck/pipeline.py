@@ -69,6 +69,12 @@ def expand_paths(items: list[str]) -> list[str]:
             out += found
         else:
             out.append(item)
+    from modelcheck.files import utf8_name
+
+    for p in out:   # reports name every model: a name they cannot write stops the run before it starts
+        if not utf8_name(p):
+            raise UsageError(f"{p}: the file name is not UTF-8 text (reports are UTF-8 and name every model); "
+                             "rename the file")
     seen: set[str] = set()
     return [p for p in out if not (p in seen or seen.add(p))]
 

@@ -1,7 +1,8 @@
-"""Robustness corpus, outputs: a report is never written over a file the command reads (by any
-name), nor into a folder that does not exist, nor onto a folder; each such case is one line naming
-the path, exit code 2, every input byte-for-byte unchanged (common practice: a checker must never
-damage what it was given).
+"""Robustness corpus, outputs and the naming of inputs: a report is never written over a file the
+command reads (by any name), nor into a folder that does not exist, nor onto a folder; a pattern, a
+force property or a file name that cannot be used is refused. Each case is one line naming the
+path or value, exit code 2, every input byte-for-byte unchanged (common practice: a checker must
+never damage what it was given).
 """
 
 from __future__ import annotations
@@ -105,3 +106,29 @@ def test_a_force_property_not_written_as_pset_dot_property_is_one_line(capsys, p
     out = run_inprocess(capsys, ["check", "nettlebrook-hall.ifc", "--force-property", value, "--no-config"],
                         [project / "nettlebrook-hall.ifc"])
     assert out.code == 2 and len(out.lines) == 1 and "write it as PSET.PROPERTY" in out.lines[0], out.stderr
+
+
+# ------------------------------------------------------------------ file names that are not UTF-8
+LATIN1 = os.fsdecode(b"mod\xe8l")    # a name written in Latin-1: an undecodable byte in Python
+
+
+@pytest.mark.parametrize("role", ["model", "model in a folder", "load table", "output"])
+def test_a_file_name_that_is_not_utf8_is_one_line(capsys, project, role):
+    """Reports are UTF-8 and name every file: a name they cannot write is refused up front."""
+    if role == "model":
+        shutil.copy(project / "nettlebrook-hall.ifc", project / f"{LATIN1}.ifc")
+        args = ["check", f"{LATIN1}.ifc"]
+    elif role == "model in a folder":
+        shutil.copy(project / "nettlebrook-hall.ifc", project / "sub" / f"{LATIN1}.ifc")
+        args = ["check", "sub"]
+    elif role == "load table":
+        shutil.copy(project / "nettlebrook-hall-forces.csv", project / f"{LATIN1}.csv")
+        args = ["check", "nettlebrook-hall.ifc", "--loads", f"{LATIN1}.csv"]
+    else:
+        args = ["check", "nettlebrook-hall.ifc", "--format", "json", "--output", f"{LATIN1}.json"]
+    inputs = [p for p in project.rglob("*") if p.is_file()]
+    out = run_inprocess(capsys, [*args, "--format", "json", "--no-config"] if "--format" not in args
+                        else [*args, "--no-config"], inputs)
+    assert out.code == 2 and len(out.lines) == 1 and out.lines == out.errors, out.stderr
+    assert "not UTF-8 text" in out.lines[0]
+    assert out.stdout == ""
