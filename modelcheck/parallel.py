@@ -374,11 +374,9 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
             analysis, analysis_msgs = forces_from_analysis(
                 idx, pd.DataFrame({"model": [path] * len(gids), "global_id": gids}))
         except (AttributeError, TypeError, ValueError, ArithmeticError, RuntimeError) as exc:
-            from modelcheck.ifc.index import explain_parse_error
+            from modelcheck.ifc.index import unreadable_model
 
-            data.error = (f"{path}: cannot be read: a value the IFC schema does not allow "
-                          f"({type(exc).__name__}: {explain_parse_error(path, exc)}); "
-                          "'modelcheck check --validate' lists where")
+            data.error = unreadable_model(path, exc)
             return CheckedModel(data)
     idx.drain_log()
     bounds = _bounds(sorted_gids, parts)

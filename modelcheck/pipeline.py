@@ -131,11 +131,9 @@ def read_into(data: ModelData, idx: Any, forces: ForceOptions | None, entities: 
         # ifcopenshell returns what the file holds even where the schema forbids it (text for a
         # number, a number for a reference); a member's own data is guarded in the reader, this
         # is the rest of the model (property sets, relationships, units of forces)
-        from modelcheck.ifc.index import explain_parse_error, is_parse_error
+        from modelcheck.ifc.index import unreadable_model
 
-        data.error = (f"{path}: cannot be parsed as IFC: {explain_parse_error(path, exc)}" if is_parse_error(exc)
-                      else f"{path}: cannot be read: a value the IFC schema does not allow "
-                      f"({type(exc).__name__}: {exc}); 'modelcheck check --validate' lists where")
+        data.error = unreadable_model(path, exc)
         data.members, data.member_count, data.forces = None, 0, empty_forces()
 
 

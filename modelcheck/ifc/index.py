@@ -130,6 +130,14 @@ def build_index(path: str | os.PathLike[str], model: Any = None) -> ModelIndex:
 _VALIDATE_HINT = " ('modelcheck check --validate' lists where the file breaks the IFC schema)"
 
 
+def unreadable_model(path: str, exc: BaseException) -> str:
+    """The error of a model whose data broke a reader after it opened: a syntax error met while
+    parsing lazily (with its line), or a value the schema does not allow."""
+    if is_parse_error(exc):
+        return f"{path}: cannot be parsed as IFC: {explain_parse_error(path, exc)}"
+    return f"{path}: cannot be read: a value the IFC schema does not allow ({type(exc).__name__}: {exc}){_VALIDATE_HINT}"
+
+
 #: the end of a relationship's text whose last two attributes are its list of related objects and
 #: the relating one: "…,(#1,#2,#3),#9)"
 _RELATED_TAIL = re.compile(r",\((#\d+(?:,#\d+)*)\),#\d+\)$")
