@@ -69,10 +69,6 @@ RESULT_COLUMNS: tuple[str, ...] = (
 )
 
 
-def empty_members() -> pd.DataFrame:
-    return pd.DataFrame({c: pd.Series(dtype=object) for c in member_columns()})
-
-
 def empty_forces() -> pd.DataFrame:
     return pd.DataFrame({
         "model": pd.Series(dtype=object), "global_id": pd.Series(dtype=object),

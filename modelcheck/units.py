@@ -18,7 +18,6 @@ from __future__ import annotations
 import math
 import sys
 from dataclasses import dataclass, field
-from functools import lru_cache
 from typing import Any
 
 
@@ -53,16 +52,6 @@ def _registry() -> pint.UnitRegistry:
 ureg = _registry()
 ureg.formatter.default_format = "~"
 Q_ = ureg.Quantity
-
-#: SI base unit for each physical dimension handled here; numbers in tables are in these.
-SI_UNIT_OF_DIMENSION: dict[str, str] = {
-    "[length]": "m",
-    "[length] ** 2": "m**2",
-    "[length] ** 3": "m**3",
-    "[length] ** 4": "m**4",
-    "[force]": "N",
-    "[pressure]": "Pa",
-}
 
 _PREFIX = {
     "EXA": 1e18, "PETA": 1e15, "TERA": 1e12, "GIGA": 1e9, "MEGA": 1e6, "KILO": 1e3,
@@ -219,7 +208,7 @@ class UnitContext:
     """The units a model assigns, each as its size in SI base units.
 
     ``factor('LENGTHUNIT')`` is the number of metres in one of the file's length units;
-    ``to_si(v, 'IfcForceMeasure')`` turns a raw value into newtons.
+    ``measure_factor('IfcForceMeasure')`` times a raw value turns a raw value into newtons.
     """
 
     sizes: dict[str, pint.Quantity] = field(default_factory=dict)
@@ -276,29 +265,3 @@ class UnitContext:
         except KeyError:
             raise MissingUnit(f"unit for {measure}") from None
         return self.factor(unit_type)
-
-
-@lru_cache(maxsize=256)
-def parse_unit(text: str) -> pint.Unit:
-    """A unit string such as 'kN', 'kip', 'N/mm**2' as a pint unit (raises pint errors)."""
-    return ureg.Unit(text)
-
-
-def to_si(value: float, unit: str) -> float:
-    """``value`` in ``unit`` expressed in SI base units."""
-    return float(Q_(value, unit).to_base_units().magnitude)
-
-
-def from_si(value: float, unit: str) -> float:
-    """SI base-unit ``value`` expressed in ``unit``."""
-    q = Q_(1.0, unit).to_base_units()
-    return float(value / q.magnitude)
-
-
-def si_unit_for(unit: str) -> str:
-    """The SI base unit string with the same dimension as ``unit`` ('kip' -> 'N')."""
-    dim = str(Q_(1.0, unit).dimensionality)
-    for si in SI_UNIT_OF_DIMENSION.values():
-        if str(Q_(1.0, si).dimensionality) == dim:
-            return si
-    return str(Q_(1.0, unit).to_base_units().units)

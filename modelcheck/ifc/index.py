@@ -14,7 +14,6 @@ Example::
 
 from __future__ import annotations
 
-import math
 import os
 import re
 from dataclasses import dataclass, field
@@ -255,17 +254,3 @@ def find_property(psets: list[Any], pset_name: str, prop_name: str) -> Any:
                 if p.Name == prop_name:
                     return p
     return None
-
-
-def find_quantity(psets: list[Any], prop_name: str, prefix: str = "Qto_") -> tuple[Any, Any]:
-    """(quantity set, quantity) named ``prop_name`` in any set whose name starts with ``prefix``."""
-    for ps in psets:
-        if ps.is_a("IfcElementQuantity") and (ps.Name or "").startswith(prefix):
-            for q in ps.Quantities or ():
-                if q.Name == prop_name:
-                    return ps, q
-    return None, None
-
-
-def finite_positive(x: float) -> bool:
-    return math.isfinite(x) and x > 0

@@ -47,7 +47,6 @@ __all__ = [
     "crossing_edges",
     "loop_moments",
     "rounded_polygon",
-    "segments_length",
 ]
 
 Point = tuple[float, float]
@@ -407,10 +406,6 @@ def crossing_edges(points: Sequence[Point]) -> tuple[int, int] | None:
         if not (ii == 0 and jj == n - 1):
             return (ii, jj)
     return None
-
-
-def segments_length(segments: Iterable[Segment]) -> float:
-    return sum(s.length() for s in segments)
 
 
 def rounded_polygon(corners: Sequence[tuple[float, float, float]]) -> list[Segment]:

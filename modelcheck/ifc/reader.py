@@ -643,10 +643,6 @@ class _Reader:
         return None
 
 
-def _r_source(sec: Section) -> str:
-    return sec.r_source or sec.source
-
-
 def _doubt_section(sec: Section) -> str | None:
     if not (math.isfinite(sec.area) and sec.area >= MIN_AREA):
         return f"section from {sec.source} has area {sec.area:.6g} m², which is not a section; not used"

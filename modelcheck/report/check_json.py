@@ -275,14 +275,13 @@ def _send(src: Any, fh: Any) -> bool:
     return sent == size
 
 
-def write_json(doc: dict[str, Any], fh: Any, row_keys: tuple[str, ...] = ("results",)) -> None:
-    """Write the document as JSON to the binary file ``fh``: indented, but each item of the
-    ``row_keys`` lists on one line.
+def write_json(doc: dict[str, Any], fh: Any) -> None:
+    """Write the document as JSON to the binary file ``fh``: indented, but each result on one line.
 
-    Readable in a diff (one changed result is one changed line) and fast: those rows are encoded
-    by orjson and written one by one, so a report of a 100,000-member model takes a fraction of a
-    second and is never held twice in memory. Non-finite numbers never reach the file.
-    """
+    Readable in a diff (one changed result is one changed line) and fast: the results arrive
+    already encoded (``EncodedRows``, built column by column, some chunks in temporary files) and
+    are written as they are, a file streamed inside the kernel, never held twice in memory.
+    Non-finite numbers never reach the file."""
     import json
 
 
@@ -297,13 +296,6 @@ def write_json(doc: dict[str, Any], fh: Any, row_keys: tuple[str, ...] = ("resul
             fh.write(b"\n  ]")
         elif isinstance(value, EncodedRows):
             fh.write(b"[]")
-        elif key in row_keys and value:
-            fh.write(b"[\n    ")
-            for start in range(0, len(value), 4096):  # bounded chunks: no giant intermediate buffer
-                if start:
-                    fh.write(_ROW_SEP)
-                fh.write(encode_rows(value[start:start + 4096]))
-            fh.write(b"\n  ]")
         else:
             text = json.dumps(value, indent=2, ensure_ascii=False, allow_nan=False).replace("\n", "\n  ")
             fh.write(text.encode("utf-8"))
@@ -344,15 +336,6 @@ def write_members_json(doc: dict[str, Any], fh: Any) -> None:
         text = json.dumps(value, indent=2, ensure_ascii=False, allow_nan=False).replace("\n", "\n  ")
         fh.write(f",\n  {json.dumps(key)}: {text}".encode())
     fh.write(b"\n}\n")
-
-
-def dumps(doc: dict[str, Any], row_keys: tuple[str, ...] = ("results",)) -> str:
-    """``write_json`` into a string."""
-    import io
-
-    buf = io.BytesIO()
-    write_json(doc, buf, row_keys)
-    return buf.getvalue().decode("utf-8")
 
 
 def summary_counts(run: Any) -> dict[str, int]:

@@ -96,14 +96,3 @@ def ruleset_view(rs: RuleSet) -> RenderableType:
         parts.append(definitions_table(rs))
     parts.append(checks_table(rs))
     return Group(*parts)
-
-
-def validation_report(path: str, errors: Sequence[str]) -> RenderableType:
-    """'FILE: valid' or every error, one per line."""
-    if not errors:
-        return Text.assemble((path, "bold"), ": valid rule set", style="green")
-    text = Text()
-    text.append(f"{path}: {len(errors)} error{'s' if len(errors) != 1 else ''}\n", style="bold red")
-    for e in errors:
-        text.append(e + "\n")
-    return text
