@@ -1,4 +1,5 @@
-"""Command line: arguments -> pipeline -> reporter. Nothing else lives here.
+"""Command line: arguments -> pipeline -> reporter, the guards on inputs and outputs, and the
+process set-up of the ``modelcheck`` command (``run``).
 
 Exit codes: 0 no failure; 1 at least one failing member (with --strict also any unchecked);
 2 a usage error or an input that could not be read (the other models are still reported).
@@ -66,7 +67,8 @@ def build_parser() -> argparse.ArgumentParser:
     c.add_argument("--validate", action="store_true", default=None,
                    help="list schema violations (ifcopenshell validator) as warnings")
     c.add_argument("--jobs", "-j", type=int, default=None, metavar="N",
-                   help="worker processes for several models (default: the CPU count)")
+                   help="worker processes: several models at once, or one large model shared out "
+                        "(default: the CPU count)")
     c.add_argument("--scheduler", metavar="ADDRESS", default=None,
                    help="run on an existing Dask cluster (tcp://host:8786) instead of local processes")
     c.add_argument("--baseline", metavar="PREVIOUS.json", default=None,
@@ -151,7 +153,7 @@ def main(argv: list[str] | None = None) -> int:
     args = parser.parse_args(argv)
     # A run builds millions of small objects and few reference cycles: the cyclic collector would
     # rescan them over and over (it doubles the time of a large model). Reference counting frees
-    # almost everything; one collection runs at the end.
+    # almost everything, and the command ends without the interpreter's teardown (``run``).
     gc.disable()
     try:
         if args.command == "members":

@@ -1,6 +1,7 @@
 """The pipeline as plain function calls: model file -> members -> + forces -> results.
 
-Only ``read_model`` touches a model file and only the reporters write; everything in between is
+Models are opened by ``read_model`` (or, for one large model shared out among processes, by
+``modelcheck.parallel``), and reports are written by the reporters; everything in between is
 DataFrames in SI. ``check_model`` is what one batch worker runs for one model, so it takes and
 returns picklable values only.
 """
@@ -372,8 +373,9 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
               encode_json: bool = False, slim: bool = False) -> CheckRun:
     """Check every model; unreadable ones are recorded with their error, the rest go on.
 
-    ``jobs`` > 1 runs models in that many local worker processes; ``scheduler`` sends them to a
-    Dask cluster instead. Results come back in the order of ``paths`` either way.
+    ``jobs`` > 1 runs several models in that many local worker processes, and shares a single large
+    model out among that many processes (``modelcheck.parallel``); ``scheduler`` sends the models
+    to a Dask cluster instead. Results come back in the order of ``paths`` either way.
     """
     from modelcheck.table import RESULT_COLUMNS
 
