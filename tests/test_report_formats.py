@@ -19,6 +19,7 @@ import junitparser
 import numpy as np
 import pandas as pd
 
+from modelcheck.pipeline import REPORT_MEMBER_COLUMNS
 from modelcheck.report.bcf import write_bcf
 from modelcheck.report.csv_report import write_csv
 from modelcheck.report.html import ratio_histogram, write_html
@@ -308,3 +309,27 @@ def test_ratio_histogram_matches_numpy():
     assert counts == list(ref) and len(labels) == 16
     # a ratio of exactly 1.0 passes (ratio ≤ 1, common practice): it belongs to the 0.9–1.0 bar
     assert ratio_histogram(np.array([1.0]))[1][9] == 1
+
+
+def test_the_console_shows_the_worst_failures_and_says_how_many_more(monkeypatch):
+    """A model with thousands of failures: the console lists the worst, worst first, names the
+    total and where every one is (common practice: a screen report stays readable)."""
+    import io
+
+    from rich.console import Console
+
+    from modelcheck.report import console as con
+    from tests.report_runs import member_row, result_row, results_frame
+
+    monkeypatch.setattr(con, "MAX_FAILING_ROWS", 5)
+    gids = [f"G{i:04d}" for i in range(12)]
+    rows = [result_row("m.ifc", g, "axial_stress", "LC1", 121.0 + i, 120.0, name=f"H{i}") for i, g in enumerate(gids)]
+    members = pd.DataFrame([member_row("m.ifc", g, name=f"H{i}") for i, g in enumerate(gids)]
+                           + [member_row("m.ifc", gids[0], name="H0")],   # a GlobalId given twice
+                           columns=list(REPORT_MEMBER_COLUMNS))
+    buf = io.StringIO()
+    Console(file=buf, width=250).print(con.failing_table(results_frame(rows), members))
+    text = buf.getvalue()
+    assert "12 member × check; the worst 5 shown" in text
+    shown = [g for g in gids if g in text]
+    assert shown == gids[-5:]      # the five highest ratios

@@ -52,13 +52,23 @@ def _num(v: Any) -> str:
     return "—" if v is None or (isinstance(v, float) and not math.isfinite(v)) else f"{v:.4g}"
 
 
-def failing_table(results: pd.DataFrame, members: pd.DataFrame, units: Any) -> Table | None:
+#: failing rows shown on the console, worst first (every one is in the CSV, JSON and HTML reports)
+MAX_FAILING_ROWS = 200
+
+
+def failing_table(results: pd.DataFrame, members: pd.DataFrame, units: Any = None) -> Table | None:
     g = governing(results)
     fails = g[g["status"] == "fail"].sort_values("ratio", ascending=False, kind="stable")
     if not len(fails):
         return None
-    info = members.set_index(["model", "global_id"])
-    t = Table(title=f"Failing members ({len(fails)} member × check)", title_justify="left",
+    total = len(fails)
+    fails = fails.iloc[:MAX_FAILING_ROWS]
+    shown = fails[["model", "global_id"]].drop_duplicates()
+    info = (members.merge(shown, on=["model", "global_id"], how="inner")
+            .drop_duplicates(["model", "global_id"]).set_index(["model", "global_id"]))
+    more = (f"; the worst {MAX_FAILING_ROWS} shown, every one in --format csv or json"
+            if total > MAX_FAILING_ROWS else "")
+    t = Table(title=f"Failing members ({total} member × check{more})", title_justify="left",
               header_style="bold", expand=False)
     for col in ("GlobalId", "Class / type", "Name / tag", "Storey", "Section", "Material", "Check",
                 "Demand", "Capacity", "Ratio", "Load case"):
