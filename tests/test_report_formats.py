@@ -333,3 +333,24 @@ def test_the_console_shows_the_worst_failures_and_says_how_many_more(monkeypatch
     assert "12 member × check; the worst 5 shown" in text
     shown = [g for g in gids if g in text]
     assert shown == gids[-5:]      # the five highest ratios
+
+
+def test_the_html_tables_show_the_first_rows_and_count_the_rest(tmp_path, monkeypatch):
+    """Failing rows worst first and unchecked members, each cut at MAX_ROWS with the number left."""
+    from modelcheck.report import html
+    from tests.report_runs import member_row, result_row, results_frame
+
+    monkeypatch.setattr(html, "MAX_ROWS", 3)
+    gids = [f"G{i:04d}" for i in range(7)]
+    rows = [result_row("m.ifc", g, "axial_stress", "LC1", 121.0 + i, 120.0, name=f"H{i}") for i, g in enumerate(gids)]
+    rows += [result_row("m.ifc", f"U{i:04d}", "axial_stress", "LC1", None, None, name=f"U{i}",
+                        missing=["area (profile)"]) for i in range(5)]
+    members = pd.DataFrame([member_row("m.ifc", g) for g in gids], columns=list(REPORT_MEMBER_COLUMNS))
+    run = make_run()
+    run.results, run.members = results_frame(rows), members
+    out = tmp_path / "r.html"
+    write_html(run, out, now=NOW)
+    text = out.read_text(encoding="utf-8")
+    assert [g for g in gids if f"<code>{g}</code>" in text] == gids[-3:]   # the three highest ratios
+    assert "… and 4 more rows" in text
+    assert sum(f"<code>U{i:04d}</code>" in text for i in range(5)) == 3 and "… and 2 more rows" in text

@@ -60,16 +60,20 @@ def _n(v: Any, fmt: str = "{:.4g}") -> str:
     return fmt.format(v)
 
 
-def _table(headers: list[str], rows: list[list[str]], numeric: set[int] | None = None) -> str:
+def _table(headers: list[str], rows: list[list[str]], numeric: set[int] | None = None,
+           total: int | None = None) -> str:
+    """A table of the first MAX_ROWS rows; ``total``: how many there are when the caller built only
+    those (building thousands of rows nobody sees is most of a large report's time)."""
     numeric = numeric or set()
+    total = len(rows) if total is None else total
     head = "".join(f"<th>{escape(h)}</th>" for h in headers)
     body = []
     for r in rows[:MAX_ROWS]:
         cells = "".join(f'<td class="num">{c}</td>' if i in numeric else f"<td>{c}</td>" for i, c in enumerate(r))
         body.append(f"<tr>{cells}</tr>")
     more = ""
-    if len(rows) > MAX_ROWS:
-        more = f'<p class="muted">… and {len(rows) - MAX_ROWS} more rows (the CSV and JSON reports list all).</p>'
+    if total > MAX_ROWS:
+        more = f'<p class="muted">… and {total - MAX_ROWS} more rows (the CSV and JSON reports list all).</p>'
     return f"<table><thead><tr>{head}</tr></thead><tbody>{''.join(body)}</tbody></table>{more}"
 
 
@@ -145,6 +149,8 @@ def _failing(run: Any) -> str:
         return '<p class="pass">No failing members.</p>'
     fails = fails.assign(_r=pd.to_numeric(fails["ratio"], errors="coerce")).sort_values(
         "_r", ascending=False, kind="stable")
+    total = len(fails)
+    fails = fails.iloc[:MAX_ROWS]
     info = {(m, gid): (s, sec, mat) for m, gid, s, sec, mat in member_info(run.members).itertuples(index=False)}
     rows = []
     for rec in fails.to_dict("records"):
@@ -156,7 +162,7 @@ def _failing(run: Any) -> str:
                      f'<span class="fail">{_n(rec["ratio"], "{:.2f}")}</span>', _e(rec["load_case"]),
                      _e(rec["model"])])
     return _table(["GlobalId", "Class", "Name / tag", "Storey", "Section", "Material", "Check", "Demand",
-                   "Capacity", "Ratio", "Load case", "Model"], rows, numeric={7, 8, 9})
+                   "Capacity", "Ratio", "Load case", "Model"], rows, numeric={7, 8, 9}, total=total)
 
 
 def _unchecked(run: Any) -> str:
@@ -164,6 +170,9 @@ def _unchecked(run: Any) -> str:
     un = g[g["status"] == "unchecked"] if len(g) else g
     if not len(un):
         return '<p class="pass">Every member was checked.</p>'
+    keys = un[["model", "global_id"]].drop_duplicates()
+    total = len(keys)
+    un = un.merge(keys.iloc[:MAX_ROWS], on=["model", "global_id"], how="inner", sort=False)
     rows = []
     for (model, gid), grp in un.groupby(["model", "global_id"], sort=False):
         missing = sorted({m for lst in grp["missing"] for m in (lst or [])})
@@ -171,7 +180,7 @@ def _unchecked(run: Any) -> str:
         label = " / ".join(str(x) for x in (first["name"], first["tag"]) if isinstance(x, str) and x)
         rows.append([f"<code>{_e(gid)}</code>", _e(first["ifc_class"]), _e(label or None),
                      _e(", ".join(grp["check"])), "<br>".join(_e(m) for m in missing) or "—", _e(model)])
-    return _table(["GlobalId", "Class", "Name / tag", "Checks", "Missing input", "Model"], rows)
+    return _table(["GlobalId", "Class", "Name / tag", "Checks", "Missing input", "Model"], rows, total=total)
 
 
 def _comparison(cmp: dict[str, Any]) -> str:
