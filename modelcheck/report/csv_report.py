@@ -34,12 +34,6 @@ _RESULT = ("check", "load_case", "status", "demand", "capacity", "unit", "ratio"
            "demand_source", "capacity_source")
 
 
-def _text(v: Any) -> Any:
-    if v is None or (isinstance(v, float) and math.isnan(v)):
-        return None
-    return v
-
-
 def member_info(members: pd.DataFrame) -> pd.DataFrame:
     """(model, global_id) -> storey, section, material of the member table (one row per member)."""
     cols = ["model", "global_id", "storey", "section", "material"]
@@ -74,10 +68,7 @@ def results_frame(run: Any) -> pd.DataFrame:
         df["suggestion"] = [s.get("designation") if isinstance(s, dict) else None for s in sugg]
         df["suggestion_ratio"] = [s.get("ratio") if isinstance(s, dict) else math.nan for s in sugg]
         out_cols += ["suggestion", "suggestion_ratio"]
-    for c in out_cols:
-        if df[c].dtype == object:
-            df[c] = df[c].map(_text)
-    return df.loc[:, out_cols]
+    return df.loc[:, out_cols]   # None and NaN alike are written as empty cells
 
 
 def write_csv(run: Any, path: str | Path) -> None:
