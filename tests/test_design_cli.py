@@ -88,7 +88,8 @@ def test_catalog_compression(capsys: pytest.CaptureFixture[str]) -> None:
 
 @pytest.mark.parametrize(("argv", "match"), [
     (["--force", "12"], "has no unit"),
-    (["--force", "12 in"], "not a unit of force"),
+    (["--force", "12 in"], "is not a force"),
+    (["--force", "1e400 kN"], "not a finite number"),
     (["--force", "12 blorps"], "not a unit"),
     (["--force", "10 kN", "--length", "3"], "length unit"),
     (["--force", "10 kN", "--thickness", "6 mm"], "--thickness applies to --shape flat"),
@@ -102,7 +103,8 @@ def test_input_errors_are_one_line_exit_2(argv: list[str], match: str, capsys: p
 
 
 @pytest.mark.parametrize(("text", "kip"), [("12 kip", 12.0), ("-8 kip", -8.0), ("50 kN", Q_(50, "kN").m_as("kip")),
-                                           ("1.5e3 lbf", 1.5), ("12 [kip]", 12.0)])
+                                           ("1.5e3 lbf", 1.5), ("12 [kip]", 12.0),
+                                           ("12 KIP", 12.0), ("50 KN", Q_(50, "kN").m_as("kip"))])   # as tables
 def test_parse_force_against_pint(text: str, kip: float) -> None:
     assert parse_force(text) == pytest.approx(Q_(kip, "kip").m_as("N"), rel=1e-12)   # pint
 

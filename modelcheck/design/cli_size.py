@@ -58,8 +58,11 @@ def add_size_parser(subparsers: Any) -> argparse.ArgumentParser:
 
 
 def parse_force(text: str) -> float:
-    """'12 kip' -> newtons; a bare number or a unit that is not a force is a UsageError."""
-    from modelcheck.units import Q_, ureg
+    """'12 kip' -> newtons; a bare number or a unit that is not a force is a UsageError. Units are
+    read as load tables read them (``force_unit_factor``: 'KN' and 'KIP' too)."""
+    import math
+
+    from modelcheck.loads.tables import ForceUnitError, force_unit_factor
 
     m = _FORCE_RE.match(text or "")
     unit = (m.group(2) if m and m.group(2) is not None else (m.group(3) if m else "")) or ""
@@ -68,12 +71,13 @@ def parse_force(text: str) -> float:
     if not unit.strip():
         raise UsageError(f"--force {text!r} has no unit: write e.g. \"{text.strip()} kip\" or \"{text.strip()} kN\"")
     try:
-        q = Q_(float(m.group(1)), ureg.parse_units(unit.strip()))
-    except Exception as exc:  # pint raises many types for odd unit text
-        raise UsageError(f"--force {text!r}: {unit.strip()!r} is not a unit ({exc})") from None
-    if q.dimensionality != ureg.Unit("N").dimensionality:
-        raise UsageError(f"--force {text!r}: {unit.strip()!r} is not a unit of force")
-    return float(q.m_as("N"))
+        factor = force_unit_factor(unit)
+    except ForceUnitError as exc:
+        raise UsageError(f"--force {text!r}: {exc}") from None
+    value = float(m.group(1))
+    if not math.isfinite(value):
+        raise UsageError(f"--force {text!r}: {m.group(1)} is not a finite number")
+    return value * factor
 
 
 def parse_length_arg(option: str, text: str | None) -> float | None:

@@ -33,11 +33,11 @@ import pint
 
 from modelcheck.ifc.index import ModelIndex
 from modelcheck.loads.messages import MessageLog
-from modelcheck.loads.tables import DEFAULT_LOAD_CASE, ForceUnitError, force_unit_factor
+from modelcheck.loads.tables import DEFAULT_LOAD_CASE, VALUE_RE, ForceUnitError, force_unit_factor
 from modelcheck.table import FORCE_COLUMNS, empty_forces
 from modelcheck.units import MissingUnit, UnitDefinitionError, unit_label, unit_quantity, ureg
 
-_NUMBER_UNIT = re.compile(r"^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*(\S.*?)?\s*$")
+_NUMBER_UNIT = re.compile(VALUE_RE)   # a number and its unit, as a load table's cell is read
 _TEXT_MEASURES = frozenset({"IfcLabel", "IfcText", "IfcIdentifier"})
 _UNITLESS_NUMBERS = frozenset({"IfcReal", "IfcNumericMeasure", "IfcInteger", "IfcPositiveInteger",
                                "IfcCountMeasure"})
@@ -229,10 +229,10 @@ def _read_text(text: str) -> _Reading:
     m = _NUMBER_UNIT.match(text)
     if m is None:
         return _Reading(problem=f"is the text {text!r}, not a force")
-    if not m.group(2):
+    if not m.group("unit"):
         return _Reading(problem=f"is the text {text!r}: a number with no unit")
     try:
-        factor = force_unit_factor(m.group(2))
+        factor = force_unit_factor(m.group("unit"))
     except ForceUnitError as exc:
         return _Reading(problem=f"is the text {text!r}: {exc}")
-    return _Reading(raw=float(m.group(1)) * factor, unit_key="N", unit_label=m.group(2))
+    return _Reading(raw=float(m.group("num")) * factor, unit_key="N", unit_label=m.group("unit"))

@@ -73,7 +73,8 @@ UNIT_ALIASES: dict[str, str] = {"KN": "kN", "KIP": "kip", "KIPS": "kip", "LBF": 
 _CANONICAL = {"globalid": "global_id", "tag": "tag", "axialforce": "axial_force", "loadcase": "load_case"}
 _HEADER_SEARCH_ROWS = 20
 _HEADER_RE = re.compile(r"^\s*(?P<name>[^\[\(]*?)\s*(?:\[(?P<u1>[^\]]*)\]|\((?P<u2>[^\)]*)\))?\s*$")
-_VALUE_RE = r"^\s*(?P<num>[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*(?P<unit>\S.*?)?\s*$"
+#: a number and the unit after it, as a cell or a property's text gives them
+VALUE_RE = r"^\s*(?P<num>[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*(?P<unit>\S.*?)?\s*$"
 _CONTROL_RE = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")
 _OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
 _ZIP_MAGIC = b"PK\x03\x04"
@@ -425,7 +426,7 @@ def _forces_si(raw: pd.Series, header: _Header, name: str, where: Callable[[int]
     numeric_cell = text.isna().to_numpy()
     if numeric_cell.any():
         raise no_unit(numeric_cell)
-    parts = text.str.extract(_VALUE_RE)
+    parts = text.str.extract(VALUE_RE)
     unmatched = parts["num"].isna().to_numpy()
     if unmatched.any():
         first = raw.iloc[int(np.flatnonzero(unmatched)[0])]
@@ -461,6 +462,6 @@ def _why_not_number(value: Any, header_unit: str | None) -> str:
         return "a decimal comma or thousands separator; write numbers with a decimal point and no separators"
     if s.split(" ")[0].lower() in ("nan", "inf", "-inf", "+inf", "infinity", "#n/a", "n/a", "na", "#value!", "#div/0!"):
         return "not a finite number"
-    if header_unit is not None and re.match(_VALUE_RE, s):
+    if header_unit is not None and re.match(VALUE_RE, s):
         return f"the header already gives the unit {header_unit!r}; the cells must hold plain numbers"
     return "not a number"
