@@ -49,12 +49,6 @@ _ROD_COLUMNS = ("name", "object_type", "type_name", "predefined_type", "tag")
 _CATALOG_SHAPES = ("I", "rect-tube", "round-tube", "L")
 
 
-def _key(models: Any, gids: Any) -> np.ndarray:
-    m = pd.Series(models, dtype=object).fillna("").astype(str).to_numpy(dtype=object)
-    g = pd.Series(gids, dtype=object).fillna("").astype(str).to_numpy(dtype=object)
-    return m + "\x00" + g
-
-
 def _rodlike(members: pd.DataFrame) -> np.ndarray:
     hit = np.zeros(len(members), dtype=bool)
     for c in _ROD_COLUMNS:
@@ -131,7 +125,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
     the replacement's area in the rule set's display unit of area (or ``units``'), its governing
     ratio over all its checks and load cases and the check that sets it.
     """
-    from modelcheck.rules.engine import _force_rows, run_checks
+    from modelcheck.rules.engine import _force_rows, member_key, run_checks
 
     out = results.copy(deep=False)   # the new columns are added to this frame only
     out["suggestion"] = pd.Series([None] * len(out), index=out.index, dtype=object)
@@ -139,9 +133,9 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
     if not len(out) or not (out["status"] == "fail").any():
         return out
     mem = members.reset_index(drop=True)
-    mkeys = _key(mem["model"] if "model" in mem.columns else None, mem["global_id"])
+    mkeys = member_key(mem["model"] if "model" in mem.columns else None, mem["global_id"])
     fail_rows = out["status"] == "fail"
-    fkeys = _key(out.loc[fail_rows, "model"], out.loc[fail_rows, "global_id"])
+    fkeys = member_key(out.loc[fail_rows, "model"], out.loc[fail_rows, "global_id"])
     failing = pd.unique(fkeys)
     mindex = pd.Index(mkeys)
     shared: set[str] = set()
@@ -151,7 +145,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
         shared = set(mkeys[mindex.duplicated(keep=False)])
         first = {k: i for i, k in reversed(list(enumerate(mkeys.tolist())))}
         pos = np.array([-1 if k in shared else first.get(k, -1) for k in failing], dtype=np.int64)
-        rows = np.flatnonzero(fail_rows.to_numpy() & pd.Series(_key(out["model"], out["global_id"])).isin(shared)
+        rows = np.flatnonzero(fail_rows.to_numpy() & pd.Series(member_key(out["model"], out["global_id"])).isin(shared)
                               .to_numpy())
         out.iloc[rows, out.columns.get_loc("suggestion_note")] = \
             "no suggestion: its GlobalId is shared by several members, so its results are theirs too"
@@ -168,7 +162,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
     fdf = pd.DataFrame({"member": fr["member"], "P": fr["P"], "load_case": fr["load_case"], "rank": fr["rank"]})
     fdf = fdf[np.isfinite(fdf["P"])].sort_values(["member", "rank"], kind="stable")
     own_unchecked = out[out["status"] == "unchecked"]
-    allowed = set(_key(own_unchecked["model"], own_unchecked["global_id"])
+    allowed = set(member_key(own_unchecked["model"], own_unchecked["global_id"])
                   + "\x00" + own_unchecked["check"].astype(str).to_numpy(dtype=object)
                   + "\x00" + own_unchecked["load_case"].astype("string").fillna("").to_numpy(dtype=object))
     counter = [0]
@@ -264,7 +258,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
         if k is not None and i not in chosen and notes[i] is None:
             notes[i] = "no suggestion: no size of the same family passes every check"
     # onto the failing rows
-    row_member = pd.Index(sub_keys).get_indexer(_key(out["model"], out["global_id"]))
+    row_member = pd.Index(sub_keys).get_indexer(member_key(out["model"], out["global_id"]))
     sugg = np.full(len(out), None, dtype=object)
     note_col = out["suggestion_note"].to_numpy(dtype=object).copy()
     is_fail = (out["status"] == "fail").to_numpy()

@@ -100,9 +100,9 @@ def _force_rows(members: pd.DataFrame, forces: pd.DataFrame | None) -> dict[str,
     f_case = _objects(forces, "load_case")
     f_p = np.asarray(pd.to_numeric(forces["axial_force"], errors="coerce"), dtype=float)
     codes = _case_ranks(f_case)
-    member_keys = pd.Index(_key(models, gids))
+    member_keys = pd.Index(member_key(models, gids))
     if member_keys.is_unique and not pd.isna(pd.Series(f_model, dtype=object)).any():
-        pos = member_keys.get_indexer(_key(f_model, f_gid))
+        pos = member_keys.get_indexer(member_key(f_model, f_gid))
         ok = pos >= 0
         m, f = pos[ok], np.flatnonzero(ok)
     else:
@@ -154,10 +154,17 @@ def _objects(frame: pd.DataFrame, column: str) -> np.ndarray:
     return frame[column].to_numpy(dtype=object, na_value=None)
 
 
-def _key(models: np.ndarray, gids: np.ndarray) -> np.ndarray:
-    m = np.where(pd.isna(pd.Series(models, dtype=object)).to_numpy(), "", models).astype(object)
-    g = np.where(pd.isna(pd.Series(gids, dtype=object)).to_numpy(), "", gids).astype(object)
+def member_key(models: Any, gids: Any) -> np.ndarray:
+    """'model NUL GlobalId' of each row, a missing value as '' (``models`` None: no model column):
+    the key of a member wherever members, forces and results are matched."""
+    g = _blank_missing(gids)
+    m = np.full(len(g), "", dtype=object) if models is None else _blank_missing(models)
     return m + "\x00" + g
+
+
+def _blank_missing(values: Any) -> np.ndarray:
+    arr = np.asarray(pd.Series(values, dtype=object).to_numpy(), dtype=object)
+    return np.where(pd.isna(arr), "", arr).astype(object)
 
 
 def _fresh_lists(n: int) -> np.ndarray:
