@@ -281,29 +281,11 @@ def read_inputs(args: argparse.Namespace, paths: list[str], load_paths: list[str
     return paths + load_paths + [str(x) for x in extra if x]
 
 
-def unmatched_lines(rows: list[dict[str, str]]) -> list[str]:
-    """One line per load table: how many of its rows match no member, with the first keys."""
-    by_file: dict[str, list[str]] = {}
-    for r in rows:
-        by_file.setdefault(r["source"].rsplit(":row", 1)[0], []).append(f"{r['key']} ({r['source'].rsplit(':', 1)[-1]})")
-    return [f"{f}: {len(keys)} row(s) match no member: " + ", ".join(keys[:10])
-            + (f" … (+{len(keys) - 10})" if len(keys) > 10 else "") for f, keys in by_file.items()]
-
-
-def unmatched_rows(tables: tuple[Any, ...], used: set[str]) -> list[dict[str, str]]:
-    rows = []
-    for t in tables:
-        for key, src in zip(t["key"], t["source"], strict=True):
-            if src not in used:
-                rows.append({"key": str(key), "source": src})
-    return rows
-
-
 # ---------------------------------------------------------------------------- members
 def cmd_members(args: argparse.Namespace) -> int:
     from rich.markup import escape
 
-    from modelcheck.pipeline import expand_paths, read_model
+    from modelcheck.pipeline import expand_paths, read_model, unmatched_lines, unmatched_rows
     from modelcheck.report.members import CAUTION, member_dicts, members_csv, members_table
     from modelcheck.report.quantities import DisplayUnits
 

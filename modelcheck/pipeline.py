@@ -413,10 +413,28 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
         if c.data.members is not None:
             c.data.members = c.data.members.iloc[0:0]
     used = set().union(*(c.data.matched_rows for c in checked)) if checked else set()
-    unmatched = [{"key": str(k), "source": s} for t in forces.tables
-                 for k, s in zip(t["key"], t["source"], strict=True) if s not in used]
+    unmatched = unmatched_rows(forces.tables, used)
     rows = None
     if encode_json and all(c.json_rows is not None or c.results is None for c in checked):
         rows = [chunk for c in checked for chunk in
                 (c.json_rows if isinstance(c.json_rows, list) else [c.json_rows or b""])]
     return CheckRun(ruleset, [c.data for c in checked], results, members, unmatched, rows)
+
+
+def unmatched_lines(rows: list[dict[str, str]]) -> list[str]:
+    """One line per load table: how many of its rows match no member, with the first keys."""
+    by_file: dict[str, list[str]] = {}
+    for r in rows:
+        by_file.setdefault(r["source"].rsplit(":row", 1)[0], []).append(f"{r['key']} ({r['source'].rsplit(':', 1)[-1]})")
+    return [f"{f}: {len(keys)} row(s) match no member: " + ", ".join(keys[:10])
+            + (f" … (+{len(keys) - 10})" if len(keys) > 10 else "") for f, keys in by_file.items()]
+
+
+def unmatched_rows(tables: Any, used: set[str]) -> list[dict[str, str]]:
+    """The rows of the load tables that no member used (``used``: their sources), each with its key."""
+    rows = []
+    for t in tables:
+        for key, src in zip(t["key"], t["source"], strict=True):
+            if src not in used:
+                rows.append({"key": str(key), "source": src})
+    return rows

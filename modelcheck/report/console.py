@@ -123,7 +123,7 @@ def render_check(run: Any, console: Console, units: Any = None, comparison: Any 
         parts.append(summary_line(m, run.results))
         for w in (m.warnings + m.force_messages + m.validation)[:20]:
             parts.append(Text(f"  warning: {w}", style="yellow"))
-    from modelcheck.cli import unmatched_lines
+    from modelcheck.pipeline import unmatched_lines
 
     for line in unmatched_lines(run.unmatched_rows):
         parts.append(Text(f"warning: {line}", style="yellow"))
