@@ -18,6 +18,7 @@ from __future__ import annotations
 import math
 import sys
 from dataclasses import dataclass, field
+from fractions import Fraction
 from typing import Any
 
 
@@ -265,3 +266,19 @@ class UnitContext:
         except KeyError:
             raise MissingUnit(f"unit for {measure}") from None
         return self.factor(unit_type)
+
+
+#: a number as the project's text inputs write it: '12', '-0.25', '1.5e3', '3/8' or '1 1/2'
+NUMBER_PATTERN = r"[-+]?(?:\d+\s+\d+/\d+|\d+/\d+|(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)"
+
+
+def parse_number(text: str) -> Fraction:
+    """A text matching NUMBER_PATTERN, exactly: '1 1/2' -> 3/2, '0.25' -> 1/4, '-3/8' -> -3/8
+    (stock steps add up exactly); a zero denominator raises ZeroDivisionError."""
+    s = text.strip()
+    sign = -1 if s.startswith("-") else 1
+    s = s.lstrip("+-").strip()
+    if " " in s:
+        whole, frac = s.split(None, 1)
+        return sign * (Fraction(whole) + Fraction(frac))
+    return sign * Fraction(s)

@@ -49,7 +49,7 @@ import pint
 from modelcheck.data import data_path
 from modelcheck.errors import RuleSetError
 from modelcheck.threads import INCH, thread_series
-from modelcheck.units import Q_, ureg
+from modelcheck.units import NUMBER_PATTERN, Q_, parse_number, ureg
 
 #: columns of a candidate table
 CANDIDATE_COLUMNS: tuple[str, ...] = (
@@ -62,24 +62,12 @@ GEOMETRY_COLUMNS: tuple[str, ...] = ("area", "r_min", "d", "h", "b", "tf", "tw",
 SERIES_KEYS: tuple[str, ...] = ("about", "round", "square", "flat_thickness", "flat_width", "threads", "shapes")
 THREAD_SERIES = ("UNC", "ISO coarse")
 
-_NUMBER = r"[-+]?(?:\d+\s+\d+/\d+|\d+/\d+|(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)"
-_LENGTH_RE = re.compile(rf"\s*({_NUMBER})\s*(?:\[(.+)\]|(.*?))\s*\Z")
+_LENGTH_RE = re.compile(rf"\s*({NUMBER_PATTERN})\s*(?:\[(.+)\]|(.*?))\s*\Z")
 _HEADER_RE = re.compile(r"\s*([A-Za-z_]+)\s*(?:\[(.+)\])?\s*\Z")
 
 
 # ---------------------------------------------------------------------------------------------
 # lengths written as text
-
-
-def parse_number(text: str) -> Fraction:
-    """'1 1/2' -> 3/2, '0.25' -> 1/4, '-3/8' -> -3/8 (exact, so stock steps add up exactly)."""
-    s = text.strip()
-    sign = -1 if s.startswith("-") else 1
-    s = s.lstrip("+-").strip()
-    if " " in s:
-        whole, frac = s.split(None, 1)
-        return sign * (Fraction(whole) + Fraction(frac))
-    return sign * Fraction(s)
 
 
 def parse_length(text: str, what: str = "length") -> tuple[Fraction, str]:

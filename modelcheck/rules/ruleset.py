@@ -41,7 +41,7 @@ from modelcheck.rules.expr import (
 )
 from modelcheck.rules.names import MEMBER_QUANTITIES, MESSAGE_NAMES, RESERVED, TEXT_NAMES
 from modelcheck.rules.select import SELECTOR_KEYS, Selector, ifc_class_name
-from modelcheck.units import Q_, ureg
+from modelcheck.units import NUMBER_PATTERN, Q_, parse_number, ureg
 
 # ---------------------------------------------------------------------------------------------
 # display units
@@ -85,8 +85,7 @@ CHECK_KEYS = ("id", "title", "clause", "select", "when", "demand", "capacity", "
 _ID_RE = re.compile(r"[A-Za-z][A-Za-z0-9_.-]{0,63}\Z")
 _NAME_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]{0,63}\Z")
 _SPEC_RE = re.compile(r"[<>^=+\- #0-9,._%eEfFgGn]{0,16}\Z")
-_NUMBER = r"[-+]?(?:\d+\s+\d+/\d+|\d+/\d+|(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)"
-_PARAM_RE = re.compile(rf"\s*({_NUMBER})\s*(?:\[(.*)\]|(.*?))\s*\Z")
+_PARAM_RE = re.compile(rf"\s*({NUMBER_PATTERN})\s*(?:\[(.*)\]|(.*?))\s*\Z")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -403,20 +402,13 @@ def _parse_parameter(name: str, raw: Any) -> tuple[pint.Quantity, str, str]:
     m = _PARAM_RE.match(raw)
     if not m:
         raise ExpressionError(f"{raw!r} is not a number with a unit, like \"0.25 in\" or \"25 mm\"")
-    number_text = m.group(1).strip()
-    if "/" in number_text:
-        sign = -1.0 if number_text.startswith("-") else 1.0
-        whole = 0.0
-        frac = number_text.lstrip("+-")
-        if " " in frac:
-            w, frac = frac.split(None, 1)
-            whole = float(w)
-        num, den = frac.split("/")
-        if float(den) == 0:
-            raise ExpressionError(f"{raw!r}: division by zero")
-        number = sign * (whole + float(num) / float(den))
-    else:
-        number = float(number_text)
+    text = m.group(1)
+    try:   # a fraction ('3/8', '1 1/2') exactly; a decimal as written (its range is checked below)
+        number = float(parse_number(text)) if "/" in text else float(text)
+    except ZeroDivisionError:
+        raise ExpressionError(f"{raw!r}: division by zero") from None
+    except OverflowError:
+        raise ExpressionError(f"{raw!r}: the number is too large") from None
     unit_text = (m.group(2) if m.group(2) is not None else m.group(3) or "").strip()
     if unit_text:
         value = unit_literal(repr(number), unit_text)
