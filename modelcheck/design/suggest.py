@@ -36,6 +36,7 @@ import numpy as np
 import pandas as pd
 
 from modelcheck.design import stock
+from modelcheck.rules.select import Selector
 from modelcheck.units import Q_
 
 #: pairs per run_checks call (a memory bound for very large failing sets)
@@ -45,17 +46,14 @@ CHUNK = 200_000
 #: or thread has more area and a larger radius of gyration): searched by bisection
 MONOTONE = ("round", "square", "threaded")
 
-_ROD_COLUMNS = ("name", "object_type", "type_name", "predefined_type", "tag")
 _CATALOG_SHAPES = ("I", "rect-tube", "round-tube", "L")
+
+#: a threaded rod, as the shipped rule sets' rod selectors name one ("rod" or "thread" in any name)
+_RODLIKE = Selector((("any_name", ("*rod*", "*thread*")),))
 
 
 def _rodlike(members: pd.DataFrame) -> np.ndarray:
-    hit = np.zeros(len(members), dtype=bool)
-    for c in _ROD_COLUMNS:
-        if c in members.columns:
-            hit |= members[c].astype("string").str.contains(r"rod|thread", case=False, regex=True,
-                                                            na=False).to_numpy(dtype=bool)
-    return hit
+    return _RODLIKE.mask(members)
 
 
 def _groups(members: pd.DataFrame, series: stock.StockSeries) -> tuple[list[Any], np.ndarray, np.ndarray]:
