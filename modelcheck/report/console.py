@@ -6,7 +6,6 @@ case; then the unchecked members grouped by what they lack; then the caution.
 
 from __future__ import annotations
 
-import math
 from typing import Any
 
 import pandas as pd
@@ -15,6 +14,7 @@ from rich.table import Table
 from rich.text import Text
 
 from modelcheck.report.members import CAUTION
+from modelcheck.report.text import number
 
 
 def governing(results: pd.DataFrame) -> pd.DataFrame:
@@ -46,10 +46,6 @@ def summary_line(model: Any, results: pd.DataFrame) -> Text:
         (f"{model.path}", "bold"), f" ({model.schema}): {model.member_count} members found, {checked} checked — ",
         (f"{n_pass} pass", "green"), ", ", (f"{n_fail} fail", "bold red" if n_fail else "green"), ", ",
         (f"{n_unchecked} unchecked", "yellow" if n_unchecked else "green"))
-
-
-def _num(v: Any) -> str:
-    return "—" if v is None or (isinstance(v, float) and not math.isfinite(v)) else f"{v:.4g}"
 
 
 #: failing rows shown on the console, worst first (every one is in the CSV, JSON and HTML reports)
@@ -88,7 +84,7 @@ def failing_table(results: pd.DataFrame, members: pd.DataFrame, units: Any = Non
             (m["storey"] if m is not None else None) or "—",
             (m["section_name"] or m["profile_type"] or "—") if m is not None else "—",
             (m["material"] or "—") if m is not None else "—", rec["check"],
-            f"{_num(rec['demand'])} {rec['unit']}", f"{_num(rec['capacity'])} {rec['unit']}")]
+            f"{number(rec['demand'])} {rec['unit']}", f"{number(rec['capacity'])} {rec['unit']}")]
         row += [Text(f"{ratio:.2f}" if ratio == ratio else "—", style="bold red"), Text(str(rec["load_case"] or "—"))]
         if has_sugg:
             s = rec.get("suggestion")
