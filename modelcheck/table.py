@@ -75,3 +75,7 @@ def empty_forces() -> pd.DataFrame:
         "load_case": pd.Series(dtype=object), "axial_force": pd.Series(dtype=float),
         "source": pd.Series(dtype=object),
     })
+
+
+#: result statuses, worst first: a member's status is the worst of its results
+STATUS_RANK: dict[str, int] = {"fail": 0, "unchecked": 1, "pass": 2}

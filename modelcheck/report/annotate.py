@@ -33,10 +33,10 @@ from typing import Any
 import pandas as pd
 
 from modelcheck.errors import ModelcheckError, UsageError
+from modelcheck.table import STATUS_RANK
 
 PSET_NAME = "MC_CheckResult"
 _NAMESPACE = uuid.UUID("b7d2e4f0-3c5a-4e61-8f2d-9a0c1e7b5d34")
-_RANK = {"fail": 0, "unchecked": 1, "pass": 2}
 
 
 def _same_file(a: Path, b: Path) -> bool:
@@ -58,7 +58,7 @@ def summarize(results: pd.DataFrame) -> pd.DataFrame:
     """One row per GlobalId: status, worst ratio, governing check and load case, missing inputs."""
     if not len(results):
         return pd.DataFrame(columns=["global_id", "status", "worst_ratio", "check", "load_case", "missing"])
-    r = results.assign(_rank=results["status"].map(_RANK), _ratio=pd.to_numeric(results["ratio"], errors="coerce"))
+    r = results.assign(_rank=results["status"].map(STATUS_RANK), _ratio=pd.to_numeric(results["ratio"], errors="coerce"))
     gov = (r.assign(_key=r["_ratio"].fillna(-1.0))
            .sort_values(["_rank", "_key"], ascending=[True, False], kind="stable")
            .drop_duplicates("global_id", keep="first"))

@@ -36,9 +36,9 @@ from typing import Any
 
 from modelcheck.errors import UsageError
 from modelcheck.files import input_file
+from modelcheck.table import STATUS_RANK
 
 Key = tuple[str, str, str, str]      # model name, GlobalId, check, load case ("" when none)
-_RANK = {"fail": 0, "unchecked": 1, "pass": 2}
 
 
 def _model_names(doc: dict[str, Any]) -> dict[str, str]:
@@ -64,7 +64,7 @@ def _index(doc: dict[str, Any]) -> tuple[dict[Key, dict[str, Any]], dict[tuple[s
         if m is None:
             members[mk] = {"model": model, "global_id": r["global_id"], "ifc_class": r.get("ifc_class"),
                            "name": r.get("name"), "tag": r.get("tag"), "status": r["status"]}
-        elif _RANK.get(r["status"], 3) < _RANK.get(m["status"], 3):
+        elif STATUS_RANK.get(r["status"], 3) < STATUS_RANK.get(m["status"], 3):
             m["status"] = r["status"]
     return results, members
 
@@ -176,7 +176,7 @@ def load_baseline(path: str | os.PathLike[str]) -> dict[str, Any]:
     for i, r in enumerate(doc["results"]):
         if not isinstance(r, dict) or any(not isinstance(r.get(k), str) for k in _RESULT_KEYS):
             raise UsageError(f"result entry without {', '.join(_RESULT_KEYS)}", path=name, where=f"results[{i}]")
-        if r["status"] not in _RANK:
+        if r["status"] not in STATUS_RANK:
             raise UsageError(f"unknown status {r['status']!r}", path=name, where=f"results[{i}]")
     return doc
 

@@ -15,13 +15,14 @@ from rich.text import Text
 
 from modelcheck.report.members import CAUTION
 from modelcheck.report.text import number
+from modelcheck.table import STATUS_RANK
 
 
 def governing(results: pd.DataFrame) -> pd.DataFrame:
     """One row per member × check: the load case with the highest ratio (failures first)."""
     if not len(results):
         return results
-    r = results.assign(_rank=results["status"].map({"fail": 0, "unchecked": 1, "pass": 2}),
+    r = results.assign(_rank=results["status"].map(STATUS_RANK),
                        _ratio=results["ratio"].astype(float).fillna(-1.0))
     r = r.sort_values(["_rank", "_ratio"], ascending=[True, False], kind="stable")
     g = r.drop_duplicates(["model", "global_id", "check"], keep="first")
@@ -30,7 +31,7 @@ def governing(results: pd.DataFrame) -> pd.DataFrame:
 
 def member_status(results: pd.DataFrame) -> pd.Series:
     """Worst status per (model, global_id): fail > unchecked > pass."""
-    order = results["status"].map({"fail": 0, "unchecked": 1, "pass": 2})
+    order = results["status"].map(STATUS_RANK)
     worst = order.groupby([results["model"], results["global_id"]]).min()
     return worst.map({0: "fail", 1: "unchecked", 2: "pass"})
 
