@@ -87,7 +87,6 @@ class _PartResult:
     new_log: list[str]
     warnings: list[str]            # reader and unit warnings (parse problems are merged from new_log)
     matched_rows: set[str]
-    route_messages: list[str]      # the join's own notes (table encodings)
     member_count: int
 
 
@@ -178,7 +177,7 @@ def _run_part(k: int) -> _PartResult:
         read_into(data, idx, opts, entities, analysis=analysis, prop_log=log, shared_tags=st.shared_tags)
     new_log = list(idx.parse_log[st.log_start:])
     if data.error is not None or data.members is None:
-        return _PartResult(data.error, None, None, None, None, log, new_log, [], set(), [], 0)
+        return _PartResult(data.error, None, None, None, None, log, new_log, [], set(), 0)
     n_parse = data.members.attrs.get("parse_problem_count", 0)
     # what the model-wide parts of the warnings were is rebuilt by the caller from the merged log
     warnings = [w for w in data.warnings[n_parse:]]
@@ -209,7 +208,7 @@ def _run_part(k: int) -> _PartResult:
     if report is not None and os.getpid() != st.parent_pid:
         report = replace(report, unmatched=())   # judged from matched_rows; not worth the pickling
     return _PartResult(None, members, results, rows, report, log, new_log, warnings, data.matched_rows,
-                       list(report.messages) if report is not None else [], data.member_count)
+                       data.member_count)
 
 
 class TablesReadAhead:
@@ -452,7 +451,7 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
         for r in reports:
             for route, count in r.used_by_route.items():
                 used[route] = used.get(route, 0) + count
-        notes = list(dict.fromkeys(m for o in outs for m in o.route_messages))
+        notes = list(dict.fromkeys(m for r in reports for m in r.messages))   # the join's own (table encodings)
         report = ForceReport(
             duplicates=tuple(d for r in reports for d in r.duplicates), ambiguous=tuple(ambiguous),
             missing=tuple(sorted((m for r in reports for m in r.missing), key=lambda x: (x.model, x.global_id))),
