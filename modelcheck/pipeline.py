@@ -320,30 +320,10 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
 
     if not encode_json:
         return evaluate(members, forces), None
-    if len(members) <= EVALUATE_CHUNK:  # one run: no reordering needed (the engine orders its rows)
-        res = evaluate(members, forces)
-        text = encode_results(res)
-        if sink is not None:
-            sink.write(text)
-        return (res.loc[:, ["status"]] if slim else res), (text if sink is None else None)
-    order = members["global_id"].astype(str).to_numpy(dtype=object)
-    ranked = members.iloc[np.argsort(order, kind="stable")].reset_index(drop=True)
-    gids = ranked["global_id"].astype(str).to_numpy(dtype=object)
-    runs: list[tuple[int, int]] = []
-    start, n = 0, len(ranked)
-    while start < n or not runs:
-        stop = min(n, start + EVALUATE_CHUNK)
-        while 0 < stop < n and gids[stop] == gids[stop - 1]:   # a repeated GlobalId stays in one run
-            stop += 1
-        runs.append((start, stop))
-        start = stop
-    run_of = {g: r for r, (a, b) in enumerate(runs) for g in gids[a:b].tolist()}
-    f_run = np.fromiter((run_of.get(g, -1) for g in forces["global_id"].astype(str).tolist()), dtype=np.int64,
-                        count=len(forces))
     kept: list[pd.DataFrame] = []
     encoded: list[bytes] = []
-    for r, (start, stop) in enumerate(runs):
-        res = evaluate(ranked.iloc[start:stop], forces[f_run == r])
+    for m, f in _runs_of_members(members, forces):
+        res = evaluate(m, f)
         text = encode_results(res)
         if text:
             if sink is None:
@@ -355,6 +335,31 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
         kept.append(res.loc[:, ["status"]] if slim else res)
     results = pd.concat(kept, ignore_index=True) if len(kept) > 1 else kept[0]
     return results, (ROW_SEPARATOR.join(encoded) if sink is None else None)
+
+
+def _runs_of_members(members: pd.DataFrame, forces: pd.DataFrame) -> Any:
+    """(members, their forces) in runs of at most EVALUATE_CHUNK consecutive GlobalIds (a repeated
+    GlobalId stays in one run); one run, as given, when the members fit in one (the engine orders
+    the rows of a run itself)."""
+    if len(members) <= EVALUATE_CHUNK:
+        yield members, forces
+        return
+    order = members["global_id"].astype(str).to_numpy(dtype=object)
+    ranked = members.iloc[np.argsort(order, kind="stable")].reset_index(drop=True)
+    gids = ranked["global_id"].astype(str).to_numpy(dtype=object)
+    runs: list[tuple[int, int]] = []
+    start, n = 0, len(ranked)
+    while start < n:
+        stop = min(n, start + EVALUATE_CHUNK)
+        while 0 < stop < n and gids[stop] == gids[stop - 1]:
+            stop += 1
+        runs.append((start, stop))
+        start = stop
+    run_of = {g: r for r, (a, b) in enumerate(runs) for g in gids[a:b].tolist()}
+    f_run = np.fromiter((run_of.get(g, -1) for g in forces["global_id"].astype(str).tolist()), dtype=np.int64,
+                        count=len(forces))
+    for r, (start, stop) in enumerate(runs):
+        yield ranked.iloc[start:stop], forces[f_run == r]
 
 
 @dataclass
