@@ -56,7 +56,7 @@ def _rodlike(members: pd.DataFrame) -> np.ndarray:
     return _RODLIKE.mask(members)
 
 
-def _groups(members: pd.DataFrame, series: stock.StockSeries) -> tuple[list[Any], np.ndarray, np.ndarray]:
+def _groups(members: pd.DataFrame, series: stock.StockSeries) -> tuple[list[Any], np.ndarray]:
     """Candidate-group key of every member (None: no suggestion) and a note where None."""
     from modelcheck.threads import thread_tensile_area
 
@@ -94,7 +94,7 @@ def _groups(members: pd.DataFrame, series: stock.StockSeries) -> tuple[list[Any]
         else:
             notes[i] = (f"no suggestion: no stock series or shape table for shape {s!r}" if s
                         else "no suggestion: the section's shape is unknown")
-    return keys, notes, rod
+    return keys, notes
 
 
 def _candidates(key: Any, series: stock.StockSeries) -> tuple[pd.DataFrame, str]:
@@ -115,12 +115,11 @@ def _candidates(key: Any, series: stock.StockSeries) -> tuple[pd.DataFrame, str]
     return stock.catalog_shapes(table, families, shape), fam
 
 
-def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, results: pd.DataFrame,
-            *, units: Any = None) -> pd.DataFrame:
+def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, results: pd.DataFrame) -> pd.DataFrame:
     """``results`` with a ``suggestion`` column (dict or None) and a ``suggestion_note`` column.
 
     ``suggestion`` = ``{"designation", "area": Q, "ratio", "family", "check", "unchecked"}``:
-    the replacement's area in the rule set's display unit of area (or ``units``'), its governing
+    the replacement's area in the rule set's display unit of area, its governing
     ratio over all its checks and load cases and the check that sets it.
     """
     from modelcheck.rules.engine import _force_rows, member_key, run_checks
@@ -153,7 +152,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
     sub = mem.iloc[pos].reset_index(drop=True)
     sub_keys = mkeys[pos]
     series = stock.stock_series(ruleset)
-    group_keys, notes, _ = _groups(sub, series)
+    group_keys, notes = _groups(sub, series)
 
     # the member's own forces, and the results it could not check itself (allowed to stay unchecked)
     fr = _force_rows(sub, forces)
@@ -241,7 +240,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
     if frames:
         ok = (pd.concat(frames, ignore_index=True).sort_values(["member", "area", "order"], kind="stable")
               .drop_duplicates("member"))
-        area_unit = _area_unit(ruleset, units)
+        area_unit = str(ruleset.display["area"])
         factor = float(Q_(1.0, "m**2").m_as(area_unit))
         for rec in ok.to_dict("records"):
             chosen[int(rec["member"])] = {
@@ -343,7 +342,3 @@ def _verdicts(res: pd.DataFrame, cinfo: pd.DataFrame, sub_keys: np.ndarray, allo
     return v
 
 
-def _area_unit(ruleset: Any, units: Any) -> str:
-    if units is not None and getattr(units, "system", None) in ("US", "SI"):
-        return str(units.unit("area"))
-    return str(ruleset.display["area"])
