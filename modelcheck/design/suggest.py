@@ -340,5 +340,3 @@ def _verdicts(res: pd.DataFrame, cinfo: pd.DataFrame, sub_keys: np.ndarray, allo
     v["check"] = check
     v["unchecked"] = unchecked
     return v
-
-
