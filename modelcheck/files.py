@@ -32,4 +32,3 @@ def utf8_name(name: str) -> bool:
     except UnicodeEncodeError:
         return False
     return True
-

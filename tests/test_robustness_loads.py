@@ -218,4 +218,3 @@ def test_a_spreadsheet_cell_of_truth_value_or_date_is_not_a_force(tmp_path, cell
     message = str(info.value)
     assert message.startswith(f"{path}:Sheet:row 3: axial_force ") and shown in message, message
     assert "not a force" in message
-

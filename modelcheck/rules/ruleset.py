@@ -923,4 +923,3 @@ def list_rulesets() -> list[RuleSet]:
     from modelcheck.data import data_dir
 
     return sorted((load_ruleset(data_dir() / f"{n}.toml") for n in shipped_names()), key=lambda r: r.name)
-
