@@ -271,9 +271,16 @@ def _missing_lists(check: Check, ruleset: RuleSet, data: MemberData, member: np.
             bad = unknown | ~np.isfinite(demand) | ~np.isfinite(capacity)
             needed[name] = bad & np.isnan(values[name])
     lists: list[list[str]] = [[] for _ in range(n)]
+    texts: dict[Any, str] = {}   # one text per distinct (input, load case, shape, diameter)
+    shape, d = data.text("shape"), data.number("d")
     for name in candidates:
         for j in np.flatnonzero(needed[name]).tolist():
-            lists[j].append(_missing_text(name, ruleset, data, int(member[j]), case[j]))
+            m = int(member[j])
+            key = (name, case[j] if name == "P" else None) if name != "As" else (name, shape[m], d[m])
+            text = texts.get(key)
+            if text is None:
+                text = texts[key] = _missing_text(name, ruleset, data, m, case[j])
+            lists[j].append(text)
     return lists
 
 
