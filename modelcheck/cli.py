@@ -416,6 +416,13 @@ def merge_config(args: argparse.Namespace) -> argparse.Namespace:
                 "annotate", "validate", "scheduler"):
         if getattr(args, key, None) is None and key in cfg:
             setattr(args, key, cfg[key])
+            if key == "format":   # named here, where the file is known, not as if typed as --format
+                from modelcheck.config import config_path
+
+                unknown = [f.strip() for f in cfg[key].split(",") if f.strip() not in ("console", *FILE_FORMATS)]
+                if unknown:
+                    raise UsageError(f"format: unknown {', '.join(unknown)} (choose from console, "
+                                     f"{', '.join(FILE_FORMATS)})", path=str(config_path(Path.cwd())))
     return args
 
 

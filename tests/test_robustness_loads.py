@@ -70,6 +70,7 @@ BAD_TABLES: dict[str, tuple[bytes, str | None, str]] = {
     # a value beyond the header: a decimal comma or an unquoted list would lose its tail
     "decimal-comma.csv": (b"tag,axial_force [kN]\nH1,12\nH2,1,5\n", "row 3", "beyond the header"),
     "extra-cells.csv": (b"tag,load_case,axial_force [kN]\nH1,LC1,18,5\n", "row 2", "beyond the header"),
+    "unclosed-quote.csv": (b'tag,axial_force [kN]\nH1,"12\nH2,5\n', "line 2", "not closed"),
 }
 
 

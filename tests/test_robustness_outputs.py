@@ -132,3 +132,16 @@ def test_a_file_name_that_is_not_utf8_is_one_line(capsys, project, role):
     assert out.code == 2 and len(out.lines) == 1 and out.lines == out.errors, out.stderr
     assert "not UTF-8 text" in out.lines[0]
     assert out.stdout == ""
+
+
+def test_an_unknown_format_in_the_configuration_names_the_file(capsys, project):
+    (project / "modelcheck.toml").write_text('models = ["nettlebrook-hall.ifc"]\nformat = "jsn"\n', encoding="utf-8")
+    out = run_inprocess(capsys, ["check"], [project / "modelcheck.toml"])
+    assert out.code == 2 and len(out.lines) == 1
+    assert "modelcheck.toml" in out.lines[0] and "unknown jsn" in out.lines[0]
+
+
+def test_a_folder_given_as_the_rule_set_is_one_line(capsys, project):
+    out = run_inprocess(capsys, ["check", "nettlebrook-hall.ifc", "--rules", "sub", "--no-config"],
+                        [project / "nettlebrook-hall.ifc"])
+    assert out.code == 2 and len(out.lines) == 1 and "sub: is a folder, not a rule-set file" in out.lines[0]

@@ -191,11 +191,22 @@ def _csv_records(text: str, name: str) -> list[list[str]]:
         counts = {d: first.count(d) for d in (",", ";", "\t")}
         delimiter = max(counts, key=lambda d: counts[d]) if any(counts.values()) else ","
     reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
+    records: list[list[str]] = []
+    line = 0
     try:
-        return list(reader)
+        if '"' not in text:   # without quotes no cell can span lines
+            return list(reader)
+        for rec in reader:
+            if any("\n" in c or "\r" in c for c in rec):   # no key, case or force spans lines
+                raise LoadTableError("a quote (\") opened on this line is not closed on it, so the lines after it "
+                                     "were read as one cell; close or remove the quote", path=name,
+                                     where=f"line {line + 1}")
+            records.append(rec)
+            line = reader.line_num
     except csv.Error as exc:
         raise LoadTableError(f"is not a readable CSV table: {exc}", path=name,
                              where=f"line {reader.line_num}") from None
+    return records
 
 
 def _read_xlsx(p: Path, name: str) -> pd.DataFrame:

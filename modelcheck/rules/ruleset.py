@@ -874,6 +874,8 @@ def resolve_ruleset(name_or_path: str | Path) -> Path:
     candidate = Path(text)
     looks_like_path = isinstance(name_or_path, Path) or "/" in text or "\\" in text or text.endswith(".toml")
     if looks_like_path or candidate.exists():
+        if candidate.is_dir():
+            raise RuleSetError("is a folder, not a rule-set file (.toml)", path=text)
         if not candidate.is_file():
             raise RuleSetError("no such rule-set file", path=text)
         return candidate
