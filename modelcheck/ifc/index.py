@@ -8,7 +8,7 @@ Example::
 
     idx = build_index("sample_models/nettlebrook-hall.ifc")
     idx.units.factor("LENGTHUNIT")      # metres per file length unit
-    idx.psets_of[element.id()]         # its property sets and quantity sets (occurrence only)
+    idx.psets_named(element.id(), "Pset_MemberCommon")   # its sets of that name (occurrence only)
     property_si(idx, pset_prop)        # a property's value in SI base units, by the file's units
 """
 
@@ -54,8 +54,7 @@ class ModelIndex:
     schema: str
     units: UnitContext
     type_of: dict[int, Any] = field(default_factory=dict)          # occurrence id -> type object
-    psets_of: dict[int, list[Any]] = field(default_factory=dict)   # object id -> psets / qsets
-    named_psets: dict[str, dict[int, list[Any]]] = field(default_factory=dict)  # set name -> object id -> sets
+    psets_of: dict[int, list[int]] = field(default_factory=dict)   # object id -> ids of its psets / qsets
     material_of: dict[int, Any] = field(default_factory=dict)      # object id -> material select
     storey_of: dict[int, Any] = field(default_factory=dict)        # element id -> spatial structure
     assigned_to: dict[int, list[Any]] = field(default_factory=dict)  # product id -> assigned objects
@@ -64,6 +63,7 @@ class ModelIndex:
     object_profile_props: dict[int, list[Any]] = field(default_factory=dict)  # IFC2X3: element id -> profile props
     parse_log: list[str] = field(default_factory=list)  # ifcopenshell's parser log, as drained
     file_fds: tuple[int, ...] = ()   # descriptors the (lazily reading) parser keeps open on the file
+    _sets: dict[int, tuple[Any, str | None]] = field(default_factory=dict)  # set id -> (entity, Name)
 
     @property
     def parse_problems(self) -> tuple[str, ...]:
@@ -83,16 +83,39 @@ class ModelIndex:
         """An ifcopenshell error about the file's text, with its byte offset turned into a line."""
         return explain_parse_error(self.path, exc)
 
+    def _set(self, sid: int) -> tuple[Any, str | None]:
+        """(entity, Name) of property or quantity set ``sid``, read when first asked for: a set is
+        read only when a member's check needs it, and in the process that checks that member.
+        (None, None) for a dangling reference."""
+        hit = self._sets.get(sid)
+        if hit is None:
+            try:
+                ent = self.file.by_id(sid)
+            except RuntimeError as exc:
+                raise_if_parse_error(self.path, exc)
+                ent = None   # no such instance: a dangling reference, as if the set were not there
+            name = None
+            if ent is not None and ent.is_a("IfcRoot"):   # a set; anything else related here is not one
+                name = ent.get_argument(2)   # IfcRoot.Name
+            hit = self._sets[sid] = (ent, name if isinstance(name, str) else None)
+        return hit
+
     def psets_named(self, eid: int, name: str) -> list[Any]:
         """The property or quantity sets called ``name`` of object ``eid`` (occurrence only)."""
-        return self.named_psets.get(name, {}).get(eid, [])
+        out = []
+        for sid in self.psets_of.get(eid, ()):
+            ent, n = self._set(sid)
+            if n == name:
+                out.append(ent)
+        return out
 
     def qto_psets(self, eid: int) -> list[Any]:
         """The object's sets whose name starts with ``Qto_``, in the order the walk met them."""
-        out: list[Any] = []
-        for name, by_object in self.named_psets.items():
-            if name.startswith("Qto_"):
-                out += by_object.get(eid, [])
+        out = []
+        for sid in self.psets_of.get(eid, ()):
+            ent, n = self._set(sid)
+            if n is not None and n.startswith("Qto_"):
+                out.append(ent)
         return out
 
     def type_psets(self, typ: Any) -> list[Any]:
@@ -139,7 +162,7 @@ def unreadable_model(path: str, exc: BaseException) -> str:
 
 #: the end of a relationship's text whose last two attributes are its list of related objects and
 #: the relating one: "…,(#1,#2,#3),#9)"
-_RELATED_TAIL = re.compile(r",\((#\d+(?:,#\d+)*)\),#\d+\)$")
+_RELATED_TAIL = re.compile(r",\((#\d+(?:,#\d+)*)\),#(\d+)\)$")
 
 
 def _related_ids(rel: Any) -> list[int]:
@@ -158,19 +181,21 @@ def _walk(model: Any, idx: ModelIndex) -> None:
         typ = rel.get_argument(5)   # RelatingType
         for oid in _related_ids(rel):
             idx.type_of[oid] = typ
-    named = idx.named_psets
+    psets = idx.psets_of
     for rel in model.by_type("IfcRelDefinesByProperties"):
-        pdef = rel.get_argument(5)   # RelatingPropertyDefinition (the same place in every schema)
-        pdefs = [d for d in (pdef if isinstance(pdef, tuple) else (pdef,)) if d is not None]  # None: dangling
-        ids = [obj.id() for obj in rel.get_argument(4) or ()]   # RelatedObjects
+        # the sets are named by id here and read when a member needs them (``ModelIndex._set``):
+        # a model often has a set per element, and reading each one is most of a walk's time
+        m = _RELATED_TAIL.search(rel.to_string())
+        if m is not None:
+            sids = [int(m.group(2))]
+            ids = [int(x) for x in m.group(1).replace("#", "").split(",")]
+        else:   # a set of definitions (IFC4), a dangling reference or an unusual text: read as usual
+            pdef = rel.get_argument(5)   # RelatingPropertyDefinition (the same place in every schema)
+            pdefs = [d for d in (pdef if isinstance(pdef, tuple) else (pdef,)) if d is not None]
+            sids = [d.id() for d in pdefs if hasattr(d, "id")]
+            ids = [obj.id() for obj in rel.get_argument(4) or ()]   # RelatedObjects
         for oid in ids:
-            idx.psets_of.setdefault(oid, []).extend(pdefs)
-        for d in pdefs:  # by name too: a member's sets are then found without reading each one
-            name = d.get_argument(2) if hasattr(d, "get_argument") else None   # IfcRoot.Name
-            if isinstance(name, str):
-                by_object = named.setdefault(name, {})
-                for oid in ids:
-                    by_object.setdefault(oid, []).append(d)
+            psets.setdefault(oid, []).extend(sids)
     for rel in model.by_type("IfcRelAssociatesMaterial"):
         mat = rel.get_argument(5)   # RelatingMaterial
         for oid in _related_ids(rel):
