@@ -311,6 +311,7 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
     from modelcheck.design.suggest import suggest
     from modelcheck.report.check_json import ROW_SEPARATOR, encode_results
     from modelcheck.rules.engine import run_checks
+    from modelcheck.table import STATUS_RANK
 
     def evaluate(m: pd.DataFrame, f: pd.DataFrame) -> pd.DataFrame:
         res = run_checks(ruleset, m, f)
@@ -332,7 +333,9 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
                 if sink.tell():
                     sink.write(ROW_SEPARATOR)
                 sink.write(text)
-        kept.append(res.loc[:, ["status"]] if slim else res)
+        # slim: the statuses alone, as a categorical (small to send back, quick to count)
+        kept.append(pd.DataFrame({"status": pd.Categorical(res["status"].to_numpy(), categories=list(STATUS_RANK))})
+                    if slim else res)
     results = pd.concat(kept, ignore_index=True) if len(kept) > 1 else kept[0]
     return results, (ROW_SEPARATOR.join(encoded) if sink is None else None)
 
