@@ -149,6 +149,11 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
     ambiguous: list[AmbiguousTag] = []
     extra_messages: list[str] = []
 
+    # each member (model, GlobalId) as an integer, in sorted order: the rest of the join works on
+    # integers (one hash or sort of text here instead of one per step)
+    pairs = sorted(set(zip(ids["model"].tolist(), ids["global_id"].tolist(), strict=True)))
+    code_of = {pair: i for i, pair in enumerate(pairs)}
+
     parts: list[pd.DataFrame] = []
     rows = _table_rows(tables, extra_messages)
     if not rows.empty:
@@ -160,47 +165,53 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
         if frame is None or frame.empty:
             continue
         fr = frame[list(FORCE_COLUMNS)].reset_index(drop=True)
-        hit = fr.merge(ids[["model", "global_id"]].drop_duplicates(), on=["model", "global_id"],
-                       how="left", indicator=True)
-        miss = hit["_merge"] == "left_only"
+        hit = np.fromiter((p in code_of for p in zip(fr["model"].tolist(), fr["global_id"].tolist(), strict=True)),
+                          dtype=bool, count=len(fr))
         unmatched += [UnmatchedRow("global_id", g, c, s) for g, c, s in
-                      hit.loc[miss, ["global_id", "load_case", "source"]].itertuples(index=False)]
-        parts.append(hit.loc[~miss, list(FORCE_COLUMNS)].assign(_order=np.arange(int((~miss).sum())),
-                                                                 _route=route))
+                      fr.loc[~hit, ["global_id", "load_case", "source"]].itertuples(index=False)]
+        parts.append(fr[hit].assign(_order=np.arange(int(hit.sum())), _route=route))
 
     if parts:
         allf = pd.concat(parts, ignore_index=True)
     else:
         allf = empty_forces().assign(_order=pd.Series(dtype=int), _route=pd.Series(dtype=int))
-    allf = allf.sort_values(["_route", "_order"], kind="stable")
+    route = allf["_route"].to_numpy(dtype=np.int64)
+    first = np.lexsort((allf["_order"].to_numpy(dtype=np.int64), route))   # by route, then row order
+    allf = allf.iloc[first].reset_index(drop=True)
+    route = route[first]
+    member = np.fromiter((code_of[p] for p in zip(allf["model"].tolist(), allf["global_id"].tolist(), strict=True)),
+                         dtype=np.int64, count=len(allf))
+    case_codes, cases = pd.factorize(allf["load_case"], use_na_sentinel=False)
+    case = member * (len(cases) + 1) + case_codes       # one integer per member and load case
     keys = ["model", "global_id", "load_case"]
 
     # duplicates: same member and case twice from one route -> first kept
-    dup_mask = allf.duplicated(keys + ["_route"], keep=False)
+    per_route = pd.Series(case * len(ROUTES) + route)
+    dup_mask = per_route.duplicated(keep=False).to_numpy()
     duplicates = _duplicates(allf[dup_mask], keys)
-    allf = allf.drop_duplicates(keys + ["_route"], keep="first")
+    once = ~per_route.duplicated(keep="first").to_numpy()
+    allf, member, case, route = allf[once], member[once], case[once], route[once]
 
-    # precedence between routes
+    # precedence between routes: the rows are in route order, so a member's (or a member and
+    # case's) first row is from its best route
     if precedence_by == "member":
-        best_route = allf.groupby(["model", "global_id"])["_route"].transform("min")
-        displaced = allf["_route"] != best_route
+        best = np.full(len(pairs), len(ROUTES), dtype=np.int64)
+        np.minimum.at(best, member, route)
+        displaced = route != best[member]
     else:
-        best_route = allf.groupby(keys)["_route"].transform("min")
-        displaced = allf["_route"] != best_route
+        displaced = pd.Series(case).duplicated(keep="first").to_numpy()
     kept = allf[~displaced]
     overridden = _overridden(allf[displaced], kept, precedence_by)
 
-    forces = kept.sort_values(["model", "global_id", "_route", "_order"], kind="stable")
+    kept_member = member[~displaced]
+    forces = kept.iloc[np.lexsort((kept["_order"].to_numpy(dtype=np.int64), route[~displaced], kept_member))]
     used = forces["_route"].value_counts()
     used_by_route = {ROUTES[int(r)]: int(n) for r, n in used.items()}
     forces = forces[list(FORCE_COLUMNS)].reset_index(drop=True)
     forces["axial_force"] = forces["axial_force"].astype(float)
 
-    have = forces[["model", "global_id"]].drop_duplicates()
-    miss = ids[["model", "global_id"]].drop_duplicates().merge(have, how="left", indicator=True)
-    missing = sorted((MissingForce(m, g) for m, g in   # by GlobalId: the same order in whatever parts
-                      miss.loc[miss["_merge"] == "left_only", ["model", "global_id"]].itertuples(index=False)),
-                     key=lambda x: (str(x.model), str(x.global_id)))
+    have = np.bincount(kept_member, minlength=len(pairs)) > 0
+    missing = [MissingForce(*pairs[i]) for i in np.flatnonzero(~have).tolist()]   # by GlobalId, as sorted
 
     report = ForceReport(unmatched=tuple(unmatched), duplicates=tuple(duplicates), ambiguous=tuple(ambiguous),
                          missing=tuple(missing), overridden=tuple(overridden),
