@@ -62,7 +62,8 @@ def member_columns() -> list[str]:
 #: the forces table: one row per member × load case, tension positive, newtons
 FORCE_COLUMNS: tuple[str, ...] = ("model", "global_id", "load_case", "axial_force", "source")
 
-#: the results table: one row per member × check × load case
+#: the results table: one row per member × check × load case; ``missing`` holds the inputs an
+#: unchecked row lacks (a list of texts; an empty tuple where it lacks none)
 RESULT_COLUMNS: tuple[str, ...] = (
     "model", "global_id", "ifc_class", "name", "tag", "check", "load_case", "status",
     "demand", "capacity", "unit", "ratio", "missing", "message", "demand_source", "capacity_source",
@@ -79,3 +80,13 @@ def empty_forces() -> pd.DataFrame:
 
 #: result statuses, worst first: a member's status is the worst of its results
 STATUS_RANK: dict[str, int] = {"fail": 0, "unchecked": 1, "pass": 2}
+
+
+def frame_of(columns: dict[str, pd.Series]) -> pd.DataFrame:
+    """A DataFrame of equally long Series (index 0..n-1), each kept as its own block.
+
+    ``pd.DataFrame(dict)`` consolidates the columns of one dtype into a 2-D block: a copy of
+    every object column, which for a large results table costs more than making the columns."""
+    if not columns:
+        return pd.DataFrame()
+    return pd.concat(list(columns.values()), axis=1, keys=list(columns))

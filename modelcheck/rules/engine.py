@@ -27,7 +27,7 @@ from modelcheck.errors import RuleSetError
 from modelcheck.rules.expr import Cond, Expression, ExpressionError, Text, Value, parse_expression
 from modelcheck.rules.names import MEMBER_QUANTITIES, TEXT_NAMES
 from modelcheck.rules.ruleset import Check, RuleSet, Scope
-from modelcheck.table import RESULT_COLUMNS
+from modelcheck.table import RESULT_COLUMNS, frame_of
 from modelcheck.threads import thread_tensile_area
 from modelcheck.units import Q_, ureg
 
@@ -167,12 +167,12 @@ def _blank_missing(values: Any) -> np.ndarray:
     return np.where(pd.isna(arr), "", arr).astype(object)
 
 
-def _fresh_lists(n: int) -> np.ndarray:
-    """An object array of n distinct empty lists."""
-    return _NEW_LIST(np.empty(n, dtype=object))
-
-
-_NEW_LIST = np.frompyfunc(lambda _: [], 1, 1)
+def _nothing_missing(n: int) -> np.ndarray:
+    """An object array of n empty tuples (one shared object: nothing reads them to change them,
+    and a list per row of a large results table costs a tenth of a second)."""
+    out = np.empty(n, dtype=object)
+    out.fill(())
+    return out
 
 
 def _broadcast(x: Any, n: int) -> np.ndarray:
@@ -356,7 +356,7 @@ def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
     k = len(rows)
     unchecked_k = unchecked[rows]
     message = np.full(k, "", dtype=object)
-    missing = _fresh_lists(k)
+    missing = _nothing_missing(k)
     u_pos = np.flatnonzero(unchecked_k)
     if len(u_pos):
         u_rows = rows[u_pos]
@@ -469,7 +469,7 @@ def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
             columns[c] = pd.Series(values, dtype=object)
         else:
             columns[c] = pd.Series(values, dtype=float)
-    return pd.DataFrame(columns)
+    return frame_of(columns)
 
 
 def evaluate_expression(ruleset: RuleSet, expression: str | Expression, members: pd.DataFrame,
