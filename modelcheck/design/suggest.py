@@ -155,6 +155,8 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
     group_keys, notes = _groups(sub, series)
 
     # the member's own forces, and the results it could not check itself (allowed to stay unchecked)
+    if forces is not None and len(forces):   # the failing members' rows only (a large table: most are not)
+        forces = forces[forces["global_id"].isin(sub["global_id"])]
     fr = _force_rows(sub, forces)
     fdf = pd.DataFrame({"member": fr["member"], "P": fr["P"], "load_case": fr["load_case"], "rank": fr["rank"]})
     fdf = fdf[np.isfinite(fdf["P"])].sort_values(["member", "rank"], kind="stable")
@@ -255,12 +257,12 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
         if k is not None and i not in chosen and notes[i] is None:
             notes[i] = "no suggestion: no size of the same family passes every check"
     # onto the failing rows
-    row_member = pd.Index(sub_keys).get_indexer(member_key(out["model"], out["global_id"]))
+    rows = np.flatnonzero((out["status"] == "fail").to_numpy())
+    row_member = pd.Index(sub_keys).get_indexer(member_key(out["model"].to_numpy()[rows],
+                                                           out["global_id"].to_numpy()[rows]))
     sugg = np.full(len(out), None, dtype=object)
     note_col = out["suggestion_note"].to_numpy(dtype=object).copy()
-    is_fail = (out["status"] == "fail").to_numpy()
-    for r in np.flatnonzero(is_fail & (row_member >= 0)).tolist():
-        m = int(row_member[r])
+    for r, m in zip(rows[row_member >= 0].tolist(), row_member[row_member >= 0].tolist(), strict=True):
         if m in chosen:
             sugg[r] = chosen[m]
         else:
