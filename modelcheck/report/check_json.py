@@ -211,14 +211,15 @@ def _encode_chunk(res: pd.DataFrame) -> bytes:
     messages = col("message")
     message = _encode_all([_escape(m) if type(m) is str else _text(str(m or "")) for m in messages])
     missing = np.full(n, b',"missing":[],"message":', dtype=object)
-    for i, m in enumerate(col("missing")):
-        if m:
-            missing[i] = b',"missing":' + orjson.dumps(list(m)) + b',"message":'
+    lists = col("missing")
+    for i in np.flatnonzero(np.fromiter(map(bool, lists), dtype=bool, count=n)).tolist():
+        missing[i] = b',"missing":' + orjson.dumps(list(lists[i])) + b',"message":'
     end = np.full(n, b',"suggestion":null}' + _ROW_SEP, dtype=object)   # every row has the key
     if "suggestion" in res.columns:
-        for i, x in enumerate(col("suggestion")):
-            if isinstance(x, dict):
-                end[i] = b',"suggestion":' + orjson.dumps(x) + b"}" + _ROW_SEP
+        sugg = res["suggestion"].to_numpy(dtype=object)
+        for i in np.flatnonzero(pd.notna(sugg)).tolist():   # a dict on a few failing rows, else None
+            if isinstance(sugg[i], dict):
+                end[i] = b',"suggestion":' + orjson.dumps(sugg[i]) + b"}" + _ROW_SEP
     pieces = [prefix, mid, *quantity("demand", "demand_source", ',"capacity":'),
               *quantity("capacity", "capacity_source", ',"ratio":'), _number_texts(round_sig6(col("ratio"))),
               missing, message, end]
