@@ -42,7 +42,7 @@ from modelcheck.ifc.index import (
     raise_if_parse_error,
 )
 from modelcheck.ifc.profiles import ProfileSection, UnsupportedProfile, section_of
-from modelcheck.table import member_columns
+from modelcheck.table import frame_of, member_columns
 from modelcheck.units import MissingUnit
 
 #: classes that are always axial-member candidates (subtypes included)
@@ -858,5 +858,5 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
     cols["net_area"] = np.array([x[0] for x in nets], dtype=float)
     cols["net_area_source"] = [x[1] for x in nets]
     # text columns stay object dtype with None for missing (pandas 3 would infer 'str' with NaN)
-    data = {k: (v if isinstance(v, np.ndarray) else pd.Series(v, dtype=object)) for k, v in cols.items()}
-    return pd.DataFrame(data, columns=member_columns())
+    return frame_of({k: pd.Series(cols[k], dtype=None if isinstance(cols[k], np.ndarray) else object)
+                     for k in member_columns()})

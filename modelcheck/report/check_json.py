@@ -224,7 +224,7 @@ def _encode_chunk(res: pd.DataFrame) -> bytes:
               *quantity("capacity", "capacity_source", ',"ratio":'), _number_texts(round_sig6(col("ratio"))),
               missing, message, end]
     # a row's pieces joined, then the rows: twice as fast as one join over all the pieces
-    return b"".join([b"".join(row) for row in zip(*(p.tolist() for p in pieces))])[:-len(_ROW_SEP)]
+    return b"".join([b"".join(row) for row in zip(*(p.tolist() for p in pieces), strict=True)])[:-len(_ROW_SEP)]
 
 
 class EncodedRows:
