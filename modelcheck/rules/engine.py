@@ -350,7 +350,7 @@ def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
                          np.where(demand > 0, np.inf, np.nan))
         passed = ~unchecked & (demand - capacity <= PASS_TOLERANCE * np.abs(capacity))
     ratio[unchecked] = np.nan
-    status = np.where(unchecked, "unchecked", np.where(passed, "pass", "fail")).astype(object)
+    status = np.where(unchecked, UNCHECKED, np.where(passed, PASS, FAIL)).astype(np.int8)
 
     rows = np.flatnonzero(keep)
     k = len(rows)
@@ -387,16 +387,63 @@ def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
         else:
             message[c_pos] = check.title
     return {
-        "member": member[rows], "check_order": np.full(k, order), "rank": rank[rows],
-        "check": np.full(k, check.id, dtype=object), "load_case": case[rows],
-        "status": status[rows], "demand": demand[rows], "capacity": capacity[rows],
-        "unit": np.full(k, check.unit, dtype=object), "ratio": ratio[rows],
+        "member": member[rows], "check_order": np.full(k, order), "rank": rank[rows], "load_case": case[rows],
+        "status": status[rows], "demand": demand[rows], "capacity": capacity[rows], "ratio": ratio[rows],
         "missing": missing, "message": message,
-        "demand_source": np.full(k, check.demand_source, dtype=object),
-        "capacity_source": np.full(k, check.capacity_source, dtype=object),
-        "clause": np.full(k, check.clause, dtype=object),
-        "title": np.full(k, check.title, dtype=object),
     }
+
+
+#: status codes of CheckRows (the order of table.STATUS_RANK: the worst first)
+FAIL, UNCHECKED, PASS = 0, 1, 2
+STATUS_NAMES = np.array(["fail", "unchecked", "pass"], dtype=object)
+
+#: results columns that are the same for every row of a check: the Check attribute of each
+_PER_CHECK = {"check": "id", "unit": "unit", "demand_source": "demand_source",
+              "capacity_source": "capacity_source", "clause": "clause", "title": "title"}
+_IDENTITY = ("model", "global_id", "ifc_class", "name", "tag")
+
+
+class CheckRows:
+    """Results as arrays, one item per result in the report's order; ``frame()`` is the results
+    table. A check's own values (id, unit, sources) are kept once per check, the member's once per
+    member: a large table is made only when asked for."""
+
+    def __init__(self, data: MemberData, checks: tuple[Check, ...], *, member: np.ndarray,
+                 check_order: np.ndarray, rank: np.ndarray, load_case: np.ndarray, status: np.ndarray,
+                 demand: np.ndarray, capacity: np.ndarray, ratio: np.ndarray, missing: np.ndarray,
+                 message: np.ndarray) -> None:
+        self.data, self.checks = data, checks
+        self.member, self.check_order, self.rank, self.load_case = member, check_order, rank, load_case
+        self.status = status   # codes: FAIL, UNCHECKED, PASS
+        self.demand, self.capacity, self.ratio = demand, capacity, ratio
+        self.missing, self.message = missing, message
+
+    def __len__(self) -> int:
+        return len(self.member)
+
+    def per_check(self, column: str) -> np.ndarray:
+        """A per-check column's value for each check (by check order)."""
+        out = np.empty(len(self.checks), dtype=object)
+        out[:] = [getattr(c, _PER_CHECK[column]) for c in self.checks]
+        return out
+
+    def column(self, column: str, rows: Any = slice(None)) -> np.ndarray:
+        """One column of the results table (``rows`` of it) as an array."""
+        if column in _IDENTITY:
+            return self.data.text(column)[self.member[rows]]
+        if column in _PER_CHECK:
+            return self.per_check(column)[self.check_order[rows]]
+        if column == "status":
+            return STATUS_NAMES[self.status[rows]]
+        return getattr(self, column)[rows]
+
+    def frame(self, rows: Any = slice(None)) -> pd.DataFrame:
+        """The results table (of ``rows`` only, e.g. an index array), columns :data:`COLUMNS`."""
+        columns: dict[str, Any] = {}
+        for c in COLUMNS:
+            columns[c] = pd.Series(self.column(c, rows),
+                                   dtype=object if c in _TEXT_RESULT_COLUMNS or c == "missing" else float)
+        return frame_of(columns)
 
 
 def empty_results() -> pd.DataFrame:
@@ -417,6 +464,14 @@ def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
     ``messages=False`` leaves the message of checked results empty (sizing and suggestions
     evaluate many candidates whose messages nobody reads).
     """
+    rows = check_rows(ruleset, members, forces, checks, messages=messages)
+    return empty_results() if rows is None else rows.frame()
+
+
+def check_rows(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | None = None,
+               checks: list[str] | None = None, *, messages: bool = True) -> CheckRows | None:
+    """The results of ``run_checks`` as arrays in the report's order (None when there are none):
+    what the results table is made of, and what the JSON report encodes without making it."""
     members = members.reset_index(drop=True)
     data = MemberData(members)
     selected_checks = [c for c in ruleset.checks if checks is None or c.id in checks]
@@ -425,7 +480,7 @@ def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
         if unknown_ids:
             raise RuleSetError(f"no check {unknown_ids[0]!r} in rule set {ruleset.name}", path=ruleset.path)
     if data.n == 0 or not selected_checks:
-        return empty_results()
+        return None
     match_cache: dict[Any, np.ndarray] = {}   # selectors share columns and patterns
     base_mask = ruleset.select.mask(members, match_cache)
     need_force = any(c.needs_force for c in selected_checks)
@@ -455,21 +510,13 @@ def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
         if part is not None and len(part["member"]):
             parts.append(part)
     if not parts:
-        return empty_results()
+        return None
     cat = {k: np.concatenate([p[k] for p in parts]) for k in parts[0]}
     member = cat["member"]
     model_code = pd.factorize(pd.Series(data.text("model"), dtype=object).fillna(""), sort=True)[0]
     gid_code = pd.factorize(pd.Series(data.text("global_id"), dtype=object).fillna(""), sort=True)[0]
     order = np.lexsort((cat["rank"], cat["check_order"], gid_code[member], model_code[member]))
-    member = member[order]
-    columns: dict[str, Any] = {}
-    for c in COLUMNS:
-        values = data.text(c)[member] if c in ("model", "global_id", "ifc_class", "name", "tag") else cat[c][order]
-        if c in _TEXT_RESULT_COLUMNS or c == "missing":
-            columns[c] = pd.Series(values, dtype=object)
-        else:
-            columns[c] = pd.Series(values, dtype=float)
-    return frame_of(columns)
+    return CheckRows(data, tuple(ruleset.checks), **{k: v[order] for k, v in cat.items()})
 
 
 def evaluate_expression(ruleset: RuleSet, expression: str | Expression, members: pd.DataFrame,
