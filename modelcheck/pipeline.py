@@ -311,7 +311,6 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
     from modelcheck.design.suggest import suggest
     from modelcheck.report.check_json import ROW_SEPARATOR, encode_results
     from modelcheck.rules.engine import run_checks
-    from modelcheck.table import STATUS_RANK
 
     def evaluate(m: pd.DataFrame, f: pd.DataFrame) -> pd.DataFrame:
         res = run_checks(ruleset, m, f)
@@ -324,8 +323,13 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
     kept: list[pd.DataFrame] = []
     encoded: list[bytes] = []
     for m, f in _runs_of_members(members, forces):
-        res = evaluate(m, f)
-        text = encode_results(res)
+        if slim:   # the statuses alone come back: the rows are encoded without a results table
+            status, text = _slim_rows(ruleset, m, f)
+            kept.append(pd.DataFrame({"status": status}))   # a categorical: small to send back, quick to count
+        else:
+            res = evaluate(m, f)
+            text = encode_results(res)
+            kept.append(res)
         if text:
             if sink is None:
                 encoded.append(text)
@@ -333,11 +337,28 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
                 if sink.tell():
                     sink.write(ROW_SEPARATOR)
                 sink.write(text)
-        # slim: the statuses alone, as a categorical (small to send back, quick to count)
-        kept.append(pd.DataFrame({"status": pd.Categorical(res["status"].to_numpy(), categories=list(STATUS_RANK))})
-                    if slim else res)
     results = pd.concat(kept, ignore_index=True) if len(kept) > 1 else kept[0]
     return results, (ROW_SEPARATOR.join(encoded) if sink is None else None)
+
+
+def _slim_rows(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame) -> tuple[pd.Categorical, bytes]:
+    """(statuses, JSON rows) of ``members``: what a JSON-only report needs. The suggestions are
+    worked out on a results table of the failing members' rows only."""
+    from modelcheck.design.suggest import suggest
+    from modelcheck.report.check_json import encode_check_rows
+    from modelcheck.rules.engine import FAIL, check_rows
+    from modelcheck.table import STATUS_RANK
+
+    rows = check_rows(ruleset, members, forces)
+    if rows is None:
+        return pd.Categorical([], categories=list(STATUS_RANK)), b""
+    suggestions: dict[int, Any] = {}
+    failing = rows.status == FAIL
+    if failing.any():
+        sel = np.flatnonzero(np.isin(rows.member, rows.member[failing]))   # every row of a failing member
+        found = suggest(ruleset, members, forces, rows.frame(sel))["suggestion"].to_numpy(dtype=object)
+        suggestions = {int(sel[j]): found[j] for j in np.flatnonzero(pd.notna(found)).tolist()}
+    return pd.Categorical.from_codes(rows.status, categories=list(STATUS_RANK)), encode_check_rows(rows, suggestions)
 
 
 def _runs_of_members(members: pd.DataFrame, forces: pd.DataFrame) -> Any:

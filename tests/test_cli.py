@@ -274,3 +274,26 @@ def test_results_encoded_in_chunks_are_the_rows_encoded_at_once():
     c = check_model(str(SAMPLES / "nettlebrook-hall.ifc"), "steel-asd-us",
                     ForceOptions(property=("MC_MemberForces", "AxialForce")))
     assert encode_results(c.results, chunk=7) == encode_rows(result_dicts(c.results))
+
+
+def test_json_only_rows_are_the_rows_of_the_full_results_table(tmp_path: Path):
+    """A JSON-only check encodes its rows where the work runs (here: the batch workers), from the
+    engine's arrays, without the results table; beside another format, in one process, the rows
+    come from the table. Both must be the same bytes."""
+    loads = str(SAMPLES / "*-forces.csv")
+    only = tmp_path / "only.json"
+    run("check", str(SAMPLES), "--loads", loads, "--format", "json", "--output", str(only), "--jobs", "2")
+    both = tmp_path / "both"
+    run("check", str(SAMPLES), "--loads", loads, "--format", "json,csv", "--output", str(both), "--jobs", "1")
+
+    def rows(path: Path) -> list[str]:
+        text = path.read_text(encoding="utf-8")
+        return text[text.index('"results": ['):text.index('"unmatched_force_rows"')].splitlines()
+
+    a, b = rows(only), rows(both / "modelcheck-report.json")
+    assert a == b
+    parsed = json.loads(only.read_text(encoding="utf-8"))["results"]
+    # the comparison covers what the two encoders build differently
+    assert {r["status"] for r in parsed} == {"pass", "fail", "unchecked"}
+    assert any(r["suggestion"] for r in parsed) and any(r["missing"] for r in parsed)
+    assert any(r["load_case"] is None for r in parsed) or len({r["load_case"] for r in parsed}) > 1

@@ -150,8 +150,6 @@ def _objects(items: list[Any]) -> np.ndarray:
 
 def _encode_chunk(res: pd.DataFrame) -> bytes:
     """One chunk of rows, assembled column by column (object arrays of bytes) and joined once."""
-    import orjson
-
     n = len(res)
     if not n:
         return b""
@@ -167,16 +165,8 @@ def _encode_chunk(res: pd.DataFrame) -> bytes:
     for values in (gids, models, names, tags, classes):
         arr = _objects(values)
         starts[1:] |= arr[1:] != arr[:-1]   # NaN != NaN: a new run, which costs a little, never a wrong row
-    first = np.flatnonzero(starts)
-    codes = np.cumsum(starts) - 1
-    at = first.tolist()
-
-    def texts(values: list[Any]) -> np.ndarray:   # JSON texts of the first row of each run
-        return _objects([_escape(v) if type(v) is str else _text(_none(v)) for v in (values[i] for i in at)])
-
-    prefix = _encode_all(('{"model":' + texts(models) + ',"global_id":' + texts(gids) + ',"ifc_class":'
-                          + texts(classes) + ',"name":' + texts(names) + ',"tag":' + texts(tags)
-                          + ',"check":').tolist())[codes]
+    at = np.flatnonzero(starts).tolist()
+    prefix = _identity_texts(*([v[i] for i in at] for v in (models, gids, classes, names, tags)))[np.cumsum(starts) - 1]
 
     def encoded(columns: list[str], make: Any) -> np.ndarray:
         """make(key) for each row's values of ``columns``, computed once per distinct key."""
@@ -185,46 +175,118 @@ def _encode_chunk(res: pd.DataFrame) -> bytes:
         for values in lists:   # one integer per combination of the columns' values (few of each)
             c, u = pd.factorize(pd.Series(values, dtype=object), use_na_sentinel=False)
             combo = combo * (len(u) + 1) + c
-        kc, ku = pd.factorize(combo)
-        first_row = np.zeros(len(ku), dtype=np.int64)
-        first_row[kc[::-1]] = np.arange(n)[::-1]
-        return _encode_all([make(tuple(v[i] for v in lists)) for i in first_row.tolist()])[kc]
+        return _once_per_key(combo, lambda i: make(tuple(v[i] for v in lists)))
 
-    mid = encoded(["check", "load_case", "status"],
-                  lambda k: f'{_text(k[0])},"load_case":{_text(_none(k[1]))},"status":{_text(k[2])},"demand":')
+    mid = encoded(["check", "load_case", "status"], lambda k: _mid_text(k[0], k[1], k[2]))
+    tails = [encoded(["unit", source], lambda k, after=after: _tail_text(k[0], k[1], after))
+             for source, after in (("demand_source", _AFTER_DEMAND), ("capacity_source", _AFTER_CAPACITY))]
+    sugg = res["suggestion"].to_numpy(dtype=object) if "suggestion" in res.columns else None
+    return _join_rows(prefix, mid, col("demand"), tails[0], col("capacity"), tails[1], col("ratio"),
+                      col("missing"), col("message"), sugg)
 
-    def quantity(values: str, sources: str, after: str) -> list[np.ndarray]:
+
+_AFTER_DEMAND = ',"capacity":'
+_AFTER_CAPACITY = ',"ratio":'
+
+
+def _identity_texts(models: list[Any], gids: list[Any], classes: list[Any], names: list[Any],
+                    tags: list[Any]) -> np.ndarray:
+    """The start of a row up to its check, for members given by their five identity values."""
+    def texts(values: list[Any]) -> np.ndarray:
+        return _objects([_escape(v) if type(v) is str else _text(_none(v)) for v in values])
+
+    return _encode_all(('{"model":' + texts(models) + ',"global_id":' + texts(gids) + ',"ifc_class":'
+                        + texts(classes) + ',"name":' + texts(names) + ',"tag":' + texts(tags)
+                        + ',"check":').tolist())
+
+
+def _mid_text(check: Any, load_case: Any, status: Any) -> str:
+    return f'{_text(check)},"load_case":{_text(_none(load_case))},"status":{_text(status)},"demand":'
+
+
+def _tail_text(unit: Any, source: Any, after: str) -> str:
+    """The rest of a known quantity's object after its value, then ``after``."""
+    return f',"unit":{_text(str(unit or ""))},"source":{_text(str(source or ""))}}}' + after
+
+
+def _once_per_key(keys: np.ndarray, make: Any) -> np.ndarray:
+    """Encoded ``make(i)`` for each row, where ``i`` is the first row with that row's key: each
+    text is made once per distinct key (a few per check)."""
+    codes, uniques = pd.factorize(keys)
+    first_row = np.zeros(len(uniques), dtype=np.int64)
+    first_row[codes[::-1]] = np.arange(len(keys))[::-1]
+    return _encode_all([make(i) for i in first_row.tolist()])[codes]
+
+
+def _join_rows(prefix: np.ndarray, mid: np.ndarray, demand: Any, demand_tail: np.ndarray, capacity: Any,
+               capacity_tail: np.ndarray, ratio: Any, missing: Any, message: Any, suggestion: Any) -> bytes:
+    """Rows from their pieces: the identity and check parts and the quantities' tails as encoded
+    per row, the rest as values (numbers, missing lists, messages, suggestion dicts or None)."""
+    import orjson
+
+    n = len(prefix)
+
+    def quantity(values: Any, tail: np.ndarray, after: str) -> list[np.ndarray]:
         """Three pieces per row: '{"value":', the number and the rest of the object followed by
         ``after``; '', 'null' and ``after`` where the value is null. The pieces go into the row
         as they are: no text is made per row that the final join would only copy again."""
-        rounded = round_sig6(col(values))
+        rounded = round_sig6(values)
         known = ~np.isnan(rounded)
         head = np.full(n, b'{"value":', dtype=object)
         head[~known] = b""
         number = np.full(n, b"null", dtype=object)
         number[known] = _number_texts(rounded[known])
-        tail = encoded(["unit", sources],
-                       lambda k: f',"unit":{_text(str(k[0] or ""))},"source":{_text(str(k[1] or ""))}}}' + after)
+        tail = tail.copy()
         tail[~known] = after.encode()
         return [head, number, tail]
 
-    messages = col("message")
-    message = _encode_all([_escape(m) if type(m) is str else _text(str(m or "")) for m in messages])
-    missing = np.full(n, b',"missing":[],"message":', dtype=object)
-    lists = col("missing")
+    messages = message.tolist() if isinstance(message, np.ndarray) else message
+    encoded_messages = _encode_all([_escape(m) if type(m) is str else _text(str(m or "")) for m in messages])
+    lists = missing.tolist() if isinstance(missing, np.ndarray) else missing
+    missing_piece = np.full(n, b',"missing":[],"message":', dtype=object)
     for i in np.flatnonzero(np.fromiter(map(bool, lists), dtype=bool, count=n)).tolist():
-        missing[i] = b',"missing":' + orjson.dumps(list(lists[i])) + b',"message":'
+        missing_piece[i] = b',"missing":' + orjson.dumps(list(lists[i])) + b',"message":'
     end = np.full(n, b',"suggestion":null}' + _ROW_SEP, dtype=object)   # every row has the key
-    if "suggestion" in res.columns:
-        sugg = res["suggestion"].to_numpy(dtype=object)
-        for i in np.flatnonzero(pd.notna(sugg)).tolist():   # a dict on a few failing rows, else None
-            if isinstance(sugg[i], dict):
-                end[i] = b',"suggestion":' + orjson.dumps(sugg[i]) + b"}" + _ROW_SEP
-    pieces = [prefix, mid, *quantity("demand", "demand_source", ',"capacity":'),
-              *quantity("capacity", "capacity_source", ',"ratio":'), _number_texts(round_sig6(col("ratio"))),
-              missing, message, end]
+    if suggestion is not None:
+        for i in np.flatnonzero(pd.notna(suggestion)).tolist():   # a dict on a few failing rows, else None
+            if isinstance(suggestion[i], dict):
+                end[i] = b',"suggestion":' + orjson.dumps(suggestion[i]) + b"}" + _ROW_SEP
+    pieces = [prefix, mid, *quantity(demand, demand_tail, _AFTER_DEMAND),
+              *quantity(capacity, capacity_tail, _AFTER_CAPACITY), _number_texts(round_sig6(ratio)),
+              missing_piece, encoded_messages, end]
     # a row's pieces joined, then the rows: twice as fast as one join over all the pieces
     return b"".join([b"".join(row) for row in zip(*(p.tolist() for p in pieces), strict=True)])[:-len(_ROW_SEP)]
+
+
+def encode_check_rows(rows: Any, suggestions: dict[int, dict[str, Any]] | None = None) -> bytes:
+    """The JSON rows of ``rows`` (``modelcheck.rules.engine.CheckRows``), with ``suggestions``
+    (row index -> suggestion) on their rows: the same bytes as ``encode_results`` on the results
+    table with those suggestions, without making that table (tested)."""
+    n = len(rows)
+    if not n:
+        return b""
+    member = rows.member
+    starts = np.ones(n, dtype=bool)
+    starts[1:] = member[1:] != member[:-1]   # a member's rows are consecutive
+    firsts = member[starts]
+    text = rows.data.text
+    prefix = _identity_texts(*(text(c)[firsts].tolist() for c in ("model", "global_id", "ifc_class", "name",
+                                                                   "tag")))[np.cumsum(starts) - 1]
+    ids, units = rows.per_check("check"), rows.per_check("unit")
+    statuses = rows.column("status")   # few distinct: made per row only as references
+    case_key = rows.rank + 1           # -1: no load case
+    mid = _once_per_key((rows.check_order * (int(case_key.max()) + 1) + case_key) * 3 + rows.status,
+                        lambda i: _mid_text(ids[rows.check_order[i]], rows.load_case[i], statuses[i]))
+    tails = [_encode_all([_tail_text(u, src, after) for u, src in zip(units, rows.per_check(source), strict=True)])
+             [rows.check_order] for source, after in (("demand_source", _AFTER_DEMAND),
+                                                       ("capacity_source", _AFTER_CAPACITY))]
+    sugg = None
+    if suggestions:
+        sugg = np.full(n, None, dtype=object)
+        for i, x in suggestions.items():
+            sugg[i] = x
+    return _join_rows(prefix, mid, rows.demand, tails[0], rows.capacity, tails[1], rows.ratio, rows.missing,
+                      rows.message, sugg)
 
 
 class EncodedRows:

@@ -27,7 +27,7 @@ from modelcheck.errors import RuleSetError
 from modelcheck.rules.expr import Cond, Expression, ExpressionError, Text, Value, parse_expression
 from modelcheck.rules.names import MEMBER_QUANTITIES, TEXT_NAMES
 from modelcheck.rules.ruleset import Check, RuleSet, Scope
-from modelcheck.table import RESULT_COLUMNS, frame_of
+from modelcheck.table import RESULT_COLUMNS, STATUS_RANK, frame_of
 from modelcheck.threads import thread_tensile_area
 from modelcheck.units import Q_, ureg
 
@@ -393,9 +393,9 @@ def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
     }
 
 
-#: status codes of CheckRows (the order of table.STATUS_RANK: the worst first)
-FAIL, UNCHECKED, PASS = 0, 1, 2
-STATUS_NAMES = np.array(["fail", "unchecked", "pass"], dtype=object)
+#: status codes of CheckRows: the rank of table.STATUS_RANK (the worst first)
+FAIL, UNCHECKED, PASS = (STATUS_RANK[s] for s in ("fail", "unchecked", "pass"))
+STATUS_NAMES = np.array(sorted(STATUS_RANK, key=STATUS_RANK.__getitem__), dtype=object)
 
 #: results columns that are the same for every row of a check: the Check attribute of each
 _PER_CHECK = {"check": "id", "unit": "unit", "demand_source": "demand_source",
