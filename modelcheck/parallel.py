@@ -70,7 +70,8 @@ class _Shared:
     log_start: int                 # parse-log entries before the fork
     parent_pid: int
     offsets: dict[int, int]        # file offsets of the parser's descriptors at the fork
-    tables: tuple[list[pd.DataFrame], ...]   # each load table's rows for each part
+    tables: tuple[pd.DataFrame, ...]   # the load tables, whole: each part takes its rows
+    part_of: dict[str, int]        # GlobalId -> its part
 
 
 _SHARED: _Shared | None = None
@@ -90,12 +91,12 @@ class _PartResult:
     member_count: int
 
 
-def _table_parts(table: pd.DataFrame, part_of: dict[str, int], parts: int) -> list[pd.DataFrame]:
-    """A load table's rows for each part: a GlobalId row goes to the part holding that member (to
-    none when the model has no such member: unmatched here), a tag row to every part."""
+def _table_part(table: pd.DataFrame, part_of: dict[str, int], k: int) -> pd.DataFrame:
+    """A load table's rows for part ``k``: the GlobalId rows of its members (a row of no member of
+    the model goes to none: unmatched here) and every tag row. Cut in each part, at the same time."""
     where = table["key"].map(part_of).where(table["key_kind"] == "global_id", -2).fillna(-1)
     where = where.to_numpy(dtype=np.int64)
-    return [table[(where == k) | (where == -2)] for k in range(parts)]
+    return table[(where == k) | (where == -2)]
 
 
 def _bounds(gids: list[str], parts: int) -> list[tuple[int, int]]:
@@ -172,7 +173,7 @@ def _run_part(k: int) -> _PartResult:
             ana = ana[ana["global_id"].isin(gids)]
         analysis = (ana, [])
     # each load table cut down to the rows this part can match: its GlobalIds, and every tag row
-    opts = replace(st.forces, tables=tuple(t[k] for t in st.tables))
+    opts = replace(st.forces, tables=tuple(_table_part(t, st.part_of, k) for t in st.tables))
     with stage(f"part {k}: read + forces"):
         read_into(data, idx, opts, entities, analysis=analysis, prop_log=log, shared_tags=st.shared_tags)
     new_log = list(idx.parse_log[st.log_start:])
@@ -354,7 +355,8 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
         return CheckedModel(data)
     describe_model(data, idx, validate)
     parts = min(parts, len(entities) // MIN_MEMBERS_PER_PART)
-    order = sorted(range(len(entities)), key=gids.__getitem__)
+    with stage("members in GlobalId order"):
+        order = sorted(range(len(entities)), key=gids.__getitem__)
     sorted_gids = [gids[i] for i in order]
     by_tag: dict[str, list[str]] = {}
     for g, t in zip(gids, tags, strict=True):
@@ -377,15 +379,15 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     bounds = _bounds(sorted_gids, parts)
     runs = [sorted(order[a:b]) for a, b in bounds]
     part_of = {g: k for k, (a, b) in enumerate(bounds) for g in sorted_gids[a:b]}
-    tables = tuple(_table_parts(t, part_of, len(bounds)) for t in forces.tables)
+    tables = tuple(forces.tables)   # read meanwhile by a helper (TablesReadAhead): received here
     _SHARED = _Shared(idx, entities, runs, gids, ruleset_ref,
                       forces, shared_tags, analysis, encode_json, slim, len(idx.parse_log),
-                      os.getpid(), _file_offsets(idx.file_fds), tables)
+                      os.getpid(), _file_offsets(idx.file_fds), tables, part_of)
     try:
         with stage("parts"):
             outs = _run_parts(len(_SHARED.parts))
     finally:
-        lifetime.keep(_SHARED, order, sorted_gids, part_of, by_tag)
+        lifetime.keep(_SHARED, order, sorted_gids, by_tag)
         _SHARED = None
     with stage("merge parts"):
         return _merge(data, idx, outs, analysis_msgs)
