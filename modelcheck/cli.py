@@ -109,8 +109,6 @@ def run() -> None:
     _keep_freed_memory()
     lifetime.ENDS_WITH_EXIT = True
     code = main()
-    if "modelcheck.parallel" in sys.modules:   # temporary files of a run that stopped early
-        sys.modules["modelcheck.parallel"].cleanup()
     try:
         sys.stdout.flush()
         sys.stderr.flush()
@@ -490,7 +488,7 @@ def cmd_check(args: argparse.Namespace) -> int:
         comparison = compare(check_document(run, now=now), baseline)
     if len(files) > 1:
         os.makedirs(args.output, exist_ok=True)
-    from modelcheck.parallel import remove_temp_files
+    from modelcheck.parallel import release_rows
     from modelcheck.timing import stage
 
     try:
@@ -498,7 +496,7 @@ def cmd_check(args: argparse.Namespace) -> int:
             with stage(f"write {fmt}"):
                 _write_format(fmt, run, targets[fmt], inputs, now, comparison, bool(args.strict))
     finally:
-        remove_temp_files(run.json_rows)
+        release_rows(run.json_rows)
     if args.annotate:
         _annotate(run, args.annotate, inputs)
     if "console" in formats:

@@ -72,6 +72,7 @@ class _Shared:
     offsets: dict[int, int]        # file offsets of the parser's descriptors at the fork
     tables: tuple[pd.DataFrame, ...]   # the load tables, whole: each part takes its rows
     part_of: dict[str, int]        # GlobalId -> its part
+    row_files: dict[int, int]      # part -> descriptor of the memory file its JSON rows go to (forked parts)
 
 
 _SHARED: _Shared | None = None
@@ -191,12 +192,10 @@ def _run_part(k: int) -> _PartResult:
             # this process's own rows stay in memory: written once, into the report
             results, rows = evaluate_members(ruleset, data.members, data.forces, encode_json=True, slim=st.slim)
         elif st.encode_json:
-            # a forked part's rows go to a temporary file as they are encoded: never held whole in
-            # memory, never pickled back; the report streams them in
-            import tempfile
-
-            fd, rows = tempfile.mkstemp(prefix="modelcheck-rows-", suffix=".json")
-            with os.fdopen(fd, "wb") as sink:
+            # a forked part's rows go to a memory file made before the fork, as they are encoded:
+            # never pickled back; the report streams them in from the parent's descriptor
+            rows = st.row_files[k]
+            with os.fdopen(os.dup(rows), "wb") as sink:
                 results, _ = evaluate_members(ruleset, data.members, data.forces, encode_json=True, slim=st.slim,
                                               sink=sink)
         else:
@@ -302,30 +301,25 @@ class TablesReadAhead:
         return bool(self._get())
 
 
-_AT_EXIT: list[str] = []
+def _row_file(k: int) -> int:
+    """A descriptor of a new, empty file for the JSON rows of part ``k``: in memory where the
+    system has memory files (nothing goes to disk, and nothing is left when the command ends),
+    else an unnamed temporary file."""
+    if hasattr(os, "memfd_create"):
+        return os.memfd_create(f"modelcheck-rows-{k}")
+    import tempfile
+
+    with tempfile.TemporaryFile(prefix="modelcheck-rows-") as fh:
+        return os.dup(fh.fileno())
 
 
-def _remove_at_exit(paths: list[str]) -> None:
-    """Whatever stops the command before its report is written, these files go at exit."""
-    import atexit
-
-    if paths and not _AT_EXIT:
-        atexit.register(lambda: remove_temp_files(list(_AT_EXIT)))
-    _AT_EXIT.extend(paths)
-
-
-def cleanup() -> None:
-    """Remove the temporary files still left (the command ends with os._exit: no atexit)."""
-    remove_temp_files(list(_AT_EXIT))
-    _AT_EXIT.clear()
-
-
-def remove_temp_files(chunks: list[bytes | str] | None) -> None:
-    """Delete the temporary files among encoded row chunks (once the report is written)."""
+def release_rows(chunks: list[bytes | int] | None) -> None:
+    """Close the row files among encoded row chunks (once the report is written): their memory
+    is given back."""
     for chunk in chunks or ():
-        if isinstance(chunk, str):
+        if isinstance(chunk, int):
             try:
-                os.unlink(chunk)
+                os.close(chunk)
             except OSError:
                 pass
 
@@ -380,17 +374,24 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     runs = [sorted(order[a:b]) for a, b in bounds]
     part_of = {g: k for k, (a, b) in enumerate(bounds) for g in sorted_gids[a:b]}
     tables = tuple(forces.tables)   # read meanwhile by a helper (TablesReadAhead): received here
+    row_files = {k: _row_file(k) for k in range(1, len(bounds))} if encode_json else {}
     _SHARED = _Shared(idx, entities, runs, gids, ruleset_ref,
                       forces, shared_tags, analysis, encode_json, slim, len(idx.parse_log),
-                      os.getpid(), _file_offsets(idx.file_fds), tables, part_of)
+                      os.getpid(), _file_offsets(idx.file_fds), tables, part_of, row_files)
     try:
         with stage("parts"):
             outs = _run_parts(len(_SHARED.parts))
+    except BaseException:
+        release_rows(list(row_files.values()))
+        raise
     finally:
         lifetime.keep(_SHARED, order, sorted_gids, by_tag)
         _SHARED = None
     with stage("merge parts"):
-        return _merge(data, idx, outs, analysis_msgs)
+        checked = _merge(data, idx, outs, analysis_msgs)
+    kept = checked.json_rows or []
+    release_rows([fd for fd in row_files.values() if fd not in kept])   # a part that stopped early
+    return checked
 
 
 def _run_parts(n: int) -> list[_PartResult]:
@@ -433,7 +434,7 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
         idx.parse_log.extend(out.new_log)
     errors = [o.error for o in outs if o.error]
     if errors:
-        remove_temp_files([o.json_rows for o in outs if isinstance(o.json_rows, str)])
+        release_rows([o.json_rows for o in outs if isinstance(o.json_rows, int)])
         data.error = errors[0]
         return CheckedModel(data)
     members = pd.concat([o.members for o in outs], ignore_index=True)
@@ -464,5 +465,4 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
     rows = None
     if all(o.json_rows is not None for o in outs):
         rows = [o.json_rows for o in outs if o.json_rows is not None]
-        _remove_at_exit([r for r in rows if isinstance(r, str)])
     return CheckedModel(data, results, rows)

@@ -254,8 +254,8 @@ class CheckedModel:
 
     data: ModelData
     results: pd.DataFrame | None = None
-    json_rows: bytes | list[bytes | str] | None = None   # the results as JSON rows, encoded where the
-    # work ran: bytes, or consecutive chunks, each bytes or the path of a temporary file holding them
+    json_rows: bytes | list[bytes | int] | None = None   # the results as JSON rows, encoded where the
+    # work ran: bytes, or consecutive chunks, each bytes or the descriptor of a memory file holding them
 
 
 def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: bool = False,
@@ -393,7 +393,7 @@ class CheckRun:
     results: pd.DataFrame
     members: pd.DataFrame            # REPORT_MEMBER_COLUMNS of every readable model
     unmatched_rows: list[dict[str, str]]
-    json_rows: list[bytes | str] | None = None   # consecutive chunks of rows (bytes or temporary files),
+    json_rows: list[bytes | int] | None = None   # consecutive chunks of rows (bytes, or descriptors of files),
     # when encoded in the workers
 
 

@@ -291,49 +291,51 @@ def encode_check_rows(rows: Any, suggestions: dict[int, dict[str, Any]] | None =
 
 class EncodedRows:
     """Result rows already encoded (in the batch workers, or the parts of a model): a list of
-    consecutive chunks, each bytes or the path of a temporary file that holds them; written as
-    they are, a file streamed, never loaded whole."""
+    consecutive chunks, each bytes or the descriptor of a file that holds them (a forked part's
+    memory file); written as they are, a file streamed, never loaded whole."""
 
-    def __init__(self, chunks: list[bytes | str]) -> None:
-        self.chunks = [c for c in chunks if (os.path.getsize(c) if isinstance(c, str) else c)]
+    def __init__(self, chunks: list[bytes | int]) -> None:
+        self.chunks = [c for c in chunks if (os.fstat(c).st_size if isinstance(c, int) else c)]
 
     def __bool__(self) -> bool:
         return bool(self.chunks)
 
     def write(self, fh: Any) -> None:
-        import shutil
-
         for i, chunk in enumerate(self.chunks):
             if i:
                 fh.write(_ROW_SEP)
-            if isinstance(chunk, str):
-                with open(chunk, "rb") as src:
-                    if not _send(src, fh):
-                        shutil.copyfileobj(src, fh, 1 << 22)
+            if isinstance(chunk, int):
+                _send(chunk, fh)
             else:
                 fh.write(chunk)
 
 
-def _send(src: Any, fh: Any) -> bool:
-    """Copy an open file into ``fh`` inside the kernel (os.sendfile); False where that cannot be done."""
+def _send(fd: int, fh: Any) -> None:
+    """Copy the file open as ``fd`` (from its start) into ``fh``: inside the kernel (os.sendfile)
+    where ``fh`` is a file that allows it, else in blocks."""
+    size = os.fstat(fd).st_size
+    sent = 0
     try:
         out = fh.fileno()
     except (AttributeError, OSError, ValueError):   # an in-memory buffer
-        return False
-    fh.flush()
-    size = os.fstat(src.fileno()).st_size
-    sent = 0
-    try:
-        while sent < size:
-            n = os.sendfile(out, src.fileno(), sent, size - sent)
-            if n == 0:
-                break
-            sent += n
-    except OSError:
-        if sent:
-            raise
-        return False
-    return sent == size
+        out = None
+    if out is not None:
+        fh.flush()
+        try:
+            while sent < size:
+                n = os.sendfile(out, fd, sent, size - sent)
+                if n == 0:
+                    break
+                sent += n
+        except OSError:
+            if sent:
+                raise
+    while sent < size:
+        block = os.pread(fd, min(1 << 22, size - sent), sent)
+        if not block:
+            break
+        fh.write(block)
+        sent += len(block)
 
 
 def write_json(doc: dict[str, Any], fh: Any) -> None:
