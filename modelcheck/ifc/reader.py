@@ -816,6 +816,20 @@ def _text_attribute(el: Any, attr: str) -> str | None:
     return value if isinstance(value, str) else None
 
 
+def _distinct(objects: list[Any]) -> tuple[np.ndarray, list[Any]]:
+    """(code of each item, the distinct objects by identity, in order of first appearance)."""
+    seen: dict[int, int] = {}
+    distinct: list[Any] = []
+    codes = np.empty(len(objects), dtype=np.intp)
+    for i, o in enumerate(objects):
+        c = seen.get(id(o))
+        if c is None:
+            c = seen[id(o)] = len(distinct)
+            distinct.append(o)
+        codes[i] = c
+    return codes, distinct
+
+
 _NO_SECTION = Section(math.nan, math.nan, "")
 _NO_MATERIAL = MaterialInfo(None, None, None, {})
 
@@ -832,28 +846,36 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
         nets = ()
     cols.update(global_id=list(gid), ifc_class=list(cls), predefined_type=list(pre), object_type=list(otype),
                 name=list(name), tag=list(tag), storey=list(storey), type_name=list(tname))
-    secs = [s if s is not None else _NO_SECTION for s in secs]
-    mats = [m if m is not None else _NO_MATERIAL for m in mats]
-    cols["section_name"] = [s.name for s in secs]
-    cols["profile_type"] = [s.profile_type for s in secs]
-    cols["shape"] = [s.shape for s in secs]
+    # members share a few section and material objects: each column is made per distinct object
+    sec_code, secs = _distinct([s if s is not None else _NO_SECTION for s in secs])
+    mat_code, mats = _distinct([m if m is not None else _NO_MATERIAL for m in mats])
+
+    def per(objects: list[Any], codes: np.ndarray, value: Any, dtype: Any = object) -> np.ndarray:
+        out = np.empty(len(objects), dtype=dtype)
+        out[:] = [value(o) for o in objects]
+        return out[codes]
+
+    cols["section_name"] = per(secs, sec_code, lambda s: s.name)
+    cols["profile_type"] = per(secs, sec_code, lambda s: s.profile_type)
+    cols["shape"] = per(secs, sec_code, lambda s: s.shape)
     for d in ("d", "h", "b", "tf", "tw", "t"):
-        cols[d] = np.array([s.dims.get(d, math.nan) for s in secs], dtype=float)
-    cols["material"] = [m.name for m in mats]
-    cols["material_category"] = [m.category for m in mats]
-    cols["material_grade"] = [m.grade for m in mats]
-    cols["area"] = np.array([s.area for s in secs], dtype=float)
-    cols["area_source"] = [s.source or None for s in secs]
-    cols["r_min"] = np.array([s.r_min for s in secs], dtype=float)
-    cols["r_min_source"] = [None if math.isnan(s.r_min) else (s.r_source or s.source) for s in secs]
+        cols[d] = per(secs, sec_code, lambda s, d=d: s.dims.get(d, math.nan), float)
+    cols["material"] = per(mats, mat_code, lambda m: m.name)
+    cols["material_category"] = per(mats, mat_code, lambda m: m.category)
+    cols["material_grade"] = per(mats, mat_code, lambda m: m.grade)
+    cols["area"] = per(secs, sec_code, lambda s: s.area, float)
+    cols["area_source"] = per(secs, sec_code, lambda s: s.source or None)
+    cols["r_min"] = per(secs, sec_code, lambda s: s.r_min, float)
+    cols["r_min_source"] = per(secs, sec_code, lambda s: None if math.isnan(s.r_min) else (s.r_source or s.source))
     cols["length"] = np.array(length, dtype=float)
     cols["length_source"] = list(length_src)
     nan_pair = (math.nan, None)
     for q in ("E", "Fy", "Fu", "alpha"):
-        pairs = [m.values.get(q, nan_pair) for m in mats]
-        cols[q] = np.array([p[0] for p in pairs], dtype=float)
-        cols[f"{q}_source"] = [p[1] for p in pairs]
-    cols["warnings"] = [list(m.warnings) + w if m.warnings else w for m, w in zip(mats, warns, strict=True)]
+        cols[q] = per(mats, mat_code, lambda m, q=q: m.values.get(q, nan_pair)[0], float)
+        cols[f"{q}_source"] = per(mats, mat_code, lambda m, q=q: m.values.get(q, nan_pair)[1])
+    mat_warnings = [m.warnings for m in mats]
+    cols["warnings"] = [list(mat_warnings[c]) + w if mat_warnings[c] else w
+                        for c, w in zip(mat_code.tolist(), warns, strict=True)]
     cols["entity_id"] = np.array(eids, dtype=np.int64)
     cols["net_area"] = np.array([x[0] for x in nets], dtype=float)
     cols["net_area_source"] = [x[1] for x in nets]
