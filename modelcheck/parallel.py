@@ -211,29 +211,29 @@ def _run_part(k: int) -> _PartResult:
                        data.member_count)
 
 
-class TablesReadAhead:
-    """Load tables read by a forked process while this one opens the model.
+class _Forked:
+    """``fn(*args)`` run in a forked process while this one goes on; ``result()`` waits for it
+    and gives its value, or raises what it raised (a project error as the same class and
+    message; any other as a RuntimeError naming it). ``what`` names the work in the message
+    given when the process dies without an answer. ``offsets``: the model's descriptors, which
+    the forked process re-opens before it reads the model (see ``_own_file_offset``)."""
 
-    Opening a large model keeps this process busy for a second or more, with the other cores
-    idle; reading a 100,000-row table takes a quarter of that. The helper reads the tables and
-    sends them back through a pipe; the first use of the tables (iterating, ``len``, indexing)
-    waits for it. Behaves as the tuple of tables it stands for. An error reading a table is
-    raised at that first use, with the message the table's reader gave."""
-
-    def __init__(self, paths: list[str]) -> None:
+    def __init__(self, what: str, fn: Any, *args: Any, offsets: dict[int, int] | None = None) -> None:
         import pickle
 
-        self._tables: tuple[pd.DataFrame, ...] | None = None
-        self._error: Exception | None = None   # raised again at every later use
+        self._what = what
+        self._done = False
+        self._value: Any = None
+        self._error: Exception | None = None   # raised again at every later call
         read_fd, write_fd = os.pipe()
         pid = os.fork()
-        if pid == 0:   # the helper: read, send, end without the parent's exit handlers
+        if pid == 0:   # the helper: work, send, end without the parent's exit handlers
             os.close(read_fd)
             try:
-                from modelcheck.loads.tables import read_load_table
-
+                if offsets is not None:
+                    _own_file_offset(offsets)
                 try:
-                    payload: tuple[str, Any] = ("ok", tuple(read_load_table(p) for p in paths))
+                    payload: tuple[str, Any] = ("ok", fn(*args))
                 except ModelcheckError as exc:
                     payload = ("error", (type(exc).__name__, str(exc)))
                 except Exception as exc:  # noqa: BLE001  (a bug: named in the parent, not lost)
@@ -245,18 +245,19 @@ class TablesReadAhead:
         os.close(write_fd)
         self._pid, self._fd = pid, read_fd
 
-    def _get(self) -> tuple[pd.DataFrame, ...]:
+    def result(self) -> Any:
         if self._error is not None:
             raise self._error
-        if self._tables is None:
+        if not self._done:
             try:
-                self._tables = self._receive()
+                self._value = self._receive()
+                self._done = True
             except Exception as exc:
                 self._error = exc
                 raise
-        return self._tables
+        return self._value
 
-    def _receive(self) -> tuple[pd.DataFrame, ...]:
+    def _receive(self) -> Any:
         import pickle
 
         from modelcheck import errors
@@ -267,20 +268,20 @@ class TablesReadAhead:
         try:
             kind, value = pickle.loads(data)
         except Exception:  # noqa: BLE001  (the helper died before it could send anything)
-            raise ModelcheckError("the process reading the load tables stopped unexpectedly "
-                                  "(out of memory?); '--jobs 1' reads them in this process") from None
+            raise ModelcheckError(f"the process {self._what} stopped unexpectedly "
+                                  "(out of memory?); '--jobs 1' does it in this process") from None
         if kind == "error":
             cls = getattr(errors, value[0], ModelcheckError)
             raise cls(value[1])
         if kind == "crash":
-            raise RuntimeError(f"reading the load tables failed: {value}")
+            raise RuntimeError(f"{self._what} failed: {value}")
         return value
 
     def close(self) -> None:
-        """Stop the helper if its tables were never asked for (the check stopped before): it would
+        """Stop the helper if its answer was never asked for (the check stopped before): it would
         otherwise wait on a full pipe for as long as this process lives."""
-        if self._tables is None and self._error is None:
-            self._error = ModelcheckError("the load tables were not read (the check had stopped)")
+        if not self._done and self._error is None:
+            self._error = ModelcheckError(f"{self._what}: not done (the check had stopped)")
             os.close(self._fd)
             try:
                 os.kill(self._pid, signal.SIGKILL)
@@ -288,17 +289,39 @@ class TablesReadAhead:
                 pass
             os.waitpid(self._pid, 0)
 
+
+def _read_tables(paths: list[str]) -> tuple[pd.DataFrame, ...]:
+    from modelcheck.loads.tables import read_load_table
+
+    return tuple(read_load_table(p) for p in paths)
+
+
+class TablesReadAhead:
+    """Load tables read by a forked process while this one opens the model.
+
+    Opening a large model keeps this process busy for a second or more, with the other cores
+    idle; reading a 100,000-row table takes a quarter of that. The helper reads the tables and
+    sends them back through a pipe; the first use of the tables (iterating, ``len``, indexing)
+    waits for it. Behaves as the tuple of tables it stands for. An error reading a table is
+    raised at that first use, with the message the table's reader gave."""
+
+    def __init__(self, paths: list[str]) -> None:
+        self._helper = _Forked("reading the load tables", _read_tables, paths)
+
+    def close(self) -> None:
+        self._helper.close()
+
     def __iter__(self) -> Any:
-        return iter(self._get())
+        return iter(self._helper.result())
 
     def __len__(self) -> int:
-        return len(self._get())
+        return len(self._helper.result())
 
     def __getitem__(self, i: Any) -> Any:
-        return self._get()[i]
+        return self._helper.result()[i]
 
     def __bool__(self) -> bool:
-        return bool(self._get())
+        return bool(self._helper.result())
 
 
 def _row_file(k: int) -> int:

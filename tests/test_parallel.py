@@ -218,7 +218,7 @@ def test_a_check_stopped_before_its_tables_are_used_leaves_no_helper_behind(caps
     assert out.code == 2 and out.lines == ["modelcheck: error: stopped before the tables were used"]
     assert len(helpers) == 1
     with pytest.raises(ChildProcessError):   # reaped: no such child any more
-        os.waitpid(helpers[0]._pid, os.WNOHANG)
+        os.waitpid(helpers[0]._helper._pid, os.WNOHANG)
 
 
 @pytest.mark.parametrize("name", ["nettlebrook-hall.ifc", "nettlebrook-canopy.ifc", "nettlebrook-pipebridge.ifc"])

@@ -122,8 +122,11 @@ class ModelIndex:
         return list(typ.HasPropertySets or ()) if typ is not None else []
 
 
-def build_index(path: str | os.PathLike[str], model: Any = None) -> ModelIndex:
-    """Open ``path`` (unless ``model`` is given) and walk its relationships once."""
+def build_index(path: str | os.PathLike[str], model: Any = None, *, property_sets: bool = True) -> ModelIndex:
+    """Open ``path`` (unless ``model`` is given) and walk its relationships once.
+
+    ``property_sets=False`` leaves ``psets_of`` empty: the caller walks those relationships
+    elsewhere (``property_sets_of``, in a forked process while this one goes on)."""
     log, fds = "", ()
     if model is None:
         model, log, fds = _open(path)
@@ -135,8 +138,23 @@ def build_index(path: str | os.PathLike[str], model: Any = None) -> ModelIndex:
                              path=str(path)) from None
     idx = ModelIndex(path=str(path), file=model, schema=schema, units=units, parse_log=[log] if log else [],
                      file_fds=fds)
+    _guarded(path, _walk, model, idx, property_sets)
+    idx.drain_log()
+    return idx
+
+
+def property_sets_of(idx: ModelIndex) -> tuple[dict[int, list[int]], str]:
+    """(``psets_of``, what the parser logged meanwhile) of an index built with
+    ``property_sets=False``: the relationship walk that takes most of a large model's walk."""
+    psets: dict[int, list[int]] = {}
+    _guarded(idx.path, _walk_property_sets, idx.file, psets)
+    return psets, ifcopenshell.get_log() or ""
+
+
+def _guarded(path: str | os.PathLike[str], walk: Any, *args: Any) -> None:
+    """``walk(*args)`` with what a broken relationship raises turned into one clear error."""
     try:
-        _walk(model, idx)
+        walk(*args)
     except RuntimeError as exc:  # dangling reference or unparsable instance deep in the file
         raise_if_parse_error(path, exc)
         raise ModelReadError(f"broken relationship in the model: {explain_parse_error(path, exc)}",
@@ -144,8 +162,6 @@ def build_index(path: str | os.PathLike[str], model: Any = None) -> ModelIndex:
     except (AttributeError, TypeError) as exc:  # a relationship holding a value of the wrong type
         raise ModelReadError(f"broken relationship in the model: {type(exc).__name__}: {exc}{_VALIDATE_HINT}",
                              path=str(path)) from None
-    idx.drain_log()
-    return idx
 
 
 #: ifcopenshell reads values the schema forbids as they are; the validator names each one
@@ -176,12 +192,17 @@ def _related_ids(rel: Any) -> list[int]:
     return [int(x) for x in m.group(1).replace("#", "").split(",")]
 
 
-def _walk(model: Any, idx: ModelIndex) -> None:
+def _walk(model: Any, idx: ModelIndex, property_sets: bool = True) -> None:
     for rel in model.by_type("IfcRelDefinesByType"):
         typ = rel.get_argument(5)   # RelatingType
         for oid in _related_ids(rel):
             idx.type_of[oid] = typ
-    psets = idx.psets_of
+    if property_sets:
+        _walk_property_sets(model, idx.psets_of)
+    _walk_the_rest(model, idx)
+
+
+def _walk_property_sets(model: Any, psets: dict[int, list[int]]) -> None:
     for rel in model.by_type("IfcRelDefinesByProperties"):
         # the sets are named by id here and read when a member needs them (``ModelIndex._set``):
         # a model often has a set per element, and reading each one is most of a walk's time
@@ -196,6 +217,9 @@ def _walk(model: Any, idx: ModelIndex) -> None:
             ids = [obj.id() for obj in rel.get_argument(4) or ()]   # RelatedObjects
         for oid in ids:
             psets.setdefault(oid, []).extend(sids)
+
+
+def _walk_the_rest(model: Any, idx: ModelIndex) -> None:
     for rel in model.by_type("IfcRelAssociatesMaterial"):
         mat = rel.get_argument(5)   # RelatingMaterial
         for oid in _related_ids(rel):
