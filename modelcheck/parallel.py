@@ -352,7 +352,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     """Check one model in ``parts`` processes; None when it is too small to share out (or this
     system cannot fork): the caller then checks it in one process as usual."""
     global _SHARED
-    from modelcheck.ifc.index import build_index
+    from modelcheck.ifc.index import build_index, property_sets_of
     from modelcheck.ifc.reader import member_entities, member_keys
 
     if parts < 2 or not can_split():
@@ -360,13 +360,26 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     data = ModelData(path=path)
     try:
         with stage("open + walk"):
-            idx = build_index(path)
-        with stage("member entities"):
-            entities = member_entities(idx)
-        if len(entities) < 2 * MIN_MEMBERS_PER_PART:
+            idx = build_index(path, property_sets=False)
+        # the property-set relationships (most of a large model's walk) are walked by a helper
+        # while this process lists the members and reads their GlobalIds
+        walker = _Forked("walking the model's property sets", property_sets_of, idx,
+                         offsets=_file_offsets(idx.file_fds))
+        try:
+            with stage("member entities"):
+                entities = member_entities(idx)
+            large = len(entities) >= 2 * MIN_MEMBERS_PER_PART
+            if large:
+                with stage("member keys"):
+                    gids, tags = member_keys(idx, entities)
+            with stage("property sets (helper)"):
+                idx.psets_of, log = walker.result()
+        finally:
+            walker.close()
+        if log:
+            idx.parse_log.append(log)
+        if not large:
             return _in_one_process(data, idx, ruleset_ref, forces, validate, encode_json, slim)
-        with stage("member keys"):
-            gids, tags = member_keys(idx, entities)
     except ModelcheckError as exc:
         data.error = str(exc)
         return CheckedModel(data)
