@@ -82,7 +82,7 @@ def assert_only_unchecked(doc: dict[str, Any], name: str) -> None:
 # ------------------------------------------------------------------------------- unreadable files
 UNREADABLE = (
     "empty.ifc", "truncated.ifc", "junk.ifc", "junk-after-header.ifc", "unknown-schema.ifc", "no-schema.ifc",
-    "xml.ifc", "syntax-error.ifc", "zip-named-ifc.ifc", "no-model.ifczip", "truncated.ifczip",
+    "xml.ifc", "syntax-error.ifc", "unclosed-entity.ifc", "zip-named-ifc.ifc", "no-model.ifczip", "truncated.ifczip",
     "empty-member.ifczip", "broken-zip.ifczip",
 )
 
@@ -122,6 +122,11 @@ def unreadable(tmp_path_factory: Any) -> dict[str, tuple[Path, str]]:
     assert bad != line
     p = with_line(good, d / "syntax-error.ifc", no, bad)
     cases["syntax-error.ifc"] = (p, f"line {no}")
+    # an entity without its closing parenthesis swallows the rest of the file (ISO 10303-21, from
+    # memory: an entity instance ends with ');'); the message names its line
+    no, line = next((no, ln) for no, ln in data_lines(good) if "IFCCIRCLEPROFILEDEF" in ln)
+    p = with_line(good, d / "unclosed-entity.ifc", no, line.replace(");", ";"))
+    cases["unclosed-entity.ifc"] = (p, f"line {no}: an entity is not closed")
     put_zip("zip-named-ifc.ifc", {"readme.txt": b"not a model"}, "zip archive")
     put_zip("no-model.ifczip", {"readme.txt": b"not a model"}, "No .ifc")
     put_zip("truncated.ifczip", {"model.ifc": raw[: len(raw) // 2]}, "truncated")

@@ -93,7 +93,21 @@ def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
     schema = _schema_of(model)
     if schema not in SUPPORTED_SCHEMAS:
         raise ModelReadError(f"schema {model.schema!r} is not supported (IFC2X3, IFC4, IFC4X3)", path=name)
-    return model, ifcopenshell.get_log(), _fds_on(p)
+    log = ifcopenshell.get_log()
+    if _END_READ_AS_ENTITY.search(log):
+        # an entity left open (a ')' missing) swallows the rest of the file: what is left of the
+        # model is not the model; the parser says where it noticed ("; inside an instance")
+        where = _UNCLOSED_AT.search(log)
+        at = (explain_parse_error(p, RuntimeError(f"at offset {where['offset']}")).removeprefix("at ") + ": "
+              if where else "")
+        raise ModelReadError(f"cannot be parsed as IFC: {at}an entity is not closed (a ')' or a quote is missing?); "
+                             "the rest of the file was read as part of it", path=name)
+    return model, log, _fds_on(p)
+
+
+#: the parser met the end of the DATA section inside an entity
+_END_READ_AS_ENTITY = re.compile(r"Entity with name '(?:ENDSEC|END-ISO-10303-21)' not found in schema")
+_UNCLOSED_AT = re.compile(r"Lazy loading not possible \([^()]*? at offset (?P<offset>\d+)\)")
 
 
 def explain_parse_error(path: str | os.PathLike[str], exc: BaseException) -> str:
