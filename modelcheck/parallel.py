@@ -215,10 +215,10 @@ class _Forked:
     """``fn(*args)`` run in a forked process while this one goes on; ``result()`` waits for it
     and gives its value, or raises what it raised (a project error as the same class and
     message; any other as a RuntimeError naming it). ``what`` names the work in the message
-    given when the process dies without an answer. ``offsets``: the model's descriptors, which
-    the forked process re-opens before it reads the model (see ``_own_file_offset``)."""
+    given when the process dies without an answer. The work must not read a model this process
+    opened (the two would share its file offset: see ``_own_file_offset``)."""
 
-    def __init__(self, what: str, fn: Any, *args: Any, offsets: dict[int, int] | None = None) -> None:
+    def __init__(self, what: str, fn: Any, *args: Any) -> None:
         import pickle
 
         self._what = what
@@ -230,8 +230,6 @@ class _Forked:
         if pid == 0:   # the helper: work, send, end without the parent's exit handlers
             os.close(read_fd)
             try:
-                if offsets is not None:
-                    _own_file_offset(offsets)
                 try:
                     payload: tuple[str, Any] = ("ok", fn(*args))
                 except ModelcheckError as exc:
@@ -352,20 +350,19 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     """Check one model in ``parts`` processes; None when it is too small to share out (or this
     system cannot fork): the caller then checks it in one process as usual."""
     global _SHARED
-    from modelcheck.ifc.index import build_index, property_sets_of
+    from modelcheck.ifc.index import build_index, property_sets_in
     from modelcheck.ifc.reader import member_entities, member_keys
 
     if parts < 2 or not can_split():
         return None
     data = ModelData(path=path)
+    # the property-set relationships (most of a large model's walk) are walked by a helper that
+    # opens the model too, while this process opens it, walks the rest and reads the members' keys
+    walker = _Forked("walking the model's property sets", property_sets_in, path)
     try:
-        with stage("open + walk"):
-            idx = build_index(path, property_sets=False)
-        # the property-set relationships (most of a large model's walk) are walked by a helper
-        # while this process lists the members and reads their GlobalIds
-        walker = _Forked("walking the model's property sets", property_sets_of, idx,
-                         offsets=_file_offsets(idx.file_fds))
         try:
+            with stage("open + walk"):
+                idx = build_index(path, property_sets=False)
             with stage("member entities"):
                 entities = member_entities(idx)
             large = len(entities) >= 2 * MIN_MEMBERS_PER_PART

@@ -126,7 +126,7 @@ def build_index(path: str | os.PathLike[str], model: Any = None, *, property_set
     """Open ``path`` (unless ``model`` is given) and walk its relationships once.
 
     ``property_sets=False`` leaves ``psets_of`` empty: the caller walks those relationships
-    elsewhere (``property_sets_of``, in a forked process while this one goes on)."""
+    elsewhere (``property_sets_in``, in a forked process at the same time)."""
     log, fds = "", ()
     if model is None:
         model, log, fds = _open(path)
@@ -143,11 +143,13 @@ def build_index(path: str | os.PathLike[str], model: Any = None, *, property_set
     return idx
 
 
-def property_sets_of(idx: ModelIndex) -> tuple[dict[int, list[int]], str]:
-    """(``psets_of``, what the parser logged meanwhile) of an index built with
-    ``property_sets=False``: the relationship walk that takes most of a large model's walk."""
+def property_sets_in(path: str | os.PathLike[str]) -> tuple[dict[int, list[int]], str]:
+    """(``psets_of``, what the parser logged while walking) of the model at ``path``, opened here:
+    the relationship walk that takes most of a large model's walk, for a helper process that
+    does it while the caller opens the model too (``build_index(..., property_sets=False)``)."""
+    model, _, _ = _open(path)   # the open's own messages are the caller's to report
     psets: dict[int, list[int]] = {}
-    _guarded(idx.path, _walk_property_sets, idx.file, psets)
+    _guarded(path, _walk_property_sets, model, psets)
     return psets, ifcopenshell.get_log() or ""
 
 
