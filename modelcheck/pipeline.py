@@ -428,7 +428,9 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
         # one model and several processes: the model is shared out among them
         parts = jobs if len(paths) == 1 else 1
         for p in paths:
-            checked.append(check_model(p, ref, forces, validate, encode_json and parts > 1, parts, slim))
+            # JSON rows made here as the models are checked: where they would be made anyway from a
+            # results table for the report alone, without that table (slim)
+            checked.append(check_model(p, ref, forces, validate, encode_json and (parts > 1 or slim), parts, slim))
             if progress is not None:
                 progress()
     frames = [c.results for c in checked if c.results is not None and len(c.results)]
