@@ -322,7 +322,7 @@ class TablesReadAhead:
         return bool(self._helper.result())
 
 
-def _row_file(k: int) -> int:
+def row_file(k: int) -> int:
     """A descriptor of a new, empty file for the JSON rows of part ``k``: in memory where the
     system has memory files (nothing goes to disk, and nothing is left when the command ends),
     else an unnamed temporary file."""
@@ -407,7 +407,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     runs = [sorted(order[a:b]) for a, b in bounds]
     part_of = {g: k for k, (a, b) in enumerate(bounds) for g in sorted_gids[a:b]}
     tables = tuple(forces.tables)   # read meanwhile by a helper (TablesReadAhead): received here
-    row_files = {k: _row_file(k) for k in range(1, len(bounds))} if encode_json else {}
+    row_files = {k: row_file(k) for k in range(1, len(bounds))} if encode_json else {}
     _SHARED = _Shared(idx, entities, runs, gids, ruleset_ref,
                       forces, shared_tags, analysis, encode_json, slim, len(idx.parse_log),
                       os.getpid(), _file_offsets(idx.file_fds), tables, part_of, row_files)

@@ -254,19 +254,22 @@ class CheckedModel:
 
     data: ModelData
     results: pd.DataFrame | None = None
-    json_rows: bytes | list[bytes | int] | None = None   # the results as JSON rows, encoded where the
-    # work ran: bytes, or consecutive chunks, each bytes or the descriptor of a memory file holding them
+    json_rows: bytes | int | list[bytes | int] | None = None   # the results as JSON rows, encoded where the
+    # work ran: bytes, the descriptor of a memory file holding them, or consecutive chunks of either
 
 
 def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: bool = False,
-                encode_json: bool = False, parts: int = 1, slim: bool = False) -> CheckedModel:
+                encode_json: bool = False, parts: int = 1, slim: bool = False,
+                row_file: int | None = None) -> CheckedModel:
     """Read one model, join its forces, run the rule set: the unit of work of a batch.
 
     ``encode_json`` also encodes the results as the JSON report's rows here, in the worker, so
     a batch does not encode every model's results one after another in the parent. ``parts`` > 1
     shares a large model out to that many processes (``modelcheck.parallel``). ``slim`` (with
     ``encode_json``): the JSON rows are the only report wanted, so of the results table only the
-    status column comes back (what the summary and the exit code read)."""
+    status column comes back (what the summary and the exit code read). ``row_file``: the
+    descriptor of a file (a batch worker's: made by the parent before the workers started) the
+    rows go to instead of coming back as bytes."""
     if parts > 1:
         from modelcheck.parallel import check_model_split
 
@@ -275,17 +278,25 @@ def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: boo
         if split is not None:
             return split
     data = read_model(path, forces, validate=validate)
-    return finish_check(data, ruleset_ref, encode_json, slim)
+    return finish_check(data, ruleset_ref, encode_json, slim, row_file)
 
 
-def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: bool = False) -> CheckedModel:
-    """Rules, suggestions and (``encode_json``) JSON rows of a model read into ``data``."""
+def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: bool = False,
+                 row_file: int | None = None) -> CheckedModel:
+    """Rules, suggestions and (``encode_json``) JSON rows of a model read into ``data``; the rows
+    into the file open as ``row_file`` when given (its descriptor stands for them)."""
     from modelcheck.rules.ruleset import load_ruleset
 
     if data.error is not None or data.members is None:
         return CheckedModel(data)
     ruleset = load_ruleset(ruleset_ref)
-    results, rows = evaluate_members(ruleset, data.members, data.forces, encode_json=encode_json, slim=slim)
+    if encode_json and row_file is not None:
+        with os.fdopen(os.dup(row_file), "wb") as sink:
+            results, _ = evaluate_members(ruleset, data.members, data.forces, encode_json=True, slim=slim,
+                                          sink=sink)
+        rows: Any = row_file
+    else:
+        results, rows = evaluate_members(ruleset, data.members, data.forces, encode_json=encode_json, slim=slim)
     # send back only what the reports read: a batch worker's result crosses a process boundary
     data.members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
     if slim and rows is not None:
@@ -417,13 +428,21 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
     elif jobs > 1 and len(paths) > 1:
         from concurrent.futures import ProcessPoolExecutor
 
+        from modelcheck.parallel import can_split, release_rows, row_file
 
-        with ProcessPoolExecutor(max_workers=min(jobs, len(paths))) as pool:
-            futures = [pool.submit(check_model, p, ref, forces, validate, encode_json, 1, slim) for p in paths]
-            for fut in futures:
-                checked.append(fut.result())
-                if progress is not None:
-                    progress()
+        # each model's rows go to a memory file the workers inherit: not sent back through a pipe
+        files = [row_file(i) if encode_json and can_split() else None for i in range(len(paths))]
+        try:
+            with ProcessPoolExecutor(max_workers=min(jobs, len(paths))) as pool:
+                futures = [pool.submit(check_model, p, ref, forces, validate, encode_json, 1, slim, files[i])
+                           for i, p in enumerate(paths)]
+                for fut in futures:
+                    checked.append(fut.result())
+                    if progress is not None:
+                        progress()
+        finally:
+            used = {c.json_rows for c in checked if isinstance(c.json_rows, int)}
+            release_rows([f for f in files if f is not None and f not in used])
     else:
         # one model and several processes: the model is shared out among them
         parts = jobs if len(paths) == 1 else 1
