@@ -323,9 +323,9 @@ class TablesReadAhead:
 
 
 def row_file(k: int) -> int:
-    """A descriptor of a new, empty file for the JSON rows of part ``k``: in memory where the
-    system has memory files (nothing goes to disk, and nothing is left when the command ends),
-    else an unnamed temporary file."""
+    """A descriptor of a new, empty file for the JSON rows of part (or batch model) ``k``: in
+    memory where the system has memory files (nothing goes to disk, and nothing is left when the
+    command ends), else an unnamed temporary file."""
     if hasattr(os, "memfd_create"):
         return os.memfd_create(f"modelcheck-rows-{k}")
     import tempfile

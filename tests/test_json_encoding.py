@@ -15,7 +15,14 @@ import pandas as pd
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from modelcheck.report.check_json import _text, encode_results, encode_rows, result_dicts, round_sig6
+from modelcheck.report.check_json import (
+    _json_texts,
+    _text,
+    encode_results,
+    encode_rows,
+    result_dicts,
+    round_sig6,
+)
 from tests.report_runs import NASTY, result_row
 
 
@@ -38,6 +45,17 @@ def test_json_strings_are_the_bytes_orjson_writes(text):
     except orjson.JSONEncodeError:     # lone surrogates: not UTF-8, neither encoder writes them
         return
     assert _text(text).encode("utf-8") == expected
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.lists(st.text(), max_size=8))
+def test_json_texts_at_once_are_the_bytes_orjson_writes(texts):
+    """Texts needing no escape are quoted all at once; the bytes are orjson's either way."""
+    try:
+        expected = [orjson.dumps(t) for t in texts]
+    except orjson.JSONEncodeError:     # lone surrogates: not UTF-8, neither encoder writes them
+        return
+    assert _json_texts(texts).tolist() == expected
 
 
 def test_encoded_rows_are_the_rows_of_the_dict_encoder():

@@ -9,6 +9,7 @@ from __future__ import annotations
 import datetime as _dt
 import math
 import os
+import re
 from json.encoder import encode_basestring as _escape  # noqa: E402  (C escaper: "…" with \" \\ \n \u00XX)
 from typing import Any
 
@@ -137,6 +138,22 @@ def _text(value: Any) -> str:
     return _escape(value)
 
 
+#: what a JSON string must escape (orjson and the standard library alike) but NUL: quote,
+#: backslash and the other control characters
+_ESCAPED_BUT_NUL = re.compile(r'["\\\x01-\x1f]')
+
+
+def _json_texts(texts: list[str]) -> np.ndarray:
+    """UTF-8 JSON strings of ``texts``. When none needs an escape (the usual case for messages),
+    the quotes are joined in around all of them at once instead of escaping each."""
+    if not texts:
+        return _objects([])
+    joined = "\x00".join(texts)
+    if joined.count("\x00") == len(texts) - 1 and not _ESCAPED_BUT_NUL.search(joined):
+        return _objects(('"' + '"\x00"'.join(texts) + '"').encode("utf-8").split(b"\x00"))
+    return _encode_all([_escape(t) for t in texts])
+
+
 def _encode_all(texts: list[str]) -> np.ndarray:
     """UTF-8 of each text, in one encode: escaped JSON text holds no NUL, so NUL separates them."""
     return _objects("\x00".join(texts).encode("utf-8").split(b"\x00"))
@@ -241,7 +258,7 @@ def _join_rows(prefix: np.ndarray, mid: np.ndarray, demand: Any, demand_tail: np
         return [head, number, tail]
 
     messages = message.tolist() if isinstance(message, np.ndarray) else message
-    encoded_messages = _encode_all([_escape(m) if type(m) is str else _text(str(m or "")) for m in messages])
+    encoded_messages = _json_texts([m if type(m) is str else str(m or "") for m in messages])
     lists = missing.tolist() if isinstance(missing, np.ndarray) else missing
     missing_piece = np.full(n, b',"missing":[],"message":', dtype=object)
     for i in np.flatnonzero(np.fromiter(map(bool, lists), dtype=bool, count=n)).tolist():
