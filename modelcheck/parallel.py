@@ -83,7 +83,7 @@ class _PartResult:
     error: str | None
     members: pd.DataFrame | None
     results: pd.DataFrame | None
-    json_rows: bytes | str | None   # a forked part's rows come back as a temporary file
+    json_rows: bytes | int | None   # a forked part's rows: the descriptor of its memory file
     report: Any
     prop_log: Any
     new_log: list[str]
@@ -104,7 +104,7 @@ def _bounds(gids: list[str], parts: int) -> list[tuple[int, int]]:
     """Contiguous runs of equal size that never split members sharing a GlobalId.
 
     Equal, although this process also starts the others and writes the report: a forked part
-    writes its rows to a temporary file, which costs about as much. Measured on 100,000 members
+    writes its rows to a memory file, which costs about as much. Measured on 100,000 members
     and two processes: a 5 % larger first part left this process finishing about 0.8 s after the
     other; a 5 % smaller one, the other 0.8 s after this."""
     n = len(gids)

@@ -359,7 +359,7 @@ def write_json(doc: dict[str, Any], fh: Any) -> None:
     """Write the document as JSON to the binary file ``fh``: indented, but each result on one line.
 
     Readable in a diff (one changed result is one changed line) and fast: the results arrive
-    already encoded (``EncodedRows``, built column by column, some chunks in temporary files) and
+    already encoded (``EncodedRows``, built column by column, some chunks in memory files) and
     are written as they are, a file streamed inside the kernel, never held twice in memory.
     Non-finite numbers never reach the file."""
     import json
