@@ -426,14 +426,18 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
 
         checked = run_on_cluster(scheduler, paths, ref, forces, validate, progress=progress)
     elif jobs > 1 and len(paths) > 1:
+        import multiprocessing
         from concurrent.futures import ProcessPoolExecutor
 
         from modelcheck.parallel import can_split, release_rows, row_file
 
-        # each model's rows go to a memory file the workers inherit: not sent back through a pipe
-        files = [row_file(i) if encode_json and can_split() else None for i in range(len(paths))]
+        # each model's rows go to a memory file the workers inherit (so they must be forked, not
+        # started afresh, whatever this Python's default): not sent back through a pipe
+        inherit = encode_json and can_split()
+        files = [row_file(i) if inherit else None for i in range(len(paths))]
+        context = multiprocessing.get_context("fork") if inherit else None
         try:
-            with ProcessPoolExecutor(max_workers=min(jobs, len(paths))) as pool:
+            with ProcessPoolExecutor(max_workers=min(jobs, len(paths)), mp_context=context) as pool:
                 futures = [pool.submit(check_model, p, ref, forces, validate, encode_json, 1, slim, files[i])
                            for i, p in enumerate(paths)]
                 for fut in futures:
