@@ -109,13 +109,14 @@ class ModelIndex:
                 out.append(ent)
         return out
 
-    def qto_psets(self, eid: int) -> list[Any]:
-        """The object's sets whose name starts with ``Qto_``, in the order the walk met them."""
+    def named_sets(self, eid: int) -> list[tuple[Any, str | None]]:
+        """(entity, Name) of each property or quantity set of object ``eid`` (occurrence only), in
+        the order the walk met them; for a caller that looks for several names at once."""
+        sets = self._sets
         out = []
         for sid in self.psets_of.get(eid, ()):
-            ent, n = self._set(sid)
-            if n is not None and n.startswith("Qto_"):
-                out.append(ent)
+            hit = sets.get(sid)
+            out.append(hit if hit is not None else self._set(sid))
         return out
 
     def type_psets(self, typ: Any) -> list[Any]:

@@ -54,6 +54,7 @@ SWEEP_CLASSES = ("IfcBuildingElementProxy", "IfcDiscreteAccessory", "IfcFastener
 #: names (buildingSMART defines none for it), an IfcAreaMeasure on the occurrence or its type
 NET_AREA_PROPERTY = ("MC_NetSection", "NetArea")
 _NO_NET: tuple[float, str | None] = (math.nan, None)
+_NET_SET = NET_AREA_PROPERTY[0]
 
 AREA_TOLERANCE = 0.02     # 2 % between two sources of the cross-section area
 LENGTH_TOLERANCE = 0.05   # 5 % between two sources of the length (end cuts make axis ≠ body)
@@ -104,12 +105,13 @@ class _Reader:
         self._profile_cache: dict[int, Section | str] = {}
         self._material_cache: dict[int, MaterialInfo] = {}
         self._body_cache: dict[int, tuple[Section | str | None, tuple[float, str] | None]] = {}
-        self._via_type: dict[tuple[int, str | None], Section] = {}
+        self._type_facts_cache: dict[int, tuple[Any, ...]] = {}
+        self._same: dict[tuple[int, int], tuple[Section, Section, bool]] = {}
         self._doubts: dict[int, tuple[Section, str | None]] = {}   # sections are shared: judged once
         self._type_cache: dict[int, tuple[str | None, Any, list[Any]]] = {}
         self._select_cache: dict[int, tuple[MaterialInfo | None, Section | str | None]] = {}
         self._pos_cache: dict[str, tuple[bool, int | None]] = {}
-        self._storey_names: dict[int, str | None] = {}
+        self._storey_names: dict[int, tuple[Any, str | None]] = {}
 
     # ------------------------------------------------------------------ profiles
     def profile(self, prof: Any, scale: float = 1.0) -> Section | str:
@@ -343,18 +345,38 @@ class _Reader:
             hit = self._select_cache[key] = (minfo, sec)
         return hit
 
+    def _type_facts(self, typ: Any) -> tuple[Any, ...]:
+        """What every member of type ``typ`` shares, worked out once per type: (typ, name, material
+        select, material, section candidate or None, problem text or None, the net area and the
+        warnings it gives when the occurrence has none of its own)."""
+        type_name, type_sel, type_sets = self.type_info(typ)
+        tinfo, type_sec = self.selection(type_sel) if type_sel is not None else (None, None)
+        cand = problem = None
+        if isinstance(type_sec, Section):
+            cand = replace(type_sec, source=f"{type_sec.source} (via type {type_name!r})")
+        elif type_sec is not None:
+            problem = type_sec
+        net_warnings: list[str] = []
+        net = self._net_from(type_sets, "type", net_warnings) if type_sets else None
+        hit = self._type_facts_cache[id(typ)] = (typ, type_name, type_sel, tinfo, cand, problem,
+                                                 net or _NO_NET, tuple(net_warnings))
+        return hit
+
     def member(self, el: Any, analysis: bool = False) -> tuple[Any, ...]:
         """One member: identity values, the chosen Section, MaterialInfo, length and warnings."""
         idx = self.idx
         eid = el.id()
         ga = el.get_argument
         cls = el.is_a()
-        pos = self._positions(cls)
+        pos = self._pos_cache.get(cls) or self._positions(cls)
         warnings: list[str] = []
         typ = idx.type_of.get(eid)
-        type_name = type_sel = None
+        type_name = type_sel = tinfo = type_cand = type_problem = None
         if typ is not None:
-            type_name, type_sel, _ = self.type_info(typ)
+            facts = self._type_facts_cache.get(id(typ))
+            if facts is None or facts[0] is not typ:   # the entry keeps typ alive: its id stays its own
+                facts = self._type_facts(typ)
+            type_name, type_sel, tinfo, type_cand, type_problem = facts[1:6]
         predefined = ga(pos[1]) if pos[1] is not None else None
         object_type = ga(4)
         if predefined is None and typ is not None:
@@ -365,7 +387,6 @@ class _Reader:
         # --- material and profile sets: the occurrence's own, else its type's
         own_sel = idx.material_of.get(eid)
         minfo, own_sec = self.selection(own_sel) if own_sel is not None else (None, None)
-        tinfo, type_sec = self.selection(type_sel) if type_sel is not None else (None, None)
         if minfo is None:
             minfo = tinfo
 
@@ -374,21 +395,16 @@ class _Reader:
         problems: list[str] = []
         if own_sec is not None:
             (candidates if isinstance(own_sec, Section) else problems).append(own_sec)
-        elif type_sec is not None:
-            if isinstance(type_sec, Section):
-                key = (id(type_sec), type_name)   # shared by the type's members: made once
-                via = self._via_type.get(key)
-                if via is None:
-                    via = self._via_type[key] = replace(type_sec, source=f"{type_sec.source} (via type {type_name!r})")
-                candidates.append(via)
-            else:
-                problems.append(type_sec)
+        elif type_cand is not None:
+            candidates.append(type_cand)
+        elif type_problem is not None:
+            problems.append(type_problem)
         rep = ga(6)
         body_sec = body_len = axis_len = None
         if rep is not None:
             body_sec, body_len, axis_len = self._representation(rep)
         if isinstance(body_sec, Section):
-            if not (candidates and candidates[0].source.split(" ", 2)[:2] == body_sec.source.split(" ", 2)[:2]):
+            if not (candidates and self._same_profile(candidates[0], body_sec)):
                 candidates.append(body_sec)  # the same profile entity twice needs no comparison
         elif isinstance(body_sec, str):
             problems.append(body_sec)
@@ -397,26 +413,46 @@ class _Reader:
             if tendon is not None:
                 candidates.append(tendon)
         psets = idx.psets_of.get(eid)
-        net = self._net_area(eid, typ, warnings) if (psets or typ is not None) else _NO_NET
-        mech_sets = idx.psets_named(eid, "Pset_ProfileMechanical") if psets else []
+        mech_sets: list[Any] = []
+        qsets: list[Any] = []
+        net: tuple[float, str | None] | None = None
+        if psets:   # the occurrence's own sets, each looked at once
+            net_sets = []
+            for ent, n in idx.named_sets(eid):
+                if n is None:
+                    continue
+                if n == _NET_SET:
+                    net_sets.append(ent)
+                elif n == "Pset_ProfileMechanical":
+                    mech_sets.append(ent)
+                elif n.startswith("Qto_"):
+                    qsets.append(ent)
+            if net_sets:
+                net = self._net_from(net_sets, "occurrence", warnings)
+        if net is None:
+            if typ is not None:
+                net = facts[6]
+                if facts[7]:
+                    warnings.extend(facts[7])
+            else:
+                net = _NO_NET
         if idx.profile_props or mech_sets or idx.object_profile_props:
             mech = self._profile_mechanical(self._profiles_of(own_sel, type_sel) if idx.profile_props else [],
                                             mech_sets, eid)
             if mech is not None:
                 candidates.append(mech)
         qarea = qlen = None
-        if psets:
-            qsets = idx.qto_psets(eid)
-            if qsets:
-                qarea, qlen = self._quantities(qsets, warnings)
+        if qsets:
+            qarea, qlen = self._quantities(qsets, warnings)
         if qarea is not None:
             candidates.append(qarea)
 
         section = None
+        doubts = self._doubts
         for cand in candidates:
-            hit = self._doubts.get(id(cand))
+            hit = doubts.get(id(cand))
             if hit is None or hit[0] is not cand:
-                hit = self._doubts[id(cand)] = (cand, _doubt_section(cand))   # the entry keeps cand alive
+                hit = doubts[id(cand)] = (cand, _doubt_section(cand))   # the entry keeps cand alive
             doubt = hit[1]
             if doubt:
                 warnings.append(doubt)
@@ -435,11 +471,11 @@ class _Reader:
             warnings.extend(dict.fromkeys(problems))  # the profile set and the body often name one profile
 
         # --- length candidates, ranked
-        lengths = [x for x in (axis_len, body_len, qlen) if x is not None]
         if analysis:
             tl = self._topology_length(el)
-            if tl is not None:
-                lengths.insert(0, tl)
+            lengths = [x for x in (tl, axis_len, body_len, qlen) if x is not None]
+        else:
+            lengths = [x for x in (axis_len, body_len, qlen) if x is not None]
         length, length_src = math.nan, None
         for val, src in lengths:
             if not (math.isfinite(val) and 0 < val <= MAX_LENGTH):
@@ -451,9 +487,12 @@ class _Reader:
                 warnings.append(f"inconsistent length: {length_src} gives {length:.6g} m, "
                                 f"{src} gives {val:.6g} m; using the first")
         storey = idx.storey_of.get(eid)
-        storey_name = self._storey_names.get(storey.id()) if storey is not None else None
-        if storey is not None and storey_name is None:
-            storey_name = self._storey_names[storey.id()] = storey.Name
+        storey_name = None
+        if storey is not None:
+            hit = self._storey_names.get(id(storey))
+            if hit is None or hit[0] is not storey:   # the entry keeps storey alive
+                hit = self._storey_names[id(storey)] = (storey, storey.Name)
+            storey_name = hit[1]
         gid = ga(0)
         if not isinstance(gid, str):  # the schema requires one; name the member by its entity instead
             warnings.append(f"has no GlobalId (IFC requires one): named #{eid} here")
@@ -461,27 +500,30 @@ class _Reader:
         return (gid, cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
                 section, minfo, length, length_src, warnings, eid, net)
 
-    def _net_area(self, eid: int, typ: Any, warnings: list[str]) -> tuple[float, str | None]:
-        """The net area at holes or threads: NET_AREA_PROPERTY on the occurrence, else its type."""
+    def _same_profile(self, a: Section, b: Section) -> bool:
+        """Whether two sections name the same profile entity (their sources' first two words);
+        sections are shared, so each pair is judged once."""
+        key = (id(a), id(b))
+        hit = self._same.get(key)
+        if hit is None or hit[0] is not a or hit[1] is not b:   # the entry keeps both alive
+            hit = self._same[key] = (a, b, a.source.split(" ", 2)[:2] == b.source.split(" ", 2)[:2])
+        return hit[2]
+
+    def _net_from(self, sets: list[Any], where: str, warnings: list[str]) -> tuple[float, str | None] | None:
+        """The net area from ``sets`` (of the occurrence or its type); None where they lack it."""
         pset_name, prop_name = NET_AREA_PROPERTY
-        own = self.idx.psets_named(eid, pset_name)
-        type_sets = self.type_info(typ)[2] if typ is not None else ()
-        if not own and not type_sets:
+        prop = find_property(list(sets), pset_name, prop_name)
+        if prop is None:
+            return None
+        try:
+            v = property_si(self.idx, prop)
+        except MissingUnit as exc:
+            warnings.append(f"{pset_name}.{prop_name} not used: {exc}")
             return _NO_NET
-        for where, sets in (("occurrence", own), ("type", type_sets)):
-            prop = find_property(list(sets), pset_name, prop_name)
-            if prop is None:
-                continue
-            try:
-                v = property_si(self.idx, prop)
-            except MissingUnit as exc:
-                warnings.append(f"{pset_name}.{prop_name} not used: {exc}")
-                return _NO_NET
-            if v is None or not (math.isfinite(v.value) and v.value > 0):
-                warnings.append(f"{pset_name}.{prop_name} is not a positive area; not used")
-                return _NO_NET
-            return v.value, f"{pset_name}.{prop_name} ({where}) [{v.unit}]"
-        return _NO_NET
+        if v is None or not (math.isfinite(v.value) and v.value > 0):
+            warnings.append(f"{pset_name}.{prop_name} is not a positive area; not used")
+            return _NO_NET
+        return v.value, f"{pset_name}.{prop_name} ({where}) [{v.unit}]"
 
     def _positions(self, cls: str) -> tuple[bool, int | None]:
         """(has Tag at index 7, index of PredefinedType) for an entity class; cached."""
@@ -551,15 +593,35 @@ class _Reader:
             if ident == "Axis":
                 if axis_len is None and lf is not None:
                     for it in r.get_argument(3) or ():
-                        cl = self.curve_length(it)
+                        if it.is_a() == "IfcPolyline":   # the common axis, read here directly
+                            pts = it.get_argument(0)
+                            cl = (math.dist(pts[0].get_argument(0), pts[1].get_argument(0)) if len(pts) == 2
+                                  else self.curve_length(it))
+                        else:
+                            cl = self.curve_length(it)
                         if cl is not None:
                             axis_len = (cl * lf, "Axis")
                             break
             elif ident in ("Body", None) and body_sec is None:
+                items = r.get_argument(3)
+                first = items[0] if items else None
+                if first is not None and first.is_a() == "IfcExtrudedAreaSolid":
+                    # the common body, read here directly: what body() gives for it, uncached
+                    # (a representation of its own per member)
+                    swept, depth_value = first.get_argument(0), first.get_argument(3)
+                    if swept is None:
+                        body_sec = f"IfcExtrudedAreaSolid #{first.id()} has no SweptArea (a null or dangling reference)"
+                    else:
+                        body_sec = self._profile_cache.get(swept.id())
+                        if body_sec is None:
+                            body_sec = self.profile(swept)
+                    if lf is not None and depth_value is not None:
+                        body_len = (float(depth_value) * lf, "IfcExtrudedAreaSolid.Depth")
+                    continue
                 key = r.id()
                 hit = self._body_cache.get(key)
                 if hit is None:
-                    hit = self._body_cache[key] = self.body(list(r.get_argument(3) or ()))
+                    hit = self._body_cache[key] = self.body(list(items or ()))
                 body_sec, body_len = hit
         return body_sec, body_len, axis_len
 
