@@ -23,10 +23,12 @@ Example::
 
 from __future__ import annotations
 
+import math
 import re
 from dataclasses import dataclass
 from typing import Any
 
+import ifcopenshell
 import numpy as np
 import pandas as pd
 import pint
@@ -139,16 +141,21 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
                 continue
             origin = f"type {typ.Name}" if typ.Name else f"type #{tid}"
         pid = prop.id()
-        reading = reading_cache.get(pid)
-        if reading is None:
-            reading = reading_cache[pid] = _read(prop, idx)
-        if reading.problem:
-            log.add(f"{label} ({origin}): {reading.problem}; no force taken", gid)
-            continue
+        raw = _plain_force(prop)
+        if raw is not None:
+            key = "FORCEUNIT"
+        else:
+            reading = reading_cache.get(pid)
+            if reading is None:
+                reading = reading_cache[pid] = _read(prop, idx)
+            if reading.problem:
+                log.add(f"{label} ({origin}): {reading.problem}; no force taken", gid)
+                continue
+            raw, key = reading.raw, reading.unit_key
         gids.append(gid)
-        raws.append(reading.raw)
+        raws.append(raw)
         cases.append(prop_cases.get(pid, case))
-        keys.append(reading.unit_key)
+        keys.append(key)
         sources.append(source_of.get(origin) or source_of.setdefault(origin, f"{label} ({origin})"))
     if not gids:
         return empty_forces(), log.messages() if own_log else []
@@ -183,6 +190,19 @@ def _factor(idx: ModelIndex, key: str) -> float:
     if key == "FORCEUNIT":
         return idx.units.factor("FORCEUNIT")
     return float(unit_quantity(idx.file.by_id(int(key[1:]))).to_base_units().magnitude)
+
+
+def _plain_force(prop: Any) -> float | None:
+    """The number of the common case, read directly: a single value holding a finite
+    IfcForceMeasure with no unit of its own (in the model's FORCEUNIT). None for anything else
+    (``_read`` then says what it holds)."""
+    if prop.is_a() != "IfcPropertySingleValue" or prop.get_argument(3) is not None:   # Unit
+        return None
+    nv = prop.get_argument(2)   # NominalValue
+    if not isinstance(nv, ifcopenshell.entity_instance) or nv.is_a() != "IfcForceMeasure":
+        return None
+    value = nv.get_argument(0)
+    return value if type(value) is float and math.isfinite(value) else None
 
 
 def _read(prop: Any, idx: ModelIndex) -> _Reading:
