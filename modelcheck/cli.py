@@ -138,6 +138,22 @@ def _keep_freed_memory() -> None:
     mallopt(m_trim_threshold, (1 << 31) - 1)
 
 
+def _give_back_freed_memory() -> None:
+    """glibc: return the memory freed during the check to the system before the reports are
+    written. The kernel hands out what was freed last first: a large report's page cache then
+    reuses pages this process has just used, instead of pages a virtual machine may have given
+    back to its host (slow to fault in again: a 200 MB report took 0.2–1.9 s to write that way,
+    0.06 s this way, on the development machine)."""
+    if not sys.platform.startswith("linux"):
+        return
+    try:
+        import ctypes
+
+        ctypes.CDLL(None).malloc_trim(0)
+    except (OSError, AttributeError):
+        return
+
+
 def _say(line: str) -> None:
     """One line on standard error, whatever its encoding: a file name in another encoding than
     UTF-8 (undecodable bytes, kept by Python as lone surrogates) is written as escapes."""
@@ -491,6 +507,7 @@ def cmd_check(args: argparse.Namespace) -> int:
     from modelcheck.parallel import release_rows
     from modelcheck.timing import stage
 
+    _give_back_freed_memory()
     try:
         for fmt in files:
             with stage(f"write {fmt}"):

@@ -72,7 +72,7 @@ class _Shared:
     offsets: dict[int, int]        # file offsets of the parser's descriptors at the fork
     tables: tuple[pd.DataFrame, ...]   # the load tables, whole: each part takes its rows
     part_of: dict[str, int]        # GlobalId -> its part
-    row_files: dict[int, int]      # part -> descriptor of the memory file its JSON rows go to (forked parts)
+    row_files: dict[int, int]      # part -> descriptor of the memory file its JSON rows go to
 
 
 _SHARED: _Shared | None = None
@@ -83,7 +83,7 @@ class _PartResult:
     error: str | None
     members: pd.DataFrame | None
     results: pd.DataFrame | None
-    json_rows: bytes | int | None   # a forked part's rows: the descriptor of its memory file
+    json_rows: bytes | int | None   # a part's rows: the descriptor of its memory file
     report: Any
     prop_log: Any
     new_log: list[str]
@@ -188,12 +188,9 @@ def _run_part(k: int) -> _PartResult:
 
     rows = None
     with stage(f"part {k}: rules, suggestions, JSON"):
-        if st.encode_json and os.getpid() == st.parent_pid:
-            # this process's own rows stay in memory: written once, into the report
-            results, rows = evaluate_members(ruleset, data.members, data.forces, encode_json=True, slim=st.slim)
-        elif st.encode_json:
-            # a forked part's rows go to a memory file made before the fork, as they are encoded:
-            # never pickled back; the report streams them in from the parent's descriptor
+        if st.encode_json:
+            # each part's rows go to a memory file made before the fork, as they are joined: never
+            # whole in memory as text, never pickled back; the report streams them in
             rows = st.row_files[k]
             with os.fdopen(os.dup(rows), "wb") as sink:
                 results, _ = evaluate_members(ruleset, data.members, data.forces, encode_json=True, slim=st.slim,
@@ -216,7 +213,8 @@ class _Forked:
     and gives its value, or raises what it raised (a project error as the same class and
     message; any other as a RuntimeError naming it). ``what`` names the work in the message
     given when the process dies without an answer. The work must not read a model this process
-    opened (the two would share its file offset: see ``_own_file_offset``)."""
+    opened (the two would share its file offset) unless it first takes a file offset of its own
+    (``_own_file_offset``, as ``_run_part`` does)."""
 
     def __init__(self, what: str, fn: Any, *args: Any) -> None:
         import pickle
@@ -407,7 +405,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     runs = [sorted(order[a:b]) for a, b in bounds]
     part_of = {g: k for k, (a, b) in enumerate(bounds) for g in sorted_gids[a:b]}
     tables = tuple(forces.tables)   # read meanwhile by a helper (TablesReadAhead): received here
-    row_files = {k: row_file(k) for k in range(1, len(bounds))} if encode_json else {}
+    row_files = {k: row_file(k) for k in range(len(bounds))} if encode_json else {}
     _SHARED = _Shared(idx, entities, runs, gids, ruleset_ref,
                       forces, shared_tags, analysis, encode_json, slim, len(idx.parse_log),
                       os.getpid(), _file_offsets(idx.file_fds), tables, part_of, row_files)
@@ -428,25 +426,19 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
 
 
 def _run_parts(n: int) -> list[_PartResult]:
-    """Part 0 here, the others in forked processes at the same time."""
-    import multiprocessing
-    from concurrent.futures import ProcessPoolExecutor
-    from concurrent.futures.process import BrokenProcessPool
-
-    pool = ProcessPoolExecutor(max_workers=n - 1, mp_context=multiprocessing.get_context("fork"))
+    """Part 0 here, the others in forked processes at the same time. Each forked part ends as
+    soon as it has sent its result: the memory it gives back then is what the kernel hands out
+    first, to the report's page cache among others (memory this process has not touched for a
+    while may have gone back to the host of a virtual machine, and is slow to fault in again)."""
+    path = _SHARED.idx.path if _SHARED is not None else "the model"
+    forks = [_Forked(f"checking part {k + 1} of {n} of {path}", _run_part, k) for k in range(1, n)]
     try:
-        futures = [pool.submit(_run_part, k) for k in range(1, n)]
         first = _run_part(0)
         with stage("parts: wait + transfer"):
-            try:
-                return [first] + [f.result() for f in futures]
-            except BrokenProcessPool:
-                raise ModelcheckError(f"{_SHARED.idx.path if _SHARED else 'the model'}: a process checking part "
-                                      "of the model stopped unexpectedly (out of memory?); "
-                                      "'--jobs 1' checks it in one process") from None
+            return [first] + [f.result() for f in forks]
     finally:
-        # the workers free a part's worth of objects as they exit: not waited for
-        pool.shutdown(wait=False, cancel_futures=True)
+        for f in forks:
+            f.close()
 
 
 def _in_one_process(data: ModelData, idx: Any, ruleset_ref: str, forces: ForceOptions, validate: bool,

@@ -335,7 +335,7 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
     encoded: list[bytes] = []
     for m, f in _runs_of_members(members, forces):
         if slim:   # the statuses alone come back: the rows are encoded without a results table
-            status, text = _slim_rows(ruleset, m, f)
+            status, text = _slim_rows(ruleset, m, f, sink)   # into the sink, when given, as they are joined
             kept.append(pd.DataFrame({"status": status}))   # a categorical: small to send back, quick to count
         else:
             res = evaluate(m, f)
@@ -352,9 +352,11 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
     return results, (ROW_SEPARATOR.join(encoded) if sink is None else None)
 
 
-def _slim_rows(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame) -> tuple[pd.Categorical, bytes]:
+def _slim_rows(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame,
+               sink: Any = None) -> tuple[pd.Categorical, bytes]:
     """(statuses, JSON rows) of ``members``: what a JSON-only report needs. The suggestions are
-    worked out on a results table of the failing members' rows only."""
+    worked out on a results table of the failing members' rows only. With ``sink`` the rows are
+    written to it (after a separator when it holds rows already) and come back as b""."""
     from modelcheck.design.suggest import suggest
     from modelcheck.report.check_json import encode_check_rows
     from modelcheck.rules.engine import FAIL, check_rows
@@ -369,7 +371,8 @@ def _slim_rows(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame) -> tup
         sel = np.flatnonzero(np.isin(rows.member, rows.member[failing]))   # every row of a failing member
         found = suggest(ruleset, members, forces, rows.frame(sel))["suggestion"].to_numpy(dtype=object)
         suggestions = {int(sel[j]): found[j] for j in np.flatnonzero(pd.notna(found)).tolist()}
-    return pd.Categorical.from_codes(rows.status, categories=list(STATUS_RANK)), encode_check_rows(rows, suggestions)
+    return (pd.Categorical.from_codes(rows.status, categories=list(STATUS_RANK)),
+            encode_check_rows(rows, suggestions, sink))
 
 
 def _runs_of_members(members: pd.DataFrame, forces: pd.DataFrame) -> Any:

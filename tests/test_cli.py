@@ -276,6 +276,31 @@ def test_results_encoded_in_chunks_are_the_rows_encoded_at_once():
     assert encode_results(c.results, chunk=7) == encode_rows(result_dicts(c.results))
 
 
+def test_rows_written_to_a_file_in_blocks_are_the_rows_joined_at_once(tmp_path: Path, monkeypatch):
+    """The JSON rows a part writes into its file, a few rows at a time (after rows already there),
+    are the bytes joined in memory at once (the comparison: orjson's rows, via encode_rows)."""
+    from modelcheck.pipeline import ForceOptions, check_model, read_model
+    from modelcheck.report import check_json
+    from modelcheck.report.check_json import ROW_SEPARATOR, encode_rows, result_dicts
+    from modelcheck.rules.engine import check_rows
+    from modelcheck.rules.ruleset import load_ruleset
+
+    path = str(SAMPLES / "nettlebrook-hall.ifc")
+    forces = ForceOptions(property=("MC_MemberForces", "AxialForce"))
+    data = read_model(path, forces)
+    rows = check_rows(load_ruleset("steel-asd-us"), data.members, data.forces)
+    at_once = check_json.encode_check_rows(rows)
+    monkeypatch.setattr(check_json, "JOIN_BLOCK", 3)
+    assert len(rows) > 3 * 3   # several blocks, the last one partial or not
+    with open(tmp_path / "rows", "wb") as sink:
+        sink.write(b"ROWS")
+        assert check_json.encode_check_rows(rows, sink=sink) == b""
+    assert (tmp_path / "rows").read_bytes() == b"ROWS" + ROW_SEPARATOR + at_once
+    # and the rows themselves are orjson's, row by row (without suggestions: none asked for here)
+    table = check_model(path, "steel-asd-us", forces).results.assign(suggestion=None)
+    assert at_once == encode_rows(result_dicts(table))
+
+
 def test_json_only_rows_are_the_rows_of_the_full_results_table(tmp_path: Path):
     """A JSON-only check encodes its rows where the work runs (here: the batch workers), from the
     engine's arrays, without the results table; beside another format, in one process, the rows

@@ -7,6 +7,7 @@ results are in a stable order (model, GlobalId, check order of the rule set, loa
 from __future__ import annotations
 
 import datetime as _dt
+import itertools
 import math
 import os
 import re
@@ -235,10 +236,17 @@ def _once_per_key(keys: np.ndarray, make: Any) -> np.ndarray:
     return _encode_all([make(i) for i in first_row.tolist()])[codes]
 
 
+#: rows joined at a time when they go to a file: the rows of text never exist whole in memory
+JOIN_BLOCK = 16384
+
+
 def _join_rows(prefix: np.ndarray, mid: np.ndarray, demand: Any, demand_tail: np.ndarray, capacity: Any,
-               capacity_tail: np.ndarray, ratio: Any, missing: Any, message: Any, suggestion: Any) -> bytes:
+               capacity_tail: np.ndarray, ratio: Any, missing: Any, message: Any, suggestion: Any,
+               sink: Any = None) -> bytes:
     """Rows from their pieces: the identity and check parts and the quantities' tails as encoded
-    per row, the rest as values (numbers, missing lists, messages, suggestion dicts or None)."""
+    per row, the rest as values (numbers, missing lists, messages, suggestion dicts or None).
+    With ``sink`` (a binary file) the rows are written to it in blocks of ``JOIN_BLOCK``, after a
+    row separator when the file already holds rows, and b"" is returned."""
     import orjson
 
     n = len(prefix)
@@ -272,13 +280,23 @@ def _join_rows(prefix: np.ndarray, mid: np.ndarray, demand: Any, demand_tail: np
               *quantity(capacity, capacity_tail, _AFTER_CAPACITY), _number_texts(round_sig6(ratio)),
               missing_piece, encoded_messages, end]
     # a row's pieces joined, then the rows: twice as fast as one join over all the pieces
-    return b"".join([b"".join(row) for row in zip(*(p.tolist() for p in pieces), strict=True)])[:-len(_ROW_SEP)]
+    rows = zip(*(p.tolist() for p in pieces), strict=True)
+    if sink is None:
+        return b"".join([b"".join(row) for row in rows])[:-len(_ROW_SEP)]
+    if sink.tell():
+        sink.write(_ROW_SEP)
+    for start in range(0, n, JOIN_BLOCK):
+        block = b"".join([b"".join(row) for row in itertools.islice(rows, JOIN_BLOCK)])
+        sink.write(block if start + JOIN_BLOCK < n else block[:-len(_ROW_SEP)])
+    return b""
 
 
-def encode_check_rows(rows: Any, suggestions: dict[int, dict[str, Any]] | None = None) -> bytes:
+def encode_check_rows(rows: Any, suggestions: dict[int, dict[str, Any]] | None = None, sink: Any = None) -> bytes:
     """The JSON rows of ``rows`` (``modelcheck.rules.engine.CheckRows``), with ``suggestions``
     (row index -> suggestion) on their rows: the same bytes as ``encode_results`` on the results
-    table with those suggestions, without making that table (tested)."""
+    table with those suggestions, without making that table (tested). With ``sink`` (a binary
+    file) they are written to it, after a row separator when it already holds rows, and b"" is
+    returned."""
     n = len(rows)
     if not n:
         return b""
@@ -303,7 +321,7 @@ def encode_check_rows(rows: Any, suggestions: dict[int, dict[str, Any]] | None =
         for i, x in suggestions.items():
             sugg[i] = x
     return _join_rows(prefix, mid, rows.demand, tails[0], rows.capacity, tails[1], rows.ratio, rows.missing,
-                      rows.message, sugg)
+                      rows.message, sugg, sink)
 
 
 class EncodedRows:
