@@ -7,7 +7,6 @@ results are in a stable order (model, GlobalId, check order of the rule set, loa
 from __future__ import annotations
 
 import datetime as _dt
-import itertools
 import math
 import os
 import re
@@ -236,7 +235,7 @@ def _once_per_key(keys: np.ndarray, make: Any) -> np.ndarray:
     return _encode_all([make(i) for i in first_row.tolist()])[codes]
 
 
-#: rows joined at a time when they go to a file: the rows of text never exist whole in memory
+#: rows encoded at a time when they go to a file: the rows of text never exist whole in memory
 JOIN_BLOCK = 16384
 
 
@@ -246,10 +245,20 @@ def _join_rows(prefix: np.ndarray, mid: np.ndarray, demand: Any, demand_tail: np
     """Rows from their pieces: the identity and check parts and the quantities' tails as encoded
     per row, the rest as values (numbers, missing lists, messages, suggestion dicts or None).
     With ``sink`` (a binary file) the rows are written to it in blocks of ``JOIN_BLOCK``, after a
-    row separator when the file already holds rows, and b"" is returned."""
+    row separator when the file already holds rows, and b"" is returned: each block's pieces are
+    made, joined and written before the next block's, so only a block's worth exists at a time."""
     import orjson
 
     n = len(prefix)
+    if sink is not None:
+        for start in range(0, n, JOIN_BLOCK):
+            at = slice(start, start + JOIN_BLOCK)
+            block = _join_rows(prefix[at], mid[at], demand[at], demand_tail[at], capacity[at], capacity_tail[at],
+                               ratio[at], missing[at], message[at], suggestion[at] if suggestion is not None else None)
+            if start or sink.tell():
+                sink.write(_ROW_SEP)
+            sink.write(block)
+        return b""
 
     def quantity(values: Any, tail: np.ndarray, after: str) -> list[np.ndarray]:
         """Three pieces per row: '{"value":', the number and the rest of the object followed by
@@ -280,15 +289,7 @@ def _join_rows(prefix: np.ndarray, mid: np.ndarray, demand: Any, demand_tail: np
               *quantity(capacity, capacity_tail, _AFTER_CAPACITY), _number_texts(round_sig6(ratio)),
               missing_piece, encoded_messages, end]
     # a row's pieces joined, then the rows: twice as fast as one join over all the pieces
-    rows = zip(*(p.tolist() for p in pieces), strict=True)
-    if sink is None:
-        return b"".join([b"".join(row) for row in rows])[:-len(_ROW_SEP)]
-    if sink.tell():
-        sink.write(_ROW_SEP)
-    for start in range(0, n, JOIN_BLOCK):
-        block = b"".join([b"".join(row) for row in itertools.islice(rows, JOIN_BLOCK)])
-        sink.write(block if start + JOIN_BLOCK < n else block[:-len(_ROW_SEP)])
-    return b""
+    return b"".join([b"".join(row) for row in zip(*(p.tolist() for p in pieces), strict=True)])[:-len(_ROW_SEP)]
 
 
 def encode_check_rows(rows: Any, suggestions: dict[int, dict[str, Any]] | None = None, sink: Any = None) -> bytes:
