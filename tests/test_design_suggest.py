@@ -49,7 +49,18 @@ def by_member(out: pd.DataFrame) -> dict[str, Any]:
     return {gid: grp.suggestion.iloc[0] for gid, grp in fails.groupby("global_id")}
 
 
-def test_rod_gets_the_next_unc_size_that_passes() -> None:
+@pytest.fixture(params=["every size", "bisection"])
+def search(request: pytest.FixtureRequest, monkeypatch: pytest.MonkeyPatch) -> str:
+    """Both ways of searching a family of monotone sizes: every size at once (few members), and
+    bisection (forced here; a large model's many failing members take it)."""
+    from modelcheck.design import suggest as module
+
+    if request.param == "bisection":
+        monkeypatch.setattr(module, "EVERY_SIZE_PAIRS", 0)
+    return request.param
+
+
+def test_rod_gets_the_next_unc_size_that_passes(search: str) -> None:
     rs = load_ruleset("steel-asd-us")
     d = 0.75 * IN
     m = members(a36(shape="round-bar", name="HANGER ROD", d=d, area=math.pi / 4 * d * d, r_min=d / 4, length=2.0))
@@ -142,7 +153,7 @@ def _replace(m: pd.DataFrame, gid: str, designation: str, family: str, ruleset: 
 @pytest.mark.parametrize(("name", "rules"), [
     ("canopy", "steel-asd-us"), ("hall", "steel-ec3"), ("hall", "hanger-rods"), ("pipebridge", "steel-ec3"),
 ])
-def test_every_suggestion_on_the_samples_passes_all_its_checks(name: str, rules: str) -> None:
+def test_every_suggestion_on_the_samples_passes_all_its_checks(name: str, rules: str, search: str) -> None:
     from modelcheck.loads.tables import read_load_table
     from modelcheck.pipeline import ForceOptions, read_model
 
@@ -182,3 +193,24 @@ def test_suggestion_matches_the_report_schema() -> None:
     for s in out.suggestion:
         jsonschema.validate(s, sub)
     json.dumps([s for s in out.suggestion], allow_nan=False)
+
+
+@pytest.mark.parametrize("name", ["canopy", "hall"])
+def test_bisection_and_every_size_suggest_the_same(name: str, monkeypatch: pytest.MonkeyPatch) -> None:
+    """In a family whose every check improves with size, the first size that passes (bisection) is
+    the smallest that passes (every size tried): the same suggestion either way (common practice:
+    area and radius of gyration grow along a bar or rod series)."""
+    from modelcheck.design import suggest as module
+    from modelcheck.loads.tables import read_load_table
+    from modelcheck.pipeline import ForceOptions, read_model
+
+    opts = ForceOptions(tables=(read_load_table(str(ROOT / "sample_models" / f"nettlebrook-{name}-forces.csv")),),
+                        property=("MC_MemberForces", "AxialForce"))
+    d = read_model(str(ROOT / "sample_models" / f"nettlebrook-{name}.ifc"), opts)
+    rs = load_ruleset("steel-asd-us")
+    res = run_checks(rs, d.members, d.forces)
+    every = by_member(suggest(rs, d.members, d.forces, res))
+    monkeypatch.setattr(module, "EVERY_SIZE_PAIRS", 0)
+    halved = by_member(suggest(rs, d.members, d.forces, res))
+    assert every == halved
+    assert any(s and s["family"].startswith(("threaded", "round", "square")) for s in every.values())

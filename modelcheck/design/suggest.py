@@ -42,6 +42,11 @@ from modelcheck.units import Q_
 #: pairs per run_checks call (a memory bound for very large failing sets)
 CHUNK = 200_000
 
+#: a family of monotone sizes is searched by bisection only when its members × sizes exceed this:
+#: below it, one evaluation of every size costs less than a round of evaluations per halving
+#: (the smallest size that passes is the same either way)
+EVERY_SIZE_PAIRS = 20_000
+
 #: candidate families in which every check only gets better with the next size (a larger bar
 #: or thread has more area and a larger radius of gyration): searched by bisection
 MONOTONE = ("round", "square", "threaded")
@@ -205,7 +210,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
             notes[idx] = f"no suggestion: no {family} sizes"
             continue
         nc = len(cands)
-        if k[0] not in MONOTONE:
+        if k[0] not in MONOTONE or len(idx) * nc <= EVERY_SIZE_PAIRS:
             exhaustive.append((np.repeat(idx, nc), pd.concat([cands] * len(idx), ignore_index=True)
                                .assign(_order=np.tile(np.arange(nc), len(idx))), family))
             continue
