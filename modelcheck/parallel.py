@@ -71,7 +71,7 @@ class _Shared:
     parent_pid: int
     offsets: dict[int, int]        # file offsets of the parser's descriptors at the fork
     tables: tuple[pd.DataFrame, ...]   # the load tables, whole: each part takes its rows
-    part_of: dict[str, int]        # GlobalId -> its part
+    part_starts: np.ndarray        # the first GlobalId of each part but the first (in sorted order)
     row_files: dict[int, int]      # part -> descriptor of the memory file its JSON rows go to
 
 
@@ -92,12 +92,13 @@ class _PartResult:
     member_count: int
 
 
-def _table_part(table: pd.DataFrame, part_of: dict[str, int], k: int) -> pd.DataFrame:
-    """A load table's rows for part ``k``: the GlobalId rows of its members (a row of no member of
-    the model goes to none: unmatched here) and every tag row. Cut in each part, at the same time."""
-    where = table["key"].map(part_of).where(table["key_kind"] == "global_id", -2).fillna(-1)
-    where = where.to_numpy(dtype=np.int64)
-    return table[(where == k) | (where == -2)]
+def _table_part(table: pd.DataFrame, part_starts: np.ndarray, k: int) -> pd.DataFrame:
+    """A load table's rows for part ``k``: the GlobalId rows in its run of GlobalIds and every tag
+    row. Cut in each part, at the same time. A GlobalId of no member goes to the part whose run it
+    falls in, where it matches nothing: unmatched, as in any other part."""
+    keys = table["key"].fillna("").to_numpy(dtype=object)
+    part = np.searchsorted(part_starts, keys, side="right")
+    return table[(part == k) | (table["key_kind"] != "global_id").to_numpy()]
 
 
 def _bounds(gids: list[str], parts: int) -> list[tuple[int, int]]:
@@ -174,7 +175,8 @@ def _run_part(k: int) -> _PartResult:
             ana = ana[ana["global_id"].isin(gids)]
         analysis = (ana, [])
     # each load table cut down to the rows this part can match: its GlobalIds, and every tag row
-    opts = replace(st.forces, tables=tuple(_table_part(t, st.part_of, k) for t in st.tables))
+    with stage(f"part {k}: its load table rows"):
+        opts = replace(st.forces, tables=tuple(_table_part(t, st.part_starts, k) for t in st.tables))
     with stage(f"part {k}: read + forces"):
         read_into(data, idx, opts, entities, analysis=analysis, prop_log=log, shared_tags=st.shared_tags)
     new_log = list(idx.parse_log[st.log_start:])
@@ -378,7 +380,8 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     except ModelcheckError as exc:
         data.error = str(exc)
         return CheckedModel(data)
-    describe_model(data, idx, validate)
+    with stage("describe model"):
+        describe_model(data, idx, validate)
     parts = min(parts, len(entities) // MIN_MEMBERS_PER_PART)
     with stage("members in GlobalId order"):
         order = sorted(range(len(entities)), key=gids.__getitem__)
@@ -401,14 +404,16 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
             data.error = unreadable_model(path, exc)
             return CheckedModel(data)
     idx.drain_log()
-    bounds = _bounds(sorted_gids, parts)
-    runs = [sorted(order[a:b]) for a, b in bounds]
-    part_of = {g: k for k, (a, b) in enumerate(bounds) for g in sorted_gids[a:b]}
-    tables = tuple(forces.tables)   # read meanwhile by a helper (TablesReadAhead): received here
+    with stage("share out"):
+        bounds = _bounds(sorted_gids, parts)
+        runs = [sorted(order[a:b]) for a, b in bounds]
+        part_starts = np.array([sorted_gids[a] for a, _ in bounds[1:]], dtype=object)
+    with stage("load tables (helper)"):
+        tables = tuple(forces.tables)   # read meanwhile by a helper (TablesReadAhead): received here
     row_files = {k: row_file(k) for k in range(len(bounds))} if encode_json else {}
     _SHARED = _Shared(idx, entities, runs, gids, ruleset_ref,
                       forces, shared_tags, analysis, encode_json, slim, len(idx.parse_log),
-                      os.getpid(), _file_offsets(idx.file_fds), tables, part_of, row_files)
+                      os.getpid(), _file_offsets(idx.file_fds), tables, part_starts, row_files)
     try:
         with stage("parts"):
             outs = _run_parts(len(_SHARED.parts))
