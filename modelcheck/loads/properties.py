@@ -89,7 +89,8 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
     eids = (dict(zip(mine, members.loc[sel, "entity_id"], strict=True)) if "entity_id" in members.columns
             else {})
     f = idx.file
-    type_cache: dict[int, Any] = {}
+    type_cache: dict[int, tuple[Any, Any, str]] = {}   # id(type) -> (type, its property or None, origin)
+    psets_of = idx.psets_of
     reading_cache: dict[int, _Reading] = {}
     gids: list[str] = []
     raws: list[float] = []
@@ -126,22 +127,23 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
             except RuntimeError:
                 log.add("is not in the model (no such GlobalId): no property read", gid)
                 continue
-        psets = idx.psets_named(eid, pset_name)
+        psets = idx.psets_named(eid, pset_name) if eid in psets_of else None
         prop = _find(psets, pset_name, prop_name) if psets else None
         origin = "occurrence"
         if prop is None:
             typ = idx.type_of.get(eid)
             if typ is None:
                 continue
-            tid = typ.id()
-            if tid not in type_cache:
-                type_cache[tid] = _find(idx.type_psets(typ), pset_name, prop_name)
-            prop = type_cache[tid]
+            hit = type_cache.get(id(typ))
+            if hit is None or hit[0] is not typ:   # the entry keeps typ alive: its id stays its own
+                tid = typ.id()
+                found = _find(idx.type_psets(typ), pset_name, prop_name)
+                hit = type_cache[id(typ)] = (typ, found, f"type {typ.Name}" if typ.Name else f"type #{tid}")
+            _, prop, origin = hit
             if prop is None:
                 continue
-            origin = f"type {typ.Name}" if typ.Name else f"type #{tid}"
-        pid = prop.id()
         raw = _plain_force(prop)
+        pid = prop.id() if raw is None or prop_cases else 0
         if raw is not None:
             key = "FORCEUNIT"
         else:
@@ -154,7 +156,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
             raw, key = reading.raw, reading.unit_key
         gids.append(gid)
         raws.append(raw)
-        cases.append(prop_cases.get(pid, case))
+        cases.append(prop_cases.get(pid, case) if prop_cases else case)
         keys.append(key)
         sources.append(source_of.get(origin) or source_of.setdefault(origin, f"{label} ({origin})"))
     if not gids:
