@@ -107,6 +107,7 @@ class _Reader:
         self._body_cache: dict[int, tuple[Section | str | None, tuple[float, str] | None]] = {}
         self._type_facts_cache: dict[int, tuple[Any, ...]] = {}
         self._same: dict[tuple[int, int], tuple[Section, Section, bool]] = {}
+        self._own_select: dict[int, tuple[Any, MaterialInfo | None, Section | str | None]] = {}
         self._doubts: dict[int, tuple[Section, str | None]] = {}   # sections are shared: judged once
         self._type_cache: dict[int, tuple[str | None, Any, list[Any]]] = {}
         self._select_cache: dict[int, tuple[MaterialInfo | None, Section | str | None]] = {}
@@ -386,7 +387,12 @@ class _Reader:
 
         # --- material and profile sets: the occurrence's own, else its type's
         own_sel = idx.material_of.get(eid)
-        minfo, own_sec = self.selection(own_sel) if own_sel is not None else (None, None)
+        minfo = own_sec = None
+        if own_sel is not None:   # the relationship's select, one object shared by its members
+            hit = self._own_select.get(id(own_sel))
+            if hit is None or hit[0] is not own_sel:   # the entry keeps own_sel alive
+                hit = self._own_select[id(own_sel)] = (own_sel, *self.selection(own_sel))
+            minfo, own_sec = hit[1], hit[2]
         if minfo is None:
             minfo = tinfo
 
@@ -404,8 +410,15 @@ class _Reader:
         if rep is not None:
             body_sec, body_len, axis_len = self._representation(rep)
         if isinstance(body_sec, Section):
-            if not (candidates and self._same_profile(candidates[0], body_sec)):
-                candidates.append(body_sec)  # the same profile entity twice needs no comparison
+            if candidates:   # the same profile entity twice needs no comparison
+                first = candidates[0]
+                same = self._same.get((id(first), id(body_sec)))
+                if same is None or same[0] is not first or same[1] is not body_sec:
+                    same = self._same_profile(first, body_sec)
+                if not same[2]:
+                    candidates.append(body_sec)
+            else:
+                candidates.append(body_sec)
         elif isinstance(body_sec, str):
             problems.append(body_sec)
         if cls == "IfcTendon":
@@ -500,14 +513,12 @@ class _Reader:
         return (gid, cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
                 section, minfo, length, length_src, warnings, eid, net)
 
-    def _same_profile(self, a: Section, b: Section) -> bool:
-        """Whether two sections name the same profile entity (their sources' first two words);
-        sections are shared, so each pair is judged once."""
-        key = (id(a), id(b))
-        hit = self._same.get(key)
-        if hit is None or hit[0] is not a or hit[1] is not b:   # the entry keeps both alive
-            hit = self._same[key] = (a, b, a.source.split(" ", 2)[:2] == b.source.split(" ", 2)[:2])
-        return hit[2]
+    def _same_profile(self, a: Section, b: Section) -> tuple[Section, Section, bool]:
+        """(a, b, whether the two sections name the same profile entity: their sources' first two
+        words), kept in ``_same`` by the pair's ids (the entry keeps both alive): sections are
+        shared, so each pair is judged once."""
+        hit = self._same[(id(a), id(b))] = (a, b, a.source.split(" ", 2)[:2] == b.source.split(" ", 2)[:2])
+        return hit
 
     def _net_from(self, sets: list[Any], where: str, warnings: list[str]) -> tuple[float, str | None] | None:
         """The net area from ``sets`` (of the occurrence or its type); None where they lack it."""
