@@ -447,7 +447,6 @@ def cmd_check(args: argparse.Namespace) -> int:
     args = merge_config(args)
     from modelcheck.pipeline import expand_paths
     from modelcheck.report.check_json import check_document
-    from modelcheck.report.console import render_check
     from modelcheck.rules.ruleset import load_ruleset
 
     if not args.models:
@@ -517,6 +516,8 @@ def cmd_check(args: argparse.Namespace) -> int:
     if args.annotate:
         _annotate(run, args.annotate, inputs)
     if "console" in formats:
+        from modelcheck.report.console import render_check   # rich: imported only for a console report
+
         comp_view = None
         if comparison is not None:
             from modelcheck.report.compare import comparison_renderable
