@@ -516,7 +516,7 @@ def cmd_check(args: argparse.Namespace) -> int:
     if args.annotate:
         _annotate(run, args.annotate, inputs)
     if "console" in formats:
-        from modelcheck.report.console import render_check   # rich: imported only for a console report
+        from modelcheck.report.console import render_check  # rich: imported only for a console report
 
         comp_view = None
         if comparison is not None:
