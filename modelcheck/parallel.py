@@ -225,10 +225,12 @@ class _Forked:
         self._done = False
         self._value: Any = None
         self._error: Exception | None = None   # raised again at every later call
-        read_fd, write_fd = os.pipe()
+        # the answer goes into a memory file, not a pipe: the helper writes it at once and ends
+        # (giving its memory back), instead of waiting for this process to drain a pipe block by
+        # block, each block a switch between the two
+        fd = memory_file("modelcheck-helper")
         pid = os.fork()
         if pid == 0:   # the helper: work, send, end without the parent's exit handlers
-            os.close(read_fd)
             try:
                 try:
                     payload: tuple[str, Any] = ("ok", fn(*args))
@@ -236,12 +238,11 @@ class _Forked:
                     payload = ("error", (type(exc).__name__, str(exc)))
                 except Exception as exc:  # noqa: BLE001  (a bug: named in the parent, not lost)
                     payload = ("crash", f"{type(exc).__name__}: {exc}")
-                with os.fdopen(write_fd, "wb") as out:
+                with os.fdopen(fd, "wb") as out:
                     pickle.dump(payload, out, protocol=pickle.HIGHEST_PROTOCOL)
             finally:
                 os._exit(0)
-        os.close(write_fd)
-        self._pid, self._fd = pid, read_fd
+        self._pid, self._fd = pid, fd
 
     def result(self) -> Any:
         if self._error is not None:
@@ -260,9 +261,10 @@ class _Forked:
 
         from modelcheck import errors
 
+        os.waitpid(self._pid, 0)   # the answer is whole once the helper has ended
+        os.lseek(self._fd, 0, os.SEEK_SET)   # where the helper's writes left the shared offset
         with os.fdopen(self._fd, "rb") as src:
             data = src.read()
-        os.waitpid(self._pid, 0)
         try:
             kind, value = pickle.loads(data)
         except Exception:  # noqa: BLE001  (the helper died before it could send anything)
@@ -277,7 +279,7 @@ class _Forked:
 
     def close(self) -> None:
         """Stop the helper if its answer was never asked for (the check stopped before): it would
-        otherwise wait on a full pipe for as long as this process lives."""
+        otherwise work on for nothing."""
         if not self._done and self._error is None:
             self._error = ModelcheckError(f"{self._what}: not done (the check had stopped)")
             os.close(self._fd)
@@ -299,7 +301,7 @@ class TablesReadAhead:
 
     Opening a large model keeps this process busy for a second or more, with the other cores
     idle; reading a 100,000-row table takes a quarter of that. The helper reads the tables and
-    sends them back through a pipe; the first use of the tables (iterating, ``len``, indexing)
+    sends them back (``_Forked``); the first use of the tables (iterating, ``len``, indexing)
     waits for it. Behaves as the tuple of tables it stands for. An error reading a table is
     raised at that first use, with the message the table's reader gave."""
 
@@ -323,14 +325,19 @@ class TablesReadAhead:
 
 
 def row_file(k: int) -> int:
-    """A descriptor of a new, empty file for the JSON rows of part (or batch model) ``k``: in
-    memory where the system has memory files (nothing goes to disk, and nothing is left when the
-    command ends), else an unnamed temporary file."""
+    """A descriptor of a new, empty file for the JSON rows of part (or batch model) ``k``
+    (``memory_file``)."""
+    return memory_file(f"modelcheck-rows-{k}")
+
+
+def memory_file(name: str) -> int:
+    """A descriptor of a new, empty file: in memory where the system has memory files (nothing
+    goes to disk, and nothing is left when the command ends), else an unnamed temporary file."""
     if hasattr(os, "memfd_create"):
-        return os.memfd_create(f"modelcheck-rows-{k}")
+        return os.memfd_create(name)
     import tempfile
 
-    with tempfile.TemporaryFile(prefix="modelcheck-rows-") as fh:
+    with tempfile.TemporaryFile(prefix=f"{name}-") as fh:
         return os.dup(fh.fileno())
 
 
