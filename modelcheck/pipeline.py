@@ -452,13 +452,26 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
             release_rows([f for f in files if f is not None and f not in used])
     else:
         # one model and several processes: the model is shared out among them
+        from modelcheck.parallel import release_rows, row_file
+
         parts = jobs if len(paths) == 1 else 1
-        for p in paths:
-            # JSON rows made here as the models are checked: where they would be made anyway from a
-            # results table for the report alone, without that table (slim)
-            checked.append(check_model(p, ref, forces, validate, encode_json and (parts > 1 or slim), parts, slim))
-            if progress is not None:
-                progress()
+        # JSON rows made here as the models are checked: where they would be made anyway from a
+        # results table for the report alone, without that table (slim); into a memory file, as
+        # they are joined, block by block (a shared-out model's parts make their own)
+        here = encode_json and (parts > 1 or slim)
+        fd = None
+        try:
+            for i, p in enumerate(paths):
+                fd = row_file(i) if here else None
+                checked.append(check_model(p, ref, forces, validate, here, parts, slim, fd))
+                if fd is not None and checked[-1].json_rows != fd:
+                    release_rows([fd])   # not used: the model was shared out, or could not be read
+                fd = None
+                if progress is not None:
+                    progress()
+        except BaseException:
+            release_rows([fd] + [c.json_rows for c in checked if isinstance(c.json_rows, int)])
+            raise
     frames = [c.results for c in checked if c.results is not None and len(c.results)]
     results = (pd.concat(frames, ignore_index=True) if frames
                else pd.DataFrame({c: pd.Series(dtype=object) for c in RESULT_COLUMNS}))
