@@ -794,7 +794,6 @@ def member_entities(idx: ModelIndex) -> list[tuple[Any, bool]]:
     """(element, is_analysis_member) for every axial-member candidate, in file order."""
     f = idx.file
     seen: set[int] = set()
-    out: list[tuple[Any, bool]] = []
 
     def by_type(cls: str) -> list[Any]:
         try:
@@ -802,24 +801,32 @@ def member_entities(idx: ModelIndex) -> list[tuple[Any, bool]]:
         except RuntimeError:  # class not in this schema
             return []
 
+    keyed: list[tuple[int, Any, bool]] = []   # (entity id, element, is_analysis_member)
     for cls in MEMBER_CLASSES:
         for el in by_type(cls):
-            if el.id() not in seen:
-                seen.add(el.id())
-                out.append((el, False))
+            eid = el.id()
+            if eid not in seen:
+                seen.add(eid)
+                keyed.append((eid, el, False))
     for cls in SWEEP_CLASSES:
         for el in by_type(cls):
-            if el.id() not in seen and _has_sweep_body(el):
-                seen.add(el.id())
-                out.append((el, False))
+            eid = el.id()
+            if eid not in seen and _has_sweep_body(el):
+                seen.add(eid)
+                keyed.append((eid, el, False))
     assigned = {o.id() for objs in idx.assigned_to.values() for o in objs}
     # also the reversed assignment: the curve member relating, the physical element related
     assigned |= {pid for pid, objs in idx.assigned_to.items() if any(o.is_a("IfcElement") for o in objs)}
     for el in by_type("IfcStructuralCurveMember"):
-        if el.id() not in assigned:
-            out.append((el, True))
-    out.sort(key=lambda t: t[0].id())
-    return out
+        eid = el.id()
+        if eid not in assigned:
+            keyed.append((eid, el, True))
+    keyed.sort(key=_first)
+    return [(el, analysis) for _, el, analysis in keyed]
+
+
+def _first(item: tuple[Any, ...]) -> Any:
+    return item[0]
 
 
 def member_keys(idx: ModelIndex, entities: list[tuple[Any, bool]]) -> tuple[list[str], list[str | None]]:
