@@ -9,7 +9,6 @@ from __future__ import annotations
 import datetime as _dt
 import math
 import os
-import re
 from json.encoder import encode_basestring as _escape  # noqa: E402  (C escaper: "…" with \" \\ \n \u00XX)
 from typing import Any
 
@@ -138,20 +137,22 @@ def _text(value: Any) -> str:
     return _escape(value)
 
 
-#: what a JSON string must escape (orjson and the standard library alike) but NUL: quote,
-#: backslash and the other control characters
-_ESCAPED_BUT_NUL = re.compile(r'["\\\x01-\x1f]')
-
-
 def _json_texts(texts: list[str]) -> np.ndarray:
     """UTF-8 JSON strings of ``texts``. When none needs an escape (the usual case for messages),
     the quotes are joined in around all of them at once instead of escaping each."""
     if not texts:
         return _objects([])
-    joined = "\x00".join(texts)
-    if joined.count("\x00") == len(texts) - 1 and not _ESCAPED_BUT_NUL.search(joined):
-        return _objects(('"' + '"\x00"'.join(texts) + '"').encode("utf-8").split(b"\x00"))
+    raw = "\x00".join(texts).encode("utf-8")
+    if raw.count(b"\x00") == len(texts) - 1 and not _needs_escape(raw):
+        return _objects((b'"' + raw.replace(b"\x00", b'"\x00"') + b'"').split(b"\x00"))
     return _encode_all([_escape(t) for t in texts])
+
+
+def _needs_escape(raw: bytes) -> bool:
+    """Whether UTF-8 text holds a byte a JSON string escapes, NUL aside: a quote, a backslash or
+    another control character (the bytes of a multi-byte character are all 0x80 and above)."""
+    b = np.frombuffer(raw, dtype=np.uint8)
+    return bool((((b < 0x20) & (b != 0)) | (b == 0x22) | (b == 0x5C)).any())
 
 
 def _encode_all(texts: list[str]) -> np.ndarray:
