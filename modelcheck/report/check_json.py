@@ -210,12 +210,22 @@ _AFTER_CAPACITY = ',"ratio":'
 def _identity_texts(models: list[Any], gids: list[Any], classes: list[Any], names: list[Any],
                     tags: list[Any]) -> np.ndarray:
     """The start of a row up to its check, for members given by their five identity values."""
-    def texts(values: list[Any]) -> np.ndarray:
-        return _objects([_escape(v) if type(v) is str else _text(_none(v)) for v in values])
+    cols = [_column_texts(v).tolist() for v in (models, gids, classes, names, tags)]
+    k0, k1, k2, k3, k4, k5 = (b'{"model":', b',"global_id":', b',"ifc_class":', b',"name":', b',"tag":',
+                              b',"check":')
+    return _objects([b"".join((k0, m, k1, g, k2, c, k3, n, k4, t, k5)) for m, g, c, n, t in zip(*cols, strict=True)])
 
-    return _encode_all(('{"model":' + texts(models) + ',"global_id":' + texts(gids) + ',"ifc_class":'
-                        + texts(classes) + ',"name":' + texts(names) + ',"tag":' + texts(tags)
-                        + ',"check":').tolist())
+
+def _column_texts(values: list[Any]) -> np.ndarray:
+    """UTF-8 JSON texts of a column's values (null for None or NaN): texts that need no escape all
+    at once; a column with other values, each distinct value once."""
+    if all(type(v) is str for v in values):
+        return _json_texts(values)
+    codes, uniques = pd.factorize(pd.Series(values, dtype=object), use_na_sentinel=False)
+    distinct = list(uniques)
+    if all(type(u) is str for u in distinct):
+        return _json_texts(distinct)[codes]
+    return _encode_all([_escape(u) if type(u) is str else _text(_none(u)) for u in distinct])[codes]
 
 
 def _mid_text(check: Any, load_case: Any, status: Any) -> str:
