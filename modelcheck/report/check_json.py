@@ -119,10 +119,14 @@ def round_sig6(values: Any) -> np.ndarray:
 
 
 def _number_texts(values: np.ndarray) -> np.ndarray:
-    """JSON texts (bytes) of rounded numbers (b'null' for NaN), from a single orjson call."""
+    """JSON texts (bytes) of rounded numbers (b'null' for NaN, as orjson writes a non-finite
+    float), from a single orjson call over the array."""
     import orjson
 
-    return _objects(orjson.dumps([None if v != v else v for v in values.tolist()])[1:-1].split(b","))
+    if not len(values):
+        return _objects([])
+    return _objects(orjson.dumps(np.ascontiguousarray(values, dtype=np.float64),
+                                 option=orjson.OPT_SERIALIZE_NUMPY)[1:-1].split(b","))
 
 
 def _text(value: Any) -> str:
