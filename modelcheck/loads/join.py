@@ -244,7 +244,9 @@ def _match_table(rows: pd.DataFrame, ids: pd.DataFrame, shared: dict[str, tuple[
                      how="left")
     g_hit = g[g["model"].notna()]
 
-    tagged = ids[ids["tag"].notna() & (ids["tag"].astype(str).str.strip() != "")]
+    tagged = ids.iloc[0:0]   # no tag rows (the usual table): the members' tags need no cleaning
+    if len(by_tag):
+        tagged = ids[ids["tag"].notna() & (ids["tag"].astype(str).str.strip() != "")]
     tagged = tagged.assign(tag=tagged["tag"].astype(str))
     t = by_tag.merge(tagged, left_on="key", right_on="tag", how="left")
     t_hit = t[t["model"].notna()]
