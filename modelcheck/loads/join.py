@@ -130,6 +130,30 @@ class ForceReport:
         return out
 
 
+def _member_codes(pairs: list[tuple[Any, Any]]) -> Any:
+    """A function from a frame's (model, global_id) columns to each row's position in ``pairs``
+    (sorted, distinct), -1 for a pair not there. One model (the usual case, and always in a part
+    of one): a hashed look-up of the GlobalIds over arrays; several: one look-up per row."""
+    models = {m for m, _ in pairs}
+    if len(models) == 1:
+        (model,) = models
+        index = pd.Index([g for _, g in pairs], dtype=object)
+
+        def one_model(frame: pd.DataFrame) -> np.ndarray:
+            codes = index.get_indexer(frame["global_id"].to_numpy(dtype=object)).astype(np.int64)
+            codes[(frame["model"] != model).to_numpy()] = -1
+            return codes
+
+        return one_model
+    code_of = {pair: i for i, pair in enumerate(pairs)}
+
+    def any_models(frame: pd.DataFrame) -> np.ndarray:
+        return np.fromiter((code_of.get(p, -1) for p in zip(frame["model"].tolist(), frame["global_id"].tolist(),
+                                                                strict=True)), dtype=np.int64, count=len(frame))
+
+    return any_models
+
+
 def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
                 property_forces: pd.DataFrame | None = None, analysis_forces: pd.DataFrame | None = None,
                 *, messages: Sequence[str] = (),
@@ -151,8 +175,12 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
 
     # each member (model, GlobalId) as an integer, in sorted order: the rest of the join works on
     # integers (one hash or sort of text here instead of one per step)
-    pairs = sorted(set(zip(ids["model"].tolist(), ids["global_id"].tolist(), strict=True)))
-    code_of = {pair: i for i, pair in enumerate(pairs)}
+    models = ids["model"].tolist()
+    if len(set(models)) <= 1:   # one model (always, in a part of one): its GlobalIds alone are sorted
+        pairs = [(models[0], g) for g in sorted(set(ids["global_id"].tolist()))] if models else []
+    else:
+        pairs = sorted(set(zip(models, ids["global_id"].tolist(), strict=True)))
+    member_code = _member_codes(pairs)
 
     parts: list[pd.DataFrame] = []
     rows = _table_rows(tables, extra_messages)
@@ -165,8 +193,7 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
         if frame is None or frame.empty:
             continue
         fr = frame[list(FORCE_COLUMNS)].reset_index(drop=True)
-        hit = np.fromiter((p in code_of for p in zip(fr["model"].tolist(), fr["global_id"].tolist(), strict=True)),
-                          dtype=bool, count=len(fr))
+        hit = member_code(fr) >= 0
         unmatched += [UnmatchedRow("global_id", g, c, s) for g, c, s in
                       fr.loc[~hit, ["global_id", "load_case", "source"]].itertuples(index=False)]
         parts.append(fr[hit].assign(_order=np.arange(int(hit.sum())), _route=route))
@@ -179,8 +206,7 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
     first = np.lexsort((allf["_order"].to_numpy(dtype=np.int64), route))   # by route, then row order
     allf = allf.iloc[first].reset_index(drop=True)
     route = route[first]
-    member = np.fromiter((code_of[p] for p in zip(allf["model"].tolist(), allf["global_id"].tolist(), strict=True)),
-                         dtype=np.int64, count=len(allf))
+    member = member_code(allf)   # every row here is a member's
     case_codes, cases = pd.factorize(allf["load_case"], use_na_sentinel=False)
     case = member * (len(cases) + 1) + case_codes       # one integer per member and load case
     keys = ["model", "global_id", "load_case"]
