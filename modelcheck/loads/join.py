@@ -135,7 +135,7 @@ def _member_codes(pairs: list[tuple[Any, Any]]) -> Any:
     (sorted, distinct), -1 for a pair not there. One model (the usual case, and always in a part
     of one): a hashed look-up of the GlobalIds over arrays; several: one look-up per row."""
     models = {m for m, _ in pairs}
-    if len(models) == 1:
+    if len(models) == 1 and isinstance(next(iter(models)), str):
         (model,) = models
         index = pd.Index([g for _, g in pairs], dtype=object)
 
@@ -176,7 +176,8 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
     # each member (model, GlobalId) as an integer, in sorted order: the rest of the join works on
     # integers (one hash or sort of text here instead of one per step)
     models = ids["model"].tolist()
-    if len(set(models)) <= 1:   # one model (always, in a part of one): its GlobalIds alone are sorted
+    if len(set(models)) <= 1 and all(isinstance(m, str) for m in models[:1]):
+        # one model (always, in a part of one): its GlobalIds alone are sorted
         pairs = [(models[0], g) for g in sorted(set(ids["global_id"].tolist()))] if models else []
     else:
         pairs = sorted(set(zip(models, ids["global_id"].tolist(), strict=True)))
@@ -266,9 +267,15 @@ def _match_table(rows: pd.DataFrame, ids: pd.DataFrame, shared: dict[str, tuple[
     by_tag = rows[rows["key_kind"] == "tag"]
     cols = list(FORCE_COLUMNS) + ["_order"]
 
-    g = by_gid.merge(ids[["model", "global_id"]].drop_duplicates(), left_on="key", right_on="global_id",
-                     how="left")
-    g_hit = g[g["model"].notna()]
+    models = ids["model"].unique()
+    if len(models) == 1 and isinstance(models[0], str):   # one model: a hashed look-up among its GlobalIds
+        found = pd.Index(ids["global_id"].unique(), dtype=object).get_indexer(by_gid["key"].to_numpy(dtype=object))
+        g_hit = by_gid[found >= 0]
+        g_hit = g_hit.assign(model=models[0], global_id=g_hit["key"])
+    else:
+        g = by_gid.merge(ids[["model", "global_id"]].drop_duplicates(), left_on="key", right_on="global_id",
+                         how="left")
+        g_hit = g[g["model"].notna()]
 
     tagged = ids.iloc[0:0]   # no tag rows (the usual table): the members' tags need no cleaning
     if len(by_tag):
