@@ -102,9 +102,11 @@ class ModelIndex:
 
     def psets_named(self, eid: int, name: str) -> list[Any]:
         """The property or quantity sets called ``name`` of object ``eid`` (occurrence only)."""
+        sets = self._sets
         out = []
         for sid in self.psets_of.get(eid, ()):
-            ent, n = self._set(sid)
+            hit = sets.get(sid)
+            ent, n = hit if hit is not None else self._set(sid)
             if n == name:
                 out.append(ent)
         return out

@@ -100,11 +100,12 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
     # a LoadCase label beside the force in the same property set names the case of that force
     prop_cases: dict[int, str] = {}
 
-    def _find(psets: Any, pset: str, name: str) -> Any:
+    def _find(psets: Any, pset: str, name: str, named: bool = False) -> Any:
         # attributes by position (IfcPropertySet: Name 2, HasProperties 4; IfcProperty: Name 0;
-        # IfcPropertySingleValue: NominalValue 2, in every schema): several times faster than by name
+        # IfcPropertySingleValue: NominalValue 2, in every schema): several times faster than by name.
+        # ``named``: the sets are already those called ``pset``
         for ps in psets:
-            if ps.is_a("IfcPropertySet") and ps.get_argument(2) == pset:
+            if ps.is_a("IfcPropertySet") and (named or ps.get_argument(2) == pset):
                 found = label = None
                 for p in ps.get_argument(4) or ():
                     pname = p.get_argument(0)
@@ -128,7 +129,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
                 log.add("is not in the model (no such GlobalId): no property read", gid)
                 continue
         psets = idx.psets_named(eid, pset_name) if eid in psets_of else None
-        prop = _find(psets, pset_name, prop_name) if psets else None
+        prop = _find(psets, pset_name, prop_name, True) if psets else None
         origin = "occurrence"
         if prop is None:
             typ = idx.type_of.get(eid)
