@@ -28,6 +28,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
+from operator import itemgetter
 from typing import Any
 
 import numpy as np
@@ -107,7 +108,7 @@ class _Reader:
         self._body_cache: dict[int, tuple[Section | str | None, tuple[float, str] | None]] = {}
         self._type_facts_cache: dict[int, tuple[Any, ...]] = {}
         self._same: dict[tuple[int, int], tuple[Section, Section, bool]] = {}
-        self._own_select: dict[int, tuple[Any, MaterialInfo | None, Section | str | None]] = {}
+        self._select_objects: dict[int, tuple[Any, tuple[MaterialInfo | None, Section | str | None]]] = {}
         self._doubts: dict[int, tuple[Section, str | None]] = {}   # sections are shared: judged once
         self._type_cache: dict[int, tuple[str | None, Any, list[Any]]] = {}
         self._select_cache: dict[int, tuple[MaterialInfo | None, Section | str | None]] = {}
@@ -213,11 +214,12 @@ class _Reader:
         """Length of a straight-segment curve in file units (None if not a polyline-like curve)."""
         cls = curve.is_a()
         if cls == "IfcPolyline":
-            pts = [p.get_argument(0) for p in curve.get_argument(0)]
+            points = curve.get_argument(0)
+            if len(points) == 2:   # the usual axis: its two ends
+                return math.dist(points[0].get_argument(0), points[1].get_argument(0))
+            pts = [p.get_argument(0) for p in points]
             if len(pts) < 2:
                 return None
-            if len(pts) == 2:
-                return math.dist(pts[0], pts[1])
             return sum(math.dist(a, b) for a, b in zip(pts[:-1], pts[1:], strict=True))
         elif cls == "IfcIndexedPolyCurve":
             if curve.Segments:
@@ -335,7 +337,11 @@ class _Reader:
 
     # -------------------------------------------------------------------- member
     def selection(self, sel: Any) -> tuple[MaterialInfo | None, Section | str | None]:
-        """(material, section of its profile set) of a material select; cached by entity id."""
+        """(material, section of its profile set) of a material select; cached by entity id, and by
+        object too (a relationship's select is one object shared by all its members)."""
+        same = self._select_objects.get(id(sel))
+        if same is not None and same[0] is sel:   # the entry keeps sel alive: its id stays its own
+            return same[1]
         key = sel.id()
         hit = self._select_cache.get(key)
         if hit is None:
@@ -344,6 +350,7 @@ class _Reader:
             if profs:
                 sec = self.profile(profs[0]) if len(profs) == 1 else self._composite(profs)
             hit = self._select_cache[key] = (minfo, sec)
+        self._select_objects[id(sel)] = (sel, hit)
         return hit
 
     def _type_facts(self, typ: Any) -> tuple[Any, ...]:
@@ -387,12 +394,7 @@ class _Reader:
 
         # --- material and profile sets: the occurrence's own, else its type's
         own_sel = idx.material_of.get(eid)
-        minfo = own_sec = None
-        if own_sel is not None:   # the relationship's select, one object shared by its members
-            hit = self._own_select.get(id(own_sel))
-            if hit is None or hit[0] is not own_sel:   # the entry keeps own_sel alive
-                hit = self._own_select[id(own_sel)] = (own_sel, *self.selection(own_sel))
-            minfo, own_sec = hit[1], hit[2]
+        minfo, own_sec = self.selection(own_sel) if own_sel is not None else (None, None)
         if minfo is None:
             minfo = tinfo
 
@@ -410,15 +412,8 @@ class _Reader:
         if rep is not None:
             body_sec, body_len, axis_len = self._representation(rep)
         if isinstance(body_sec, Section):
-            if candidates:   # the same profile entity twice needs no comparison
-                first = candidates[0]
-                same = self._same.get((id(first), id(body_sec)))
-                if same is None or same[0] is not first or same[1] is not body_sec:
-                    same = self._same_profile(first, body_sec)
-                if not same[2]:
-                    candidates.append(body_sec)
-            else:
-                candidates.append(body_sec)
+            if not (candidates and self._same_profile(candidates[0], body_sec)):
+                candidates.append(body_sec)  # the same profile entity twice needs no comparison
         elif isinstance(body_sec, str):
             problems.append(body_sec)
         if cls == "IfcTendon":
@@ -513,12 +508,13 @@ class _Reader:
         return (gid, cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
                 section, minfo, length, length_src, warnings, eid, net)
 
-    def _same_profile(self, a: Section, b: Section) -> tuple[Section, Section, bool]:
-        """(a, b, whether the two sections name the same profile entity: their sources' first two
-        words), kept in ``_same`` by the pair's ids (the entry keeps both alive): sections are
-        shared, so each pair is judged once."""
-        hit = self._same[(id(a), id(b))] = (a, b, a.source.split(" ", 2)[:2] == b.source.split(" ", 2)[:2])
-        return hit
+    def _same_profile(self, a: Section, b: Section) -> bool:
+        """Whether two sections name the same profile entity (their sources' first two words);
+        sections are shared, so each pair is judged once."""
+        hit = self._same.get((id(a), id(b)))
+        if hit is None or hit[0] is not a or hit[1] is not b:   # the entry keeps both alive
+            hit = self._same[(id(a), id(b))] = (a, b, a.source.split(" ", 2)[:2] == b.source.split(" ", 2)[:2])
+        return hit[2]
 
     def _net_from(self, sets: list[Any], where: str, warnings: list[str]) -> tuple[float, str | None] | None:
         """The net area from ``sets`` (of the occurrence or its type); None where they lack it."""
@@ -604,12 +600,7 @@ class _Reader:
             if ident == "Axis":
                 if axis_len is None and lf is not None:
                     for it in r.get_argument(3) or ():
-                        if it.is_a() == "IfcPolyline":   # the common axis, read here directly
-                            pts = it.get_argument(0)
-                            cl = (math.dist(pts[0].get_argument(0), pts[1].get_argument(0)) if len(pts) == 2
-                                  else self.curve_length(it))
-                        else:
-                            cl = self.curve_length(it)
+                        cl = self.curve_length(it)
                         if cl is not None:
                             axis_len = (cl * lf, "Axis")
                             break
@@ -617,17 +608,9 @@ class _Reader:
                 items = r.get_argument(3)
                 first = items[0] if items else None
                 if first is not None and first.is_a() == "IfcExtrudedAreaSolid":
-                    # the common body, read here directly: what body() gives for it, uncached
-                    # (a representation of its own per member)
-                    swept, depth_value = first.get_argument(0), first.get_argument(3)
-                    if swept is None:
-                        body_sec = f"IfcExtrudedAreaSolid #{first.id()} has no SweptArea (a null or dangling reference)"
-                    else:
-                        body_sec = self._profile_cache.get(swept.id())
-                        if body_sec is None:
-                            body_sec = self.profile(swept)
-                    if lf is not None and depth_value is not None:
-                        body_len = (float(depth_value) * lf, "IfcExtrudedAreaSolid.Depth")
+                    # the common body, a representation of its own per member: not worth caching
+                    # (what body() gives for it: its first item decides)
+                    body_sec, body_len = self._body_item(first, 1.0, 0)
                     continue
                 key = r.id()
                 hit = self._body_cache.get(key)
@@ -821,12 +804,8 @@ def member_entities(idx: ModelIndex) -> list[tuple[Any, bool]]:
         eid = el.id()
         if eid not in assigned:
             keyed.append((eid, el, True))
-    keyed.sort(key=_first)
+    keyed.sort(key=itemgetter(0))
     return [(el, analysis) for _, el, analysis in keyed]
-
-
-def _first(item: tuple[Any, ...]) -> Any:
-    return item[0]
 
 
 def member_keys(idx: ModelIndex, entities: list[tuple[Any, bool]]) -> tuple[list[str], list[str | None]]:
