@@ -102,14 +102,7 @@ class ModelIndex:
 
     def psets_named(self, eid: int, name: str) -> list[Any]:
         """The property or quantity sets called ``name`` of object ``eid`` (occurrence only)."""
-        sets = self._sets
-        out = []
-        for sid in self.psets_of.get(eid, ()):
-            hit = sets.get(sid)
-            ent, n = hit if hit is not None else self._set(sid)
-            if n == name:
-                out.append(ent)
-        return out
+        return [ent for ent, n in self.named_sets(eid) if n == name] if eid in self.psets_of else []
 
     def named_sets(self, eid: int) -> list[tuple[Any, str | None]]:
         """(entity, Name) of each property or quantity set of object ``eid`` (occurrence only), in

@@ -90,7 +90,6 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
             else {})
     f = idx.file
     type_cache: dict[int, tuple[Any, Any, str]] = {}   # id(type) -> (type, its property or None, origin)
-    psets_of = idx.psets_of
     reading_cache: dict[int, _Reading] = {}
     gids: list[str] = []
     raws: list[float] = []
@@ -128,7 +127,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
             except RuntimeError:
                 log.add("is not in the model (no such GlobalId): no property read", gid)
                 continue
-        psets = idx.psets_named(eid, pset_name) if eid in psets_of else None
+        psets = idx.psets_named(eid, pset_name)
         prop = _find(psets, pset_name, prop_name, True) if psets else None
         origin = "occurrence"
         if prop is None:
@@ -144,7 +143,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
             if prop is None:
                 continue
         raw = _plain_force(prop)
-        pid = prop.id() if raw is None or prop_cases else 0
+        pid = prop.id()
         if raw is not None:
             key = "FORCEUNIT"
         else:
@@ -157,7 +156,7 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
             raw, key = reading.raw, reading.unit_key
         gids.append(gid)
         raws.append(raw)
-        cases.append(prop_cases.get(pid, case) if prop_cases else case)
+        cases.append(prop_cases.get(pid, case))
         keys.append(key)
         sources.append(source_of.get(origin) or source_of.setdefault(origin, f"{label} ({origin})"))
     if not gids:
