@@ -130,28 +130,31 @@ class ForceReport:
         return out
 
 
-def _member_codes(pairs: list[tuple[Any, Any]]) -> Any:
-    """A function from a frame's (model, global_id) columns to each row's position in ``pairs``
-    (sorted, distinct), -1 for a pair not there. One model (the usual case, and always in a part
-    of one): a hashed look-up of the GlobalIds over arrays; several: one look-up per row."""
-    models = {m for m, _ in pairs}
-    if len(models) == 1 and isinstance(next(iter(models)), str):
-        (model,) = models
-        index = pd.Index([g for _, g in pairs], dtype=object)
+def _members_coded(ids: pd.DataFrame) -> tuple[list[tuple[Any, Any]], Any]:
+    """(the members' distinct (model, GlobalId) pairs, sorted; a function from a frame's model
+    and global_id columns to each row's position among them, -1 for a pair not there). One model
+    (the usual case, and always in a part of one): its GlobalIds alone are sorted and looked up
+    by hash over arrays; several: by pair, one look-up per row."""
+    models = ids["model"].unique()
+    if len(models) == 1 and isinstance(models[0], str):
+        model = models[0]
+        gids = sorted(set(ids["global_id"].tolist()))
+        index = pd.Index(gids, dtype=object)
 
         def one_model(frame: pd.DataFrame) -> np.ndarray:
             codes = index.get_indexer(frame["global_id"].to_numpy(dtype=object)).astype(np.int64)
             codes[(frame["model"] != model).to_numpy()] = -1
             return codes
 
-        return one_model
+        return [(model, g) for g in gids], one_model
+    pairs = sorted(set(zip(ids["model"].tolist(), ids["global_id"].tolist(), strict=True)))
     code_of = {pair: i for i, pair in enumerate(pairs)}
 
     def any_models(frame: pd.DataFrame) -> np.ndarray:
         return np.fromiter((code_of.get(p, -1) for p in zip(frame["model"].tolist(), frame["global_id"].tolist(),
                                                                 strict=True)), dtype=np.int64, count=len(frame))
 
-    return any_models
+    return pairs, any_models
 
 
 def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
@@ -175,13 +178,7 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
 
     # each member (model, GlobalId) as an integer, in sorted order: the rest of the join works on
     # integers (one hash or sort of text here instead of one per step)
-    models = ids["model"].tolist()
-    if len(set(models)) <= 1 and all(isinstance(m, str) for m in models[:1]):
-        # one model (always, in a part of one): its GlobalIds alone are sorted
-        pairs = [(models[0], g) for g in sorted(set(ids["global_id"].tolist()))] if models else []
-    else:
-        pairs = sorted(set(zip(models, ids["global_id"].tolist(), strict=True)))
-    member_code = _member_codes(pairs)
+    pairs, member_code = _members_coded(ids)
 
     parts: list[pd.DataFrame] = []
     rows = _table_rows(tables, extra_messages)
