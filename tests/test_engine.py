@@ -151,6 +151,18 @@ def test_forces_without_model_apply_to_every_model_and_unknown_members_are_ignor
     assert list(res.model) == ["a.ifc", "b.ifc"] and list(res.status) == ["pass", "pass"]
 
 
+def test_forces_of_another_model_are_not_taken_by_a_model_checked_alone(tmp_path: Path) -> None:
+    # one model's members (as one model, or a part of one, is evaluated): a row naming another
+    # model with the same GlobalId is that model's force, never this one's (common practice)
+    rs = ruleset(tmp_path, TENSION)
+    m = members({"global_id": "X"}, {"global_id": "Y"})
+    f = pd.concat([forces(("X", "D", 1e3)), forces(("X", "W", 1e3), ("Y", "D", 1e3), model="other.ifc")],
+                  ignore_index=True)
+    res = run_checks(rs, m, f)
+    assert list(zip(res.global_id, res.load_case, res.status, strict=True)) == [
+        ("X", "D", "pass"), ("Y", None, "unchecked")]
+
+
 def test_a_load_case_without_a_number_is_unchecked_for_that_case(tmp_path: Path) -> None:
     rs = ruleset(tmp_path, TENSION)
     res = run_checks(rs, members({}), forces(("G0", "D", NAN), ("G0", "L", 1e3)))

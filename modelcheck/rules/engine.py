@@ -100,11 +100,21 @@ def _force_rows(members: pd.DataFrame, forces: pd.DataFrame | None) -> dict[str,
     f_case = _objects(forces, "load_case")
     f_p = np.asarray(pd.to_numeric(forces["axial_force"], errors="coerce"), dtype=float)
     codes = _case_ranks(f_case)
-    member_keys = pd.Index(member_key(models, gids))
-    if member_keys.is_unique and not pd.isna(pd.Series(f_model, dtype=object)).any():
-        pos = member_keys.get_indexer(member_key(f_model, f_gid))
-        ok = pos >= 0
-        m, f = pos[ok], np.flatnonzero(ok)
+    every_row_has_model = not pd.isna(pd.Series(f_model, dtype=object)).any()
+    one_model = n > 0 and models[0] is not None and bool((models == models[0]).all())
+    lookup = None
+    if every_row_has_model and one_model:   # one model (or a part of one): its GlobalIds are its keys
+        by_gid = pd.Index(gids)
+        if by_gid.is_unique:
+            lookup = by_gid.get_indexer(f_gid)
+            lookup[f_model != models[0]] = -1
+    elif every_row_has_model:
+        member_keys = pd.Index(member_key(models, gids))
+        if member_keys.is_unique:
+            lookup = member_keys.get_indexer(member_key(f_model, f_gid))
+    if lookup is not None:
+        ok = lookup >= 0
+        m, f = lookup[ok], np.flatnonzero(ok)
     else:
         left = pd.DataFrame({"model": pd.Series(models, dtype=object).fillna("\x00"),
                              "global_id": pd.Series(gids, dtype=object).fillna("\x00"), "_m": np.arange(n)})

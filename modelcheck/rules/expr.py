@@ -685,9 +685,8 @@ def glob_match(values: Any, patterns: tuple[str, ...]) -> Cond:
         hit = np.bool_(values is not None and regex.match(str(values)) is not None)
         return Cond(value=hit, known=np.bool_(True))
     arr = np.asarray(values, dtype=object)
-    uniq = {v for v in arr.tolist() if v is not None}
-    hits = [v for v in uniq if regex.match(str(v)) is not None]
-    # hashed membership: np.isin on object arrays compares every value with every hit (n × m)
-    value = (pd.Series(arr.ravel(), dtype=object).isin(set(hits)).to_numpy(dtype=bool).reshape(arr.shape)
-             if hits else np.zeros(arr.shape, dtype=bool))
+    # each distinct value matched once; a missing one (code -1) takes the False appended last
+    codes, uniq = pd.factorize(arr.ravel(), use_na_sentinel=True)
+    hit = np.fromiter((regex.match(str(v)) is not None for v in uniq.tolist()), dtype=bool, count=len(uniq))
+    value = np.append(hit, False)[codes].reshape(arr.shape)
     return Cond(value=value, known=np.ones(arr.shape, dtype=bool))

@@ -110,9 +110,9 @@ class Selector:
     def mask(self, members: pd.DataFrame, cache: dict[Any, np.ndarray] | None = None) -> np.ndarray:
         """Boolean array: which rows of ``members`` this selector selects.
 
-        ``cache`` (a dict kept by the caller for one member table) holds each column's match of
-        a set of patterns, so selectors that share keys (a check's and its exclusion's, several
-        checks' on one kind of member) match each column once."""
+        ``cache`` (a dict kept by the caller for one member table) holds each column's values and
+        its match of a set of patterns, so selectors that share keys (a check's and its
+        exclusion's, several checks' on one kind of member) match each column once."""
         if cache is None:
             cache = {}
         n = len(members)
@@ -128,8 +128,10 @@ class Selector:
                 for column in SELECTOR_KEYS[key]:
                     found = cache.get((column, patterns))
                     if found is None:
-                        found = cache[(column, patterns)] = np.asarray(
-                            glob_match(_column(members, column), patterns).value, dtype=bool)
+                        values = cache.get(column)
+                        if values is None:
+                            values = cache[column] = _column(members, column)
+                        found = cache[(column, patterns)] = np.asarray(glob_match(values, patterns).value, dtype=bool)
                     hit |= found
             result &= hit
         if self.exclude is not None and self.exclude.keys:
