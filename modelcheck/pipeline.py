@@ -504,7 +504,6 @@ def unmatched_rows(tables: Any, used: set[str]) -> list[dict[str, str]]:
     """The rows of the load tables that no member used (``used``: their sources), each with its key."""
     rows = []
     for t in tables:
-        for key, src in zip(t["key"], t["source"], strict=True):
-            if src not in used:
-                rows.append({"key": str(key), "source": src})
+        left = t.loc[~t["source"].isin(used), ["key", "source"]]   # one hashed look-up over the column
+        rows += [{"key": str(key), "source": src} for key, src in zip(left["key"], left["source"], strict=True)]
     return rows
