@@ -22,6 +22,8 @@ peak memory two ways:
   pages; PSS counts a shared page once in all, so the sum is the memory the command really
   takes). For the single-process open the two agree.
 
+each with its ratio to the open's peak, and the max RSS of the one-process check with its ratio.
+
 Before each measured run the command's previous report is removed and the kernel's dirty pages
 are written out (os.sync), so no run pays for the disk write of the run before it; the package's
 bytecode is compiled once at the start, as an installed package has it.
@@ -133,7 +135,8 @@ def main() -> None:
     compileall.compile_dir(str(HERE.parent / "modelcheck"), quiet=1)
     print(f"machine: {os.cpu_count()} cores; check = default --jobs ({os.cpu_count()}), '1 proc' = --jobs 1")
     print(f"{'members':>8} {'open s':>7} {'check s':>8} {'ratio':>6} {'1 proc s':>8} {'ratio':>6} "
-          f"{'µs/member':>9} | {'open MiB':>8} {'check maxRSS':>12} {'check PSS':>9} {'PSS ratio':>9}")
+          f"{'µs/member':>9} | {'open MiB':>8} {'check maxRSS':>12} {'ratio':>6} {'check PSS':>9} {'ratio':>6} "
+          f"{'1 proc MiB':>10} {'ratio':>6}")
     for n in a.sizes:
         model, table = model_for(n)
         out = WORK / f"m{n}-report.json"
@@ -142,11 +145,12 @@ def main() -> None:
                  "--output", str(out), "--no-config"]
         t_open, m_open = best(bare, a.repeat)
         t_chk, m_chk = best(check, a.repeat)
-        t_one, _ = best([*check, "--jobs", "1"], a.repeat)
+        t_one, m_one = best([*check, "--jobs", "1"], a.repeat)
         p_open, p_chk = peak_pss(bare), peak_pss(check)
+        base = max(m_open, p_open)   # the open's peak (one process: its max RSS and PSS agree)
         print(f"{n:>8} {t_open:>7.2f} {t_chk:>8.2f} {t_chk / t_open:>6.2f} {t_one:>8.2f} {t_one / t_open:>6.2f} "
-              f"{t_chk / n * 1e6:>9.1f} | {max(m_open, p_open):>8.0f} {m_chk:>12.0f} {p_chk:>9.0f} "
-              f"{p_chk / max(m_open, p_open):>9.2f}", flush=True)
+              f"{t_chk / n * 1e6:>9.1f} | {base:>8.0f} {m_chk:>12.0f} {m_chk / base:>6.2f} {p_chk:>9.0f} "
+              f"{p_chk / base:>6.2f} {m_one:>10.0f} {m_one / base:>6.2f}", flush=True)
     if not a.no_batch:
         model, table = model_for(10_000)
         batch = WORK / "batch"
