@@ -7,7 +7,10 @@ from pathlib import Path
 
 import numpy as np
 import openpyxl
+import pandas as pd
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from modelcheck.errors import LoadTableError
 from modelcheck.loads import tables
@@ -267,3 +270,27 @@ def test_hundred_thousand_rows_with_header_unit_parse_fast(tmp_path: Path) -> No
     assert len(df) == n
     assert df["axial_force"].to_numpy() == pytest.approx(np.round(values, 4) * 1000.0, rel=1e-12)  # SI kilo
     assert elapsed < 1.0, f"{elapsed:.2f} s"
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.lists(st.text(alphabet=st.characters(exclude_characters="\x00"), max_size=6), min_size=1, max_size=8))
+def test_the_padding_search_agrees_with_str_strip(texts: list[str]) -> None:
+    # reference: Python's own str.strip (the white space it removes is what the search looks for)
+    assert tables._padded(pd.Series(texts, dtype=object)) == any(t != t.strip() for t in texts)
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.lists(st.text(max_size=6), min_size=1, max_size=8))
+def test_a_nul_never_hides_padding(texts: list[str]) -> None:
+    # with NUL inside a text the search may say "padded" for nothing, never miss padding (str.strip)
+    if any(t != t.strip() for t in texts):
+        assert tables._padded(pd.Series(texts, dtype=object))
+
+
+def test_cells_with_spaces_around_them_are_read_stripped(tmp_path: Path) -> None:
+    # common practice: spreadsheet exports pad cells; the key, case and force are read without it
+    p = tmp_path / "padded.csv"
+    p.write_text("global_id , load_case, axial_force [kN]\n G1 ,  LC1 , 12.5 \nG2,LC2,3\n", encoding="utf-8")
+    t = read_load_table(p)
+    assert list(t["key"]) == ["G1", "G2"] and list(t["load_case"]) == ["LC1", "LC2"]
+    assert list(t["axial_force"]) == [12500.0, 3000.0]   # kN -> N (pint: 1 kN = 1000 N)

@@ -253,8 +253,21 @@ def _blank(record: Sequence[Any]) -> bool:
 def _texts(s: pd.Series) -> pd.Series:
     """Cells as stripped text, vectorised when they are all strings already (CSV)."""
     if pd.api.types.infer_dtype(s, skipna=False) == "string":
-        return s.str.strip()
+        return s.str.strip() if _padded(s) else s
     return s.map(_cell_text).astype(object)
+
+
+#: white space after a NUL: the start of a text, the texts joined with NUL between them
+_AFTER_NUL_RE = re.compile(r"\x00\s")
+
+
+def _padded(s: pd.Series) -> bool:
+    """Whether any of these texts starts or ends with white space (what ``str.strip`` removes), in
+    two searches over them all (the joined texts and the same backwards): most tables have none,
+    and stripping each cell is most of the work. A NUL inside a text can only make this say True
+    where False was right, never the reverse."""
+    joined = "\x00" + "\x00".join(s.tolist()) + "\x00"
+    return _AFTER_NUL_RE.search(joined) is not None or _AFTER_NUL_RE.search(joined[::-1]) is not None
 
 
 def _find_header(records: Sequence[Sequence[Any]]) -> _Header | None:
@@ -354,6 +367,8 @@ def _parse(records: list[list[Any]], name: str, sheet: str | None, all_text: boo
                          "quotes?); put each value under its header, or quote a cell that holds a comma")
 
     def texts(key: str) -> pd.Series:
+        if key not in ci:   # a column the table does not have: empty text on every row
+            return pd.Series([""] * len(rows), dtype=object)
         return _texts(pd.Series(np.asarray(column(key), dtype=object)[keep], dtype=object))
 
     gid = texts("global_id")
@@ -385,7 +400,7 @@ def _parse(records: list[list[Any]], name: str, sheet: str | None, all_text: boo
         "key": key.to_numpy(dtype=object),
         "load_case": case.to_numpy(dtype=object),
         "axial_force": force,
-        "source": (source_prefix + pd.Series(rows).astype(str)).to_numpy(dtype=object),
+        "source": np.array([f"{source_prefix}{r}" for r in rows.tolist()], dtype=object),
     }, columns=list(LOAD_TABLE_COLUMNS))
     return out
 
@@ -401,7 +416,7 @@ def _row_error(name: str, where: Callable[[int], str], rows: np.ndarray, mask: n
 def _forces_si(raw: pd.Series, header: _Header, name: str, where: Callable[[int], str], rows: np.ndarray) -> np.ndarray:
     """The force column in newtons, vectorised; every problem named by row."""
     if pd.api.types.infer_dtype(raw, skipna=False) == "string":
-        raw = raw.str.strip()
+        raw = raw.str.strip() if _padded(raw) else raw
         is_empty = (raw == "").to_numpy()
     else:
         is_empty = raw.map(lambda v: v is None or (isinstance(v, str) and not v.strip())
