@@ -219,11 +219,14 @@ def force_options(args: argparse.Namespace, ruleset: Any = None, read_ahead: boo
         tables = TablesReadAhead(load_paths) if can_split() else tuple(read_load_table(p) for p in load_paths)
     else:
         tables = tuple(read_load_table(p) for p in load_paths)
+    from modelcheck.loads.properties import parse_property_name
+
     prop_text = (args.force_property if args.force_property is not None
                  else getattr(ruleset, "force_property", None) or "MC_MemberForces.AxialForce")
-    pset, _, prop = prop_text.partition(".")
-    if not pset.strip() or not prop.strip():
-        raise UsageError(f"--force-property {prop_text!r}: write it as PSET.PROPERTY")
+    try:
+        pset, prop = parse_property_name(prop_text)
+    except ValueError:
+        raise UsageError(f"--force-property {prop_text!r}: write it as PSET.PROPERTY") from None
     return ForceOptions(tables=tables, property=(pset, prop), analysis=not args.no_analysis_results)
 
 

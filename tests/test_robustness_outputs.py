@@ -108,6 +108,15 @@ def test_a_force_property_not_written_as_pset_dot_property_is_one_line(capsys, p
     assert out.code == 2 and len(out.lines) == 1 and "write it as PSET.PROPERTY" in out.lines[0], out.stderr
 
 
+def test_the_command_line_splits_a_force_property_where_the_rule_set_does():
+    # a property-set name may hold dots (IFC names are free text): the split is at the last dot,
+    # on the command line as in a rule set's force_property (common practice)
+    from modelcheck.cli import build_parser, force_options
+
+    args = build_parser().parse_args(["check", "m.ifc", "--force-property", " My.Set . Force "])
+    assert force_options(args).property == ("My.Set", "Force")
+
+
 # ------------------------------------------------------------------ file names that are not UTF-8
 LATIN1 = os.fsdecode(b"mod\xe8l")    # a name written in Latin-1: an undecodable byte in Python
 

@@ -569,8 +569,11 @@ def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetErr
             errors.add(("ruleset", k), f"[ruleset] {k} is a text")
     force_property = meta.get("force_property") if isinstance(meta.get("force_property"), str) else None
     if force_property is not None:
-        pset_part, dot, prop_part = force_property.strip().rpartition(".")
-        if not dot or not pset_part or not prop_part:
+        from modelcheck.loads.properties import parse_property_name
+
+        try:
+            parse_property_name(force_property)
+        except ValueError:
             errors.add(("ruleset", "force_property"),
                        f"force_property is \"PropertySetName.PropertyName\", not {force_property!r}")
     name = meta.get("name", "") if isinstance(meta.get("name"), str) else ""
