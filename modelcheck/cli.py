@@ -601,13 +601,12 @@ def _annotate(run: Any, target: str, inputs: list[str]) -> None:
         if several and names.setdefault(Path(m.path).name, m.path) != m.path:
             raise UsageError(f"--annotate {target}: {names[Path(m.path).name]} and {m.path} would both be written "
                              f"as {Path(m.path).name} in that folder; annotate them one at a time")
-    for m in readable:
-        out = os.path.join(target, Path(m.path).name) if several else target
+    outs = [os.path.join(target, Path(m.path).name) if several else target for m in readable]
+    for out in outs:   # every target judged before any is written
         guard_output(out, inputs, option="--annotate", new_folder=several)
-    for m in readable:
-        out = os.path.join(target, Path(m.path).name) if several else target
-        if several:
-            os.makedirs(target, exist_ok=True)
+    if several and readable:
+        os.makedirs(target, exist_ok=True)
+    for m, out in zip(readable, outs, strict=True):
         annotate_model(m.path, out, run.results)
 
 
