@@ -7,7 +7,7 @@ from pathlib import Path
 
 
 def data_dir() -> Path:
-    """The folder of shipped data files (the repo's ``rulesets/``, installed as modelcheck.rulesets)."""
+    """The folder of shipped data files (``modelcheck/rulesets/``)."""
     return Path(str(resources.files("modelcheck.rulesets")))
 
 

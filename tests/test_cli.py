@@ -150,7 +150,7 @@ def test_rules_commands():
     assert r.returncode == 0 and "steel-asd-us" in r.stdout and "hanger-rods" in r.stdout
     r = run("rules", "show", "steel-ec3")
     assert r.returncode == 0 and "compression" in r.stdout
-    r = run("rules", "validate", str(REPO / "rulesets" / "steel-asd-us.toml"))
+    r = run("rules", "validate", str(REPO / "modelcheck" / "rulesets" / "steel-asd-us.toml"))
     assert r.returncode == 0
 
 

@@ -16,7 +16,7 @@ import pytest
 from tests.corpus import run_inprocess
 
 SAMPLES = Path(__file__).resolve().parent.parent / "sample_models"
-RULES = Path(__file__).resolve().parent.parent / "rulesets" / "steel-ec3.toml"
+RULES = Path(__file__).resolve().parent.parent / "modelcheck" / "rulesets" / "steel-ec3.toml"
 
 
 @pytest.fixture
