@@ -409,6 +409,8 @@ def cmd_rules(args: argparse.Namespace) -> int:
     if errors:
         print(f"modelcheck: error: {args.target}: {len(errors)} error(s)", file=sys.stderr)
         return EXIT_INPUT
+    for w in rs.ruleset_warnings(rs.load_ruleset(args.target)):
+        print(w, file=sys.stderr)
     con.print(f"{args.target}: valid")
     return EXIT_OK
 

@@ -278,7 +278,7 @@ def _missing_lists(check: Check, ruleset: RuleSet, data: MemberData, member: np.
             scope = Scope(_base_lookup(data, member, p, case, override), ruleset.parameter_map,
                           ruleset.definition_map)
             _, unknown, demand, capacity = _evaluate(check, scope, n)
-            bad = unknown | ~np.isfinite(demand) | ~np.isfinite(capacity)
+            bad = unknown | np.logical_or.reduce(_unverifiable(check, demand, capacity))
             needed[name] = bad & np.isnan(values[name])
     lists: list[list[str]] = [[] for _ in range(n)]
     texts: dict[Any, str] = {}   # one text per distinct (input, load case, shape, diameter)
@@ -344,6 +344,40 @@ def _evaluate(check: Check, scope: Scope, n: int) -> tuple[np.ndarray, np.ndarra
     return keep, unknown, _broadcast(demand_q.m_as(check.unit), n), _broadcast(capacity_q.m_as(check.unit), n)
 
 
+def _unverifiable(check: Check, demand: np.ndarray,
+                  capacity: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(demand not finite, capacity not a positive finite value, demand negative where the check
+    has neither ``when`` nor ``magnitude``) of each row: a row with any of them is never passed.
+
+    A capacity of zero or less is no capacity (a rule or a value that went wrong); a negative
+    demand of a check that applies to every member (a compression force in a tension stress)
+    would otherwise pass by being negative.
+    """
+    with np.errstate(invalid="ignore"):
+        bad_demand = ~np.isfinite(demand)
+        bad_capacity = ~(np.isfinite(capacity) & (capacity > 0))
+        if check.when is None and not check.magnitude:
+            negative = ~bad_demand & (demand < 0)
+        else:
+            negative = np.zeros(len(demand), dtype=bool)
+    return bad_demand, bad_capacity, negative
+
+
+def _unverifiable_text(check: Check, ruleset: RuleSet, demand: float, capacity: float, bad_capacity: bool,
+                       bad_demand: bool) -> str:
+    """Why a row whose inputs are all there is not checked, with the value that stops it."""
+    unit = check.unit
+    label = f" {_unit_label(unit)}" if unit else ""
+    if bad_capacity:
+        return (f"capacity is not a positive finite value (capacity = {_number_text(capacity)}{label}, "
+                f"from {check.capacity.source})")
+    if bad_demand:
+        return f"demand is not a finite number (demand = {_number_text(demand)}{label}, from {check.demand.source})"
+    return (f"demand is negative (demand = {_number_text(demand)}{label}, from {check.demand.source}) and the "
+            "check has no 'when' condition: a negative demand is not compared (add a 'when', or "
+            "'magnitude = true' to compare its size)")
+
+
 def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
                member: np.ndarray, p: np.ndarray, case: np.ndarray, rank: np.ndarray,
                messages: bool = True) -> dict[str, Any] | None:
@@ -353,9 +387,11 @@ def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
     extra: dict[str, Value] = {}
     scope = Scope(_base_lookup(data, member, p, case), ruleset.parameter_map, ruleset.definition_map, extra)
     keep, unknown, demand, capacity = _evaluate(check, scope, n)
+    bad_demand, bad_capacity, negative = _unverifiable(check, demand, capacity)
+    if check.magnitude:
+        demand = np.abs(demand)
     with np.errstate(all="ignore"):
-        finite = np.isfinite(demand) & np.isfinite(capacity)
-        unchecked = unknown | ~finite
+        unchecked = unknown | bad_demand | bad_capacity | negative
         ratio = np.where(capacity != 0, demand / np.where(capacity != 0, capacity, 1.0),
                          np.where(demand > 0, np.inf, np.nan))
         passed = ~unchecked & (demand - capacity <= PASS_TOLERANCE * np.abs(capacity))
@@ -378,7 +414,9 @@ def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
             elif unknown[rows[pos]]:
                 message[pos] = "not checked: the applicability condition cannot be decided"
             else:
-                message[pos] = "not checked: the demand or capacity is not a finite number (e.g. division by zero)"
+                r = int(rows[pos])
+                message[pos] = "not checked: " + _unverifiable_text(check, ruleset, demand[r], capacity[r],
+                                                                  bool(bad_capacity[r]), bool(bad_demand[r]))
     c_pos = np.flatnonzero(~unchecked_k)
     if len(c_pos) and messages:
         c_rows = rows[c_pos]

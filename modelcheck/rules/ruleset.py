@@ -80,7 +80,7 @@ SHAPES = frozenset({"round-bar", "round-tube", "square-bar", "flat-bar", "rect-t
                     "U", "C", "Z", "ellipse", "arbitrary", "composite"})
 
 TOP_LEVEL = ("ruleset", "display", "parameters", "define", "select", "check", "stock")
-CHECK_KEYS = ("id", "title", "clause", "select", "when", "demand", "capacity", "unit", "message")
+CHECK_KEYS = ("id", "title", "clause", "select", "when", "demand", "capacity", "unit", "message", "magnitude")
 
 _ID_RE = re.compile(r"[A-Za-z][A-Za-z0-9_.-]{0,63}\Z")
 _NAME_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]{0,63}\Z")
@@ -142,6 +142,7 @@ class Check:
     texts: frozenset[str]            # text names it uses
     definitions: tuple[str, ...]     # definitions it uses, in file order
     parameters: tuple[str, ...]      # parameters it uses, in file order
+    magnitude: bool = False          # compare |demand| with the capacity (a signed demand's size)
 
     @property
     def needs_force(self) -> bool:
@@ -724,6 +725,8 @@ def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetErr
         for key in ("title", "clause", "message", "unit"):
             if key in raw and not isinstance(raw[key], str):
                 errors.add(base + (key,), f"{key} is a text", label)
+        if "magnitude" in raw and not isinstance(raw["magnitude"], bool):
+            errors.add(base + ("magnitude",), "magnitude is true or false", label)
         parsed: dict[str, Expression | None] = {}
         ok = True
         for key in ("demand", "capacity", "when"):
@@ -831,6 +834,7 @@ def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetErr
             texts=frozenset(reached & set(TEXT_NAMES)),
             definitions=tuple(n for n in defs if n in used_defs),
             parameters=tuple(n for n in params if n in reached),
+            magnitude=raw.get("magnitude") is True,
         ))
 
     if errors.items:
@@ -921,6 +925,33 @@ def validate_ruleset_file(path: str | Path) -> list[str]:
         return [str(exc)]
     _, errors = parse_ruleset(text, str(path))
     return [str(e) for e in errors]
+
+
+def ruleset_warnings(ruleset: RuleSet) -> list[str]:
+    """What a valid rule set may not mean: 'file:line: check <id>: ...' for each check that
+    applies to every member (no ``when``) and whose demand is negative for a tension or a
+    compression force (a signed demand). The engine leaves such a row unchecked rather than
+    passing it; ``magnitude = true`` compares the demand's size instead."""
+    out: list[str] = []
+    for check in ruleset.checks:
+        if check.when is not None or check.magnitude or "P" not in check.inputs | check.optional:
+            continue
+        for sign in (1.0, -1.0):
+            def base(name: str, sign: float = sign) -> Value:
+                if name == "P":
+                    return Q_(np.array([sign * MEMBER_QUANTITIES["P"].dummy]), MEMBER_QUANTITIES["P"].unit)
+                return _dummy_base(name)
+            try:
+                value = check.demand.evaluate(Scope(base, ruleset.parameter_map, ruleset.definition_map))
+            except ExpressionError:
+                continue
+            if isinstance(value, pint.Quantity) and bool(np.any(np.asarray(value.magnitude) < 0)):
+                out.append(f"{ruleset.path}:{check.line}: check {check.id}: warning: the demand "
+                           f"{check.demand.source!r} is negative for a {'tension' if sign > 0 else 'compression'} "
+                           "force and the check has no 'when': such members are left unchecked (add a 'when' "
+                           "such as \"P > 0\", or 'magnitude = true' to compare the demand's size)")
+                break
+    return out
 
 
 def list_rulesets() -> list[RuleSet]:
