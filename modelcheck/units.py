@@ -136,6 +136,38 @@ class UnitDefinitionError(ValueError):
     """A unit entity in the file that cannot be turned into a quantity."""
 
 
+class UnusableUnit(MissingUnit):
+    """The file assigns a unit to a measure type, but not one that can be used: two units that
+    disagree, a unit of another dimension (a SECOND as the LENGTHUNIT), a factor that is not a
+    positive finite number. Everything that needs it is treated as missing, with the reason."""
+
+    def __init__(self, unit_type: str, reason: str) -> None:
+        self.unit_type = unit_type
+        self.reason = reason
+        LookupError.__init__(self, f"the model's {unit_type} is not usable: {reason}")
+
+
+#: the dimension each unit type of IfcUnitAssignment must have (as a pint unit)
+UNIT_TYPE_DIMENSION: dict[str, str] = {
+    "LENGTHUNIT": "m", "AREAUNIT": "m**2", "VOLUMEUNIT": "m**3", "FORCEUNIT": "N", "PRESSUREUNIT": "Pa",
+    "MODULUSOFELASTICITYUNIT": "Pa", "THERMALEXPANSIONCOEFFICIENTUNIT": "1/K", "MASSDENSITYUNIT": "kg/m**3",
+    "MASSUNIT": "kg", "PLANEANGLEUNIT": "rad", "MOMENTOFINERTIAUNIT": "m**4", "SECTIONMODULUSUNIT": "m**3",
+    "LINEARFORCEUNIT": "N/m", "THERMODYNAMICTEMPERATUREUNIT": "K", "TIMEUNIT": "s",
+}
+
+
+def check_dimension(unit_type: str, q: pint.Quantity) -> None:
+    """Raise UnitDefinitionError when ``q`` (a unit's size) is not of ``unit_type``'s dimension
+    or not a positive finite size."""
+    want = UNIT_TYPE_DIMENSION.get(unit_type)
+    if want is not None and q.dimensionality != ureg.Unit(want).dimensionality:
+        raise UnitDefinitionError(f"it is {q.units:~} ({q.dimensionality}), not of the dimension of "
+                                  f"{unit_type} ({ureg.Unit(want).dimensionality})")
+    m = float(q.to_base_units().magnitude)
+    if not (math.isfinite(m) and m > 0):
+        raise UnitDefinitionError(f"its size {m!r} is not a positive finite number")
+
+
 def si_unit_quantity(prefix: str | None, name: str) -> pint.Quantity:
     """One IfcSIUnit as a pint quantity in SI base units.
 
@@ -169,9 +201,10 @@ def unit_quantity(unit: Any, _depth: int = 0) -> pint.Quantity:
             raise UnitDefinitionError(f"conversion-based unit #{unit.id()} {unit.Name!r} has no factor")
         value = mwu.ValueComponent
         magnitude = float(value.wrappedValue if hasattr(value, "wrappedValue") else value)
-        if not math.isfinite(magnitude) or magnitude == 0:
+        if not math.isfinite(magnitude) or magnitude <= 0:
             raise UnitDefinitionError(
-                f"conversion-based unit #{unit.id()} {unit.Name!r} has factor {magnitude!r}"
+                f"conversion-based unit #{unit.id()} {unit.Name!r} has factor {magnitude!r}, "
+                "not a positive finite number"
             )
         return magnitude * unit_quantity(mwu.UnitComponent, _depth + 1)
     if cls == "IfcDerivedUnit":
@@ -215,12 +248,18 @@ class UnitContext:
     sizes: dict[str, pint.Quantity] = field(default_factory=dict)
     labels: dict[str, str] = field(default_factory=dict)
     problems: tuple[str, ...] = ()
+    broken: dict[str, str] = field(default_factory=dict)   # unit type -> why it cannot be used
 
     @classmethod
     def from_model(cls, model: Any) -> UnitContext:
+        """The model's unit assignment. A unit type assigned twice with different sizes, a unit
+        of the wrong dimension or a factor that is not a positive finite number makes that unit
+        type unusable (``broken``, with the reason): never the last one, never a guess."""
         sizes: dict[str, pint.Quantity] = {}
         labels: dict[str, str] = {}
         problems: list[str] = []
+        broken: dict[str, str] = {}
+        first: dict[str, Any] = {}
         assignments = model.by_type("IfcUnitAssignment")
         projects = model.by_type("IfcProject")
         chosen = None
@@ -235,11 +274,28 @@ class UnitContext:
             if utype == "USERDEFINED" and unit.is_a("IfcDerivedUnit"):
                 utype = f"USERDEFINED:{unit.UserDefinedType}"
             try:
-                sizes[utype] = unit_quantity(unit)
-                labels[utype] = unit_label(unit)
+                q = unit_quantity(unit)
+                check_dimension(utype, q)
             except (UnitDefinitionError, pint.PintError) as exc:
-                problems.append(f"{utype}: {exc}")
-        return cls(sizes=sizes, labels=labels, problems=tuple(problems))
+                reason = f"#{unit.id()} {unit_label(unit)}: {exc}"
+                broken.setdefault(utype, reason)
+                problems.append(f"{utype} {reason}")
+                continue
+            if utype in first:
+                other = first[utype]
+                if not math.isclose(float(q.to_base_units().magnitude),
+                                    float(sizes.get(utype, q).to_base_units().magnitude), rel_tol=1e-9):
+                    reason = (f"assigned twice, as #{other.id()} ({unit_label(other)}) and #{unit.id()} "
+                              f"({unit_label(unit)}), of different sizes")
+                    broken[utype] = reason
+                    problems.append(f"{utype} {reason}")
+                continue
+            first[utype] = unit
+            sizes[utype] = q
+            labels[utype] = unit_label(unit)
+        for utype in broken:
+            sizes.pop(utype, None)
+        return cls(sizes=sizes, labels=labels, problems=tuple(problems), broken=broken)
 
     def has(self, unit_type: str) -> bool:
         return unit_type in self.sizes
@@ -248,6 +304,8 @@ class UnitContext:
         try:
             return self.sizes[unit_type]
         except KeyError:
+            if unit_type in self.broken:
+                raise UnusableUnit(unit_type, self.broken[unit_type]) from None
             raise MissingUnit(unit_type) from None
 
     def factor(self, unit_type: str) -> float:

@@ -78,7 +78,7 @@ def parse_length(text: str, what: str = "length") -> tuple[Fraction, str]:
         raise ValueError(f"{what} {text!r} needs a number and a length unit, e.g. \"3/4 in\" or \"20 mm\"")
     try:
         u = ureg.parse_units(unit.strip())
-    except (pint.PintError, ValueError, AttributeError, TypeError) as exc:
+    except (pint.PintError, ValueError, AttributeError, TypeError, ArithmeticError) as exc:
         raise ValueError(f"{what} {text!r}: {unit.strip()!r} is not a unit ({exc})") from None
     if u.dimensionality != ureg.Unit("m").dimensionality:
         raise ValueError(f"{what} {text!r}: {unit.strip()!r} is not a unit of length")
@@ -86,12 +86,30 @@ def parse_length(text: str, what: str = "length") -> tuple[Fraction, str]:
         value = parse_number(m.group(1))
     except (ValueError, ZeroDivisionError):
         raise ValueError(f"{what} {text!r}: {m.group(1)!r} is not a number") from None
+    try:
+        size = metres(value, unit.strip())
+    except ValueError:
+        raise ValueError(f"{what} {text!r} is no finite length a double can hold") from None
+    if value != 0 and size == 0:
+        raise ValueError(f"{what} {text!r} is too small for a double to hold")
+    if size > MAX_STOCK_SIZE:
+        raise ValueError(f"{what} {text!r} is longer than {MAX_STOCK_SIZE:g} m, not a size of stock")
     return value, unit.strip()
 
 
+#: no size of bar, rod or section is longer than this (m): a limit far beyond any real one
+MAX_STOCK_SIZE = 100.0
+
+
 def metres(value: Fraction, unit: str) -> float:
-    """An exact number of ``unit`` in metres."""
-    return float(value) * _factor(unit)
+    """An exact number of ``unit`` in metres; ValueError where it is no finite double."""
+    try:
+        out = float(value) * _factor(unit)
+    except OverflowError:
+        raise ValueError(f"{value} {unit} overflows") from None
+    if not math.isfinite(out):
+        raise ValueError(f"{value} {unit} overflows")
+    return out
 
 
 @lru_cache(maxsize=64)
@@ -166,6 +184,8 @@ def _sizes(raw: Any, key: str, where: str) -> tuple[float, ...]:
                 raise ValueError(f"{key}: step {item['step']!r} must be positive")
             # exact arithmetic in the step's unit where the units agree (1/4 in + k/16 in)
             if ua == ub == us:
+                if (b - a) / s > 10000:
+                    raise ValueError(f"{key}: more than 10000 sizes in one range")
                 k = 0
                 while a + k * s <= b:
                     out.append(metres(a + k * s, us))

@@ -40,6 +40,8 @@ from modelcheck.units import (
     MissingUnit,
     UnitContext,
     UnitDefinitionError,
+    check_dimension,
+    pint,
     unit_label,
     unit_quantity,
 )
@@ -132,6 +134,9 @@ def build_index(path: str | os.PathLike[str], model: Any = None, *, property_set
     except (UnitDefinitionError, AttributeError, RuntimeError, TypeError, ValueError, ArithmeticError) as exc:
         raise ModelReadError(f"unit assignment cannot be read: {explain_parse_error(path, exc)}{_VALIDATE_HINT}",
                              path=str(path)) from None
+    if "LENGTHUNIT" in units.broken:   # every section and length of the model depends on it
+        raise ModelReadError(f"the unit assignment's LENGTHUNIT cannot be used: {units.broken['LENGTHUNIT']}",
+                             path=str(path))
     idx = ModelIndex(path=str(path), file=model, schema=schema, units=units, parse_log=[log] if log else [],
                      file_fds=fds)
     _guarded(path, _walk, model, idx, property_sets)
@@ -267,8 +272,9 @@ def measure_si(idx: ModelIndex, measure: str, raw: float, unit_entity: Any = Non
     if unit_entity is not None:
         try:
             q = unit_quantity(unit_entity)
-        except UnitDefinitionError as exc:
-            raise MissingUnit(f"usable unit ({exc})") from None
+            check_dimension(MEASURE_UNIT_TYPE.get(measure, ""), q)
+        except (UnitDefinitionError, pint.PintError) as exc:
+            raise MissingUnit(f"usable unit (#{unit_entity.id()}: {exc})") from None
         return SIValue(float(raw) * float(q.to_base_units().magnitude), float(raw),
                        unit_label(unit_entity), measure)
     if measure in UNITLESS_MEASURES:

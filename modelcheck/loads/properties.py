@@ -37,7 +37,7 @@ from modelcheck.ifc.index import ModelIndex
 from modelcheck.loads.messages import MessageLog
 from modelcheck.loads.tables import DEFAULT_LOAD_CASE, VALUE_RE, ForceUnitError, force_unit_factor
 from modelcheck.table import FORCE_COLUMNS, empty_forces
-from modelcheck.units import MissingUnit, UnitDefinitionError, unit_label, unit_quantity, ureg
+from modelcheck.units import MissingUnit, UnitDefinitionError, UnusableUnit, unit_label, unit_quantity, ureg
 
 _NUMBER_UNIT = re.compile(VALUE_RE)   # a number and its unit, as a load table's cell is read
 _TEXT_MEASURES = frozenset({"IfcLabel", "IfcText", "IfcIdentifier"})
@@ -169,6 +169,10 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
     for k, key in enumerate(uniques):
         try:
             factors[k] = _factor(idx, key)
+        except UnusableUnit as exc:
+            usable[k] = False
+            for gid in np.asarray(gids, dtype=object)[codes == k]:
+                log.add(f"{label} is an IfcForceMeasure without its own unit, and {exc}; no force taken", gid)
         except MissingUnit:
             usable[k] = False
             for gid in np.asarray(gids, dtype=object)[codes == k]:

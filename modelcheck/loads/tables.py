@@ -96,12 +96,17 @@ def force_unit_factor(text: str) -> float:
     name = UNIT_ALIASES.get(t, t)
     try:
         q = Q_(1.0, ureg.Unit(name))
+    except ArithmeticError:   # 'N/0': pint divides while it parses
+        raise ForceUnitError(f"unit {t!r} divides by zero") from None
     except (pint.PintError, ValueError, TypeError, AttributeError, SyntaxError, tokenize.TokenError):
         raise ForceUnitError(f"unit {t!r} is not a unit modelcheck knows") from None
     if q.dimensionality != ureg.newton.dimensionality:
         hint = " (pound-force is 'lbf')" if q.dimensionality == ureg.pound.dimensionality else ""
         raise ForceUnitError(f"unit {t!r} is not a force, it is {q.dimensionality}{hint}")
-    factor = float(q.to(ureg.newton).magnitude)
+    try:
+        factor = float(q.to(ureg.newton).magnitude)
+    except ArithmeticError:
+        raise ForceUnitError(f"unit {t!r} has no usable size") from None
     if not math.isfinite(factor) or factor <= 0:
         raise ForceUnitError(f"unit {t!r} has no usable size")
     return factor
