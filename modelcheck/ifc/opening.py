@@ -94,6 +94,13 @@ def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
     if schema not in SUPPORTED_SCHEMAS:
         raise ModelReadError(f"schema {model.schema!r} is not supported (IFC2X3, IFC4, IFC4X3)", path=name)
     log = ifcopenshell.get_log()
+    twice = _DEFINED_TWICE.search(log)
+    if twice:
+        # the parser keeps one of the two and only logs it: which one a check would read is
+        # not the file's to say, so the model is not read at all
+        eid = int(twice["id"])
+        raise ModelReadError(f"cannot be parsed as IFC: entity #{eid} is defined twice"
+                             f"{_lines_defining(p, eid)}; every entity name must be unique", path=name)
     if _END_READ_AS_ENTITY.search(log):
         # an entity left open (a ')' missing) swallows the rest of the file: what is left of the
         # model is not the model; the parser says where it noticed ("; inside an instance")
@@ -103,6 +110,25 @@ def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
         raise ModelReadError(f"cannot be parsed as IFC: {at}an entity is not closed (a ')' or a quote is missing?); "
                              "the rest of the file was read as part of it", path=name)
     return model, log, _fds_on(p)
+
+
+#: the parser met an entity name a second time
+_DEFINED_TWICE = re.compile(r"Overwriting instance with name #(?P<id>\d+)")
+
+
+def _lines_defining(p: Path, eid: int) -> str:
+    """' (lines 12 and 40)': the lines of a plain IFC-SPF file where entity #eid is defined."""
+    if zipfile.is_zipfile(p):
+        return ""
+    pattern = re.compile(rb"(?:^|;)\s*#" + str(eid).encode() + rb"\s*=", re.MULTILINE)
+    lines: list[int] = []
+    with open(p, "rb") as fh:
+        data = fh.read()
+    for m in pattern.finditer(data):
+        lines.append(data.count(b"\n", 0, m.end()) + 1)
+    if len(lines) < 2:
+        return ""
+    return " (lines " + ", ".join(map(str, lines[:-1])) + f" and {lines[-1]})"
 
 
 #: the parser met the end of the DATA section inside an entity
