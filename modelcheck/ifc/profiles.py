@@ -526,8 +526,13 @@ class _Ctx:
         return UnsupportedProfile(f"{_src(self.profile)}: {what}")
 
 
-def _curve_segments(curve: Any, ctx: _Ctx) -> list[Segment]:
-    """The curve as line segments and conic arcs, in its own direction."""
+#: composite curves nested deeper than this are refused (real outlines nest one or two levels)
+MAX_CURVE_NESTING = 32
+
+
+def _curve_segments(curve: Any, ctx: _Ctx, within: tuple[int, ...] = ()) -> list[Segment]:
+    """The curve as line segments and conic arcs, in its own direction. ``within``: the ids of
+    the composite curves it is a part of (a curve that is part of itself is refused)."""
     kind = curve.is_a()
     p = ctx.profile
     if kind == "IfcPolyline":
@@ -536,11 +541,19 @@ def _curve_segments(curve: Any, ctx: _Ctx) -> list[Segment]:
     if kind == "IfcIndexedPolyCurve":
         return _indexed_poly_curve(curve, ctx)
     if kind in ("IfcCompositeCurve", "Ifc2DCompositeCurve"):
+        if curve.id() in within:
+            raise ctx.fail(f"{kind} #{curve.id()} is a segment of itself (a cycle through "
+                           + " → ".join(f"#{i}" for i in (*within, curve.id())) + ")")
+        if len(within) >= MAX_CURVE_NESTING:
+            raise ctx.fail(f"{kind} #{curve.id()} nests composite curves more than {MAX_CURVE_NESTING} deep")
         segs: list[Segment] = []
         for part in curve.Segments:
             if not part.is_a("IfcCompositeCurveSegment"):
                 raise ctx.fail(f"{part.is_a()} #{part.id()} in a composite curve is not supported")
-            sub = _curve_segments(part.ParentCurve, ctx)
+            parent = part.ParentCurve
+            if parent is None:
+                raise ctx.fail(f"IfcCompositeCurveSegment #{part.id()} has no ParentCurve")
+            sub = _curve_segments(parent, ctx, (*within, curve.id()))
             if not part.SameSense:
                 sub = [s.reversed() for s in reversed(sub)]
             segs.extend(sub)

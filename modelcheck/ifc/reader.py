@@ -836,6 +836,13 @@ def read_members(idx: ModelIndex, *, use_library: bool = True,
     for el, analysis in (member_entities(idx) if entities is None else entities):
         try:
             rows.append(reader.member(el, analysis))
+        except (RecursionError, SystemError) as exc:
+            # a cycle of references below this member that no reader step bounds (ifcopenshell
+            # reports Python's RecursionError inside its attribute read as a SystemError)
+            if not isinstance(exc, RecursionError) and not isinstance(exc.__cause__, RecursionError):
+                raise
+            rows.append(_unreadable_member(el, f"member cannot be read: the entities below #{el.id()} refer "
+                                               "to themselves in a cycle"))
         except RuntimeError as exc:  # a dangling or malformed entity deep below this member
             raise_if_parse_error(idx.path, exc)
             rows.append(_unreadable_member(el, f"member cannot be read: {idx.explain(exc)}"))
