@@ -61,8 +61,12 @@ AREA_TOLERANCE = 0.02     # 2 % between two sources of the cross-section area
 LENGTH_TOLERANCE = 0.05   # 5 % between two sources of the length (end cuts make axis ≠ body)
 
 #: plausible section and length bounds for an axial member (SI) — beyond them a value is doubted
+#: (common practice: the thinnest rolled or drawn wall, the finest wire rope strand and the
+#: shortest member anyone models lie well inside them)
 MAX_SECTION_DIM = 2.0     # m: no rod, brace or post of these kinds is 2 m across
+MIN_SECTION_DIM = 1e-4    # m (0.1 mm): no wall, flange or bar is thinner
 MAX_LENGTH = 200.0        # m
+MIN_LENGTH = 1e-3         # m (1 mm)
 MIN_AREA = 1e-8           # m² (0.01 mm²)
 
 
@@ -468,6 +472,10 @@ class _Reader:
             if section is None:
                 section = cand
                 continue
+            beyond = _beyond_family(section, cand)
+            if beyond:
+                warnings.append(beyond)
+                continue
             rel = (cand.area - section.area) / section.area
             if abs(rel) > AREA_TOLERANCE:
                 warnings.append(
@@ -486,14 +494,20 @@ class _Reader:
             lengths = [x for x in (axis_len, body_len, qlen) if x is not None]
         length, length_src = math.nan, None
         for val, src in lengths:
-            if not (math.isfinite(val) and 0 < val <= MAX_LENGTH):
-                warnings.append(f"length {val:.6g} m from {src} is not plausible for a member; not used")
+            if not (math.isfinite(val) and MIN_LENGTH <= val <= MAX_LENGTH):
+                warnings.append(f"length {val:.6g} m from {src} is not plausible for a member (outside "
+                                f"{MIN_LENGTH * 1e3:g} mm – {MAX_LENGTH:g} m); not used")
                 continue
             if length_src is None:
                 length, length_src = val, src
             elif abs(val - length) / length > LENGTH_TOLERANCE:
                 warnings.append(f"inconsistent length: {length_src} gives {length:.6g} m, "
                                 f"{src} gives {val:.6g} m; using the first")
+        if section is not None and length_src is not None:
+            larger = _larger_than_length(section, length, length_src)
+            if larger:   # a profile drawn in elevation, an extrusion in the wrong unit: neither is used
+                warnings.append(larger)
+                section, length, length_src = None, math.nan, None
         storey = idx.storey_of.get(eid)
         storey_name = None
         if storey is not None:
@@ -700,6 +714,9 @@ class _Reader:
 
 
 def _doubt_section(sec: Section) -> str | None:
+    """Why a section is not plausible for an axial member (None when it is): an area that is no
+    section, a dimension under 0.1 mm or over 2 m, an area or a radius of gyration its own
+    dimensions cannot give."""
     if not (math.isfinite(sec.area) and sec.area >= MIN_AREA):
         return f"section from {sec.source} has area {sec.area:.6g} m², which is not a section; not used"
     big = {k: v for k, v in sec.dims.items() if math.isfinite(v) and v > MAX_SECTION_DIM}
@@ -707,7 +724,66 @@ def _doubt_section(sec: Section) -> str | None:
         k, v = next(iter(big.items()))
         return (f"section from {sec.source} has {k} = {v:.4g} m, not plausible for an axial member "
                 f"(over {MAX_SECTION_DIM:g} m); not used")
+    small = {k: v for k, v in sec.dims.items() if not (math.isfinite(v) and v >= MIN_SECTION_DIM)}
+    if small:
+        k, v = next(iter(small.items()))
+        return (f"section from {sec.source} has {k} = {v * 1e3:.4g} mm, not plausible for an axial member "
+                f"(under {MIN_SECTION_DIM * 1e3:g} mm); not used")
+    if not math.isnan(sec.r_min) and not (math.isfinite(sec.r_min) and sec.r_min > 0):
+        return f"section from {sec.source} has radius of gyration {sec.r_min:.6g} m, which is not a section; not used"
+    box = _extent(sec)
+    if box is not None:
+        return _beyond_box(sec, box, sec.source)
     return None
+
+
+def _extent(sec: Section) -> tuple[float, float] | None:
+    """The width and height of the rectangle a section of a known family fits in (m), or None."""
+    d = sec.dims
+    if "d" in d:
+        return d["d"], d["d"]
+    if "h" in d and "b" in d:
+        # a Z section's flanges point both ways from the web: up to twice FlangeWidth across
+        return (2 * d["b"] if sec.shape == "Z" else d["b"]), d["h"]
+    return None
+
+
+def _beyond_box(sec: Section, box: tuple[float, float], box_source: str | None) -> str | None:
+    """A section's area or radius of gyration that no section inside ``box`` can have: the area
+    is at most the box's, and a radius of gyration at most half the box's smaller side (the
+    variance of a quantity between two bounds is at most a quarter of their range squared)."""
+    w, h = box
+    tol = 1 + AREA_TOLERANCE
+    of = "its own dimensions" if box_source == sec.source else f"the section from {box_source}"
+    if sec.area > w * h * tol:
+        return (f"area {sec.area * 1e6:.6g} mm² from {sec.source} is more than a section within "
+                f"{w * 1e3:.4g} × {h * 1e3:.4g} mm ({of}) can have ({w * h * 1e6:.6g} mm²): a unit slip?; not used")
+    if math.isfinite(sec.r_min) and sec.r_min > min(w, h) / 2 * tol:
+        return (f"radius of gyration {sec.r_min * 1e3:.6g} mm from {sec.source} is more than a section within "
+                f"{w * 1e3:.4g} × {h * 1e3:.4g} mm ({of}) can have ({min(w, h) / 2 * 1e3:.4g} mm); not used")
+    return None
+
+
+def _beyond_family(section: Section, cand: Section) -> str | None:
+    """A further source of a member's section (quantity set, profile properties) whose values the
+    chosen section's outline cannot hold: not compared, not used, said with both values."""
+    box = _extent(section)
+    if box is None or _extent(cand) is not None:
+        return None
+    return _beyond_box(cand, box, section.source)
+
+
+def _larger_than_length(section: Section, length: float, length_src: str) -> str | None:
+    """A section wider than the member is long: no axial member, but a profile drawn in elevation
+    and extruded by a thickness, or a length in the wrong unit."""
+    box = _extent(section)
+    size, what = ((max(box), "its largest dimension") if box is not None
+                  else (math.sqrt(section.area), "the side of a square of its area"))
+    if size <= length:
+        return None
+    return (f"the section from {section.source} ({what} {size * 1e3:.6g} mm, area {section.area * 1e6:.6g} mm²) "
+            f"is larger than the member's length {length * 1e3:.6g} mm from {length_src}: a profile drawn in "
+            "elevation, or a unit slip?; neither is used")
 
 
 def _unpack_material(select: Any) -> tuple[list[Any], list[Any]]:
