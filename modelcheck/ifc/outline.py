@@ -382,30 +382,41 @@ def _shifted(seg: Segment, dx: float, dy: float) -> Segment:
     return Arc((seg.center[0] + dx, seg.center[1] + dy), seg.u, seg.v, seg.t0, seg.sweep)
 
 
+#: the most points an outline may have: a real profile has tens to a few thousand; beyond this
+#: an outline is refused with a clear reason instead of tying up time and memory
+MAX_OUTLINE_POINTS = 100_000
+
+
 def crossing_edges(points: Sequence[Point]) -> tuple[int, int] | None:
-    """First pair (i, j) of non-adjacent edges of the closed polygon through ``points`` that
-    cross each other properly (edge i runs from point i to point i+1), or None when the polygon
-    is simple. Edges that only touch are not reported."""
+    """First pair (i, j), i < j, of non-adjacent edges of the closed polygon through ``points``
+    that cross each other properly (edge i runs from point i to point i+1), or None when the
+    polygon is simple. Edges that only touch (an end on the other edge) or overlap along a line
+    are not reported.
+
+    The candidates come from a spatial index of the edges (shapely's STRtree: n log n, not the
+    n × n of comparing every pair), and shapely's ``crosses`` decides each one.
+    """
     n = len(points)
     if n < 4:
         return None
-    import numpy as np  # only here: the outlines of parametric profiles rarely need it
+    if n > MAX_OUTLINE_POINTS:
+        raise GeometryError(f"an outline of {n} points (more than {MAX_OUTLINE_POINTS}) is not read")
+    import numpy as np  # only here: the outlines of parametric profiles rarely need them
+    import shapely
 
     p = np.asarray(points, dtype=float)
-    a, b = p, np.roll(p, -1, axis=0)
-    d = b - a
-    # o[i, j]: side of edge j's endpoints relative to edge i
-    rel_a = a[None, :, :] - a[:, None, :]
-    rel_b = b[None, :, :] - a[:, None, :]
-    side_a = d[:, None, 0] * rel_a[..., 1] - d[:, None, 1] * rel_a[..., 0]
-    side_b = d[:, None, 0] * rel_b[..., 1] - d[:, None, 1] * rel_b[..., 0]
-    straddles = side_a * side_b < 0
-    crossing = straddles & straddles.T
-    i, j = np.nonzero(np.triu(crossing, k=2))
-    for ii, jj in zip(i.tolist(), j.tolist(), strict=True):
-        if not (ii == 0 and jj == n - 1):
-            return (ii, jj)
-    return None
+    if not np.isfinite(p).all():
+        raise GeometryError("an outline point is not a finite number")
+    ends = np.stack([p, np.roll(p, -1, axis=0)], axis=1)          # (n, 2, 2): edge i's two ends
+    edges = shapely.linestrings(ends)
+    tree = shapely.STRtree(edges)
+    i, j = tree.query(edges, predicate="crosses")
+    keep = (i < j) & (j - i >= 2) & ~((i == 0) & (j == n - 1))
+    if not keep.any():
+        return None
+    i, j = i[keep], j[keep]
+    first = np.lexsort((j, i))[0]
+    return int(i[first]), int(j[first])
 
 
 def rounded_polygon(corners: Sequence[tuple[float, float, float]]) -> list[Segment]:

@@ -42,6 +42,7 @@ from dataclasses import dataclass, field, replace
 from typing import Any
 
 from modelcheck.ifc.outline import (
+    MAX_OUTLINE_POINTS,
     Arc,
     GeometryError,
     Line,
@@ -536,7 +537,9 @@ def _curve_segments(curve: Any, ctx: _Ctx, within: tuple[int, ...] = ()) -> list
     kind = curve.is_a()
     p = ctx.profile
     if kind == "IfcPolyline":
-        pts = [_coords(p, q) for q in curve.Points]
+        points = curve.Points
+        _within_limit(ctx, curve, len(points))
+        pts = [_coords(p, q) for q in points]
         return _polyline(pts)
     if kind == "IfcIndexedPolyCurve":
         return _indexed_poly_curve(curve, ctx)
@@ -569,8 +572,16 @@ def _polyline(pts: list[Point]) -> list[Segment]:
     return [Line(a, b) for a, b in zip(pts, pts[1:], strict=False) if a != b]
 
 
+def _within_limit(ctx: _Ctx, curve: Any, count: int) -> None:
+    if count > MAX_OUTLINE_POINTS:
+        raise ctx.fail(f"{curve.is_a()} #{curve.id()} has {count} points, more than the {MAX_OUTLINE_POINTS} "
+                       "an outline may have; not read")
+
+
 def _indexed_poly_curve(curve: Any, ctx: _Ctx) -> list[Segment]:
-    coords = [_xy(ctx.profile, c) for c in curve.Points.CoordList]
+    coord_list = curve.Points.CoordList
+    _within_limit(ctx, curve, len(coord_list))
+    coords = [_xy(ctx.profile, c) for c in coord_list]
     segments = getattr(curve, "Segments", None)
     if not segments:
         return _polyline(coords)
@@ -693,6 +704,7 @@ def _loop_moments(curve: Any, ctx: _Ctx) -> Moments:
         if gap > GAP_TOLERANCE * size and not (polyline and i == len(segs) - 1):
             where = "between its end and its start" if i == len(segs) - 1 else f"after segment {i + 1}"
             raise ctx.fail(f"{curve.is_a()} #{curve.id()} is not closed: a gap of {gap:g} {where}")
+    _within_limit(ctx, curve, len(segs))
     if all(isinstance(s, Line) for s in segs):
         crossing = crossing_edges([s.start for s in segs])
         if crossing is not None:
