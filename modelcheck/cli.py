@@ -513,13 +513,13 @@ def cmd_check(args: argparse.Namespace) -> int:
 
     _give_back_freed_memory()
     try:
+        if args.annotate:   # first: the copy reads every entity, and may find a model unreadable
+            _annotate(run, args.annotate, inputs)
         for fmt in files:
             with stage(f"write {fmt}"):
                 _write_format(fmt, run, targets[fmt], inputs, now, comparison, bool(args.strict))
     finally:
         release_rows(run.json_rows)
-    if args.annotate:
-        _annotate(run, args.annotate, inputs)
     if "console" in formats:
         from modelcheck.report.console import render_check  # rich: imported only for a console report
 

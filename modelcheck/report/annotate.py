@@ -108,7 +108,7 @@ def annotate_model(model_path: str | os.PathLike[str], out_path: str | os.PathLi
     input file is never modified. A GlobalId in ``results`` that the model does not hold is an
     error naming it (the results belong to another model).
     """
-    from modelcheck.ifc.index import open_model
+    from modelcheck.ifc.opening import raise_if_parse_error
 
     src, dst = Path(model_path), Path(out_path)
     if _same_file(src, dst):
@@ -119,6 +119,18 @@ def annotate_model(model_path: str | os.PathLike[str], out_path: str | os.PathLi
     if dst.suffix.lower() not in (".ifc", ".ifczip"):
         raise UsageError(f"--annotate {out_path}: the copy must end in .ifc or .ifczip", path=str(dst))
     rows = summarize(_rows_for_model(results, src))
+    try:
+        return _annotate_copy(src, dst, rows)
+    except RuntimeError as exc:
+        # the copy parses every entity, also those no check reads (placements, styles): a
+        # syntax error there makes the model unreadable here, with its line
+        raise_if_parse_error(src, exc)
+        raise
+
+
+def _annotate_copy(src: Path, dst: Path, rows: pd.DataFrame) -> int:
+    from modelcheck.ifc.index import open_model
+
     f = open_model(src)
 
     elements: list[tuple[Any, dict[str, Any]]] = []
