@@ -717,8 +717,6 @@ def _doubt_section(sec: Section) -> str | None:
     """Why a section is not plausible for an axial member (None when it is): an area that is no
     section, a dimension under 0.1 mm or over 2 m, an area or a radius of gyration its own
     dimensions cannot give."""
-    if not (math.isfinite(sec.area) and sec.area >= MIN_AREA):
-        return f"section from {sec.source} has area {sec.area:.6g} m², which is not a section; not used"
     big = {k: v for k, v in sec.dims.items() if math.isfinite(v) and v > MAX_SECTION_DIM}
     if big:
         k, v = next(iter(big.items()))
@@ -729,6 +727,8 @@ def _doubt_section(sec: Section) -> str | None:
         k, v = next(iter(small.items()))
         return (f"section from {sec.source} has {k} = {v * 1e3:.4g} mm, not plausible for an axial member "
                 f"(under {MIN_SECTION_DIM * 1e3:g} mm); not used")
+    if not (math.isfinite(sec.area) and sec.area >= MIN_AREA):
+        return f"section from {sec.source} has area {sec.area:.6g} m², which is not a section; not used"
     if not math.isnan(sec.r_min) and not (math.isfinite(sec.r_min) and sec.r_min > 0):
         return f"section from {sec.source} has radius of gyration {sec.r_min:.6g} m, which is not a section; not used"
     box = _extent(sec)
