@@ -566,3 +566,18 @@ def test_crossing_edges_agrees_with_the_orientation_test_of_every_pair(points):
     pairs = [(i, j) for i in range(n) for j in range(i + 2, n) if not (i == 0 and j == n - 1)
              and _properly_cross(pts[i], pts[(i + 1) % n], pts[j], pts[(j + 1) % n])]
     assert crossing_edges(pts) == (min(pairs) if pairs else None)
+
+
+def test_a_net_area_larger_than_the_gross_area_is_not_used(capsys, tmp_path):
+    # 400 mm² net on a 20 mm bar of 314.16 mm² gross (πd²/4): holes take area away, never add it
+    mb = good_builder()
+    steel = mb.f.by_type("IfcMaterial")[0]
+    rod = mb.f.createIfcCircleProfileDef("AREA", "RD20", profile_position(mb), 10.0)
+    mb.member("IfcMember", name="N1", tag="N1", profile=rod, material=steel, length=2400.0,
+              psets={"MC_NetSection": {"NetArea": ("IfcAreaMeasure", 400.0)}, **FORCE})
+    path = write_model(mb, tmp_path / "net.ifc")
+    warns = member_warnings(capsys, path)["N1"]
+    assert any("net area 400 mm²" in w and "314.159 mm²" in w and "not used" in w for w in warns), warns
+    doc = check(capsys, path).json()
+    # steel-asd-us's tension-rupture applies only where a net area exists: here none is used
+    assert "tension-rupture" not in {r["check"] for r in results_by_member(doc)[member_ids(mb)["N1"]]}

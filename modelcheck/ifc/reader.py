@@ -503,6 +503,10 @@ class _Reader:
             elif abs(val - length) / length > LENGTH_TOLERANCE:
                 warnings.append(f"inconsistent length: {length_src} gives {length:.6g} m, "
                                 f"{src} gives {val:.6g} m; using the first")
+        if section is not None and net[1] is not None and net[0] > section.area * (1 + AREA_TOLERANCE):
+            warnings.append(f"net area {net[0] * 1e6:.6g} mm² from {net[1]} is more than the gross area "
+                            f"{section.area * 1e6:.6g} mm² from {section.source}; not used")
+            net = _NO_NET
         if section is not None and length_src is not None:
             larger = _larger_than_length(section, length, length_src)
             if larger:   # a profile drawn in elevation, an extrusion in the wrong unit: neither is used
