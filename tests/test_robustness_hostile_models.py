@@ -559,13 +559,14 @@ def _properly_cross(a: Any, b: Any, c: Any, d: Any) -> bool:
 
 
 @settings(max_examples=200, deadline=None)
-@given(st.lists(st.tuples(st.integers(-6, 6), st.integers(-6, 6)), min_size=4, max_size=12))
-def test_crossing_edges_agrees_with_the_orientation_test_of_every_pair(points):
+@given(st.lists(st.tuples(st.integers(-6, 6), st.integers(-6, 6)), min_size=4, max_size=12), st.booleans())
+def test_crossing_edges_agrees_with_the_orientation_test_of_every_pair(points, indexed):
+    # both ways of finding the candidates: every pair (small outlines), the spatial index (large ones)
     pts = [(float(x), float(y)) for x, y in points]
     n = len(pts)
     pairs = [(i, j) for i in range(n) for j in range(i + 2, n) if not (i == 0 and j == n - 1)
              and _properly_cross(pts[i], pts[(i + 1) % n], pts[j], pts[(j + 1) % n])]
-    assert crossing_edges(pts) == (min(pairs) if pairs else None)
+    assert crossing_edges(pts, pairwise=0 if indexed else n) == (min(pairs) if pairs else None)
 
 
 def test_a_net_area_larger_than_the_gross_area_is_not_used(capsys, tmp_path):

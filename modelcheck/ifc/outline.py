@@ -32,6 +32,7 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
+from typing import Any
 
 __all__ = [
     "Arc",
@@ -387,36 +388,60 @@ def _shifted(seg: Segment, dx: float, dy: float) -> Segment:
 MAX_OUTLINE_POINTS = 100_000
 
 
-def crossing_edges(points: Sequence[Point]) -> tuple[int, int] | None:
+#: outlines up to this many points are tested pair by pair (n × n small arrays: quicker than
+#: building a spatial index for the dozen points of a filleted profile)
+PAIRWISE_POINTS = 64
+
+
+def crossing_edges(points: Sequence[Point], *, pairwise: int = PAIRWISE_POINTS) -> tuple[int, int] | None:
     """First pair (i, j), i < j, of non-adjacent edges of the closed polygon through ``points``
     that cross each other properly (edge i runs from point i to point i+1), or None when the
     polygon is simple. Edges that only touch (an end on the other edge) or overlap along a line
     are not reported.
 
-    The candidates come from a spatial index of the edges (shapely's STRtree: n log n, not the
-    n × n of comparing every pair), and shapely's ``crosses`` decides each one.
+    Up to ``pairwise`` points every pair is compared; beyond, the candidates come from a spatial
+    index of the edges (shapely's STRtree: n log n, where comparing every pair of 8,000 edges
+    took gigabytes) and shapely's ``crosses`` decides each one.
     """
     n = len(points)
     if n < 4:
         return None
     if n > MAX_OUTLINE_POINTS:
         raise GeometryError(f"an outline of {n} points (more than {MAX_OUTLINE_POINTS}) is not read")
-    import numpy as np  # only here: the outlines of parametric profiles rarely need them
-    import shapely
+    import numpy as np  # only here: the outlines of parametric profiles rarely need it
 
     p = np.asarray(points, dtype=float)
     if not np.isfinite(p).all():
         raise GeometryError("an outline point is not a finite number")
-    ends = np.stack([p, np.roll(p, -1, axis=0)], axis=1)          # (n, 2, 2): edge i's two ends
-    edges = shapely.linestrings(ends)
-    tree = shapely.STRtree(edges)
-    i, j = tree.query(edges, predicate="crosses")
+    if n <= pairwise:
+        i, j = _crossing_pairs(p)
+    else:
+        import shapely
+
+        edges = shapely.linestrings(np.stack([p, np.roll(p, -1, axis=0)], axis=1))   # edge i: point i → i+1
+        i, j = shapely.STRtree(edges).query(edges, predicate="crosses")
     keep = (i < j) & (j - i >= 2) & ~((i == 0) & (j == n - 1))
     if not keep.any():
         return None
     i, j = i[keep], j[keep]
     first = np.lexsort((j, i))[0]
     return int(i[first]), int(j[first])
+
+
+def _crossing_pairs(p: Any) -> tuple[Any, Any]:
+    """(i, j) of every pair of edges of the closed polygon ``p`` (an n × 2 array) whose ends lie
+    strictly on both sides of each other's line."""
+    import numpy as np
+
+    a, b = p, np.roll(p, -1, axis=0)
+    d = b - a
+    # side[i, j]: side of edge j's endpoints relative to edge i
+    rel_a = a[None, :, :] - a[:, None, :]
+    rel_b = b[None, :, :] - a[:, None, :]
+    side_a = d[:, None, 0] * rel_a[..., 1] - d[:, None, 1] * rel_a[..., 0]
+    side_b = d[:, None, 0] * rel_b[..., 1] - d[:, None, 1] * rel_b[..., 0]
+    straddles = side_a * side_b < 0
+    return np.nonzero(straddles & straddles.T)
 
 
 def rounded_polygon(corners: Sequence[tuple[float, float, float]]) -> list[Segment]:
