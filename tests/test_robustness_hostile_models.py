@@ -275,6 +275,7 @@ def test_magnitude_compares_the_size_of_a_signed_demand(capsys, tmp_path, two_ha
         (row,) = results_by_member(doc)[ids[name]]
         assert row["status"] == "fail"
         assert row["demand"]["value"] == pytest.approx(63.662, rel=1e-4)
+        assert row["demand"]["source"] == "|P / A|"
 
 
 # ---------------------------------------------------------------------------- plausible geometry

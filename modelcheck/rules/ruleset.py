@@ -151,7 +151,8 @@ class Check:
 
     @property
     def demand_source(self) -> str:
-        return self.demand.source
+        """The demand as written, between bars when its size is compared (``magnitude``)."""
+        return f"|{self.demand.source}|" if self.magnitude else self.demand.source
 
     @property
     def capacity_source(self) -> str:

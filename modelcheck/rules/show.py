@@ -82,8 +82,9 @@ def checks_table(rs: RuleSet) -> Table:
         when = escape(c.when.source) if c.when is not None else "always"
         if not c.select.empty:
             when += "\n[dim]members: " + escape(c.select.describe()) + "[/dim]"
+        demand = f"|{escape(c.demand.source)}|" if c.magnitude else escape(c.demand.source)
         table.add_row(escape(c.id) + f"\n[dim]{escape(c.title)}[/dim]", escape(c.clause), when,
-                      escape(c.demand.source), escape(c.capacity.source), escape(_unit(c.unit)))
+                      demand, escape(c.capacity.source), escape(_unit(c.unit)))
     return table
 
 
