@@ -163,6 +163,25 @@ def test_an_area_unit_of_the_wrong_dimension_is_not_used_for_quantities(capsys, 
     assert any("AREAUNIT" in w and "not usable" in w for w in warns), warns
 
 
+def test_an_unusable_plane_angle_unit_is_never_read_as_the_radian(capsys, tmp_path):
+    # PLANEANGLEUNIT a METRE: an I-section's flange slope cannot be read (the radian is IFC's
+    # default only where no unit is stated); a section without angles is read as usual
+    mb = good_builder()
+    _replace_unit(mb, "PLANEANGLEUNIT", mb.f.createIfcSIUnit(None, "PLANEANGLEUNIT", None, "METRE"))
+    steel = mb.f.by_type("IfcMaterial")[0]
+    ipe = mb.f.createIfcIShapeProfileDef("AREA", "IPN200", profile_position(mb), 90.0, 200.0, 7.5, 11.3, 7.5,
+                                         4.5, 0.14)   # a tapered flange: 14 % slope (in radians here)
+    mb.member("IfcMember", name="I1", tag="I1", profile=ipe, material=steel, length=3000.0, psets=FORCE)
+    path = write_model(mb, tmp_path / "angle-unit.ifc")
+    warns = member_warnings(capsys, path)
+    assert any("FlangeSlope" in w and "PLANEANGLEUNIT is not usable" in w for w in warns["I1"]), warns["I1"]
+    assert warns["H1"] == []
+    doc = check(capsys, path).json()
+    assert any("PLANEANGLEUNIT" in w and "not usable" in w for w in model_warnings(doc))
+    assert statuses_of(doc, member_ids(mb)["I1"]) == {"unchecked"}
+    assert all("nan" not in w.lower().replace("n/a", "") for w in model_warnings(doc) + warns["I1"])
+
+
 # ------------------------------------------------------------------------- capacity and demand
 RULES_HEAD = """\
 [ruleset]

@@ -160,6 +160,9 @@ def _slope(p: Any, name: str, angle_factor: float) -> float:
         return 0.0
     if not isinstance(v, int | float) or not math.isfinite(v):
         raise UnsupportedProfile(f"{_src(p)}: {name} = {v!r} is not an angle")
+    if not math.isfinite(angle_factor):
+        raise UnsupportedProfile(f"{_src(p)}: {name} = {v!r} cannot be read: the model's PLANEANGLEUNIT is "
+                                 "not usable")
     a = float(v) * angle_factor
     if not 0.0 <= a < MAX_SLOPE:
         raise UnsupportedProfile(
@@ -669,6 +672,9 @@ def _trimmed(curve: Any, ctx: _Ctx) -> Segment:
         def angle(pt: Any, t: float | None) -> float:
             if pt is None:
                 assert t is not None
+                if not math.isfinite(ctx.angle_factor):
+                    raise ctx.fail(f"IfcTrimmedCurve #{curve.id()} is trimmed by angle, and the model's "
+                                   "PLANEANGLEUNIT is not usable")
                 return t * ctx.angle_factor
             x, y = _coords(p, pt)
             dx, dy = x - centre[0], y - centre[1]

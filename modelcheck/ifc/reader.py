@@ -44,7 +44,7 @@ from modelcheck.ifc.index import (
 )
 from modelcheck.ifc.profiles import ProfileSection, UnsupportedProfile, section_of
 from modelcheck.table import frame_of, member_columns
-from modelcheck.units import MissingUnit
+from modelcheck.units import MissingUnit, UnusableUnit
 
 #: classes that are always axial-member candidates (subtypes included)
 MEMBER_CLASSES = ("IfcMember", "IfcColumn", "IfcBeam", "IfcTendon")
@@ -105,6 +105,9 @@ class _Reader:
             self.model_warnings.append("the model assigns no LENGTHUNIT: no length or section is read")
         try:
             self.angle = idx.units.factor("PLANEANGLEUNIT")
+        except UnusableUnit as exc:   # stated, but not usable: no angle is read (never the radian instead)
+            self.angle = math.nan
+            self.model_warnings.append(f"{exc}: no angle of a profile is read")
         except MissingUnit:
             self.angle = 1.0  # IFC's own default for plane angles is the radian (IfcPlaneAngleMeasure)
         self._profile_cache: dict[int, Section | str] = {}
