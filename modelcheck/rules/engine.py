@@ -363,8 +363,7 @@ def _unverifiable(check: Check, demand: np.ndarray,
     return bad_demand, bad_capacity, negative
 
 
-def _unverifiable_text(check: Check, ruleset: RuleSet, demand: float, capacity: float, bad_capacity: bool,
-                       bad_demand: bool) -> str:
+def _unverifiable_text(check: Check, demand: float, capacity: float, bad_capacity: bool, bad_demand: bool) -> str:
     """Why a row whose inputs are all there is not checked, with the value that stops it."""
     unit = check.unit
     label = f" {_unit_label(unit)}" if unit else ""
@@ -415,7 +414,7 @@ def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
                 message[pos] = "not checked: the applicability condition cannot be decided"
             else:
                 r = int(rows[pos])
-                message[pos] = "not checked: " + _unverifiable_text(check, ruleset, demand[r], capacity[r],
+                message[pos] = "not checked: " + _unverifiable_text(check, demand[r], capacity[r],
                                                                   bool(bad_capacity[r]), bool(bad_demand[r]))
     c_pos = np.flatnonzero(~unchecked_k)
     if len(c_pos) and messages:
