@@ -42,8 +42,10 @@ from modelcheck.data import data_path
 from modelcheck.errors import RuleSetError
 from modelcheck.units import Q_, ureg
 
-#: material categories of the library ("unknown" is the fallback of plausible_range)
-CATEGORIES: tuple[str, ...] = ("steel", "stainless", "aluminium")
+#: material categories ("unknown" is the fallback of plausible_range: a name nothing recognises)
+CATEGORIES: tuple[str, ...] = ("steel", "stainless", "aluminium", "concrete", "timber", "masonry", "other")
+#: the category of a material whose name and Category nothing recognises
+UNKNOWN = "unknown"
 
 #: value keys of a grade -> (SI unit, pint dimensionality it must have, human description)
 VALUE_KEYS: dict[str, tuple[str, str]] = {
@@ -51,6 +53,10 @@ VALUE_KEYS: dict[str, tuple[str, str]] = {
     "Fy": ("Pa", "a pressure (e.g. '355 MPa')"),
     "Fu": ("Pa", "a pressure (e.g. '490 MPa')"),
     "alpha": ("1/K", "per temperature step (e.g. '12e-6 1/K')"),
+}
+#: quantities a plausible range may bound: the grade values and the mass density
+RANGE_KEYS: dict[str, tuple[str, str]] = VALUE_KEYS | {
+    "density": ("kg/m**3", "a mass density (e.g. '7850 kg/m**3')"),
 }
 _REQUIRED_VALUES = ("E",)
 _MATERIAL_KEYS = frozenset({"category", "standard", "names", "note", *VALUE_KEYS})
@@ -82,14 +88,35 @@ class LibraryMaterial:
     note: str | None = None
 
     def value(self, key: str) -> float | None:
-        """``value("Fy")`` -> the value of ``E``, ``Fy``, ``Fu`` or ``alpha``."""
-        return getattr(self, key)
+        """``value("Fy")`` -> the value of ``E``, ``Fy``, ``Fu`` or ``alpha`` (None for another key)."""
+        return getattr(self, key, None) if key in VALUE_KEYS else None
 
     def source(self, key: str) -> str | None:
         return getattr(self, f"{key}_source")
 
     def basis(self, key: str) -> str | None:
         return getattr(self, f"{key}_basis")
+
+
+@dataclass(frozen=True)
+class PlausibleRange:
+    """The screening bounds of one quantity for one category, as the library file states them.
+
+    ``text`` is the range as written there ("150–230 GPa"), for a message to quote::
+
+        r = plausible("timber", "E")
+        f"outside the plausible range for {r.category} ({r.text})"
+    """
+
+    category: str          # the category the range was written for ("unknown": the fallback)
+    key: str               # E | Fy | Fu | alpha | density
+    low: float             # SI
+    high: float            # SI
+    text: str              # "150–230 GPa"
+    source: str | None     # where the bounds come from, as the file names it
+
+    def contains(self, value: float) -> bool:
+        return math.isfinite(value) and self.low <= value <= self.high
 
 
 @dataclass(frozen=True)
@@ -101,14 +128,14 @@ class MaterialLibrary:
     materials: tuple[LibraryMaterial, ...]
     patterns: tuple[tuple[str, int], ...]               # (normalised pattern, index in materials)
     category_words: tuple[tuple[str, str], ...]         # (normalised word, category)
-    plausible: tuple[tuple[str, str, float, float], ...]  # (category, key, low, high)
+    plausible: tuple[PlausibleRange, ...]
 
     def category_of(self, word: str | None) -> str | None:
         """A category word of a model ('Structural Steel') -> library category, or None."""
         if not word:
             return None
         norm = normalise(word)
-        if norm in CATEGORIES:
+        if norm in CATEGORIES or norm == UNKNOWN:
             return norm
         for w, cat in self.category_words:
             if w == norm:
@@ -182,7 +209,7 @@ def _err(path: str, where: str, message: str) -> RuleSetError:
 
 def _quantity(text: Any, path: str, where: str, key: str) -> float:
     """'36 ksi' -> 248211262.55 (SI) with the dimension of ``key``; RuleSetError otherwise."""
-    si_unit, what = VALUE_KEYS[key]
+    si_unit, what = RANGE_KEYS[key]
     if not isinstance(text, str):
         raise _err(path, where, f"value must be a string '<number> <unit>', got {text!r}")
     m = _VALUE_RE.match(text)
@@ -221,28 +248,20 @@ def _parse(doc: dict[str, Any], path: str, label: str) -> MaterialLibrary:
             raise _err(path, f"categories.{cat}", "must be a list of strings")
         words += [(normalise(w), cat) for w in ws]
 
-    plausible: list[tuple[str, str, float, float]] = []
+    plausible: list[PlausibleRange] = []
     pl = doc.get("plausible", {})
     if not isinstance(pl, dict):
         raise _err(path, "plausible", "must be a table of [plausible.<category>] tables")
     for cat, ranges in pl.items():
         where = f"plausible.{cat}"
-        if cat not in (*CATEGORIES, "unknown"):
+        if cat not in (*CATEGORIES, UNKNOWN):
             raise _err(path, where, f"unknown category (expected one of {', '.join(CATEGORIES)}, unknown)")
         if not isinstance(ranges, dict):
             raise _err(path, where, "must be a table of key = [low, high]")
-        for key, pair in ranges.items():
-            if key not in VALUE_KEYS:
-                raise _err(path, f"{where}.{key}", f"unknown key (expected {', '.join(VALUE_KEYS)})")
-            if not isinstance(pair, list) or len(pair) != 2:
-                raise _err(path, f"{where}.{key}", "must be a list [low, high] of two values with units")
-            lo = _quantity(pair[0], path, f"{where}.{key}", key)
-            hi = _quantity(pair[1], path, f"{where}.{key}", key)
-            if not lo < hi:
-                raise _err(path, f"{where}.{key}", f"low {pair[0]!r} is not below high {pair[1]!r}")
-            plausible.append((cat, key, lo, hi))
-    fallback = {key for cat, key, _lo, _hi in plausible if cat == "unknown"}
-    if fallback != set(VALUE_KEYS):
+        for key, entry in ranges.items():
+            plausible.append(_plausible_entry(path, f"{where}.{key}", cat, key, entry))
+    fallback = {r.key for r in plausible if r.category == UNKNOWN}
+    if not fallback >= set(VALUE_KEYS):
         missing = ", ".join(k for k in VALUE_KEYS if k not in fallback)
         raise _err(path, "plausible.unknown", f"missing {missing}: the fallback ranges need every key")
 
@@ -307,6 +326,35 @@ def _parse(doc: dict[str, Any], path: str, label: str) -> MaterialLibrary:
                            category_words=tuple(words), plausible=tuple(plausible))
 
 
+def _plausible_entry(path: str, where: str, cat: str, key: str, entry: Any) -> PlausibleRange:
+    """``key = ["150 GPa", "230 GPa"]`` or ``key = { range = [...], source = "..." }``."""
+    if key not in RANGE_KEYS:
+        raise _err(path, where, f"unknown key (expected {', '.join(RANGE_KEYS)})")
+    source = None
+    if isinstance(entry, dict):
+        if set(entry) - {"range", "source"} or "range" not in entry:
+            raise _err(path, where, "must be [low, high] or { range = [low, high], source = \"...\" }")
+        source = entry.get("source")
+        if source is not None and (not isinstance(source, str) or not source.strip()):
+            raise _err(path, f"{where}.source", "must name where the bounds come from")
+        entry = entry["range"]
+    if not isinstance(entry, list) or len(entry) != 2:
+        raise _err(path, where, "must be a list [low, high] of two values with units")
+    lo = _quantity(entry[0], path, where, key)
+    hi = _quantity(entry[1], path, where, key)
+    if not lo < hi:
+        raise _err(path, where, f"low {entry[0]!r} is not below high {entry[1]!r}")
+    return PlausibleRange(cat, key, lo, hi, _range_text(str(entry[0]), str(entry[1])), source)
+
+
+def _range_text(low: str, high: str) -> str:
+    """'150 GPa', '230 GPa' -> '150–230 GPa'; '8 GPa', '1 TPa' -> '8 GPa–1 TPa'."""
+    lo, hi = _VALUE_RE.match(low), _VALUE_RE.match(high)
+    if lo is not None and hi is not None and lo.group(2) == hi.group(2):
+        return f"{lo.group(1)}–{hi.group(1)} {hi.group(2)}".strip()
+    return f"{low.strip()}–{high.strip()}"
+
+
 def match_candidates(name: str | None, category: str | None = None, *,
                      path: str | Path | None = None) -> tuple[tuple[LibraryMaterial, str], ...]:
     """Every grade whose patterns match ``name``, best first, with its longest matching pattern."""
@@ -318,7 +366,7 @@ def match_candidates(name: str | None, category: str | None = None, *,
 
 def _candidates(lib: MaterialLibrary, norm_name: str,
                 category: str | None) -> tuple[tuple[LibraryMaterial, str], ...]:
-    allowed = None if category is None else ({"steel", "stainless"} if category == "steel" else {category})
+    allowed = None if category in (None, UNKNOWN) else ({"steel", "stainless"} if category == "steel" else {category})
     best: dict[int, str] = {}
     for pattern, idx in lib.patterns:
         if allowed is not None and lib.materials[idx].category not in allowed:
@@ -356,15 +404,28 @@ def _match_cached(name: str, category: str | None, path: str | None,
     return found[0][0]
 
 
-def plausible_range(category: str | None, *, path: str | Path | None = None) -> dict[str, tuple[float, float]]:
-    """Screening bounds ``{"E": (lo, hi), "Fy": …, "Fu": …, "alpha": …}`` in SI for a category.
+def plausible_ranges(category: str | None, *, path: str | Path | None = None) -> dict[str, PlausibleRange]:
+    """The screening bounds of every quantity for a category (see :class:`PlausibleRange`).
 
-    ``category`` is a library category or any category word of a model ("Structural Steel");
-    ``None`` or an unknown word gives the "unknown" bounds. A key the library leaves out for a
-    category falls back to the "unknown" bounds.
+    ``category`` is a category ("timber") or any category word of a model ("Structural Steel");
+    ``None``, "unknown" or a word nothing recognises gives the "unknown" bounds, wide enough to
+    catch unit slips only. A key the library leaves out for a category falls back to the
+    "unknown" bounds (the range's ``category`` then says "unknown").
     """
     lib = load_library(path)
-    cat = lib.category_of(category) or "unknown"
-    ranges = {key: (lo, hi) for c, key, lo, hi in lib.plausible if c == "unknown"}
-    ranges.update({key: (lo, hi) for c, key, lo, hi in lib.plausible if c == cat})
+    cat = lib.category_of(category) or UNKNOWN
+    ranges = {r.key: r for r in lib.plausible if r.category == UNKNOWN}
+    ranges.update({r.key: r for r in lib.plausible if r.category == cat})
     return ranges
+
+
+def plausible(category: str | None, key: str, *, path: str | Path | None = None) -> PlausibleRange | None:
+    """The screening bounds of ``key`` (E, Fy, Fu, alpha, density) for ``category``; None where
+    the library bounds that quantity for no category."""
+    return plausible_ranges(category, path=path).get(key)
+
+
+def plausible_range(category: str | None, *, path: str | Path | None = None) -> dict[str, tuple[float, float]]:
+    """Screening bounds ``{"E": (lo, hi), "Fy": …, "Fu": …, "alpha": …, "density": …}`` in SI
+    for a category (see :func:`plausible_ranges`)."""
+    return {k: (r.low, r.high) for k, r in plausible_ranges(category, path=path).items()}

@@ -124,10 +124,11 @@ def test_plausible_range_categories() -> None:
     alu = plausible_range("Aluminum")
     steel = plausible_range("Structural Steel")
     unknown = plausible_range(None)
-    assert set(alu) == set(steel) == set(unknown) == {"E", "Fy", "Fu", "alpha"}
+    assert set(alu) == set(steel) == set(unknown) == {"E", "Fy", "Fu", "alpha", "density"}
     # aluminium alloys: E ≈ 70 GPa, steel ≈ 200 GPa (EN 1999-1-1 3.2.5, EN 1993-1-1 3.2.6) (from memory)
     assert alu["E"][0] <= 70e9 <= alu["E"][1] and not steel["E"][0] <= 70e9 <= steel["E"][1]
-    assert plausible_range("concrete") == unknown
+    assert plausible_range("concrete")["E"] != unknown["E"]      # concrete has its own modulus range
+    assert plausible_range("concrete")["Fy"] == unknown["Fy"]    # and no yield strength: the fallback
     assert unknown["E"][0] <= steel["E"][0] and unknown["E"][1] >= steel["E"][1]
 
 

@@ -271,40 +271,54 @@ class _Reader:
         key = mat.id()
         if key in self._material_cache:
             return self._material_cache[key]
+        from modelcheck.material_names import read_name
+        from modelcheck.materials import UNKNOWN, match_material
+
         values: dict[str, tuple[float, str]] = {}
         warnings: list[str] = []
-        for mp in self.idx.material_props.get(key, ()):
+        ranked = sorted(self.idx.material_props.get(key, ()), key=_material_set_rank)
+        for mp in ranked:
             self._read_material_props(mp, values, warnings)
-        category = getattr(mat, "Category", None)
-        grade = None
+        name = mat.Name
+        reading = read_name(name, getattr(mat, "Category", None))
+        category = reading.category
+        grade = reading.grade
+        if reading.Fy is not None and "Fy" not in values:
+            values["Fy"] = (reading.Fy, f"material name {name!r} (pattern {reading.Fy_pattern}: {reading.Fy_text})")
         if self.use_library:
-            from modelcheck.materials import match_material
-
-            lib = match_material(mat.Name, category)
+            lib = match_material(name, category)
+            if lib is None and grade is not None:
+                lib = match_material(grade, category)   # 'A992Fy50': the grade read from the name
             if lib is not None:
                 grade = lib.grade
-                category = category or lib.category
+                if category in ("steel", UNKNOWN) or not reading.known:
+                    category = lib.category   # a steel name the library knows as stainless
                 for q in ("E", "Fy", "Fu", "alpha"):
                     v = lib.value(q)
                     if q not in values and v is not None and not math.isnan(v):
                         values[q] = (float(v), lib.source(q) or f"material library: {lib.grade}")
+        if category == UNKNOWN:
+            warnings.append(f"material {name!r}: category unknown (neither its name nor its Category matches a "
+                            "pattern of rulesets/material-names.toml)")
         self._plausibility(mat, category, values, warnings)
-        info = MaterialInfo(mat.Name, category, grade, values, tuple(warnings))
+        values.pop("density", None)   # screened above; no check uses it
+        info = MaterialInfo(name, category, grade, values, tuple(warnings))
         self._material_cache[key] = info
         return info
 
     _IFC2X3_ATTRS = {"YoungModulus": ("E", "IfcModulusOfElasticityMeasure"),
                      "ThermalExpansionCoefficient": ("alpha", "IfcThermalExpansionCoefficientMeasure"),
                      "YieldStress": ("Fy", "IfcPressureMeasure"),
-                     "UltimateStress": ("Fu", "IfcPressureMeasure")}
-    _PSET_PROPS = {("Pset_MaterialMechanical", "YoungModulus"): "E",
-                   ("Pset_MaterialMechanical", "ThermalExpansionCoefficient"): "alpha",
-                   ("Pset_MaterialSteel", "YieldStress"): "Fy",
-                   ("Pset_MaterialSteel", "UltimateStress"): "Fu"}
+                     "UltimateStress": ("Fu", "IfcPressureMeasure"),
+                     "MassDensity": ("density", "IfcMassDensityMeasure")}
 
     def _read_material_props(self, mp: Any, values: dict[str, tuple[float, str]], warnings: list[str]) -> None:
+        """The trade's property names from one material property set, in whatever set the model
+        puts them (see ``MATERIAL_PROPERTIES``); a quantity found already (in a higher-ranked
+        set) is kept."""
         cls = mp.is_a()
-        if cls in ("IfcMechanicalMaterialProperties", "IfcMechanicalSteelMaterialProperties"):
+        if cls in ("IfcMechanicalMaterialProperties", "IfcMechanicalSteelMaterialProperties",
+                   "IfcGeneralMaterialProperties"):
             for attr, (q, measure) in self._IFC2X3_ATTRS.items():
                 raw = getattr(mp, attr, None)
                 if raw is None or q in values:
@@ -312,35 +326,40 @@ class _Reader:
                 try:
                     v = measure_si(self.idx, measure, float(raw))
                 except MissingUnit as exc:
-                    warnings.append(f"{cls} #{mp.id()}.{attr} = {raw} not used: {exc}")
+                    warnings.append(f"{cls} #{mp.id()}.{attr} = {raw} not used: {exc} (the unit is never assumed)")
                     continue
                 values[q] = (v.value, f"{cls} #{mp.id()}.{attr} [{v.unit}]")
             return
         name = getattr(mp, "Name", None)
-        for prop in getattr(mp, "Properties", None) or ():
-            q = self._PSET_PROPS.get((name, prop.Name))
+        label = name or f"{cls} #{mp.id()}"
+        props = getattr(mp, "Properties", None) if cls != "IfcExtendedMaterialProperties" \
+            else getattr(mp, "ExtendedProperties", None)
+        for prop in props or ():
+            q = MATERIAL_PROPERTIES.get(_property_key(prop.Name))
             if q is None or q in values or not prop.is_a("IfcPropertySingleValue"):
                 continue
             try:
-                v = property_si(self.idx, prop)
+                v = _material_value(self.idx, prop)
             except MissingUnit as exc:
-                warnings.append(f"{name}.{prop.Name} = {prop.NominalValue.wrappedValue} not used: {exc}")
+                warnings.append(f"{label}.{prop.Name} = {_raw_text(prop)} not used: {exc} and the value carries "
+                                "no unit of its own (the unit is never assumed)")
                 continue
             if v is not None:
-                values[q] = (v.value, f"{name}.{prop.Name} [{v.unit}]")
+                values[q] = (v.value, f"{label}.{prop.Name} [{v.unit}]")
 
     def _plausibility(self, mat: Any, category: str | None, values: dict[str, tuple[float, str]],
                       warnings: list[str]) -> None:
-        from modelcheck.materials import plausible_range
+        from modelcheck.materials import plausible_ranges
 
-        ranges = plausible_range(category)
+        ranges = plausible_ranges(category)
         for q, (v, src) in list(values.items()):
-            lo, hi = ranges.get(q, (-math.inf, math.inf))
-            if not (math.isfinite(v) and lo <= v <= hi):
-                warnings.append(
-                    f"material {mat.Name!r}: {q} = {_fmt_si(q, v)} from {src} is outside the plausible "
-                    f"range {_fmt_si(q, lo)}–{_fmt_si(q, hi)} for {category or 'an unknown category'}; not used")
-                values[q] = (math.nan, f"doubted: {src}")
+            r = ranges.get(q)
+            if r is None or r.contains(v):
+                continue
+            warnings.append(
+                f"material {mat.Name!r}: {q} = {_fmt_si(q, v)} from {src} is outside the plausible "
+                f"range for {r.category if r.category != 'unknown' else 'any material'} ({r.text}); not used")
+            values[q] = (math.nan, f"doubted: {src}")
 
     # -------------------------------------------------------------------- member
     def selection(self, sel: Any) -> tuple[MaterialInfo | None, Section | str | None]:
@@ -720,6 +739,48 @@ class _Reader:
         return None
 
 
+#: the trade's names of material properties (as analysis and authoring tools write them, in any
+#: material property set) -> the quantity they give; compared without case and spaces
+MATERIAL_PROPERTIES: dict[str, str] = {
+    "youngmodulus": "E", "youngsmodulus": "E", "modulusofelasticity": "E", "elasticmodulus": "E",
+    "yieldstress": "Fy", "yieldstrength": "Fy",
+    "ultimatestress": "Fu", "ultimatestrength": "Fu", "tensilestrength": "Fu",
+    "thermalexpansioncoefficient": "alpha", "coefficientofthermalexpansion": "alpha",
+    "massdensity": "density", "density": "density",
+}
+
+
+def _property_key(name: Any) -> str:
+    return "".join(str(name or "").split()).replace("_", "").casefold()
+
+
+def _material_set_rank(mp: Any) -> int:
+    """buildingSMART's sets first (Pset_*, IFC2X3's typed material properties), then any other
+    set (named after the material or the program), in file order."""
+    if not mp.is_a("IfcExtendedMaterialProperties") and mp.is_a() != "IfcMaterialProperties":
+        return 0   # IFC2X3 IfcMechanical(Steel)MaterialProperties, IfcGeneralMaterialProperties
+    name = getattr(mp, "Name", None) or ""
+    return 0 if name.startswith("Pset_") else 1
+
+
+def _material_value(idx: ModelIndex, prop: Any) -> SIValue | None:
+    """A material property's value in SI: its own unit (an IfcMeasureWithUnit in its place, or
+    the property's Unit) first, else the model's unit for its measure type."""
+    nv = getattr(prop, "NominalValue", None)
+    if nv is not None and hasattr(nv, "is_a") and not hasattr(nv, "wrappedValue") and nv.is_a("IfcMeasureWithUnit"):
+        comp = nv.ValueComponent
+        raw = getattr(comp, "wrappedValue", None)
+        if isinstance(raw, bool) or not isinstance(raw, int | float):
+            return None
+        return measure_si(idx, comp.is_a(), float(raw), nv.UnitComponent)
+    return property_si(idx, prop)
+
+
+def _raw_text(prop: Any) -> str:
+    nv = getattr(prop, "NominalValue", None)
+    return str(getattr(nv, "wrappedValue", nv))
+
+
 def _doubt_section(sec: Section) -> str | None:
     """Why a section is not plausible for an axial member (None when it is): an area that is no
     section, a dimension under 0.1 mm or over 2 m, an area or a radius of gyration its own
@@ -829,6 +890,8 @@ def _fmt_si(q: str, v: float) -> str:
         return f"{v / 1e6:.6g} MPa"
     if q == "alpha":
         return f"{v:.3g} 1/K"
+    if q == "density":
+        return f"{v:.6g} kg/m³"
     return f"{v:.6g}"
 
 
