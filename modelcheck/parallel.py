@@ -31,7 +31,7 @@ from __future__ import annotations
 import os
 import signal
 import sys
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 from typing import Any
 
 import numpy as np
@@ -90,6 +90,7 @@ class _PartResult:
     warnings: list[str]            # reader and unit warnings (parse problems are merged from new_log)
     matched_rows: set[str]
     member_count: int
+    excluded: dict[str, list[str]] = field(default_factory=dict)   # left out by the rule set, by reason
 
 
 def _table_part(table: pd.DataFrame, part_starts: np.ndarray, k: int) -> pd.DataFrame:
@@ -187,6 +188,9 @@ def _run_part(k: int) -> _PartResult:
     warnings = [w for w in data.warnings[n_parse:]]
     ruleset = load_ruleset(st.ruleset_ref)
     from modelcheck.pipeline import evaluate_members
+    from modelcheck.rules.select import excluded_members
+
+    excluded = excluded_members(ruleset.select, data.members)
 
     rows = None
     with stage(f"part {k}: rules, suggestions, JSON"):
@@ -207,7 +211,7 @@ def _run_part(k: int) -> _PartResult:
     if report is not None and os.getpid() != st.parent_pid:
         report = replace(report, unmatched=())   # judged from matched_rows; not worth the pickling
     return _PartResult(None, members, results, rows, report, log, new_log, warnings, data.matched_rows,
-                       data.member_count)
+                       data.member_count, excluded)
 
 
 class _Forked:
@@ -431,7 +435,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
         lifetime.keep(_SHARED, order, sorted_gids, by_tag)
         _SHARED = None
     with stage("merge parts"):
-        checked = _merge(data, idx, outs, analysis_msgs)
+        checked = _merge(data, idx, outs, analysis_msgs, ruleset_ref)
     kept = checked.json_rows or []
     release_rows([fd for fd in row_files.values() if fd not in kept])   # a part that stopped early
     return checked
@@ -462,7 +466,8 @@ def _in_one_process(data: ModelData, idx: Any, ruleset_ref: str, forces: ForceOp
     return finish_check(data, ruleset_ref, encode_json, slim)
 
 
-def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: list[str]) -> CheckedModel:
+def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: list[str],
+           ruleset_ref: str) -> CheckedModel:
     """The parts' members, results, JSON rows and messages as one model's."""
     from modelcheck.loads.join import ForceReport
     from modelcheck.pipeline import join_lines
@@ -480,6 +485,15 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
     data.members = members
     data.member_count = sum(o.member_count for o in outs)
     data.warnings = list(idx.parse_problems) + list(dict.fromkeys(w for o in outs for w in o.warnings))
+    excluded: dict[str, list[str]] = {}
+    for o in outs:
+        for label, gids in o.excluded.items():
+            excluded.setdefault(label, []).extend(gids)
+    from modelcheck.rules.ruleset import load_ruleset
+    from modelcheck.rules.select import exclusion_lines
+
+    data.warnings += exclusion_lines({k: sorted(v) for k, v in sorted(excluded.items())},
+                                     load_ruleset(ruleset_ref).select)
     data.matched_rows = set().union(*(o.matched_rows for o in outs))
     log = outs[0].prop_log
     for o in outs[1:]:

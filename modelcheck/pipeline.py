@@ -290,6 +290,9 @@ def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: boo
     if data.error is not None or data.members is None:
         return CheckedModel(data)
     ruleset = load_ruleset(ruleset_ref)
+    from modelcheck.rules.select import excluded_members, exclusion_lines
+
+    data.warnings = data.warnings + exclusion_lines(excluded_members(ruleset.select, data.members), ruleset.select)
     if encode_json and row_file is not None:
         with os.fdopen(os.dup(row_file), "wb") as sink:
             results, _ = evaluate_members(ruleset, data.members, data.forces, encode_json=True, slim=slim,

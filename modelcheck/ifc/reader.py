@@ -1092,5 +1092,7 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
     cols["net_area"] = np.array([x[0] for x in nets], dtype=float)
     cols["net_area_source"] = [x[1] for x in nets]
     # text columns stay object dtype with None for missing (pandas 3 would infer 'str' with NaN)
-    return frame_of({k: pd.Series(cols[k], dtype=None if isinstance(cols[k], np.ndarray) else object)
+    # (an object array too: pandas 3 would infer 'str' from one and turn its None into NaN)
+    return frame_of({k: pd.Series(cols[k], dtype=object if not isinstance(cols[k], np.ndarray)
+                                  or cols[k].dtype == object else None)
                      for k in member_columns()})

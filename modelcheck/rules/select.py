@@ -137,3 +137,47 @@ class Selector:
         if self.exclude is not None and self.exclude.keys:
             result &= ~self.exclude.mask(members, cache)
         return result
+
+
+#: GlobalIds an exclusion line names before it says how many more there are
+EXCLUDED_SHOWN = 8
+
+
+def excluded_members(selector: Selector, members: pd.DataFrame) -> dict[str, list[str]]:
+    """The members ``selector``'s ``exclude`` leaves out (ones its keys alone would select),
+    grouped by what excluded them: the values of the exclude keys' columns, e.g. "concrete" for
+    ``exclude = { material_category = [...] }``. GlobalIds sorted; an empty dict when none."""
+    ex = selector.exclude
+    if ex is None or not ex.keys or not len(members):
+        return {}
+    cache: dict[Any, np.ndarray] = {}
+    left_out = Selector(selector.keys).mask(members, cache) & ex.mask(members, cache)
+    if not left_out.any():
+        return {}
+    rows = np.flatnonzero(left_out)
+    labels = [""] * len(rows)
+    for key, _patterns in ex.keys:
+        cols = SELECTOR_KEYS.get(key, (key,))
+        values = [_column(members, c)[rows] for c in cols]
+        for i in range(len(rows)):
+            v = next((str(col[i]) for col in values if col[i] is not None), "")
+            labels[i] = f"{labels[i]}, {v}" if labels[i] else v
+    gids = _column(members, "global_id")[rows]
+    out: dict[str, list[str]] = {}
+    for label, gid in zip(labels, gids.tolist(), strict=True):
+        out.setdefault(label or "by the rule set's exclusion", []).append(str(gid))
+    return {k: sorted(v) for k, v in sorted(out.items())}
+
+
+def exclusion_lines(excluded: dict[str, list[str]], selector: Selector) -> list[str]:
+    """One warning line per reason: 'excluded: concrete — 2 members (…): outside the rule set
+    (except material_category: concrete*, …)'."""
+    lines = []
+    rule = selector.exclude.describe() if selector.exclude is not None else ""
+    for label, gids in excluded.items():
+        shown = ", ".join(gids[:EXCLUDED_SHOWN]) + (f" … (+{len(gids) - EXCLUDED_SHOWN})"
+                                                    if len(gids) > EXCLUDED_SHOWN else "")
+        n = len(gids)
+        lines.append(f"excluded: {label} — {n} member{'s' if n != 1 else ''} ({shown}) not checked: "
+                     f"the rule set leaves out {rule}")
+    return lines
