@@ -38,6 +38,10 @@ def build_parser() -> argparse.ArgumentParser:
                              "(default: the rule set's, else MC_MemberForces.AxialForce)")
         sp.add_argument("--no-analysis-results", action="store_true",
                         help="ignore IFC structural-analysis results in the model")
+        sp.add_argument("--analysis-frame", choices=("as-flagged", "local", "global"), default=None,
+                        help="frame of the analysis results' member end forces: as each result is flagged, "
+                             "or all in member (local) or global axes (default: a flag the forces contradict "
+                             "makes them doubtful, and the member unchecked)")
 
     m = sub.add_parser("members", help="list every axial member with section, material, length")
     m.add_argument("models", nargs="+", metavar="MODEL", help="IFC files, folders or glob patterns")
@@ -227,7 +231,8 @@ def force_options(args: argparse.Namespace, ruleset: Any = None, read_ahead: boo
         pset, prop = parse_property_name(prop_text)
     except ValueError:
         raise UsageError(f"--force-property {prop_text!r}: write it as PSET.PROPERTY") from None
-    return ForceOptions(tables=tables, property=(pset, prop), analysis=not args.no_analysis_results)
+    return ForceOptions(tables=tables, property=(pset, prop), analysis=not args.no_analysis_results,
+                        analysis_frame=getattr(args, "analysis_frame", None))
 
 
 def report_console(stderr: bool = False, file: Any = None) -> Any:
@@ -432,7 +437,7 @@ def merge_config(args: argparse.Namespace) -> argparse.Namespace:
     if not args.loads and "loads" in cfg:
         args.loads = list(cfg["loads"])
     for key in ("rules", "format", "output", "baseline", "fail_on", "strict", "jobs", "force_property",
-                "annotate", "validate", "scheduler"):
+                "annotate", "validate", "scheduler", "analysis_frame"):
         if getattr(args, key, None) is None and key in cfg:
             setattr(args, key, cfg[key])
             if key == "format":   # named here, where the file is known, not as if typed as --format

@@ -19,6 +19,7 @@ Keys (all optional)::
     annotate       = "reports/annotated/"         # annotated IFC copy (file, or folder for several)
     validate       = false                        # list schema violations as warnings
     scheduler      = "tcp://10.0.0.5:8786"        # run on this Dask cluster instead of locally
+    analysis_frame = "local"                      # frame of analysis end forces: as-flagged, local, global
 
 Example ``modelcheck.toml`` for a CI job::
 
@@ -59,6 +60,7 @@ KEYS: dict[str, str] = {
     "annotate": "str",
     "validate": "bool",
     "scheduler": "str",
+    "analysis_frame": "analysis_frame",
 }
 _EXPECTED = {
     "list[str]": "a list of strings",
@@ -68,6 +70,7 @@ _EXPECTED = {
     "bool": "true or false",
     "jobs": "an integer of at least 1",
     "force_property": 'a string "PSET.PROPERTY"',
+    "analysis_frame": '"as-flagged", "local" or "global"',
 }
 
 
@@ -120,6 +123,8 @@ def _check(kind: str, value: Any) -> Any:
     if kind == "force_property":
         ok = isinstance(value, str) and value.count(".") >= 1 and all(value.split(".", 1))
         return value if ok else None
+    if kind == "analysis_frame":
+        return value if value in ("as-flagged", "local", "global") else None
     raise AssertionError(kind)
 
 

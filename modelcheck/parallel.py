@@ -408,7 +408,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
 
         try:
             analysis, analysis_msgs = forces_from_analysis(
-                idx, pd.DataFrame({"model": [path] * len(gids), "global_id": gids}))
+                idx, pd.DataFrame({"model": [path] * len(gids), "global_id": gids}), frame=forces.analysis_frame)
         except (AttributeError, TypeError, ValueError, ArithmeticError, RuntimeError) as exc:
             from modelcheck.ifc.index import unreadable_model
 

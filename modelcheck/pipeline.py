@@ -47,6 +47,7 @@ class ForceOptions:
     tables: tuple[pd.DataFrame, ...] = ()
     property: tuple[str, str] | None = None   # (pset, property)
     analysis: bool = True
+    analysis_frame: str | None = None   # --analysis-frame: None tests each member's flag
 
 
 def expand_paths(items: list[str]) -> list[str]:
@@ -162,7 +163,7 @@ def attach_forces(data: ModelData, idx: Any, opts: ForceOptions, *, analysis: An
         ana, msgs = analysis
         messages += list(msgs)
     elif opts.analysis:
-        ana, msgs = forces_from_analysis(idx, data.members)
+        ana, msgs = forces_from_analysis(idx, data.members, frame=opts.analysis_frame)
         messages += list(msgs)
     with stage("join forces"):
         forces, report = join_forces(data.members, list(opts.tables), prop, ana, messages=messages,

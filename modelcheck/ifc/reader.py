@@ -954,6 +954,42 @@ def member_entities(idx: ModelIndex) -> list[tuple[Any, bool]]:
     return [(el, analysis) for _, el, analysis in keyed]
 
 
+def _is_member_element(el: Any) -> bool:
+    """Whether ``el`` is an axial-member candidate (``member_entities``'s rule for a physical element)."""
+    return (any(el.is_a(c) for c in MEMBER_CLASSES)
+            or (any(el.is_a(c) for c in SWEEP_CLASSES) and _has_sweep_body(el)))
+
+
+def analysis_members_not_checked(idx: ModelIndex) -> list[str]:
+    """One line per kind of physical element that analysis curve members stand for but that is not
+    an axial member (a footing, a slab): those curve members are not checked, and say so."""
+    by_class: dict[str, list[str]] = {}
+    pairs = [(pid, o) for pid, objs in idx.assigned_to.items() for o in objs]
+    if not pairs:
+        return []
+    f = idx.file
+    stands_for: dict[int, tuple[Any, list[Any]]] = {}   # curve member id -> (it, its physical elements)
+    for pid, o in pairs:
+        prod = f.by_id(pid)
+        if o.is_a("IfcStructuralCurveMember") and prod.is_a("IfcElement"):
+            stands_for.setdefault(o.id(), (o, []))[1].append(prod)
+        elif prod.is_a("IfcStructuralCurveMember") and o.is_a("IfcElement"):
+            stands_for.setdefault(prod.id(), (prod, []))[1].append(o)
+    for cm, prods in stands_for.values():
+        if any(_is_member_element(p) for p in prods):
+            continue
+        kinds = " / ".join(sorted({p.is_a() for p in prods}))
+        by_class.setdefault(kinds, []).append(str(cm.GlobalId))
+    lines = []
+    for kinds, gids in sorted(by_class.items()):
+        gids.sort()
+        shown = ", ".join(gids[:10]) + (f" and {len(gids) - 10} more" if len(gids) > 10 else "")
+        n = len(gids)
+        lines.append(f"{n} analysis curve member{'s' if n != 1 else ''} ({shown}) stand{'s' if n == 1 else ''} "
+                     f"for {kinds}, not an axial member: not checked")
+    return lines
+
+
 def member_keys(idx: ModelIndex, entities: list[tuple[Any, bool]]) -> tuple[list[str], list[str | None]]:
     """(GlobalId, Tag) of each entity as the member table will hold them: '#id' for a member with
     no GlobalId, None for no Tag. Reads two attributes per member, nothing below them."""
@@ -1001,7 +1037,8 @@ def read_members(idx: ModelIndex, *, use_library: bool = True,
     df = _assemble(idx.path, rows)
     idx.drain_log()  # what parsing the members' entities logged (the file is parsed lazily)
     problems = idx.parse_problems
-    df.attrs["model_warnings"] = list(problems) + reader.model_warnings + list(idx.units.problems)
+    df.attrs["model_warnings"] = (list(problems) + reader.model_warnings + analysis_members_not_checked(idx)
+                                  + list(idx.units.problems))
     df.attrs["parse_problem_count"] = len(problems)
     return df
 

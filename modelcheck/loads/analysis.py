@@ -57,6 +57,7 @@ Example::
 
 from __future__ import annotations
 
+import math
 import re
 from collections.abc import Iterable
 from dataclasses import dataclass, field
@@ -93,14 +94,22 @@ class _Rows:
     source: list[str] = field(default_factory=list)
 
 
+#: what ``--analysis-frame`` accepts: trust each result's own flag, or read every result in one frame
+ANALYSIS_FRAMES: tuple[str, ...] = ("as-flagged", "local", "global")
+
+
 def forces_from_analysis(idx: ModelIndex, members: pd.DataFrame, *, rel_tol: float = 0.01,
-                         abs_tol: float = 1.0) -> tuple[pd.DataFrame, list[str]]:
+                         abs_tol: float = 1.0, frame: str | None = None) -> tuple[pd.DataFrame, list[str]]:
     """Forces of this model's members from its structural-analysis results (see module docstring).
 
     ``members``: the member table; only rows with ``model == idx.path`` are used, and results of
-    elements that are not members are counted in a message. ``abs_tol`` is in newtons. Returns
-    the forces table (``FORCE_COLUMNS``) and messages.
+    elements that are not members are counted in a message. ``abs_tol`` is in newtons. ``frame``:
+    None tests the coordinate flag of each member's end forces (see "Doubtful coordinate flags");
+    "as-flagged", "local" or "global" say which frame to trust instead. Returns the forces table
+    (``FORCE_COLUMNS``; a doubtful force is NaN, its source the reason) and messages.
     """
+    if frame is not None and frame not in ANALYSIS_FRAMES:
+        raise ValueError(f"frame must be one of {', '.join(ANALYSIS_FRAMES)}, got {frame!r}")
     log = MessageLog(idx.path)
     f = idx.file
     reactions = _by_type(f, "IfcStructuralReaction")
@@ -117,7 +126,10 @@ def forces_from_analysis(idx: ModelIndex, members: pd.DataFrame, *, rel_tol: flo
         ctx.collect(r, rows)
     if not rows.gid:
         return empty_forces(), log.messages()
-    df = _evaluate(rows, factor, rel_tol, abs_tol, log)
+    if ctx.supports:
+        log.add(f"{ctx.supports} structural result(s) on supports (IfcStructuralConnection): reactions, not member "
+                "forces; left out")
+    df = _evaluate(rows, factor, rel_tol, abs_tol, log, frame)
     member_ids = set(members.loc[members["model"] == idx.path, "global_id"].dropna())
     known = df["global_id"].isin(member_ids)
     for gid in df.loc[~known, "global_id"].unique():
@@ -179,6 +191,7 @@ class _Context:
         self._key_cache: dict[int, list[str]] = {}
         self._case_cache: dict[int, str] = {}
         self._rot: dict[int, np.ndarray] = {}
+        self.supports = 0   # results on supports: counted, not read
 
     # ------------------------------------------------------------- one result
     def collect(self, r: Any, rows: _Rows) -> None:
@@ -189,6 +202,10 @@ class _Context:
         if not items:
             self.log.add("structural result connected to no member (no IfcRelConnectsStructuralActivity): "
                          "not used", rid, _RESULTS)
+            return
+        items = [it for it in items if not it.is_a("IfcStructuralConnection")]
+        if not items:   # a support's reaction: not a member force
+            self.supports += 1
             return
         cases = self._cases(r, rid)
         is_global = r[8] == "GLOBAL_COORDS"
@@ -209,7 +226,7 @@ class _Context:
             return
         for item in items:
             keys = self._keys(item)
-            axis: tuple[float, float, float] | None = (1.0, 0.0, 0.0)
+            axis: tuple[float, float, float] | None = _NO_AXIS
             how = ""
             if is_global:
                 axis, how = self._global_axis(item)
@@ -217,6 +234,9 @@ class _Context:
                     self.log.add(f"GLOBAL_COORDS result on {item.is_a()} #{item.id()}, whose axis cannot be "
                                  f"found ({how}): not projected, not used", rid, _RESULTS)
                     continue
+            elif any(kind == 1 for kind, *_ in entries):
+                # end forces flagged local: the axis lets them be read in global axes too, to test the flag
+                axis = self._global_axis(item)[0] or _NO_AXIS
             for kind, v1, v2, source in entries:
                 src = f"{source}, axis from {how}" if how and how != "analysis edge" else source
                 for gid in keys:
@@ -390,6 +410,9 @@ class _Context:
         return self._rotation(getattr(el, "ObjectPlacement", None)) @ local, how
 
 
+_NO_AXIS = (math.nan, math.nan, math.nan)   # a local result whose member axis is not known
+
+
 def _vec(force: Any) -> tuple[float, float, float]:
     """(ForceX, ForceY, ForceZ) of an IfcStructuralLoadSingleForce (attributes 1-3; unset = 0)."""
     return (float(force[1] or 0.0), float(force[2] or 0.0), float(force[3] or 0.0))
@@ -431,28 +454,68 @@ def _axis2_rotation(pos: Any) -> np.ndarray:
     return np.column_stack([x, np.cross(z, x), z])
 
 
-def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: MessageLog) -> pd.DataFrame:
-    """N in newtons for every raw result, vectorised."""
+def _kn(v: float) -> str:
+    return f"{v / 1e3:.4g} kN"
+
+
+def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: MessageLog,
+              frame: str | None = None) -> pd.DataFrame:
+    """N in newtons for every raw result, vectorised (doubtful end forces: NaN, the reason as source)."""
     f1 = np.asarray(rows.f1, dtype=float) * factor
     f2 = np.asarray(rows.f2, dtype=float) * factor
     axis = np.asarray(rows.axis, dtype=float)
-    glob = np.asarray(rows.is_global, dtype=bool)
+    flagged_global = np.asarray(rows.is_global, dtype=bool)
     kind = np.asarray(rows.kind, dtype=int)
-    x1 = np.where(glob, np.einsum("ij,ij->i", f1, axis), f1[:, 0])
-    x2 = np.where(glob, np.einsum("ij,ij->i", f2, axis), f2[:, 0])
+    has_axis = np.isfinite(axis).all(axis=1)
+    ax = np.where(has_axis[:, None], axis, 0.0)
+    g1, g2 = np.einsum("ij,ij->i", f1, ax), np.einsum("ij,ij->i", f2, ax)   # read in global axes
+    l1, l2 = f1[:, 0], f2[:, 0]                                             # read in member axes
+    if frame == "local":
+        glob = np.zeros(len(kind), dtype=bool)
+    elif frame == "global":
+        glob = flagged_global | has_axis   # a local result with no known axis stays as flagged
+    else:
+        glob = flagged_global
+    x1, x2 = np.where(glob, g1, l1), np.where(glob, g2, l2)
     n_start, n_end = -x1, x2
     ends = kind == 1
+
+    def balance(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+        return np.abs(a + b) <= np.maximum(abs_tol, rel_tol * np.maximum(np.abs(a), np.abs(b)))
+
+    doubtful = np.zeros(len(kind), dtype=bool)
+    if frame is None:
+        # equilibrium along the member (start + end = 0 without span loads) as flagged and in the
+        # other frame: a flag whose reading fails where the other reading holds is doubtful
+        o1, o2 = np.where(flagged_global, l1, g1), np.where(flagged_global, l2, g2)
+        doubtful = (ends & has_axis & ~balance(x1, x2) & balance(o1, o2)
+                    & (np.maximum(np.abs(o1), np.abs(o2)) > abs_tol))
+    source = np.asarray(rows.source, dtype=object)
+    for i in np.flatnonzero(doubtful):
+        flag, other = ("GLOBAL_COORDS", "member axes") if flagged_global[i] else ("LOCAL_COORDS", "global axes")
+        o_end = l2[i] if flagged_global[i] else g2[i]
+        log.add(f"end forces flagged {flag} do not balance along the member, but do when read in {other}: "
+                "the flag is doubtful and the forces are not used (--analysis-frame as-flagged|local|global "
+                "says which frame to trust)", rows.gid[i])
+        source[i] = (f"P: doubtful analysis end forces ({rows.case[i]}, {rows.source[i].split(' (')[0]}): flagged "
+                     f"{flag}, -Fx(start) = {_kn(n_start[i])} and +Fx(end) = {_kn(n_end[i])} do not balance; "
+                     f"read in {other} they do (N = {_kn(o_end)}); --analysis-frame says which frame to trust")
     diff = np.abs(n_start - n_end)
     tol = np.maximum(abs_tol, rel_tol * np.maximum(np.abs(n_start), np.abs(n_end)))
-    disagree = ends & (diff > tol)
+    disagree = ends & (diff > tol) & ~doubtful
     for i in np.flatnonzero(disagree):
         log.add(f"end forces disagree: N = -Fx(start) = {n_start[i]:.6g} N but N = +Fx(end) = {n_end[i]:.6g} N "
                 f"({rows.case[i]}, {rows.source[i].split(' (')[0]}); the larger magnitude is used", rows.gid[i])
     n_pair = np.where(np.abs(n_end) >= np.abs(n_start), n_end, n_start)
     n = np.where(ends, n_pair, x1)
+    n[doubtful] = np.nan
+    if frame is not None:
+        read_as = np.where(glob, "read in global axes", "read in member axes")
+        changed = glob != flagged_global
+        source = np.where(changed, source + ", " + read_as + f" (--analysis-frame {frame})", source)
     return pd.DataFrame({"global_id": np.asarray(rows.gid, dtype=object),
                          "load_case": np.asarray(rows.case, dtype=object),
-                         "axial_force": n, "source": np.asarray(rows.source, dtype=object)})
+                         "axial_force": n, "source": source})
 
 
 def _governing(df: pd.DataFrame, log: MessageLog) -> pd.DataFrame:
@@ -460,6 +523,10 @@ def _governing(df: pd.DataFrame, log: MessageLog) -> pd.DataFrame:
     if df.empty:
         return df.assign(axial_force=df["axial_force"].astype(float))
     keys = ["global_id", "load_case"]
+    doubt = df[df["axial_force"].isna()].drop_duplicates(keys)
+    df = df[df["axial_force"].notna()]
+    if df.empty:
+        return doubt
     g = df.groupby(keys, sort=False)["axial_force"]
     count = g.transform("size")
     mixed = (g.transform("max") > 0) & (g.transform("min") < 0)
@@ -471,4 +538,10 @@ def _governing(df: pd.DataFrame, log: MessageLog) -> pd.DataFrame:
     many = best["_n"] > 1
     best = best.assign(source=best["source"].where(
         ~many, best["source"] + "; largest of " + best["_n"].astype(str) + " results"))
-    return best.drop(columns=["_abs", "_n"])
+    best = best.drop(columns=["_abs", "_n"])
+    if doubt.empty:
+        return best
+    # a member and case with a doubtful result has a doubtful force, whatever its other results say
+    doubted = pd.MultiIndex.from_frame(doubt[keys])
+    best = best[~pd.MultiIndex.from_frame(best[keys]).isin(doubted)]
+    return pd.concat([best, doubt], ignore_index=True)

@@ -30,7 +30,8 @@ def member_dicts(members: pd.DataFrame, forces: pd.DataFrame | None, units: Disp
         ff = units.convert("force", 1.0)
         for gid, case, val, src in zip(forces["global_id"], forces["load_case"], forces["axial_force"],
                                        forces["source"], strict=True):
-            force_map.setdefault(gid, {})[str(case)] = {
+            # a force with no value (doubtful analysis end forces) is null: the reason is in the messages
+            force_map.setdefault(gid, {})[str(case)] = None if not math.isfinite(val) else {
                 "value": float(f"{val * ff:.6g}"), "unit": units.unit("force"), "source": src}
     cap_map: dict[str, dict[str, Any]] = {}
     if capacity is not None and len(capacity):

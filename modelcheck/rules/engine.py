@@ -92,7 +92,7 @@ def _force_rows(members: pd.DataFrame, forces: pd.DataFrame | None) -> dict[str,
     n = len(members)
     if forces is None or len(forces) == 0:
         return {"member": np.arange(n), "P": np.full(n, np.nan), "load_case": np.full(n, None, dtype=object),
-                "rank": np.full(n, -1)}
+                "rank": np.full(n, -1), "note": np.full(n, None, dtype=object)}
     models = _objects(members, "model")
     gids = _objects(members, "global_id")
     f_model = _objects(forces, "model")
@@ -131,11 +131,19 @@ def _force_rows(members: pd.DataFrame, forces: pd.DataFrame | None) -> dict[str,
     has_force = np.zeros(n, dtype=bool)
     has_force[m] = True
     unmatched = np.flatnonzero(~has_force)
+    # a force row without a value says why in its source ("P: doubtful analysis end forces ..."):
+    # that is what an unchecked result lists as missing
+    note = np.full(len(f), None, dtype=object)
+    blank = np.isnan(f_p[f])
+    if blank.any() and "source" in forces.columns:
+        src = _objects(forces, "source")[f[blank]]
+        note[blank] = [s if isinstance(s, str) and s.startswith("P: ") else None for s in src.tolist()]
     return {
         "member": np.concatenate([m, unmatched]),
         "P": np.concatenate([f_p[f], np.full(len(unmatched), np.nan)]),
         "load_case": np.concatenate([f_case[f], np.full(len(unmatched), None, dtype=object)]),
         "rank": np.concatenate([codes[f], np.full(len(unmatched), -1)]),
+        "note": np.concatenate([note, np.full(len(unmatched), None, dtype=object)]),
     }
 
 
@@ -257,7 +265,7 @@ def _inputs(name: str, data: MemberData, member: np.ndarray, p: np.ndarray) -> n
 
 
 def _missing_lists(check: Check, ruleset: RuleSet, data: MemberData, member: np.ndarray, p: np.ndarray,
-                   case: np.ndarray) -> list[list[str]]:
+                   case: np.ndarray, note: np.ndarray | None = None) -> list[list[str]]:
     """For each (unchecked) row, the inputs it lacks that the check needs, with where they were looked for.
 
     An input counts when the row stays unchecked with every other missing input filled in, so a
@@ -286,6 +294,9 @@ def _missing_lists(check: Check, ruleset: RuleSet, data: MemberData, member: np.
     for name in candidates:
         for j in np.flatnonzero(needed[name]).tolist():
             m = int(member[j])
+            if name == "P" and note is not None and note[j] is not None:
+                lists[j].append(note[j])   # the force row says why it has no value
+                continue
             key = (name, case[j] if name == "P" else None) if name != "As" else (name, shape[m], d[m])
             text = texts.get(key)
             if text is None:
@@ -379,7 +390,7 @@ def _unverifiable_text(check: Check, demand: float, capacity: float, bad_capacit
 
 def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
                member: np.ndarray, p: np.ndarray, case: np.ndarray, rank: np.ndarray,
-               messages: bool = True) -> dict[str, Any] | None:
+               messages: bool = True, note: np.ndarray | None = None) -> dict[str, Any] | None:
     n = len(member)
     if n == 0:
         return None
@@ -405,7 +416,8 @@ def _run_check(check: Check, order: int, ruleset: RuleSet, data: MemberData,
     u_pos = np.flatnonzero(unchecked_k)
     if len(u_pos):
         u_rows = rows[u_pos]
-        lists = _missing_lists(check, ruleset, data, member[u_rows], p[u_rows], case[u_rows])
+        lists = _missing_lists(check, ruleset, data, member[u_rows], p[u_rows], case[u_rows],
+                               None if note is None else note[u_rows])
         for j, pos in enumerate(u_pos.tolist()):
             missing[pos] = lists[j]
             if lists[j]:
@@ -548,10 +560,12 @@ def check_rows(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
             assert frows is not None
             take = mask[frows["member"]]
             args = (frows["member"][take], frows["P"][take], frows["load_case"][take], frows["rank"][take])
+            note = frows["note"][take]
         else:
             args = (all_members[mask], no_force[mask], no_case[mask], np.full(int(mask.sum()), -1))
+            note = None
         try:
-            part = _run_check(check, order, ruleset, data, *args, messages=messages)
+            part = _run_check(check, order, ruleset, data, *args, messages=messages, note=note)
         except ExpressionError as exc:
             raise RuleSetError(f"check {check.id}: {exc}", path=ruleset.path, where=str(check.line)) from exc
         if part is not None and len(part["member"]):
