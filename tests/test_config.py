@@ -21,6 +21,7 @@ force_property = "MC_MemberForces.AxialForce"
 annotate = "reports/annotated/"
 validate = false
 scheduler = "tcp://127.0.0.1:8786"
+analysis_frame = "local"
 """
 
 
@@ -37,6 +38,7 @@ def test_modelcheck_toml_with_every_key(tmp_path):
     assert cfg["models"] == ["models/", "extra/*.ifc"]
     assert cfg["format"] == "console,junit,html"  # a list becomes the --format text
     assert (cfg["fail_on"], cfg["strict"], cfg["jobs"], cfg["validate"]) == ("new", True, 4, False)
+    assert cfg["analysis_frame"] == "local"
 
 
 def test_pyproject_tool_table(tmp_path):

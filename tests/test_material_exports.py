@@ -170,9 +170,15 @@ def test_no_unit_for_the_measure_type_is_the_reason_unless_the_value_has_its_own
                                                                    210000.0)]})
     own = _analysis_steel(mb, "Steel B", {"Material": [prop(mb, "YoungModulus", "IfcModulusOfElasticityMeasure",
                                                                   210.0, gpa)]})
+    # an exporter's variant: the value itself an IfcMeasureWithUnit (its unit with it)
+    mwu = mb.f.createIfcMeasureWithUnit(mb.f.create_entity("IfcModulusOfElasticityMeasure", 205.0), gpa)
+    with_unit = _analysis_steel(mb, "Steel C", {"Material": [
+        mb.f.createIfcPropertySingleValue("YoungModulus", None, mwu, None)]})
     mb.member("IfcMember", name="A", profile=rod(mb, 20), material=bare, length=2000.0)
     mb.member("IfcMember", name="B", profile=rod(mb, 20), material=own, length=2000.0)
+    mb.member("IfcMember", name="C", profile=rod(mb, 20), material=with_unit, length=2000.0)
     m = read(tmp_model(mb))
+    assert m["C"]["E"] == pytest.approx(pa("205 GPa"), rel=1e-12)   # 205 GPa in its own unit (pint)
     assert math.isnan(m["A"]["E"]) and m["A"]["E_source"] is None
     assert any("MODULUSOFELASTICITYUNIT" in w and "not used" in w and "YoungModulus" in w for w in m["A"]["warnings"])
     assert m["B"]["E"] == pytest.approx(pa("210 GPa"), rel=1e-12)   # its own unit: 210 GPa (pint)
@@ -236,3 +242,21 @@ def test_the_rejection_quotes_the_range_of_the_category(tmp_model: Any) -> None:
     m = read(tmp_model(mb))
     w = next(w for w in m["M1"]["warnings"] if "plausible" in w)
     assert "for timber (5–25 GPa)" in w and "110 MPa" in w
+
+
+def test_exclusions_read_the_same_when_the_model_is_shared_out(mixed_ifc2x3: Path, capsys: Any,
+                                                              monkeypatch: Any) -> None:
+    import json
+
+    import modelcheck.parallel as parallel
+    from tests.corpus import run_inprocess
+
+    monkeypatch.setattr(parallel, "MIN_MEMBERS_PER_PART", 2)
+    args = ["check", str(mixed_ifc2x3), "--rules", "steel-ec3", "--format", "json", "--no-config"]
+    one = run_inprocess(capsys, [*args, "--jobs", "1"], [mixed_ifc2x3])
+    two = run_inprocess(capsys, [*args, "--jobs", "2"], [mixed_ifc2x3])
+    a, b = json.loads(one.stdout), json.loads(two.stdout)
+    a.pop("generated")
+    b.pop("generated")
+    assert a == b
+    assert sum(w.startswith("excluded: ") for w in a["models"][0]["warnings"]) == 2

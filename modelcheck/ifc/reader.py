@@ -17,8 +17,13 @@ becomes a warning on the member, both values named):
   element (IFC2X3: IfcStructuralProfileProperties); Qto_*BaseQuantities.CrossSectionArea.
 * length: the Axis representation, the extrusion depth, the swept-disk directrix, Qto_*.Length.
 * material: on the occurrence (directly or via profile / layer / constituent sets and lists),
-  else on its type. Mechanical values from Pset_MaterialMechanical / Pset_MaterialSteel
-  (IfcMechanical(Steel)MaterialProperties in IFC2X3), else from the material library.
+  else on its type. Its category and grade from IfcMaterial.Category and its name
+  (``modelcheck.material_names``; "unknown" when nothing recognises them). Mechanical values by the
+  trade's property names (``MATERIAL_PROPERTIES``) from any material property set, buildingSMART's
+  first (Pset_*, IFC2X3's IfcMechanical(Steel)MaterialProperties and IfcGeneralMaterialProperties),
+  then the others (named after the material or the program) in file order; then a yield strength
+  the name states; then the material library. Each value outside its category's plausible range
+  is flagged and not used.
 
 Each shared entity (profile, material, type, mapped representation) is computed once and cached
 by entity id; the relationships come from the model index walked once.

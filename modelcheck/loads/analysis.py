@@ -49,6 +49,27 @@ IfcEdge (an IfcOrientedEdge with Orientation = False runs the other way). Axial 
 Several results for one member and load case (several reactions, or a member split into several
 analysis members) give the one of largest magnitude; a message notes when they differ in sign.
 
+Doubtful coordinate flags
+-------------------------
+Some exports flag member end forces GLOBAL_COORDS whose values are in member axes (or the
+reverse); read literally, a column in compression can come out in tension. For every result of
+end forces at both ends whose member axis is known, the axial components are tested for
+equilibrium along the member (Fx(start) + Fx(end) = 0, within ``max(abs_tol, rel_tol · max)``, for
+a member without span loads along it) as flagged and as read in the other frame. Where the flagged
+reading fails and the other holds (with forces of some size), the flag is doubtful: the member's
+force for that load case has no value (NaN; its source says why, and an unchecked result lists it
+as what is missing) and a message names the member and the file, unless ``frame`` (the command
+line's ``--analysis-frame``) says which frame to trust: ``as-flagged`` (each result's own flag),
+``local`` or ``global`` (every result read in that frame; a local result whose axis cannot be
+found stays as flagged).
+
+Supports and other elements
+---------------------------
+Results on supports (IfcStructuralConnection: point, curve and surface connections) are
+reactions, not member forces: they are left out, counted in one message. Results of analysis
+members that stand for an element that is not an axial member (a footing, a slab) are named in a
+message as not used; the reader lists such analysis members as not checked.
+
 Example::
 
     idx = build_index("sample_models/mezzanine.ifc")
