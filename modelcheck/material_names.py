@@ -193,7 +193,7 @@ def _stamp(p: Path) -> tuple[int, int]:
 
 def category_of_word(word: str | None, *, path: str | Path | None = None) -> str | None:
     """The category an IfcMaterial.Category text names ("Structural Steel", "Wood"), or None."""
-    if not word or not word.strip():
+    if not isinstance(word, str) or not word.strip():
         return None
     cat = load_library().category_of(word)
     if cat is not None and cat != UNKNOWN:
@@ -207,7 +207,9 @@ def category_of_word(word: str | None, *, path: str | Path | None = None) -> str
 def read_name(name: str | None, category: str | None = None, *,
               path: str | Path | None = None) -> NameReading:
     """What ``name`` and the model's ``category`` (IfcMaterial.Category) say about a material."""
-    return _read_cached(name or "", category or "", None if path is None else str(path),
+    name = name if isinstance(name, str) else ""            # a file may hold anything there
+    category = category if isinstance(category, str) else ""
+    return _read_cached(name, category, None if path is None else str(path),
                         _stamp(Path(path) if path is not None else default_names_path()))
 
 

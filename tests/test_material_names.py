@@ -199,3 +199,9 @@ def test_pattern_file_errors_name_the_file_and_the_pattern(tmp_path: Path, text:
     with pytest.raises(RuleSetError) as exc:
         load_patterns(p)
     assert str(p) in str(exc.value) and fragment in str(exc.value)
+
+
+@pytest.mark.parametrize(("name", "category"), [(None, None), (12, None), ("", 3.5), ("   ", "")])
+def test_no_name_or_a_name_of_the_wrong_type_is_unknown(name: object, category: object) -> None:
+    r = read_name(name, category)  # type: ignore[arg-type]
+    assert (r.category, r.grade, r.Fy) == ("unknown", None, None)
