@@ -331,7 +331,8 @@ class _Reader:
                 try:
                     v = measure_si(self.idx, measure, float(raw))
                 except MissingUnit as exc:
-                    warnings.append(f"{cls} #{mp.id()}.{attr} = {raw} not used: {exc} (the unit is never assumed)")
+                    if q != "density":   # screened only: nothing is missing without it
+                        warnings.append(f"{cls} #{mp.id()}.{attr} = {raw} not used: {exc} (the unit is never assumed)")
                     continue
                 values[q] = (v.value, f"{cls} #{mp.id()}.{attr} [{v.unit}]")
             return
@@ -346,8 +347,9 @@ class _Reader:
             try:
                 v = _material_value(self.idx, prop)
             except MissingUnit as exc:
-                warnings.append(f"{label}.{prop.Name} = {_raw_text(prop)} not used: {exc} and the value carries "
-                                "no unit of its own (the unit is never assumed)")
+                if q != "density":   # screened only: nothing is missing without it
+                    warnings.append(f"{label}.{prop.Name} = {_raw_text(prop)} not used: {exc} and the value carries "
+                                    "no unit of its own (the unit is never assumed)")
                 continue
             if v is not None:
                 values[q] = (v.value, f"{label}.{prop.Name} [{v.unit}]")
