@@ -57,6 +57,7 @@ def mixed_ifc2x3(tmp_model: Any) -> Path:
     steel = mb.material("Metal - Steel - 345 MPa")
     a992 = mb.material("A992Fy50")
     vague = mb.material("Material 7")
+    pad = mb.material("MISCELLANEOUS/Neoprene")
     mb.member("IfcColumn", name="C1", profile=rect(mb, 300, 300), material=conc, length=3000.0, material_via="direct")
     mb.member("IfcColumn", name="C2", profile=rect(mb, 400, 400), material=conc, length=3000.0, material_via="direct")
     mb.member("IfcMember", name="T1", profile=rect(mb, 100, 200), material=glulam, length=4000.0,
@@ -64,6 +65,7 @@ def mixed_ifc2x3(tmp_model: Any) -> Path:
     mb.member("IfcMember", name="B1", profile=rod(mb, 20), material=steel, length=2000.0, material_via="direct")
     mb.member("IfcMember", name="B2", profile=rod(mb, 20), material=a992, length=2000.0, material_via="direct")
     mb.member("IfcMember", name="X1", profile=rod(mb, 20), material=vague, length=2000.0, material_via="direct")
+    mb.member("IfcMember", name="N1", profile=rect(mb, 200, 20), material=pad, length=300.0, material_via="direct")
     return tmp_model(mb)
 
 
@@ -76,6 +78,7 @@ def test_categories_and_grades_of_an_ifc2x3_export(mixed_ifc2x3: Path) -> None:
         "B1": ("steel", None),
         "B2": ("steel", "ASTM A992"),                                  # the library's grade
         "X1": ("unknown", None),
+        "N1": ("other", None),
     }
     # the strength the name states is its yield strength, with the name as its source
     assert m["B1"]["Fy"] == pytest.approx(pa("345 MPa"), rel=1e-9)
@@ -95,12 +98,13 @@ def test_steel_rules_exclude_concrete_and_timber_and_say_so(mixed_ifc2x3: Path, 
     gid = {n: r["global_id"] for n, r in read(mixed_ifc2x3).items()}
     res = checked.results
     # concrete and timber members get no result: not a steel member lacking E and Fy
-    for name in ("C1", "C2", "T1"):
+    for name in ("C1", "C2", "T1", "N1"):
         assert not (res["global_id"] == gid[name]).any(), name
     for name in ("B1", "X1"):   # steel and unknown stay in (unknown: unchecked for what it lacks)
         assert (res["global_id"] == gid[name]).any(), name
     lines = [w for w in checked.data.warnings if w.startswith("excluded:")]
-    assert len(lines) == 2
+    assert len(lines) == 3
+    assert any(w.startswith("excluded: other — 1 member ") and gid["N1"] in w for w in lines)
     conc = next(w for w in lines if w.startswith("excluded: concrete"))
     assert "2 members" in conc and gid["C1"] in conc and gid["C2"] in conc
     assert any(w.startswith("excluded: timber — 1 member ") and gid["T1"] in w for w in lines)
@@ -266,4 +270,4 @@ def test_exclusions_read_the_same_when_the_model_is_shared_out(mixed_ifc2x3: Pat
     a.pop("generated")
     b.pop("generated")
     assert a == b
-    assert sum(w.startswith("excluded: ") for w in a["models"][0]["warnings"]) == 2
+    assert sum(w.startswith("excluded: ") for w in a["models"][0]["warnings"]) == 3
