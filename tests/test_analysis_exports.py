@@ -158,3 +158,23 @@ def test_the_option_on_the_command_line_and_in_the_configuration(export: tuple[P
     col = next(m for m in json.loads(members_out.read_text())["models"][0]["members"]
                if m["global_id"] == ids["column"])
     assert col["axial_force"] == {"LC1": None}    # doubtful: no value, never NaN
+
+
+def test_a_right_flag_unbalanced_by_self_weight_is_left_alone(tmp_path: Path) -> None:
+    """A column's end forces rightly flagged LOCAL_COORDS: 500 kN at the top, 490 kN at the foot
+    (10 kN of self-weight along it, so Fx(start) + Fx(end) = 10 kN, beyond the 1 % tolerance), and
+    end shears of 20 kN from its end moments. Read in global axes, the shears (20, -20) balance, but
+    they are far smaller than the axial force: the flag is not doubted (common practice: an axial
+    member's load runs along its axis)."""
+    mb = ModelBuilder(schema="IFC4", units="m")
+    steel = mb.material("S355", category="steel")
+    an = AnalysisWriter(mb)
+    lc = an.result_group("LC1", an.load_group("LC1"))
+    column = mb.member("IfcColumn", name="C1", profile=rect(mb, 0.2, 0.2), material=steel, length=3.0)
+    cm = an.curve_member((0, 0, 0), (0, 0, 3.0), physical=column)
+    an.curve_reaction(cm, an.end_forces((490.0, 0.0, 20.0), (-500.0, 0.0, -20.0), 3.0), lc)
+    path = tmp_path / "selfweight.ifc"
+    an.write(str(path))
+    n, _src, msgs = _forces(path, None)
+    assert n[column.GlobalId] == pytest.approx(-500.0 * KN, rel=1e-12)   # the larger magnitude, +Fx(end)
+    assert not any("flag is doubtful" in m for m in msgs)

@@ -56,7 +56,9 @@ reverse); read literally, a column in compression can come out in tension. For e
 end forces at both ends whose member axis is known, the axial components are tested for
 equilibrium along the member (Fx(start) + Fx(end) = 0, within ``max(abs_tol, rel_tol · max)``, for
 a member without span loads along it) as flagged and as read in the other frame. Where the flagged
-reading fails and the other holds (with forces of some size), the flag is doubtful: the member's
+reading fails and the other holds, with the larger force along the member (an axial member's load
+runs along its axis: a right flag unbalanced by a load along the member, its self-weight, reads
+smaller in the other frame and is left alone), the flag is doubtful: the member's
 force for that load case has no value (NaN; its source says why, and an unchecked result lists it
 as what is missing) and a message names the member and the file, unless ``frame`` (the command
 line's ``--analysis-frame``) says which frame to trust: ``as-flagged`` (each result's own flag),
@@ -508,9 +510,14 @@ def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: M
     if frame is None:
         # equilibrium along the member (start + end = 0 without span loads) as flagged and in the
         # other frame: a flag whose reading fails where the other reading holds is doubtful
+        # (and the other reading carries the larger force along the member: an axial member's load
+        # runs along its axis, so a flag whose literal reading picks small transverse components is
+        # what a wrong flag looks like, while a right one unbalanced by a load along the member
+        # (self-weight) reads smaller in the other frame and is left alone)
         o1, o2 = np.where(flagged_global, l1, g1), np.where(flagged_global, l2, g2)
-        doubtful = (ends & has_axis & ~balance(x1, x2) & balance(o1, o2)
-                    & (np.maximum(np.abs(o1), np.abs(o2)) > abs_tol))
+        o_size = np.maximum(np.abs(o1), np.abs(o2))
+        doubtful = (ends & has_axis & ~balance(x1, x2) & balance(o1, o2) & (o_size > abs_tol)
+                    & (o_size >= np.maximum(np.abs(x1), np.abs(x2))))
     source = np.asarray(rows.source, dtype=object)
     for i in np.flatnonzero(doubtful):
         flag, other = ("GLOBAL_COORDS", "member axes") if flagged_global[i] else ("LOCAL_COORDS", "global axes")
