@@ -269,7 +269,7 @@ def test_hundred_thousand_rows_with_header_unit_parse_fast(tmp_path: Path) -> No
     elapsed = time.perf_counter() - t0
     assert len(df) == n
     assert df["axial_force"].to_numpy() == pytest.approx(np.round(values, 4) * 1000.0, rel=1e-12)  # SI kilo
-    assert elapsed < 1.0, f"{elapsed:.2f} s"
+    assert elapsed < 5.0, f"{elapsed:.2f} s"  # a per-row unit parse takes tens of seconds; the limit leaves room for a loaded machine
 
 
 @settings(max_examples=300, deadline=None)
