@@ -54,9 +54,36 @@ def test_round_bar_us(asd) -> None:
     assert r.required_area_check == "tension-yield"
     assert r.selected.stress / KSI == pytest.approx(p / (math.pi * d**2 / 4), rel=1e-9)   # f = P/A
     assert r.selected.ratio == pytest.approx(p / (math.pi * d**2 / 4) / (FY_A36 / 1.67), rel=1e-9)
-    # without a length, L/r and elongation cannot be checked: said so, not passed
-    assert {c for c, _ in r.not_applicable} == {"slenderness-tension", "elongation"}
+    # without a length, the elongation cannot be checked: said so, not passed (a round bar in
+    # tension has no L/r limit: AISC 360-16 D1 user note)
+    assert {c for c, _ in r.not_applicable} == {"elongation"}
     assert r.selected.elongation is None
+
+
+def test_round_bar_in_tension_has_no_slenderness_limit(asd) -> None:
+    # 3 kip on A36, 20 ft: AISC 360-16 D2(a) A >= 3 x 1.67 / 36 = 0.139 in²,
+    # d >= sqrt(4 A / pi) = 0.421 in -> 7/16 in in 1/16 in stock steps (common practice); the
+    # D1 user note exempts rods and hangers in tension from L/r <= 300 (here L/r = 2190)
+    a_req = 3.0 * 1.67 / FY_A36
+    assert a_req == pytest.approx(0.139, abs=5e-4)
+    d = next_step(math.sqrt(4 * a_req / math.pi), 1 / 16)
+    assert d == pytest.approx(7 / 16)
+    r = size(asd, 3 * KIP, material="ASTM A36", shape="round", length=20 * FT)
+    assert r.selected.designation == "round bar 7/16 in"
+    assert r.selected.governing_check == "tension-yield"
+    assert "slenderness-tension" not in {c.id for c in r.checks}
+    # elongation still applies: δ = PL/AE = 3 x 240 / (0.1503 x 29000) = 0.165 in <= 0.25 in
+    assert r.selected.elongation / IN == pytest.approx(3 * 240 / (math.pi * d**2 / 4 * E_US), rel=1e-9)
+
+
+def test_round_bar_in_tension_has_no_slenderness_limit_ec3(ec3) -> None:
+    # EN 1993-1-1 6.2.3 (6.6): A >= N / fy = 20 kN / 235 MPa = 85.1 mm² -> 12 mm (EN 10060 sizes,
+    # 10 mm = 78.5 mm² too small; from memory); 6 m long: L/i = 6000 / 3 = 2000, no limit for a
+    # solid round section in tension (the rule set's own statement)
+    assert math.pi * 10**2 / 4 < 20e3 / 235 <= math.pi * 12**2 / 4
+    r = size(ec3, 20e3, material="S235", shape="round", length=6.0)
+    assert r.selected.designation == "round bar 12 mm"
+    assert "slenderness-tension" not in {c.id for c in r.checks}
 
 
 def test_square_bar_us(asd) -> None:

@@ -120,9 +120,10 @@ def test_asd_threaded_rods_table_j3_2() -> None:
     assert res.capacity[0] == pytest.approx(0.75 * 58 / 2.0)
     assert list(res.demand) == pytest.approx([9 / ab, 10 / ab])
     assert list(res.status) == ["pass", "fail"]
-    # rods are not held to L/r <= 300 (AISC 360-16 D1 user note)
+    # rods and round bars (by their shape, whatever their name) are not held to L/r <= 300
+    # (AISC 360-16 D1 user note)
     sl = only(run_checks(rs, m, f), "slenderness-tension")
-    assert list(sl.global_id) == ["G2", "G3"]
+    assert list(sl.global_id) == ["G3"]
 
 
 def aisc_e3_allowable(fy: float, e: float, klr: float) -> float:
@@ -385,3 +386,20 @@ def test_hanger_rod_elongation_and_uplift() -> None:
     # AISC 360-16 E3 on the rod body, K = 1: KL/r = 1000 / (9.525/4) = 420 -> elastic buckling
     fy_mpa = Q_(36, "ksi").m_as("MPa")
     assert up.capacity[0] == pytest.approx(aisc_e3_allowable(fy_mpa, 200e3, 1000 / (9.525 / 4)), rel=1e-9)
+
+
+@pytest.mark.parametrize("name", ["steel-asd-us", "steel-ec3"])
+def test_solid_round_sections_in_tension_carry_no_slenderness_limit(name: str) -> None:
+    # AISC 360-16 D1 (user note): rods and hangers in tension are excepted from L/r <= 300; the
+    # EN rule set sets its common-practice limit for other sections only. A round bar, a rod and a
+    # threaded rod are exempt by their shape whatever their names; an angle is not.
+    rs = load_ruleset(name)
+    d = si(0.5, "in")
+    bar = {"shape": "round-bar", "d": d, "area": math.pi * d**2 / 4, "r_min": d / 4, "length": si(20, "ft"), **A36}
+    m = members({**bar, "name": "round bar 1/2 in"}, {**bar, "name": "Tie"}, {**bar, "object_type": "threaded rod"},
+                us_member(length=si(400, "in")))
+    f = forces(*((f"G{i}", si(1, "kip")) for i in range(4)))
+    sl = only(run_checks(rs, m, f), "slenderness-tension")
+    assert list(sl.global_id) == ["G3"]
+    assert sl.demand[0] == pytest.approx(400.0)        # L/r = 400 in / 1 in
+    assert list(sl.status) == ["fail"]                 # over 300 (D1 user note; common practice in EN)
