@@ -293,3 +293,20 @@ def test_zero_force_is_an_error(asd) -> None:
 def test_nothing_large_enough(asd) -> None:
     with pytest.raises(UsageError, match="no round bar .* passes"):
         size(asd, 5000 * KIP, material="A36", shape="round")
+
+
+def test_threaded_rod_ec3_within_the_thread_resistance(ec3) -> None:
+    # 50 kN on S355 (fu = 470 MPa, EN 10025-2 Table 7, 3 <= t <= 100 mm): EN 1993-1-8 Table 3.4
+    # Ft,Rd = 0.9 fub As / 1.25 >= 50 kN -> As >= 147.8 mm²; ISO 898-1 stress areas M14 115,
+    # M16 157 mm² (from memory) -> M16 (the gross body alone, 50 kN / 355 MPa = 141 mm², would
+    # pass M14 with 433 MPa on its thread)
+    as_req = 50e3 * 1.25 / (0.9 * 470)
+    assert 115 < as_req <= 157
+    r = size(ec3, 50e3, material="S355", shape="threaded")
+    assert r.selected.designation == "M16"
+    assert r.selected.tensile_stress_area * 1e6 == pytest.approx(157, abs=0.5)
+    ft_rd = 0.9 * 470e6 * r.selected.tensile_stress_area / 1.25
+    assert 50e3 <= ft_rd
+    assert r.required_area_check == "tension-thread"
+    assert r.required_area * 1e6 == pytest.approx(as_req, rel=1e-9)
+    assert "tensile-stress area" in r.required_area_basis

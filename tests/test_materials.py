@@ -38,7 +38,8 @@ def si(text: str, unit: str) -> float:
     # EN 1993-1-1 Table 3.1, t <= 40 mm (from memory)
     ("S235", "EN 10025 S235", "235 MPa", "360 MPa"),
     ("S275", "EN 10025 S275", "275 MPa", "430 MPa"),
-    ("S355", "EN 10025 S355", "355 MPa", "490 MPa"),
+    # EN 10025-2 Table 7: S355 Rm = 470 to 630 MPa for 3 mm <= t <= 100 mm, its minimum
+    ("S355", "EN 10025 S355", "355 MPa", "470 MPa"),
     # ASTM A240 Table 2, S30400 / S31600: 30 ksi [205 MPa], 75 ksi [515 MPa] (from memory)
     ("AISI 304", "ASTM A240 Type 304", "205 MPa", "515 MPa"),
     ("316", "ASTM A240 Type 316", "205 MPa", "515 MPa"),

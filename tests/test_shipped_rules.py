@@ -403,3 +403,29 @@ def test_solid_round_sections_in_tension_carry_no_slenderness_limit(name: str) -
     assert list(sl.global_id) == ["G3"]
     assert sl.demand[0] == pytest.approx(400.0)        # L/r = 400 in / 1 in
     assert list(sl.status) == ["fail"]                 # over 300 (D1 user note; common practice in EN)
+
+
+# --- steel-ec3: threaded rods, EN 1993-1-8 -------------------------------------------------------
+
+# S355: fu = 470 MPa, EN 10025-2 Table 7 (3 mm <= t <= 100 mm: Rm 470 to 630 MPa, the minimum)
+S355 = {"E": si(210, "GPa"), "Fy": si(355, "MPa"), "Fu": si(470, "MPa"), "material": "S355"}
+
+
+def test_ec3_threaded_rod_tension_resistance_on_the_thread() -> None:
+    rs = load_ruleset("steel-ec3")
+    rod = {"shape": "round-bar", "d": 0.016, "area": math.pi * 0.016**2 / 4, "r_min": 0.004, "length": 2.0, **S355}
+    m = members({**rod, "name": "Hanger rod"}, {**rod, "section_name": "M16 threaded"},
+                {**rod, "name": "Tie bar"}, {**rod, "name": "Hanger rod"})
+    f = forces(("G0", 50e3), ("G1", 54e3), ("G2", 50e3), ("G3", -5e3))
+    res = only(run_checks(rs, m, f), "tension-thread")
+    # only round bars named as rods or threads (here by the name, and by the profile name); tension only
+    assert list(res.global_id) == ["G0", "G1"]
+    # EN 1993-1-8 Table 3.4: Ft,Rd = k2 fub As / γM2, k2 = 0.9, γM2 = 1.25 (Table 2.1, recommended);
+    # ISO 898-1: As of M16 = 157 mm² (from memory) -> Ft,Rd = 0.9 x 470 x 157 / 1.25 = 53.1 kN
+    as_m16 = math.pi / 4 * (16 - 0.9382 * 2.0) ** 2          # ISO 898-1 formula, P = 2 mm (ISO 261)
+    assert as_m16 == pytest.approx(157, abs=0.5)
+    ft_rd = 0.9 * 470 * as_m16 / 1.25
+    assert ft_rd / 1e3 == pytest.approx(0.9 * 470 * 157 / 1.25 / 1e3, rel=3e-3)   # 53.1 kN with As = 157
+    assert res.capacity[0] == pytest.approx(0.9 * 470 / 1.25)          # MPa, the design stress on As
+    assert list(res.demand) == pytest.approx([50e3 / as_m16, 54e3 / as_m16])
+    assert list(res.status) == ["pass", "fail"]                        # 50 kN <= 53.1 kN < 54 kN

@@ -4,8 +4,8 @@ A selector is a set of keys; a member is selected when it matches every key give
 matches a key when its value matches any of the key's patterns (OR). Patterns are shell-style
 (``*`` any text, ``?`` one character, ``[abc]`` one of), case-insensitive; an empty value never
 matches. ``ifc_class`` names IFC classes and includes their subtypes (IfcMember selects
-IfcMemberStandardCase). ``any_name`` matches the Name, ObjectType, type name, PredefinedType or
-Tag. ``exclude`` holds keys of its own: a member matching all of them is left out.
+IfcMemberStandardCase). ``any_name`` matches the Name, ObjectType, type name, PredefinedType,
+Tag or profile (section) name. ``exclude`` holds keys of its own: a member matching all of them is left out.
 """
 
 from __future__ import annotations
@@ -27,7 +27,7 @@ SELECTOR_KEYS: dict[str, tuple[str, ...]] = {
     "name": ("name",),
     "tag": ("tag",),
     "type_name": ("type_name",),
-    "any_name": ("name", "object_type", "type_name", "predefined_type", "tag"),
+    "any_name": ("name", "object_type", "type_name", "predefined_type", "tag", "section_name"),
     "material": ("material",),
     "material_category": ("material_category",),
     "material_grade": ("material_grade",),
