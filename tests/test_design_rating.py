@@ -117,11 +117,14 @@ def test_rating_is_where_the_engine_turns_from_pass_to_fail() -> None:
                  "r_min": 0.75 * IN / 4, "length": 2.0, "E": 29000 * KSI, "Fy": 36 * KSI, "Fu": 58 * KSI})
     m = members(*rows)
     rated = rate_members(rs, m, US)
+    # the rod (KL/r = 2 m / 4.76 mm = 420 > 200, AISC 360-16 E2 user note) has no compression rating
+    assert rated.compression[4] is None and "slenderness-compression" in rated.compression_note[4]
     for direction, sign in (("tension", 1.0), ("compression", -1.0)):
-        p = np.asarray([value(q) for q in rated[direction]]) * KIP * sign
+        p = np.asarray([NAN if q is None else value(q) for q in rated[direction]]) * KIP * sign
         for factor, status in ((1 - 1e-6, "pass"), (1.001, "fail")):
-            f = pd.DataFrame({"model": "m.ifc", "global_id": m.global_id, "load_case": "LC",
-                              "axial_force": p * factor, "source": "test"})
+            rated_ids = np.isfinite(p)
+            f = pd.DataFrame({"model": "m.ifc", "global_id": m.global_id[rated_ids], "load_case": "LC",
+                              "axial_force": p[rated_ids] * factor, "source": "test"})
             res = run_checks(rs, m, f)
             res = res[res.load_case.notna() & ~res.check.str.startswith("slenderness")]
             worst = res.groupby("global_id")["status"].agg(lambda s: "fail" if (s == "fail").any() else "pass")
@@ -173,3 +176,33 @@ def test_sample_models_are_all_rated_and_json_ready() -> None:
 def test_empty_table() -> None:
     r = rate_members(load_ruleset("steel-ec3"), members().iloc[0:0], SI)
     assert list(r.columns)[:3] == ["global_id", "tension", "compression"] and len(r) == 0
+
+
+def test_a_limit_no_force_satisfies_gives_no_rating() -> None:
+    rs = load_ruleset("steel-asd-us")
+    # a 1/2 in A36 rod 8.85 ft long: KL/r = 106.25 in / 0.125 in = 850 > 200 (AISC 360-16 E2 user
+    # note): no compression force is acceptable, whatever E3 would give (0.877 Fe A / 1.67 = 0.3 kip)
+    d = 0.5 * IN
+    rod = {"shape": "round-bar", "name": "HANGER ROD", "d": d, "area": math.pi / 4 * d**2, "r_min": d / 4,
+           "length": 850 * d / 4, "E": 29000 * KSI, "Fy": 36 * KSI, "Fu": 58 * KSI}
+    # an L4X4X1/4 angle 40 ft long: L/r = 480 in / 0.791 in = 607 > 300 (AISC 360-16 D1 user note;
+    # rz = 0.791 in, AISC Shapes Database v15.0, from memory)
+    angle = {"shape": "L", "area": 1.93 * IN2, "r_min": 0.791 * IN, "length": 40 * 0.3048,
+             "E": 29000 * KSI, "Fy": 36 * KSI, "Fu": 58 * KSI}
+    r = rate_members(rs, members(rod, angle), US)
+    assert r.compression[0] is None and r.compression_check[0] is None
+    assert "slenderness-compression fails at any force" in r.compression_note[0]
+    assert "no rating" in r.compression_note[0]
+    assert r.tension[0] is not None               # rods in tension: no L/r limit (D1 user note)
+    assert r.tension[1] is None and "slenderness-tension fails at any force" in r.tension_note[1]
+    assert r.compression[1] is None and "slenderness-compression" in r.compression_note[1]
+
+
+def test_a_failing_minimum_size_gives_no_rating_either_way() -> None:
+    rs = load_ruleset("hanger-rods")
+    # a 5/16 in rod under the 3/8 in minimum (common practice): no force makes it acceptable
+    d = 5 / 16 * IN
+    r = rate_members(rs, members({"shape": "round-bar", "d": d, "area": math.pi / 4 * d**2, "r_min": d / 4,
+                                  "length": 0.5, "E": 200e9, "Fy": 250e6, "Fu": 400e6}), SI).iloc[0]
+    assert r.tension is None and r.compression is None
+    assert "rod-size fails at any force" in r.tension_note and "rod-size" in r.compression_note

@@ -15,7 +15,9 @@ changes with P, is reported, not guessed). The governing allowable force of a di
 least over its force-limiting checks — tension yielding and rupture, threaded-rod tension,
 flexural buckling (its capacity Fcr depends on KL/r, not on P), and elongation where the rule set
 limits it. Checks that do not depend on the force (slenderness limits, minimum rod size) do not
-set a force; when they fail, the member's note says so.
+set a force; when one fails, it fails at every force, so no force is acceptable: that direction
+(both, for a check without P such as a minimum rod size) gets None, with the failing check as
+the reason.
 
 A member lacking data that a check needs (no Fy, no length for buckling, no area) gets None for
 that direction, with the missing inputs as the reason: a partial rating is never shown as the
@@ -28,6 +30,9 @@ from typing import Any
 
 import numpy as np
 import pandas as pd
+
+#: said after a check that fails at every force: why the direction has no rating
+NO_FORCE = " (no force satisfies it: no rating)"
 
 #: probe forces in newtons (magnitudes); three points confirm the demand is a line in |P|
 PROBES: tuple[float, ...] = (1e3, 2e3, 4e3)
@@ -57,13 +62,12 @@ def _direction(res: pd.DataFrame, sign: str, n: int) -> dict[str, np.ndarray]:
     allow = np.full(n, np.nan)
     gov = np.full(n, None, dtype=object)
     reason = np.full(n, None, dtype=object)
-    notes: list[list[str]] = [[] for _ in range(n)]
     code = pd.Categorical(res["load_case"], categories=list(CASES)).codes
     first = 0 if sign == "+" else len(PROBES)
     take = (code >= first) & (code < first + len(PROBES))
     part = res[take]
     if not len(part):
-        return {"allow": allow, "gov": gov, "reason": reason, "notes": _obj(notes)}
+        return {"allow": allow, "gov": gov, "reason": reason}
     part = part.assign(k=code[take] - first)
     key = ["m", "check"]
     # unchecked at any probe: that check (and so the direction) cannot be rated
@@ -97,13 +101,19 @@ def _direction(res: pd.DataFrame, sign: str, n: int) -> dict[str, np.ndarray]:
         order = lim.sort_values(["m", "p"], kind="stable").drop_duplicates("m")
         allow[order["m"].to_numpy()] = order["p"].to_numpy()
         gov[order["m"].to_numpy()] = order["check"].to_numpy(dtype=object)
-    # force-independent checks that fail at every force: a note
+    # force-independent checks that fail at every force (a slenderness limit): no force is
+    # acceptable, so the direction has no rating, with that reason
     msg0 = part[part["k"] == 0].drop_duplicates(key).set_index(key)["message"]
     fixed = idx[idx["complete"] & ~idx["grows"] & idx["failing"]]
     if len(fixed):
         texts = msg0.reindex(pd.MultiIndex.from_frame(fixed[key])).to_numpy(dtype=object)
+        blocked: dict[int, list[str]] = {}
         for m_, check, msg in zip(fixed["m"].tolist(), fixed["check"].tolist(), texts.tolist(), strict=True):
-            notes[m_].append(f"{check} fails at any force: {msg}")
+            blocked.setdefault(m_, []).append(f"{check} fails at any force: {msg}")
+        mm = np.asarray(list(blocked), dtype=int)
+        allow[mm] = np.nan
+        gov[mm] = None
+        reason[mm] = ["; ".join(v) + NO_FORCE for v in blocked.values()]
     # not linear: cannot be rated
     bent = idx[idx["complete"] & ~idx["linear"]].drop_duplicates("m")
     if len(bent):
@@ -120,7 +130,7 @@ def _direction(res: pd.DataFrame, sign: str, n: int) -> dict[str, np.ndarray]:
         reason[mm] = [f"{ch}: " + ("; ".join(miss) if miss else str(msg))
                       for ch, miss, msg in zip(first["check"].tolist(), first["missing"].tolist(),
                                                first["message"].tolist(), strict=True)]
-    return {"allow": allow, "gov": gov, "reason": reason, "notes": _obj(notes)}
+    return {"allow": allow, "gov": gov, "reason": reason}
 
 
 def _obj(lists: list[Any]) -> np.ndarray:
@@ -204,9 +214,16 @@ def _rate(ruleset: Any, frame: pd.DataFrame, units: Any) -> pd.DataFrame:
     fixed = res[res["load_case"].isna() & (res["status"] == "fail")]
     fixed_notes: list[list[str]] = [[] for _ in range(n)]
     for m_, check, msg in zip(fixed["m"], fixed["check"], fixed["message"], strict=True):
-        fixed_notes[m_].append(f"{check} fails: {msg}")
+        fixed_notes[m_].append(f"{check} fails at any force: {msg}")
     t = _direction(res, "+", n)
     c = _direction(res, "-", n)
+    # a check without P that fails (a minimum size) fails at every force of either direction
+    for d in (t, c):
+        for i, texts in enumerate(fixed_notes):
+            if texts and d["reason"][i] is None:
+                d["allow"][i] = np.nan
+                d["gov"][i] = None
+                d["reason"][i] = "; ".join(texts) + NO_FORCE
 
     unit = units.unit("force")
     factor = units.convert("force", 1.0)
@@ -227,7 +244,7 @@ def _rate(ruleset: Any, frame: pd.DataFrame, units: Any) -> pd.DataFrame:
             parts.append(str(d["reason"][i]))
         elif d["gov"][i] is None:
             parts.append(f"no {what} check of {ruleset.name} limits the force of this member")
-        parts += list(d["notes"][i]) + fixed_notes[i]
+        parts += [x for x in fixed_notes[i] if x not in str(d["reason"][i])]
         return "; ".join(parts) or None
 
     return pd.DataFrame({
