@@ -26,6 +26,7 @@ QUANTITY_COLUMNS: dict[str, str] = {
     "Fu": "Pa",           # ultimate tensile strength
     "alpha": "1/K",       # linear thermal expansion coefficient
     "net_area": "m**2",   # net area at holes or threads (property MC_NetSection.NetArea), rarely modelled
+    "shear_lag": "",      # shear lag factor U, Ae = U An (property MC_NetSection.ShearLagFactor), a ratio
 }
 
 #: other section / material columns

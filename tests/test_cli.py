@@ -252,7 +252,8 @@ def test_net_area_from_the_model_brings_in_the_rupture_check(tmp_path):
     mb = ModelBuilder(schema="IFC4", units="inch-kip")
     steel = mb.material("ASTM A36")
     flat = mb.f.createIfcRectangleProfileDef("AREA", "PL4x1/2", None, 4.0, 0.5)
-    net = {"MC_NetSection": {"NetArea": ("IfcAreaMeasure", 1.5)}}         # 2.0 in² gross, 1.5 in² net
+    # 2.0 in² gross, 1.5 in² net; U = 1.0: a plate bolted through (AISC 360-16 Table D3.1 case 1)
+    net = {"MC_NetSection": {"NetArea": ("IfcAreaMeasure", 1.5), "ShearLagFactor": ("IfcPositiveRatioMeasure", 1.0)}}
     mb.member("IfcMember", name="tie", tag="T1", profile=flat, material=steel, length=60.0,
               psets={**net, "MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 40.0)}})  # 40 kip
     p = tmp_path / "tie.ifc"
@@ -260,11 +261,31 @@ def test_net_area_from_the_model_brings_in_the_rupture_check(tmp_path):
     out = tmp_path / "r.json"
     run("check", str(p), "--rules", "steel-asd-us", "--format", "json", "--output", str(out))
     res = {r["check"]: r for r in json.loads(out.read_text())["results"]}
-    # AISC 360-16 D2(b), U = 1 (D3): f = P/Ae = 40/1.5 = 26.67 ksi against Fu/2.00 = 58/2 = 29 ksi
+    # AISC 360-16 D2(b), Ae = U An (D3): f = P/Ae = 40/1.5 = 26.67 ksi against Fu/2.00 = 58/2 = 29 ksi
     # (ASTM A36 Fu = 58 ksi, from memory)
     assert math.isclose(res["tension-rupture"]["ratio"], (40 / 1.5) / (58 / 2.0), rel_tol=1e-4)
     # D2(a) on the gross area: 40/2.0 = 20 ksi against 36/1.67 = 21.56 ksi (ASTM A36 Fy = 36 ksi, from memory)
     assert math.isclose(res["tension-yield"]["ratio"], (40 / 2.0) / (36 / 1.67), rel_tol=1e-4)
+
+
+def test_shear_lag_factor_from_the_model_and_a_bad_one_refused(tmp_path):
+    mb = ModelBuilder(schema="IFC4", units="inch-kip")
+    steel = mb.material("ASTM A36")
+    flat = mb.f.createIfcRectangleProfileDef("AREA", "PL4x1/2", None, 4.0, 0.5)
+    for tag, u in (("T1", 0.8), ("T2", 1.5)):
+        net = {"MC_NetSection": {"NetArea": ("IfcAreaMeasure", 1.5), "ShearLagFactor": ("IfcPositiveRatioMeasure", u)}}
+        mb.member("IfcMember", name="tie", tag=tag, profile=flat, material=steel, length=60.0,
+                  psets={**net, "MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 30.0)}})
+    p = tmp_path / "ties.ifc"
+    mb.write(str(p))
+    out = tmp_path / "r.json"
+    run("check", str(p), "--rules", "steel-asd-us", "--format", "json", "--output", str(out))
+    doc = json.loads(out.read_text())
+    res = {(r["tag"], r["check"]): r for r in doc["results"]}
+    # AISC 360-16 (D3-1) Ae = U An = 0.8 x 1.5 = 1.2 in²; D2(b) f = 30 / 1.2 = 25 ksi vs 58/2 = 29 ksi
+    assert math.isclose(res[("T1", "tension-rupture")]["ratio"], (30 / 1.2) / 29.0, rel_tol=1e-4)
+    # U = 1.5 is no ratio <= 1: not used, warned; a flat bar then needs U: unchecked, never passed
+    assert res[("T2", "tension-rupture")]["status"] == "unchecked"
 
 
 def test_results_encoded_in_chunks_are_the_rows_encoded_at_once():

@@ -95,6 +95,7 @@ def test_asd_tension_rupture_only_where_net_area_is_known() -> None:
     f = forces(("G0", si(40, "kip")), ("G1", si(45, "kip")), ("G2", si(45, "kip")))
     assert only(run_checks(rs, m, f), "tension-rupture").empty
     m["net_area"] = [si(1.5, "in**2"), si(1.5, "in**2"), NAN]
+    m["shear_lag"] = [1.0, 1.0, 1.0]                 # the model's U (Table D3.1 case 1: all legs connected)
     res = only(run_checks(rs, m, f), "tension-rupture")
     # AISC 360-16 D2(b), D3: Fu/Ωt = 58/2.00 = 29 ksi on Ae = U An = 1.5 in² (U = 1.0)
     assert list(res.global_id) == ["G0", "G1"]
@@ -429,3 +430,28 @@ def test_ec3_threaded_rod_tension_resistance_on_the_thread() -> None:
     assert res.capacity[0] == pytest.approx(0.9 * 470 / 1.25)          # MPa, the design stress on As
     assert list(res.demand) == pytest.approx([50e3 / as_m16, 54e3 / as_m16])
     assert list(res.status) == ["pass", "fail"]                        # 50 kN <= 53.1 kN < 54 kN
+
+
+
+def test_asd_effective_net_area_applies_the_shear_lag_factor() -> None:
+    rs = load_ruleset("steel-asd-us")
+    # W8X21 (A = 6.16 in², AISC Shapes Database v15.0, from memory), A992 Fu = 65 ksi (from memory),
+    # flanges bolted: An = 6.16 - 4 x (13/16 + 1/16) x 0.400 = 4.76 in² (D3 / B4.3b: hole + 1/16 in),
+    # U = 0.908 (the figure of the issue, Table D3.1 case 2 for that connection)
+    an = 6.16 - 4 * (13 / 16 + 1 / 16) * 0.400
+    w = us_member(shape="I", area=si(6.16, "in**2"), Fu=si(65, "ksi"), net_area=si(an, "in**2"))
+    bar = {**us_member(shape="round-bar", d=si(1.0, "in"), area=si(math.pi / 4, "in**2")), "net_area": si(0.606, "in**2")}
+    m = members({**w, "shear_lag": 0.908}, w, bar)
+    f = forces(("G0", si(150, "kip")), ("G1", si(150, "kip")), ("G2", si(15, "kip")))
+    res = only(run_checks(rs, m, f), "tension-rupture")
+    # (D3-1): Ae = U An; D2(b): f = P / Ae against Fu / 2.00 = 32.5 ksi: 150 / (0.908 x 4.76) =
+    # 34.7 ksi fails, where An taken as Ae (31.5 ksi) would pass, 10 % unconservative
+    assert res.demand[0] == pytest.approx(150 / (0.908 * an))
+    assert res.capacity[0] == pytest.approx(65 / 2.00)
+    assert 150 / an < 65 / 2.00 < 150 / (0.908 * an)
+    assert res.status[0] == "fail"
+    # a W shape with no U: unchecked, U named as missing (never U = 1, which would be unconservative)
+    assert res.status[1] == "unchecked" and any(x.startswith("U:") for x in res.missing[1])
+    # a solid round bar: U = 1.0 (Table D3.1 case 1: its only element is connected), Ae = An
+    assert res.demand[2] == pytest.approx(15 / 0.606)
+    assert res.status[2] == "pass"

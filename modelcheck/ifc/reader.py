@@ -49,7 +49,7 @@ from modelcheck.ifc.index import (
 )
 from modelcheck.ifc.profiles import ProfileSection, UnsupportedProfile, section_of
 from modelcheck.table import frame_of, member_columns
-from modelcheck.units import MissingUnit, UnusableUnit
+from modelcheck.units import UNITLESS_MEASURES, MissingUnit, UnusableUnit
 
 #: classes that are always axial-member candidates (subtypes included)
 MEMBER_CLASSES = ("IfcMember", "IfcColumn", "IfcBeam", "IfcTendon")
@@ -59,7 +59,10 @@ SWEEP_CLASSES = ("IfcBuildingElementProxy", "IfcDiscreteAccessory", "IfcFastener
 #: where a member's net area (at holes or threads) is read: property set and property, our own
 #: names (buildingSMART defines none for it), an IfcAreaMeasure on the occurrence or its type
 NET_AREA_PROPERTY = ("MC_NetSection", "NetArea")
-_NO_NET: tuple[float, str | None] = (math.nan, None)
+#: in the same set, the optional shear lag factor U (Ae = U An), a ratio 0 < U <= 1
+SHEAR_LAG_PROPERTY = ("MC_NetSection", "ShearLagFactor")
+#: (net area, its source, shear lag factor, its source) where the model holds none
+_NO_NET: tuple[float, str | None, float, str | None] = (math.nan, None, math.nan, None)
 _NET_SET = NET_AREA_PROPERTY[0]
 
 AREA_TOLERANCE = 0.02     # 2 % between two sources of the cross-section area
@@ -456,7 +459,7 @@ class _Reader:
         psets = idx.psets_of.get(eid)
         mech_sets: list[Any] = []
         qsets: list[Any] = []
-        net: tuple[float, str | None] | None = None
+        net: tuple[float, str | None, float, str | None] | None = None
         if psets:   # the occurrence's own sets, each looked at once
             net_sets = []
             for ent, n in idx.named_sets(eid):
@@ -563,21 +566,42 @@ class _Reader:
             hit = self._same[(id(a), id(b))] = (a, b, a.source.split(" ", 2)[:2] == b.source.split(" ", 2)[:2])
         return hit[2]
 
-    def _net_from(self, sets: list[Any], where: str, warnings: list[str]) -> tuple[float, str | None] | None:
-        """The net area from ``sets`` (of the occurrence or its type); None where they lack it."""
+    def _net_from(self, sets: list[Any], where: str,
+                  warnings: list[str]) -> tuple[float, str | None, float, str | None] | None:
+        """The net area and shear lag factor from ``sets`` (of the occurrence or its type):
+        (An, source, U, source), NaN and None for a value not given or not usable; None where
+        the sets hold neither."""
         pset_name, prop_name = NET_AREA_PROPERTY
-        prop = find_property(list(sets), pset_name, prop_name)
-        if prop is None:
+        sets = list(sets)
+        prop = find_property(sets, pset_name, prop_name)
+        lag = find_property(sets, *SHEAR_LAG_PROPERTY)
+        if prop is None and lag is None:
             return None
-        try:
-            v = property_si(self.idx, prop)
-        except MissingUnit as exc:
-            warnings.append(f"{pset_name}.{prop_name} not used: {exc}")
-            return _NO_NET
-        if v is None or not (math.isfinite(v.value) and v.value > 0):
-            warnings.append(f"{pset_name}.{prop_name} is not a positive area; not used")
-            return _NO_NET
-        return v.value, f"{pset_name}.{prop_name} ({where}) [{v.unit}]"
+        net: tuple[float, str | None] = (math.nan, None)
+        if prop is not None:
+            try:
+                v = property_si(self.idx, prop)
+            except MissingUnit as exc:
+                warnings.append(f"{pset_name}.{prop_name} not used: {exc}")
+                v = None
+            else:
+                if v is None or not (math.isfinite(v.value) and v.value > 0):
+                    warnings.append(f"{pset_name}.{prop_name} is not a positive area; not used")
+                    v = None
+            if v is not None:
+                net = (v.value, f"{pset_name}.{prop_name} ({where}) [{v.unit}]")
+        u: tuple[float, str | None] = (math.nan, None)
+        if lag is not None:
+            label = ".".join(SHEAR_LAG_PROPERTY)
+            try:
+                w = property_si(self.idx, lag)
+            except MissingUnit:
+                w = None
+            if w is None or w.measure not in UNITLESS_MEASURES or w.unit or not (0 < w.value <= 1):
+                warnings.append(f"{label} is not a ratio between 0 and 1 (an IfcPositiveRatioMeasure); not used")
+            else:
+                u = (w.value, f"{label} ({where})")
+        return net + u
 
     def _positions(self, cls: str) -> tuple[bool, int | None]:
         """(has Tag at index 7, index of PredefinedType) for an entity class; cached."""
@@ -1135,6 +1159,8 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
     cols["entity_id"] = np.array(eids, dtype=np.int64)
     cols["net_area"] = np.array([x[0] for x in nets], dtype=float)
     cols["net_area_source"] = [x[1] for x in nets]
+    cols["shear_lag"] = np.array([x[2] for x in nets], dtype=float)
+    cols["shear_lag_source"] = [x[3] for x in nets]
     # text columns stay object dtype with None for missing (pandas 3 would infer 'str' with NaN)
     # (an object array too: pandas 3 would infer 'str' from one and turn its None into NaN)
     return frame_of({k: pd.Series(cols[k], dtype=object if not isinstance(cols[k], np.ndarray)

@@ -273,7 +273,8 @@ def _missing_lists(check: Check, ruleset: RuleSet, data: MemberData, member: np.
     never takes) is not listed.
     """
     n = len(member)
-    values = {name: _inputs(name, data, member, p) for name in MEMBER_QUANTITIES if name in check.inputs}
+    wanted = check.inputs | check.optional     # a value tested with known() may still be needed
+    values = {name: _inputs(name, data, member, p) for name in MEMBER_QUANTITIES if name in wanted}
     candidates = [name for name, v in values.items() if np.isnan(v).any()]
     needed: dict[str, np.ndarray] = {}
     if len(candidates) == 1:

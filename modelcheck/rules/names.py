@@ -52,9 +52,12 @@ MEMBER_QUANTITIES: Mapping[str, MemberQuantity] = MappingProxyType({q.name: q fo
     _Q("As", "tensile-stress area of the standard coarse thread of diameter d "
             "(ASME B1.1 UNC or ISO 261 coarse, round bars only)", "m**2", None,
        "As: no standard thread size for this member", 2.5e-4),
-    _Q("An", "net area (at holes or threads); read from the model property MC_NetSection.NetArea "
-            "(occurrence or type), missing otherwise", "m**2", "net_area",
+    _Q("An", "net area (at holes or threads), the true net area, before any shear lag; read from the "
+            "model property MC_NetSection.NetArea (occurrence or type), missing otherwise", "m**2", "net_area",
        "An: no net area (model property MC_NetSection.NetArea)", 0.9e-3),
+    _Q("U", "shear lag factor of the net section, Ae = U An; read from the model property "
+            "MC_NetSection.ShearLagFactor (occurrence or type), missing otherwise", "", "shear_lag",
+       "U: no shear lag factor (model property MC_NetSection.ShearLagFactor)", 0.9),
 )})
 
 #: text names for conditions: name -> (member-table column, description)
