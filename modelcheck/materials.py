@@ -40,7 +40,7 @@ import pint
 
 from modelcheck.data import data_path
 from modelcheck.errors import RuleSetError
-from modelcheck.units import Q_, ureg
+from modelcheck.units import QuantityTextError, parse_quantity
 
 #: material categories ("unknown" is the fallback of plausible_range: a name nothing recognises)
 CATEGORIES: tuple[str, ...] = ("steel", "stainless", "aluminium", "concrete", "timber", "masonry", "other")
@@ -215,15 +215,15 @@ def _quantity(text: Any, path: str, where: str, key: str) -> float:
     m = _VALUE_RE.match(text)
     if m is None or not m.group(2):
         raise _err(path, where, f"value {text!r} is not '<number> <unit>' (a unit is required)")
-    number, unit_text = float(m.group(1)), m.group(2)
-    if unit_text.startswith("/"):
-        unit_text = "1 " + unit_text  # "12e-6 / K": the number is followed by "per"
-    try:
-        # parse_units reads a temperature in a denominator as a step ('1/degF' -> 1/delta_degF)
-        unit = ureg.parse_units(unit_text)
-        si = Q_(number, unit).to(si_unit).magnitude
+    unit_text = m.group(2)
+    try:   # the one reader of a number with a unit ("12e-6 / K": the number, then "per K")
+        # pint reads a temperature in a denominator as a step ('1/degF' -> 1/delta_degF)
+        q = parse_quantity(text, None, what="value")
+        si = q.quantity.to(si_unit).magnitude
     except pint.DimensionalityError as exc:
         raise _err(path, where, f"unit {unit_text!r} of {text!r} is not {what}") from exc
+    except QuantityTextError as exc:
+        raise _err(path, where, f"unit {unit_text!r} of {text!r} is not understood: {exc}") from None
     except (pint.PintError, AttributeError, TypeError, ValueError) as exc:
         raise _err(path, where, f"unit {unit_text!r} of {text!r} is not understood: {exc}") from exc
     if not math.isfinite(si):

@@ -16,6 +16,7 @@ Rules followed (IFC 4.3, IfcSIUnit / IfcConversionBasedUnit / IfcDerivedUnit):
 from __future__ import annotations
 
 import math
+import re
 import sys
 from dataclasses import dataclass, field
 from fractions import Fraction
@@ -340,3 +341,153 @@ def parse_number(text: str) -> Fraction:
         whole, frac = s.split(None, 1)
         return sign * (Fraction(whole) + Fraction(frac))
     return sign * Fraction(s)
+
+
+# ---------------------------------------------------------------------------------------------
+# units and numbers with a unit, as people write them: the one reader of such text
+
+
+class QuantityTextError(ValueError):
+    """Text that is not a number with a (fitting) unit; the message says why, in one line."""
+
+
+#: whole unit texts that exporters write and pint (case-sensitive) does not know
+UNIT_ALIASES: dict[str, str] = {"KN": "kN", "KIP": "kip", "KIPS": "kip", "LBF": "lbf", "MPA": "MPa",
+                                "N/MM2": "N/mm**2", "KN/M": "kN/m", "KN/M2": "kN/m**2"}
+
+#: a unit name with its power written straight after it: mm2, in4, kN/m2 (not 1/K, not 12e-6)
+_POWER_RE = re.compile(r"(?<![\w.])([A-Za-zµμ]+)([2-4])(?![\w.])")
+
+
+def normalise_unit(text: str) -> str:
+    """A unit as the trade writes it, in pint's syntax; the one normaliser of the project.
+
+    Rules, in order: white space at the ends goes; an exporter's upper-case name is read as
+    its unit ('KN', 'KIP', 'KIPS', 'LBF', 'MPA'); a power written straight after a unit name
+    is a power ('mm2' -> 'mm**2', 'N/mm2' -> 'N/mm**2', 'kip/in2' -> 'kip/in**2', 'mm4' ->
+    'mm**4'; powers 2 to 4); a middle dot is a product ('kN·m' -> 'kN*m'); a text that starts
+    with '/' is 'one per' ('/ K' -> '1/K'). Anything else is left to pint ('mm^2', 'mm²',
+    'kN/m', 'ksi', '1/K').
+
+    >>> normalise_unit("N/mm2")
+    'N/mm**2'
+    """
+    t = text.strip()
+    if t.startswith("[") and t.endswith("]"):
+        t = t[1:-1].strip()
+    alias = UNIT_ALIASES.get(t.upper().replace(" ", "")) if t.upper() == t else None
+    if alias is not None:
+        return alias
+    t = t.replace("·", "*")
+    t = _POWER_RE.sub(r"\1**\2", t)
+    if t.startswith("/"):
+        t = "1 " + t
+    return t
+
+
+def parse_unit(text: str) -> pint.Unit:
+    """A unit text (any spelling :func:`normalise_unit` reads) as a pint unit; QuantityTextError
+    (one line) for text that is no unit, or a unit whose size is not a finite positive number."""
+    t = normalise_unit(str(text))
+    if not t:
+        raise QuantityTextError("no unit")
+    try:
+        unit = ureg.parse_units(t)
+        size = float(Q_(1.0, unit).to_base_units().magnitude)
+    except Exception as exc:  # pint raises many types for odd text (ZeroDivisionError for 'N/0' too)
+        why = "divides by zero" if isinstance(exc, ZeroDivisionError) else "is not a unit modelcheck knows"
+        raise QuantityTextError(f"{str(text).strip()!r} {why}") from None
+    if not (math.isfinite(size) and size > 0):
+        raise QuantityTextError(f"{str(text).strip()!r} has no usable size")
+    return unit
+
+
+#: dimension names the parser checks against -> a unit of that dimension
+DIMENSIONS: dict[str, str] = {"force": "N", "length": "m", "area": "m**2", "stress": "Pa",
+                              "second moment of area": "m**4", "force per length": "N/m",
+                              "number": ""}
+
+_EXAMPLES: dict[str, str] = {"force": '"12 kip" or "50 kN"', "length": '"3/4 in" or "20 mm"',
+                             "area": '"0.44 in2" or "157 mm2"', "stress": '"36 ksi" or "355 N/mm2"'}
+
+_QUANTITY_RE = re.compile(rf"\s*({NUMBER_PATTERN})\s*(?:\[(.*)\]|(.*?))\s*\Z")
+
+#: the same reading for a whole column at once (pandas ``str.extract``): groups num and unit
+VALUE_PATTERN = rf"^\s*(?P<num>{NUMBER_PATTERN})\s*(?P<unit>\S.*?)?\s*$"
+
+
+@dataclass(frozen=True)
+class QuantityText:
+    """A number with a unit as read from text: the exact number, the unit (normalised) and both
+    as a pint quantity."""
+
+    number: Fraction             # exact: '1 1/2' is 3/2, '0.1' is 1/10
+    unit: str                    # normalised unit text ('' for a plain number)
+    quantity: pint.Quantity
+
+    def si(self) -> float:
+        """The value in SI base units."""
+        return float(self.quantity.to_base_units().magnitude)
+
+
+def split_quantity(text: str, *, what: str = "value", example: str = '"0.25 in" or "6 mm"') -> tuple[Fraction, str]:
+    """'1 1/2 in' -> (3/2, 'in'), '25 [mm]' -> (25, 'mm'), '12' -> (12, ''): the number, exactly,
+    and the unit text as written (not yet read); QuantityTextError for text of another form."""
+    m = _QUANTITY_RE.match(text)
+    if not m:
+        raise QuantityTextError(f"{what} {text.strip()!r} is not a number with a unit, e.g. {example}")
+    try:
+        number = parse_number(m.group(1))
+        if not math.isfinite(float(number)):
+            raise OverflowError
+    except ZeroDivisionError:
+        raise QuantityTextError(f"{what} {text.strip()!r}: division by zero") from None
+    except (ValueError, OverflowError):
+        raise QuantityTextError(f"{what} {text.strip()!r}: {m.group(1)!r} is not a finite number") from None
+    return number, (m.group(2) if m.group(2) is not None else m.group(3) or "").strip()
+
+
+def parse_quantity(text: str, dimension: str | None = None, *, what: str = "value",
+                   unit_required: bool = True) -> QuantityText:
+    """'1 1/2 in', '3/8 in', '50 kN', '25 [mm]', '355 N/mm2' -> QuantityText; the one reader of
+    "number with unit" text in the project (command line, rule files, stock and shape tables,
+    load tables, model properties).
+
+    The number is a decimal ('0.25', '1.5e3'), a fraction ('3/8') or a whole number and a
+    fraction ('1 1/2'), read exactly; the unit follows, plain or in brackets, in any spelling
+    :func:`normalise_unit` reads. ``dimension`` (a key of DIMENSIONS) is checked when given.
+    Raises QuantityTextError naming ``what`` and the text.
+    """
+    raw = str(text)
+    example = _EXAMPLES.get(dimension or "", '"0.25 in" or "6 mm"')
+    number, unit_text = split_quantity(raw, what=what, example=example)
+    magnitude = float(number)
+    if not unit_text:
+        if unit_required and dimension != "number":
+            with_unit = f"with a {dimension} unit, " if dimension else ""
+            raise QuantityTextError(f"{what} {raw.strip()!r} has no unit: write it {with_unit}e.g. {example}")
+        unit = ureg.Unit("")
+    else:
+        try:
+            unit = parse_unit(unit_text)
+        except QuantityTextError as exc:
+            raise QuantityTextError(f"{what} {raw.strip()!r}: {exc}") from None
+    if dimension is not None:
+        want = ureg.Unit(DIMENSIONS[dimension]).dimensionality
+        if unit.dimensionality != want:
+            hint = " (pound-force is 'lbf')" if dimension == "force" and \
+                unit.dimensionality == ureg.pound.dimensionality else ""
+            raise QuantityTextError(f"{what} {raw.strip()!r}: {unit_text!r} is not a {dimension}{hint}")
+    quantity = Q_(magnitude, unit)
+    return QuantityText(number=number, unit=normalise_unit(unit_text) if unit_text else "", quantity=quantity)
+
+
+def unit_factor(text: str, dimension: str) -> float:
+    """SI base units in one ``text`` unit of ``dimension`` ('kN', 'force' -> 1000.0)."""
+    unit = parse_unit(text)
+    if unit.dimensionality != ureg.Unit(DIMENSIONS[dimension]).dimensionality:
+        hint = " (pound-force is 'lbf')" if dimension == "force" and \
+            unit.dimensionality == ureg.pound.dimensionality else ""
+        raise QuantityTextError(f"unit {text.strip()!r} is not a {dimension}, it is "
+                                f"{unit.dimensionality}{hint}")
+    return float(Q_(1.0, unit).to_base_units().magnitude)

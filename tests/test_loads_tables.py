@@ -15,7 +15,7 @@ from hypothesis import strategies as st
 from modelcheck.errors import LoadTableError
 from modelcheck.loads import tables
 from modelcheck.loads.tables import LOAD_TABLE_COLUMNS, force_unit_factor, read_load_table
-from modelcheck.units import Q_
+from modelcheck.units import Q_, normalise_unit
 
 # NIST SP 811 (Appendix B): 1 lbf = 4.448 221 615 260 5 N, exact by definition
 # (0.453 592 37 kg × 9.806 65 m/s²); 1 kip = 1000 lbf.
@@ -42,7 +42,7 @@ def write(tmp_path: Path, text: str, name: str = "loads.csv", encoding: str = "u
 def test_force_unit_factor_against_pint_and_nist(unit: str, newtons: float) -> None:
     got = force_unit_factor(unit)
     assert got == pytest.approx(newtons, rel=1e-12)
-    canonical = tables.UNIT_ALIASES.get(unit, unit)
+    canonical = normalise_unit(unit)              # the one documented normaliser of unit spellings
     assert got == pytest.approx(Q_(1.0, canonical).to("N").magnitude, rel=1e-15)  # pint's own definition
 
 

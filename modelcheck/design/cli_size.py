@@ -14,7 +14,6 @@ from __future__ import annotations
 import argparse
 import json
 import math
-import re
 import sys
 from typing import Any
 
@@ -24,7 +23,6 @@ from modelcheck.errors import UsageError
 #: command line does not import the sizing machinery — start-up time counts)
 SHAPE_CHOICES: tuple[str, ...] = ("round", "square", "flat", "threaded", "catalog")
 
-_FORCE_RE = re.compile(r"\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(?:\[(.+)\]|(.*?))\s*\Z")
 
 
 def add_size_parser(subparsers: Any) -> argparse.ArgumentParser:
@@ -58,38 +56,26 @@ def add_size_parser(subparsers: Any) -> argparse.ArgumentParser:
 
 
 def parse_force(text: str) -> float:
-    """'12 kip' -> newtons; a bare number or a unit that is not a force is a UsageError. Units are
-    read as load tables read them (``force_unit_factor``: 'KN' and 'KIP' too)."""
-    import math
+    """'12 kip', '1 1/2 kip', '50 kN' -> newtons, read by :func:`modelcheck.units.parse_quantity`
+    (the reader of every number with a unit); no unit, or a unit that is not a force, is a
+    UsageError."""
+    from modelcheck.units import QuantityTextError, parse_quantity
 
-    from modelcheck.loads.tables import ForceUnitError, force_unit_factor
-
-    m = _FORCE_RE.match(text or "")
-    unit = (m.group(2) if m and m.group(2) is not None else (m.group(3) if m else "")) or ""
-    if not m:
-        raise UsageError(f"--force {text!r}: write a number and a force unit, e.g. \"12 kip\" or \"50 kN\"")
-    if not unit.strip():
-        raise UsageError(f"--force {text!r} has no unit: write e.g. \"{text.strip()} kip\" or \"{text.strip()} kN\"")
     try:
-        factor = force_unit_factor(unit)
-    except ForceUnitError as exc:
-        raise UsageError(f"--force {text!r}: {exc}") from None
-    value = float(m.group(1))
-    if not math.isfinite(value):
-        raise UsageError(f"--force {text!r}: {m.group(1)} is not a finite number")
-    return value * factor
+        return parse_quantity(text or "", "force", what="--force").si()
+    except QuantityTextError as exc:
+        raise UsageError(str(exc)) from None
 
 
 def parse_length_arg(option: str, text: str | None) -> float | None:
-    from modelcheck.design.stock import metres, parse_length
+    from modelcheck.units import QuantityTextError, parse_quantity
 
     if text is None:
         return None
     try:
-        value, unit = parse_length(text, option)
-    except ValueError as exc:
+        return parse_quantity(text, "length", what=option).si()
+    except QuantityTextError as exc:
         raise UsageError(str(exc)) from None
-    return metres(value, unit)
 
 
 def cmd_size(args: argparse.Namespace) -> int:

@@ -49,7 +49,7 @@ import pint
 from modelcheck.data import data_path
 from modelcheck.errors import RuleSetError
 from modelcheck.threads import INCH, thread_series
-from modelcheck.units import NUMBER_PATTERN, Q_, parse_number, ureg
+from modelcheck.units import Q_, QuantityTextError, parse_quantity, parse_unit
 
 #: columns of a candidate table
 CANDIDATE_COLUMNS: tuple[str, ...] = (
@@ -62,7 +62,6 @@ GEOMETRY_COLUMNS: tuple[str, ...] = ("area", "r_min", "d", "h", "b", "tf", "tw",
 SERIES_KEYS: tuple[str, ...] = ("about", "round", "square", "flat_thickness", "flat_width", "threads", "shapes")
 THREAD_SERIES = ("UNC", "ISO coarse")
 
-_LENGTH_RE = re.compile(rf"\s*({NUMBER_PATTERN})\s*(?:\[(.+)\]|(.*?))\s*\Z")
 _HEADER_RE = re.compile(r"\s*([A-Za-z_]+)\s*(?:\[(.+)\])?\s*\Z")
 
 
@@ -71,30 +70,22 @@ _HEADER_RE = re.compile(r"\s*([A-Za-z_]+)\s*(?:\[(.+)\])?\s*\Z")
 
 
 def parse_length(text: str, what: str = "length") -> tuple[Fraction, str]:
-    """'1 1/2 in' -> (3/2, 'in'); '20 mm' -> (20, 'mm'). Raises ValueError naming ``what``."""
-    m = _LENGTH_RE.match(str(text))
-    unit = (m.group(2) if m and m.group(2) is not None else (m.group(3) if m else "")) or ""
-    if not m or not unit.strip():
-        raise ValueError(f"{what} {text!r} needs a number and a length unit, e.g. \"3/4 in\" or \"20 mm\"")
+    """'1 1/2 in' -> (3/2, 'in'); '20 mm' -> (20, 'mm'), read by
+    :func:`modelcheck.units.parse_quantity`. Raises ValueError naming ``what``."""
     try:
-        u = ureg.parse_units(unit.strip())
-    except (pint.PintError, ValueError, AttributeError, TypeError, ArithmeticError) as exc:
-        raise ValueError(f"{what} {text!r}: {unit.strip()!r} is not a unit ({exc})") from None
-    if u.dimensionality != ureg.Unit("m").dimensionality:
-        raise ValueError(f"{what} {text!r}: {unit.strip()!r} is not a unit of length")
+        q = parse_quantity(str(text), "length", what=what)
+    except QuantityTextError as exc:
+        raise ValueError(str(exc)) from None
+    value = q.number
     try:
-        value = parse_number(m.group(1))
-    except (ValueError, ZeroDivisionError):
-        raise ValueError(f"{what} {text!r}: {m.group(1)!r} is not a number") from None
-    try:
-        size = metres(value, unit.strip())
+        size = metres(value, q.unit)
     except ValueError:
         raise ValueError(f"{what} {text!r} is no finite length a double can hold") from None
     if value != 0 and size == 0:
         raise ValueError(f"{what} {text!r} is too small for a double to hold")
     if size > MAX_STOCK_SIZE:
         raise ValueError(f"{what} {text!r} is longer than {MAX_STOCK_SIZE:g} m, not a size of stock")
-    return value, unit.strip()
+    return value, q.unit
 
 
 #: no size of bar, rod or section is longer than this (m): a limit far beyond any real one
@@ -374,7 +365,7 @@ def _load_shapes(name: str, _stamp: tuple[int, int]) -> pd.DataFrame:
         if unit:
             target = "m**2" if col == "A" else "m"
             try:
-                q = Q_(1.0, unit)
+                q = Q_(1.0, parse_unit(unit))
                 factors[i] = (col, float(q.to(target).magnitude))
             except (pint.PintError, ValueError, AttributeError, TypeError) as exc:
                 raise RuleSetError(f"column {h!r}: {unit!r} is not a unit of {'area' if col == 'A' else 'length'} "

@@ -37,7 +37,15 @@ from modelcheck.ifc.index import ModelIndex
 from modelcheck.loads.messages import MessageLog
 from modelcheck.loads.tables import DEFAULT_LOAD_CASE, VALUE_RE, ForceUnitError, force_unit_factor
 from modelcheck.table import FORCE_COLUMNS, empty_forces
-from modelcheck.units import MissingUnit, UnitDefinitionError, UnusableUnit, unit_label, unit_quantity, ureg
+from modelcheck.units import (
+    MissingUnit,
+    UnitDefinitionError,
+    UnusableUnit,
+    parse_number,
+    unit_label,
+    unit_quantity,
+    ureg,
+)
 
 _NUMBER_UNIT = re.compile(VALUE_RE)   # a number and its unit, as a load table's cell is read
 _TEXT_MEASURES = frozenset({"IfcLabel", "IfcText", "IfcIdentifier"})
@@ -259,6 +267,9 @@ def _read_text(text: str) -> _Reading:
         return _Reading(problem=f"is the text {text!r}: a number with no unit")
     try:
         factor = force_unit_factor(m.group("unit"))
+        number = float(parse_number(m.group("num")))
     except ForceUnitError as exc:
         return _Reading(problem=f"is the text {text!r}: {exc}")
-    return _Reading(raw=float(m.group("num")) * factor, unit_key="N", unit_label=m.group("unit"))
+    except (ZeroDivisionError, OverflowError):
+        return _Reading(problem=f"is the text {text!r}: not a finite number")
+    return _Reading(raw=number * factor, unit_key="N", unit_label=m.group("unit"))

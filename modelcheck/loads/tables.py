@@ -47,7 +47,6 @@ import io
 import math
 import os
 import re
-import tokenize
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -55,11 +54,10 @@ from typing import Any
 
 import numpy as np
 import pandas as pd
-import pint
 
 from modelcheck.errors import LoadTableError
 from modelcheck.files import input_file
-from modelcheck.units import Q_, ureg
+from modelcheck.units import VALUE_PATTERN, QuantityTextError, parse_number, unit_factor
 
 #: columns of the table ``read_load_table`` returns
 LOAD_TABLE_COLUMNS: tuple[str, ...] = ("key_kind", "key", "load_case", "axial_force", "source")
@@ -67,14 +65,12 @@ LOAD_TABLE_COLUMNS: tuple[str, ...] = ("key_kind", "key", "load_case", "axial_fo
 #: load case given to every row of a table that has no ``load_case`` column
 DEFAULT_LOAD_CASE = "default"
 
-#: exporter spellings that pint (case-sensitive) does not know, read as the unit on the right
-UNIT_ALIASES: dict[str, str] = {"KN": "kN", "KIP": "kip", "KIPS": "kip", "LBF": "lbf"}
 
 _CANONICAL = {"globalid": "global_id", "tag": "tag", "axialforce": "axial_force", "loadcase": "load_case"}
 _HEADER_SEARCH_ROWS = 20
 _HEADER_RE = re.compile(r"^\s*(?P<name>[^\[\(]*?)\s*(?:\[(?P<u1>[^\]]*)\]|\((?P<u2>[^\)]*)\))?\s*$")
-#: a number and the unit after it, as a cell or a property's text gives them
-VALUE_RE = r"^\s*(?P<num>[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*(?P<unit>\S.*?)?\s*$"
+#: a number and the unit after it, as a cell or a property's text gives them (modelcheck.units)
+VALUE_RE = VALUE_PATTERN
 _CONTROL_RE = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")
 _OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
 _ZIP_MAGIC = b"PK\x03\x04"
@@ -93,23 +89,11 @@ def force_unit_factor(text: str) -> float:
     t = text.strip()
     if not t:
         raise ForceUnitError("no unit")
-    name = UNIT_ALIASES.get(t, t)
-    try:
-        q = Q_(1.0, ureg.Unit(name))
-    except ArithmeticError:   # 'N/0': pint divides while it parses
-        raise ForceUnitError(f"unit {t!r} divides by zero") from None
-    except (pint.PintError, ValueError, TypeError, AttributeError, SyntaxError, tokenize.TokenError):
-        raise ForceUnitError(f"unit {t!r} is not a unit modelcheck knows") from None
-    if q.dimensionality != ureg.newton.dimensionality:
-        hint = " (pound-force is 'lbf')" if q.dimensionality == ureg.pound.dimensionality else ""
-        raise ForceUnitError(f"unit {t!r} is not a force, it is {q.dimensionality}{hint}")
-    try:
-        factor = float(q.to(ureg.newton).magnitude)
-    except ArithmeticError:
-        raise ForceUnitError(f"unit {t!r} has no usable size") from None
-    if not math.isfinite(factor) or factor <= 0:
-        raise ForceUnitError(f"unit {t!r} has no usable size")
-    return factor
+    try:   # the project's one unit reader: 'KN', 'KIP' and the trade's spellings too
+        return unit_factor(t, "force")
+    except QuantityTextError as exc:
+        text_ = str(exc)
+        raise ForceUnitError(text_ if text_.startswith("unit ") else f"unit {text_}") from None
 
 
 @dataclass(frozen=True)
@@ -475,9 +459,27 @@ def _forces_si(raw: pd.Series, header: _Header, name: str, where: Callable[[int]
             first = raw.iloc[int(np.argmax(codes == k))]
             why = _why_not_number(first, None) if re.match(r"^,\d", u) else str(exc)
             raise _row_error(name, where, rows, codes == k, why, value=first) from None
-    numbers = parts["num"].astype(float).to_numpy()
+    numbers = _numbers(parts["num"], raw, name, where, rows)
     _check_finite(numbers, raw, name, where, rows)
     return numbers * factors[codes]
+
+
+def _numbers(text: pd.Series, raw: pd.Series, name: str, where: Callable[[int], str], rows: np.ndarray) -> np.ndarray:
+    """The numbers of a column of number texts: decimals at once, fractions ('3/8', '1 1/2')
+    each as modelcheck.units.parse_number reads them."""
+    frac = text.str.contains("/", regex=False).to_numpy(dtype=bool)
+    if not frac.any():
+        return text.astype(float).to_numpy()
+    numbers = np.empty(len(text), dtype=float)
+    numbers[~frac] = text[~frac].astype(float).to_numpy()
+    for i in np.flatnonzero(frac).tolist():
+        try:
+            numbers[i] = float(parse_number(text.iloc[i]))
+        except (ZeroDivisionError, OverflowError):
+            bad = np.zeros(len(text), dtype=bool)
+            bad[i] = True
+            raise _row_error(name, where, rows, bad, "division by zero", value=raw.iloc[i]) from None
+    return numbers
 
 
 def _check_finite(numbers: np.ndarray, raw: pd.Series, name: str, where: Callable[[int], str], rows: np.ndarray) -> None:

@@ -44,7 +44,7 @@ import pandas as pd
 import pint
 
 from modelcheck.errors import RuleSetError
-from modelcheck.units import Q_, ureg
+from modelcheck.units import Q_, QuantityTextError, parse_unit, ureg
 
 MAX_LENGTH = 2000          # characters of one expression
 MAX_DEPTH = 32             # nesting depth of the syntax tree
@@ -187,9 +187,10 @@ def unit_literal(number: str, unit_text: str) -> pint.Quantity:
     if len(unit_text) > MAX_UNIT_TEXT or not _UNIT_CHARS_RE.match(unit_text) or "__" in unit_text:
         raise ExpressionError(f"'[{unit_text}]' is not a unit")
     try:
-        unit = ureg.parse_units(unit_text)
-    except Exception as exc:  # pint raises many types (incl. AssertionError) for odd text
-        raise ExpressionError(f"'[{unit_text}]' is not a unit pint knows ({exc})") from exc
+        unit = parse_unit(unit_text)
+    except QuantityTextError as exc:
+        why = "divides by zero" if "divides by zero" in str(exc) else "is not a unit pint knows"
+        raise ExpressionError(f"'[{unit_text}]' {why}") from None
     return checked_quantity(float(number), unit, f"{number} [{unit_text}]")
 
 

@@ -41,7 +41,7 @@ from modelcheck.rules.expr import (
 )
 from modelcheck.rules.names import MEMBER_QUANTITIES, MESSAGE_NAMES, RESERVED, TEXT_NAMES
 from modelcheck.rules.select import SELECTOR_KEYS, Selector, ifc_class_name
-from modelcheck.units import NUMBER_PATTERN, Q_, parse_number, ureg
+from modelcheck.units import Q_, QuantityTextError, normalise_unit, parse_unit, split_quantity, ureg
 
 # ---------------------------------------------------------------------------------------------
 # display units
@@ -85,7 +85,6 @@ CHECK_KEYS = ("id", "title", "clause", "select", "when", "demand", "capacity", "
 _ID_RE = re.compile(r"[A-Za-z][A-Za-z0-9_.-]{0,63}\Z")
 _NAME_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]{0,63}\Z")
 _SPEC_RE = re.compile(r"[<>^=+\- #0-9,._%eEfFgGn]{0,16}\Z")
-_PARAM_RE = re.compile(rf"\s*({NUMBER_PATTERN})\s*(?:\[(.*)\]|(.*?))\s*\Z")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -401,21 +400,14 @@ def _parse_parameter(name: str, raw: Any) -> tuple[pint.Quantity, str, str]:
         raise ExpressionError(f"a parameter is a number or a text like \"0.25 in\", not {type(raw).__name__}")
     if isinstance(raw, (int, float)):
         return checked_quantity(float(raw), ureg.Unit(""), str(raw)), str(raw), about
-    m = _PARAM_RE.match(raw)
-    if not m:
-        raise ExpressionError(f"{raw!r} is not a number with a unit, like \"0.25 in\" or \"25 mm\"")
-    text = m.group(1)
-    try:   # a fraction ('3/8', '1 1/2') exactly; a decimal as written (its range is checked below)
-        number = float(parse_number(text)) if "/" in text else float(text)
-    except ZeroDivisionError:
-        raise ExpressionError(f"{raw!r}: division by zero") from None
-    except OverflowError:
-        raise ExpressionError(f"{raw!r}: the number is too large") from None
-    unit_text = (m.group(2) if m.group(2) is not None else m.group(3) or "").strip()
+    try:   # the one reading of a number with a unit: '3/8 in', '1 1/2 in', '25 [mm]', '355 N/mm2'
+        number, unit_text = split_quantity(raw, what="", example='"0.25 in" or "25 mm"')
+    except QuantityTextError as exc:
+        raise ExpressionError(str(exc).strip()) from None
     if unit_text:
-        value = unit_literal(repr(number), unit_text)
+        value = unit_literal(repr(float(number)), unit_text)   # read by units.parse_unit
     else:
-        value = checked_quantity(number, ureg.Unit(""), raw)
+        value = checked_quantity(float(number), ureg.Unit(""), raw)
     return value, raw, about
 
 
@@ -603,12 +595,14 @@ def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetErr
         try:
             if not isinstance(v, str):
                 raise ExpressionError("a display unit is a text like \"ksi\"")
-            unit = ureg.parse_units(v) if v.strip() else ureg.Unit("")
+            unit = parse_unit(v) if v.strip() else ureg.Unit("")
             if unit.dimensionality != _DIMENSIONALITY[k]:
                 raise ExpressionError(f"{v!r} is not a unit of {k.replace('_', ' ')}")
-            display[k] = v.strip()
+            display[k] = normalise_unit(v)
         except ExpressionError as exc:
             errors.add(("display", k), str(exc))
+        except QuantityTextError as exc:
+            errors.add(("display", k), f"unit {exc}")
         except Exception as exc:  # pint raises many types for odd unit text
             errors.add(("display", k), f"{v!r} is not a unit pint knows ({exc})")
 
@@ -800,11 +794,14 @@ def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetErr
             ok = False
         if isinstance(raw.get("unit"), str):
             try:
-                u = ureg.parse_units(raw["unit"]) if raw["unit"].strip() else ureg.Unit("")
+                u = parse_unit(raw["unit"]) if raw["unit"].strip() else ureg.Unit("")
                 if u.dimensionality != dval.dimensionality:
                     errors.add(base + ("unit",), f"unit {raw['unit']!r} does not fit {describe(dval)}", label)
                     ok = False
-                unit = raw["unit"].strip()
+                unit = normalise_unit(raw["unit"])
+            except QuantityTextError as exc:
+                errors.add(base + ("unit",), f"unit {exc}", label)
+                ok = False
             except Exception as exc:  # pint raises many types for odd unit text
                 errors.add(base + ("unit",), f"{raw['unit']!r} is not a unit pint knows ({exc})", label)
                 ok = False
