@@ -50,7 +50,8 @@ def build_parser() -> argparse.ArgumentParser:
     m.add_argument("--units", choices=("model", "SI", "US"), default="model",
                    help="display units (default: the model's own system)")
     m.add_argument("--capacity", action="store_true",
-                   help="add each member's allowable tension and compression force (needs --rules)")
+                   help="add each member's allowable tension and compression force under the rule set "
+                        "of --rules")
     m.add_argument("--rules", metavar="RULESET", default="steel-asd-us",
                    help="rule set for --capacity (shipped name or file; default steel-asd-us)")
     add_force_args(m)
@@ -85,9 +86,19 @@ def build_parser() -> argparse.ArgumentParser:
     c.add_argument("--no-config", action="store_true", help="ignore modelcheck.toml / [tool.modelcheck]")
     add_force_args(c)
 
-    r = sub.add_parser("rules", help="list, show or validate rule sets")
-    r.add_argument("action", nargs="?", choices=("list", "show", "validate"), default="list")
-    r.add_argument("target", nargs="?", metavar="NAME_OR_FILE")
+    r = sub.add_parser(
+        "rules", help="list, show or validate rule sets", formatter_class=argparse.RawDescriptionHelpFormatter,
+        description="What a rule set holds, and whether a file is one.\n\n"
+                    "  modelcheck rules list             the shipped rule sets, with their basis\n"
+                    "  modelcheck rules show NAME|FILE   parameters, definitions and checks of one rule set\n"
+                    "  modelcheck rules validate FILE    every error in a rule file, each with its line;\n"
+                    "                                    exit 0 when it is valid, 2 when not\n\n"
+                    "Each shipped rule set (modelcheck/rulesets/*.toml) opens with the notes that explain\n"
+                    "how a rule set is written.")
+    r.add_argument("action", nargs="?", choices=("list", "show", "validate"), default="list",
+                   help="list (the default), show or validate")
+    r.add_argument("target", nargs="?", metavar="NAME_OR_FILE",
+                   help="a shipped rule-set name or a .toml file (for show and validate)")
 
     from modelcheck.design.cli_size import add_size_parser
 

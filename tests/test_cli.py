@@ -343,3 +343,12 @@ def test_json_only_rows_are_the_rows_of_the_full_results_table(tmp_path: Path):
     assert {r["status"] for r in parsed} == {"pass", "fail", "unchecked"}
     assert any(r["suggestion"] for r in parsed) and any(r["missing"] for r in parsed)
     assert any(r["load_case"] is None for r in parsed) or len({r["load_case"] for r in parsed}) > 1
+
+
+def test_help_describes_rules_subcommands_and_capacity():
+    out = run("rules", "--help").stdout
+    for action in ("rules list", "rules show", "rules validate"):
+        assert action in out
+    members = " ".join(run("members", "--help").stdout.split())
+    assert "needs --rules" not in members
+    assert "under the rule set of --rules" in members

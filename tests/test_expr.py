@@ -247,3 +247,36 @@ def test_random_text_raises_only_project_errors(text: str) -> None:
     except ModelcheckError:
         return
     assert isinstance(value, (pint.Quantity, Cond, Text)) or value is not None
+
+
+@pytest.mark.parametrize(("text", "hint"), [
+    # the rule language's own words for what an engineer meant (common practice of hand calculation)
+    ("0.33 Fu", "write a product with `*`: `0.33 * Fu`"),
+    ("0.33Fu", "write a product with `*`: `0.33 * Fu`"),
+    ("Fy / 1.67 Omega", "write a product with `*`: `1.67 * Omega`"),
+    ("3 mm", "a number with a unit takes brackets: `3 [mm]`"),
+    ("25mm", "a number with a unit takes brackets: `25 [mm]`"),
+    ("name = 'HR*'", "compare with `==`: `name == 'HR*'`, or match a pattern with `matches(name, 'HR*')`"),
+    ("shape = \"I\"", "compare with `==`: `shape == \"I\"`"),
+    ("P > 0 && L > 1", "write `and` and `or`"),
+])
+def test_syntax_errors_are_told_in_the_rule_language(text: str, hint: str) -> None:
+    known = {"Fu", "Fy", "Omega", "name", "shape", "P", "L"}
+    with pytest.raises(ExpressionError) as info:
+        parse_expression(text, known)
+    message = str(info.value)
+    assert hint in message
+    for python in ("comma", ":=", "invalid syntax", "decimal literal"):
+        assert python not in message
+
+
+def test_rule_file_errors_speak_the_rule_language(tmp_path) -> None:
+    from modelcheck.rules.ruleset import validate_ruleset_file
+
+    path = tmp_path / "r.toml"
+    path.write_text('[ruleset]\nname = "r"\nbasis = "test"\nunits = "SI"\n'
+                    '[[check]]\nid = "a"\ndemand = "P / A"\ncapacity = "0.33 Fu"\n'
+                    '[[check]]\nid = "b"\nwhen = "name = \'HR*\'"\ndemand = "d"\ncapacity = "3 mm"\n',
+                    encoding="utf-8")
+    text = "\n".join(str(e) for e in validate_ruleset_file(str(path)))
+    assert "`0.33 * Fu`" in text and "`3 [mm]`" in text and "`matches(name, 'HR*')`" in text

@@ -420,6 +420,9 @@ def parse_expression(text: str, known_names: Collection[str] | None = None) -> E
             warnings.simplefilter("ignore")   # e.g. invalid escape sequences in a text
             tree = ast.parse("(" + processed.strip() + "\n)", mode="eval")
     except SyntaxError as exc:
+        hint = rule_language_hint(source, known_names)
+        if hint is not None:
+            raise ExpressionError(f"{_quoted(source)}: {hint}") from None
         raise ExpressionError(f"{_quoted(source)} is not a valid expression: {exc.msg}") from None
     except (ValueError, RecursionError, MemoryError, OverflowError) as exc:
         raise ExpressionError(f"{_quoted(source)} cannot be parsed: {type(exc).__name__}") from None
@@ -430,6 +433,56 @@ def parse_expression(text: str, known_names: Collection[str] | None = None) -> E
             raise ExpressionError(unknown_name_message(unknown[0], known_names))
     return Expression(source=source, tree=tree, names=frozenset(names), known_names=frozenset(known),
                       literals=MappingProxyType(literals))
+
+
+_TEXT_RE = re.compile(r"'[^']*'|\"[^\"]*\"")
+_BRACKET_RE = re.compile(r"\[[^\]]*\]")
+#: a number (or a bracketed unit) written straight before a name: '0.33 Fu', '3 mm', '2Fu'
+_JUXTAPOSED_RE = re.compile(r"(?<![\w.])((?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?(?:\s*\[[^\]]*\])?)\s*([A-Za-z_]\w*)")
+_KEYWORDS = frozenset({"and", "or", "not", "if", "else", "in", "is"})
+#: a single '=' (not part of ==, <=, >=, !=), with what stands either side
+_ASSIGN_RE = re.compile(r"([\w.]+)\s*(?<![=<>!])=(?!=)\s*('[^']*'|\"[^\"]*\"|[^\s)]+)?")
+
+
+def rule_language_hint(source: str, known_names: Collection[str] | None = None) -> str | None:
+    """What an engineer most likely meant by an expression that does not parse, in the rule
+    language's own words; None when nothing familiar is found.
+
+    >>> rule_language_hint("0.33 Fu", {"Fu"})
+    'write a product with `*`: `0.33 * Fu`'
+    >>> rule_language_hint("3 mm")
+    'a number with a unit takes brackets: `3 [mm]`'
+    """
+    # quoted texts are blanked (same length), so nothing inside them is taken for code
+    masked = _TEXT_RE.sub(lambda m: m.group(0)[0] + " " * (len(m.group(0)) - 2) + m.group(0)[-1], source)
+    assign = _ASSIGN_RE.search(masked)
+    if assign is not None:
+        left = assign.group(1)
+        right = source[assign.start(2):assign.end(2)] if assign.group(2) else "..."
+        if right[:1] in ("'", '"'):
+            return (f"compare with `==`: `{left} == {right}`, or match a pattern with "
+                    f"`matches({left}, {right})`")
+        return f"compare with `==`: `{left} == {right}`"
+    if "&&" in masked or "||" in masked:
+        return "write `and` and `or` for && and ||"
+    unmasked = _BRACKET_RE.sub(lambda m: "[" + " " * (len(m.group(0)) - 2) + "]", masked)
+    for m in _JUXTAPOSED_RE.finditer(unmasked):
+        number = source[m.start(1):m.end(1)]
+        name = m.group(2)
+        if name in _KEYWORDS:
+            continue
+        if (known_names is None or name not in known_names) and "[" not in number and _is_unit(name):
+            return f"a number with a unit takes brackets: `{number} [{name}]`"
+        return f"write a product with `*`: `{number} * {name}`"
+    return None
+
+
+def _is_unit(text: str) -> bool:
+    try:
+        parse_unit(text)
+    except QuantityTextError:
+        return False
+    return True
 
 
 def unknown_name_message(name: str, known_names: Collection[str]) -> str:
