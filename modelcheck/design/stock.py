@@ -62,7 +62,7 @@ GEOMETRY_COLUMNS: tuple[str, ...] = ("area", "r_min", "d", "h", "b", "tf", "tw",
 SERIES_KEYS: tuple[str, ...] = ("about", "round", "square", "flat_thickness", "flat_width", "threads", "shapes")
 THREAD_SERIES = ("UNC", "ISO coarse")
 
-_HEADER_RE = re.compile(r"\s*([A-Za-z_]+)\s*(?:\[(.+)\])?\s*\Z")
+_HEADER_RE = re.compile(r"\s*([A-Za-z_][A-Za-z_0-9]*)\s*(?:\[(.+)\])?\s*\Z")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -363,12 +363,12 @@ def _load_shapes(name: str, _stamp: tuple[int, int]) -> pd.DataFrame:
         col, unit = m.group(1), m.group(2)
         names[i] = col
         if unit:
-            target = "m**2" if col == "A" else "m"
+            target = "m**2" if col in ("A", "A_pub") else "m"
             try:
                 q = Q_(1.0, parse_unit(unit))
                 factors[i] = (col, float(q.to(target).magnitude))
             except (pint.PintError, ValueError, AttributeError, TypeError) as exc:
-                raise RuleSetError(f"column {h!r}: {unit!r} is not a unit of {'area' if col == 'A' else 'length'} "
+                raise RuleSetError(f"column {h!r}: {unit!r} is not a unit of {'area' if target == 'm**2' else 'length'} "
                                    f"({exc})", path=str(path), where=str(lines[0][0])) from None
     required = {"family", "designation", "shape", "A", "r_min", "source"}
     missing = required - set(names.values())
