@@ -131,3 +131,18 @@ def test_computed_rows_agree_with_sectionproperties(name: str, designation: str)
     # sectionproperties draws arcs as chords (n_r per quarter): agreement to 0.2 % (sectionproperties)
     assert ca == pytest.approx(a, rel=2e-3)
     assert cr == pytest.approx(rmin, rel=2e-3)
+
+
+@pytest.mark.parametrize("ruleset", ["steel-asd-us", "steel-ec3"])
+def test_every_stock_bar_is_what_the_profile_functions_give(ruleset: str) -> None:
+    # stock bars (rulesets/stock.toml) are computed in closed form (A = π d²/4, r = d/4; A = w t,
+    # r = t/√12): the same as the exact profile functions give for their nominal sizes
+    from modelcheck.rules.ruleset import load_ruleset
+
+    series = stock.stock_series(load_ruleset(ruleset))
+    for table in (stock.round_bars(series), stock.square_bars(series), stock.flat_bars(series)):
+        for rec in table.to_dict("records"):
+            dims = {c: (None if math.isnan(rec[c]) else rec[c]) for c in ("d", "h", "b")}
+            a, r = row_properties(rec["shape"], dims)
+            assert rec["area"] == pytest.approx(a, rel=1e-12), rec["designation"]
+            assert rec["r_min"] == pytest.approx(r, rel=1e-12), rec["designation"]

@@ -113,7 +113,14 @@ def _profile(f: Any, shape: str, dims: Mapping[str, float | None]) -> Any:
     if shape == "round-tube":
         d, t = need("d", "t")
         return f.createIfcCircleHollowProfileDef("AREA", None, None, d / 2, t)
-    raise ValueError(f"shape {shape!r} has no profile function here (I, L, rect-tube, round-tube)")
+    if shape == "round-bar":
+        (d,) = need("d")
+        return f.createIfcCircleProfileDef("AREA", None, None, d / 2)
+    if shape in ("square-bar", "flat-bar"):
+        h, b = need("h", "b")
+        return f.createIfcRectangleProfileDef("AREA", None, None, b, h)
+    raise ValueError(f"shape {shape!r} has no profile function here "
+                     "(I, L, rect-tube, round-tube, round-bar, square-bar, flat-bar)")
 
 
 def row_properties(shape: str, dims: Mapping[str, float | None], f: Any = None) -> tuple[float, float]:
