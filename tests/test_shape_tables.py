@@ -10,8 +10,7 @@ from functools import cache
 
 import pytest
 
-from modelcheck.design import stock
-from modelcheck.design import shape_tables
+from modelcheck.design import shape_tables, stock
 from modelcheck.design.shape_tables import TABLES, read_table, row_properties
 
 computed_properties = cache(shape_tables.computed_properties)   # each table computed once per run
