@@ -286,6 +286,11 @@ def test_shear_lag_factor_from_the_model_and_a_bad_one_refused(tmp_path):
     assert math.isclose(res[("T1", "tension-rupture")]["ratio"], (30 / 1.2) / 29.0, rel_tol=1e-4)
     # U = 1.5 is no ratio <= 1: not used, warned; a flat bar then needs U: unchecked, never passed
     assert res[("T2", "tension-rupture")]["status"] == "unchecked"
+    members = json.loads(run("members", str(p), "--format", "json").stdout)["models"][0]["members"]
+    by_tag = {m["tag"]: m for m in members}
+    assert by_tag["T1"]["section"]["shear_lag_factor"]["value"] == 0.8
+    assert by_tag["T2"]["section"]["shear_lag_factor"] is None
+    assert any("ShearLagFactor" in w for w in by_tag["T2"]["warnings"])
 
 
 def test_results_encoded_in_chunks_are_the_rows_encoded_at_once():

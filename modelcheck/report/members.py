@@ -22,6 +22,13 @@ def _s(v: Any) -> Any:
     return v
 
 
+def _ratio(value: Any, source: Any) -> dict[str, Any] | None:
+    """A plain number (no unit) as a JSON quantity, or None where the model holds none."""
+    if value is None or not math.isfinite(float(value)):
+        return None
+    return {"value": float(f"{float(value):.6g}"), "unit": "", "source": str(source or "")}
+
+
 def member_dicts(members: pd.DataFrame, forces: pd.DataFrame | None, units: DisplayUnits,
                  capacity: pd.DataFrame | None = None) -> list[dict[str, Any]]:
     """Members as dicts of the JSON contract (README: 'members JSON')."""
@@ -56,7 +63,8 @@ def member_dicts(members: pd.DataFrame, forces: pd.DataFrame | None, units: Disp
                         "shape": _s(rec["shape"]),
                         "area": q("area", rec["area"], rec["area_source"]),
                         "r_min": q("r_min", rec["r_min"], rec["r_min_source"]),
-                        "net_area": q("area", rec.get("net_area", math.nan), rec.get("net_area_source"))},
+                        "net_area": q("area", rec.get("net_area", math.nan), rec.get("net_area_source")),
+                        "shear_lag_factor": _ratio(rec.get("shear_lag", math.nan), rec.get("shear_lag_source"))},
             "length": q("length", rec["length"], rec["length_source"]),
             "material": material,
             "axial_force": force_map.get(rec["global_id"], {}),
