@@ -422,7 +422,7 @@ def parse_expression(text: str, known_names: Collection[str] | None = None) -> E
     except SyntaxError as exc:
         hint = rule_language_hint(source, known_names)
         if hint is not None:
-            raise ExpressionError(f"{_quoted(source)}: {hint}") from None
+            raise ExpressionError(f"{_quoted(source)} is not a valid expression: {hint}") from None
         raise ExpressionError(f"{_quoted(source)} is not a valid expression: {exc.msg}") from None
     except (ValueError, RecursionError, MemoryError, OverflowError) as exc:
         raise ExpressionError(f"{_quoted(source)} cannot be parsed: {type(exc).__name__}") from None
