@@ -214,3 +214,15 @@ def test_bisection_and_every_size_suggest_the_same(name: str, monkeypatch: pytes
     halved = by_member(suggest(rs, d.members, d.forces, res))
     assert every == halved
     assert any(s and s["family"].startswith(("threaded", "round", "square")) for s in every.values())
+
+
+def test_a_long_round_bar_in_tension_is_sized_for_its_stress_not_l_over_r(search: str) -> None:
+    # 3 kip on a 3/8 in A36 bar 20 ft long: AISC 360-16 D2(a) needs A >= 3 x 1.67 / 36 = 0.139 in²
+    # -> 7/16 in (1/16 in stock steps, common practice); no L/r limit for a bar in tension (D1 user note)
+    rs = load_ruleset("steel-asd-us")
+    d = 0.375 * IN
+    m = members(a36(shape="round-bar", name="Tie", d=d, area=math.pi / 4 * d**2, r_min=d / 4, length=240 * IN))
+    f = forces(("G0", "LC", 3 * KIP))
+    out = suggest(rs, m, f, run_checks(rs, m, f))
+    assert 3.0 / (math.pi / 4 * 0.375**2) > 36 / 1.67          # 3/8 in fails D2(a): 27.2 > 21.6 ksi
+    assert by_member(out)["G0"]["designation"] == "round bar 7/16 in"
