@@ -25,6 +25,7 @@ Example::
 from __future__ import annotations
 
 import csv
+import io
 import re
 import sys
 from collections.abc import Mapping
@@ -180,19 +181,10 @@ def refresh(name: str) -> str:
         rec = next(csv.reader([lines[row.line - 1]]))
         a, r = props[row.values["designation"]]
         rec[ia], rec[ir] = four_figures(a), four_figures(r)
-        buf = _CsvLine()
+        buf = io.StringIO()
         csv.writer(buf, lineterminator="").writerow(rec)
-        lines[row.line - 1] = buf.text
+        lines[row.line - 1] = buf.getvalue()
     return "\n".join(lines) + "\n"
-
-
-class _CsvLine:
-    def __init__(self) -> None:
-        self.text = ""
-
-    def write(self, s: str) -> int:
-        self.text += s
-        return len(s)
 
 
 def main(argv: list[str] | None = None) -> int:
