@@ -1,8 +1,9 @@
 """Command line: arguments -> pipeline -> reporter, the guards on inputs and outputs, and the
 process set-up of the ``modelcheck`` command (``run``).
 
-Exit codes: 0 no failure; 1 at least one failing member (with --strict also any unchecked);
-2 a usage error or an input that could not be read (the other models are still reported).
+Exit codes: 0 no failure; 1 at least one failing member (with --strict also any unchecked), or
+a model whose members were found but none could be checked; 2 a usage error or an input that
+could not be read (the other models are still reported).
 """
 
 from __future__ import annotations
@@ -57,8 +58,15 @@ def build_parser() -> argparse.ArgumentParser:
     add_force_args(m)
 
     c = sub.add_parser("check", help="check members against a rule set",
+                       formatter_class=argparse.RawDescriptionHelpFormatter,
                        description="Options not given fall back to modelcheck.toml (or [tool.modelcheck] "
-                                   "in pyproject.toml) in the working directory.")
+                                   "in pyproject.toml) in the working directory.",
+                       epilog="exit codes:\n"
+                              "  0  no failing member\n"
+                              "  1  a failing member (with --strict also an unchecked one; with --fail-on new\n"
+                              "     only a new failure), or a model whose members were found but none\n"
+                              "     could be checked (nothing verified)\n"
+                              "  2  a usage error, or an input that could not be read")
     c.add_argument("models", nargs="*", metavar="MODEL_OR_FOLDER",
                    help="IFC files, folders (searched recursively) or glob patterns")
     c.add_argument("--rules", metavar="RULESET", default=None,
@@ -83,6 +91,11 @@ def build_parser() -> argparse.ArgumentParser:
     c.add_argument("--annotate", metavar="OUT.ifc", default=None,
                    help="write a copy of the model with an MC_CheckResult property set on each "
                         "checked member (a folder when checking several models)")
+    c.add_argument("--units", choices=("model", "SI", "US"), default=None,
+                   help="units of the results in every report (default: each model's own system)")
+    c.add_argument("--details", action="store_true", default=None,
+                   help="console: GlobalId, class, storey, section, material, demand and capacity of "
+                        f"each listed member at any width (shown from {_details_width()} columns on)")
     c.add_argument("--no-config", action="store_true", help="ignore modelcheck.toml / [tool.modelcheck]")
     add_force_args(c)
 
@@ -104,6 +117,12 @@ def build_parser() -> argparse.ArgumentParser:
 
     add_size_parser(sub)
     return p
+
+
+def _details_width() -> int:
+    from modelcheck.report.console import DETAILS_WIDTH
+
+    return DETAILS_WIDTH
 
 
 def run() -> None:
@@ -247,13 +266,10 @@ def force_options(args: argparse.Namespace, ruleset: Any = None, read_ahead: boo
 
 
 def report_console(stderr: bool = False, file: Any = None) -> Any:
-    """A rich console; 200 columns wide when not a terminal, so CI logs keep table rows whole."""
-    from rich.console import Console
+    """A rich console as wide as the terminal, else COLUMNS, else 100 columns."""
+    from modelcheck.report.console import make_console
 
-    con = Console(stderr=stderr, file=file)
-    if not con.is_terminal:
-        con = Console(stderr=stderr, file=file, width=200)
-    return con
+    return make_console(stderr=stderr, file=file)
 
 
 def expand_load_paths(items: list[str]) -> list[str]:
@@ -448,7 +464,7 @@ def merge_config(args: argparse.Namespace) -> argparse.Namespace:
     if not args.loads and "loads" in cfg:
         args.loads = list(cfg["loads"])
     for key in ("rules", "format", "output", "baseline", "fail_on", "strict", "jobs", "force_property",
-                "annotate", "validate", "scheduler", "analysis_frame"):
+                "annotate", "validate", "scheduler", "analysis_frame", "units", "details"):
         if getattr(args, key, None) is None and key in cfg:
             setattr(args, key, cfg[key])
             if key == "format":   # named here, where the file is known, not as if typed as --format
@@ -512,7 +528,7 @@ def cmd_check(args: argparse.Namespace) -> int:
     try:
         with stage("check models"):
             run = _run_with_progress(paths, ruleset, fopts, jobs, bool(args.validate), args.scheduler,
-                                     encode_json="json" in files, slim=only_json)
+                                     encode_json="json" in files, slim=only_json, units=args.units or "model")
     finally:
         if hasattr(fopts.tables, "close"):   # tables read ahead by a helper process
             fopts.tables.close()
@@ -545,7 +561,14 @@ def cmd_check(args: argparse.Namespace) -> int:
 
             comp_view = comparison_renderable(comparison)
         # console report on stdout unless a file format goes to stdout
-        render_check(run, report_console(stderr=bool(files) and not args.output), comparison=comp_view)
+        render_check(run, report_console(stderr=bool(files) and not args.output), comparison=comp_view,
+                     details=args.details)
+    else:   # file formats only: still one line per model, on stderr when a report goes to stdout
+        from modelcheck.report.console import summary_lines
+
+        con = report_console(stderr=not args.output)
+        for line in summary_lines(run):
+            con.print(line)
     for m in run.models:
         if m.error:
             print(f"modelcheck: error: {m.error}", file=sys.stderr)
@@ -553,20 +576,21 @@ def cmd_check(args: argparse.Namespace) -> int:
 
 
 def _run_with_progress(paths: list[str], ruleset: Any, fopts: Any, jobs: int, validate: bool,
-                       scheduler: str | None, encode_json: bool = False, slim: bool = False) -> Any:
+                       scheduler: str | None, encode_json: bool = False, slim: bool = False,
+                       units: str = "model") -> Any:
     """Run the batch; a rich progress bar on a terminal with several models, quiet otherwise."""
     from modelcheck.pipeline import run_check
 
     if len(paths) < 2 or not sys.stderr.isatty():
         return run_check(paths, ruleset, fopts, jobs=jobs, validate=validate, scheduler=scheduler,
-                         encode_json=encode_json, slim=slim)
+                         encode_json=encode_json, slim=slim, units=units)
     from rich.console import Console
     from rich.progress import Progress
 
     with Progress(transient=True, console=Console(stderr=True)) as bar:
         task = bar.add_task("checking models", total=len(paths))
         return run_check(paths, ruleset, fopts, jobs=jobs, validate=validate, scheduler=scheduler,
-                         progress=lambda: bar.advance(task), encode_json=encode_json, slim=slim)
+                         progress=lambda: bar.advance(task), encode_json=encode_json, slim=slim, units=units)
 
 
 def _write_format(fmt: str, run: Any, out: str | None, inputs: list[str], now: Any, comparison: Any,
@@ -631,6 +655,8 @@ def _annotate(run: Any, target: str, inputs: list[str]) -> None:
 def exit_code(run: Any, strict: bool, fail_on: str = "any", comparison: Any = None) -> int:
     if any(m.error for m in run.models):
         return EXIT_INPUT
+    if any(m.coverage is not None and m.coverage.verified_nothing for m in run.models):
+        return EXIT_FAIL   # members were found and not one could be checked: nothing was verified
     if fail_on == "new" and comparison is not None:
         from modelcheck.report.compare import new_problems
 

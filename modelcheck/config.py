@@ -20,6 +20,8 @@ Keys (all optional)::
     validate       = false                        # list schema violations as warnings
     scheduler      = "tcp://10.0.0.5:8786"        # run on this Dask cluster instead of locally
     analysis_frame = "local"                      # frame of analysis end forces: as-flagged, local, global
+    units          = "model"                      # results in the model's own system, "SI" or "US"
+    details        = false                        # the console's wide layout at any width
 
 Example ``modelcheck.toml`` for a CI job::
 
@@ -61,6 +63,8 @@ KEYS: dict[str, str] = {
     "validate": "bool",
     "scheduler": "str",
     "analysis_frame": "analysis_frame",
+    "units": "units",
+    "details": "bool",
 }
 _EXPECTED = {
     "list[str]": "a list of strings",
@@ -71,6 +75,7 @@ _EXPECTED = {
     "jobs": "an integer of at least 1",
     "force_property": 'a string "PSET.PROPERTY"',
     "analysis_frame": '"as-flagged", "local" or "global"',
+    "units": '"model", "SI" or "US"',
 }
 
 
@@ -116,6 +121,8 @@ def _check(kind: str, value: Any) -> Any:
         return ",".join(items) if all(items) else None
     if kind == "fail_on":
         return value if value in ("any", "new") else None
+    if kind == "units":
+        return value if value in ("model", "SI", "US") else None
     if kind == "bool":
         return value if isinstance(value, bool) else None
     if kind == "jobs":

@@ -20,8 +20,8 @@ from modelcheck.errors import UsageError
 
 def run_on_cluster(address: str, paths: Sequence[str], ruleset_ref: str, forces: Any, validate: bool,
                    *, timeout: float = 10.0, progress: Callable[[], None] | None = None,
-                   task: Callable[..., Any] | None = None) -> list[Any]:
-    """Run ``check_model(path, ruleset_ref, forces, validate)`` for every path on the cluster at
+                   task: Callable[..., Any] | None = None, units: str = "model") -> list[Any]:
+    """Run ``check_model(path, ruleset_ref, forces, validate, units=units)`` for every path on the cluster at
     ``address``; return the CheckedModel list in input order.
 
     A scheduler that cannot be reached within ``timeout`` seconds is a UsageError naming the
@@ -41,7 +41,7 @@ def run_on_cluster(address: str, paths: Sequence[str], ruleset_ref: str, forces:
         detail = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
         raise UsageError(f"cannot reach the Dask scheduler at {address}: {detail}") from None
     try:
-        futures = [client.submit(task, p, ruleset_ref, forces, validate, pure=False) for p in paths]
+        futures = [client.submit(task, p, ruleset_ref, forces, validate, units=units, pure=False) for p in paths]
         out = []
         for fut in futures:  # in input order; all run meanwhile on the cluster
             out.append(fut.result())

@@ -62,6 +62,7 @@ class _Shared:
     parts: list[list[int]]         # each part's members: positions in ``entities``, in file order
     gids: list[str]                # GlobalId of each entity (as the member table holds it)
     ruleset_ref: str
+    units: str                     # the system the results are shown in ("SI" or "US")
     forces: ForceOptions
     shared_tags: dict[str, tuple[str, ...]]
     analysis: pd.DataFrame | None  # forces of the analysis route, whole model
@@ -91,6 +92,7 @@ class _PartResult:
     matched_rows: set[str]
     member_count: int
     excluded: dict[str, list[str]] = field(default_factory=dict)   # left out by the rule set, by reason
+    coverage: Any = None           # the part's Coverage
 
 
 def _table_part(table: pd.DataFrame, part_starts: np.ndarray, k: int) -> pd.DataFrame:
@@ -186,8 +188,8 @@ def _run_part(k: int) -> _PartResult:
     n_parse = data.members.attrs.get("parse_problem_count", 0)
     # what the model-wide parts of the warnings were is rebuilt by the caller from the merged log
     warnings = [w for w in data.warnings[n_parse:]]
-    ruleset = load_ruleset(st.ruleset_ref)
-    from modelcheck.pipeline import evaluate_members
+    ruleset = load_ruleset(st.ruleset_ref).in_system(st.units)
+    from modelcheck.pipeline import coverage_of, evaluate_members
     from modelcheck.rules.select import excluded_members
 
     excluded = excluded_members(ruleset.select, data.members)
@@ -203,6 +205,7 @@ def _run_part(k: int) -> _PartResult:
                                               sink=sink)
         else:
             results, _ = evaluate_members(ruleset, data.members, data.forces)
+    coverage = coverage_of(ruleset, data.members, results)
     members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
     members["_pos"] = positions
     if st.slim:  # no report reads them
@@ -211,7 +214,7 @@ def _run_part(k: int) -> _PartResult:
     if report is not None and os.getpid() != st.parent_pid:
         report = replace(report, unmatched=())   # judged from matched_rows; not worth the pickling
     return _PartResult(None, members, results, rows, report, log, new_log, warnings, data.matched_rows,
-                       data.member_count, excluded)
+                       data.member_count, excluded, coverage)
 
 
 class _Forked:
@@ -357,7 +360,7 @@ def release_rows(chunks: list[bytes | int] | None) -> None:
 
 
 def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, parts: int, validate: bool = False,
-                      encode_json: bool = False, slim: bool = False) -> CheckedModel | None:
+                      encode_json: bool = False, slim: bool = False, units: str = "model") -> CheckedModel | None:
     """Check one model in ``parts`` processes; None when it is too small to share out (or this
     system cannot fork): the caller then checks it in one process as usual."""
     global _SHARED
@@ -387,7 +390,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
         if log:
             idx.parse_log.append(log)
         if not large:
-            return _in_one_process(data, idx, ruleset_ref, forces, validate, encode_json, slim)
+            return _in_one_process(data, idx, ruleset_ref, forces, validate, encode_json, slim, units)
     except ModelcheckError as exc:
         data.error = str(exc)
         return CheckedModel(data)
@@ -422,7 +425,10 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     with stage("load tables (helper)"):
         tables = tuple(forces.tables)   # read meanwhile by a helper (TablesReadAhead): received here
     row_files = {k: row_file(k) for k in range(len(bounds))} if encode_json else {}
-    _SHARED = _Shared(idx, entities, runs, gids, ruleset_ref,
+    from modelcheck.pipeline import display_system
+
+    data.units = display_system(units, data.system)
+    _SHARED = _Shared(idx, entities, runs, gids, ruleset_ref, data.units,
                       forces, shared_tags, analysis, encode_json, slim, len(idx.parse_log),
                       os.getpid(), _file_offsets(idx.file_fds), tables, part_starts, row_files)
     try:
@@ -458,19 +464,19 @@ def _run_parts(n: int) -> list[_PartResult]:
 
 
 def _in_one_process(data: ModelData, idx: Any, ruleset_ref: str, forces: ForceOptions, validate: bool,
-                    encode_json: bool, slim: bool) -> CheckedModel:
+                    encode_json: bool, slim: bool, units: str) -> CheckedModel:
     from modelcheck.pipeline import finish_check, read_into
 
     describe_model(data, idx, validate)
     read_into(data, idx, forces)
-    return finish_check(data, ruleset_ref, encode_json, slim)
+    return finish_check(data, ruleset_ref, encode_json, slim, units=units)
 
 
 def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: list[str],
            ruleset_ref: str) -> CheckedModel:
     """The parts' members, results, JSON rows and messages as one model's."""
     from modelcheck.loads.join import ForceReport
-    from modelcheck.pipeline import join_lines
+    from modelcheck.pipeline import join_lines, no_force_line
 
     for out in outs:
         idx.parse_log.extend(out.new_log)
@@ -495,6 +501,7 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
     data.warnings += exclusion_lines({k: sorted(v) for k, v in sorted(excluded.items())},
                                      load_ruleset(ruleset_ref).select)
     data.matched_rows = set().union(*(o.matched_rows for o in outs))
+    data.coverage = sum((o.coverage for o in outs[1:]), outs[0].coverage)
     log = outs[0].prop_log
     for o in outs[1:]:
         log.merge(o.prop_log)
@@ -513,6 +520,7 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
             messages=tuple(notes) + tuple(log.messages()) + tuple(analysis_msgs), used_by_route=used)
         data.force_report = report.to_dict(unmatched=False)
         data.force_messages = list(report.messages) + join_lines(report)
+        data.no_force_message = no_force_line(report)
     rows = None
     if all(o.json_rows is not None for o in outs):
         rows = [o.json_rows for o in outs if o.json_rows is not None]

@@ -31,6 +31,9 @@ class ModelData:
     schema: str | None = None
     error: str | None = None
     system: str = "SI"                       # display units natural to the model
+    units: str | None = None                 # the system its check results are shown in
+    coverage: Coverage | None = None         # how its members fared in the check
+    no_force_message: str | None = None      # the force_messages line naming members with no force
     members: pd.DataFrame | None = None
     member_count: int = 0
     forces: pd.DataFrame = field(default_factory=empty_forces)
@@ -173,6 +176,7 @@ def attach_forces(data: ModelData, idx: Any, opts: ForceOptions, *, analysis: An
     data.matched_rows = {s for t in opts.tables for s in t["source"] if s not in unmatched_here}
     data.force_report = report.to_dict(unmatched=False)  # unmatched: judged over all models
     data.force_messages = list(report.messages) + join_lines(report)
+    data.no_force_message = no_force_line(report)
     if prop_log is not None:
         data.report = report
 
@@ -193,10 +197,20 @@ def join_lines(report: Any) -> list[str]:
     if report.ambiguous:
         out.append(f"{len(report.ambiguous)} tag(s) match several members and were applied to none: "
                    f"{ids(report.ambiguous, 'tag')}")
-    if report.missing:
-        out.append(f"{len(report.missing)} member(s) have no axial force from any route: "
-                   f"{ids(report.missing, 'global_id')}")
+    missing = no_force_line(report)
+    if missing is not None:
+        out.append(missing)
     return out
+
+
+def no_force_line(report: Any) -> str | None:
+    """The line of :func:`join_lines` naming the members with no force from any route (None: none).
+    The console leaves it out: those members are in its unchecked list, with the reason."""
+    if not report.missing:
+        return None
+    vals = [str(x.global_id) for x in report.missing]
+    return (f"{len(vals)} member(s) have no axial force from any route: "
+            + ", ".join(vals[:10]) + (f" … (+{len(vals) - 10})" if len(vals) > 10 else ""))
 
 
 def validate_model(idx: Any) -> list[str]:
@@ -261,7 +275,7 @@ class CheckedModel:
 
 def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: bool = False,
                 encode_json: bool = False, parts: int = 1, slim: bool = False,
-                row_file: int | None = None) -> CheckedModel:
+                row_file: int | None = None, units: str = "model") -> CheckedModel:
     """Read one model, join its forces, run the rule set: the unit of work of a batch.
 
     ``encode_json`` also encodes the results as the JSON report's rows here, in the worker, so
@@ -270,27 +284,41 @@ def check_model(path: str, ruleset_ref: str, forces: ForceOptions, validate: boo
     ``encode_json``): the JSON rows are the only report wanted, so of the results table only the
     status column comes back (what the summary and the exit code read). ``row_file``: the
     descriptor of a file (a batch worker's: made by the parent before the workers started) the
-    rows go to instead of coming back as bytes."""
+    rows go to instead of coming back as bytes. ``units``: the system the results are shown in,
+    "SI", "US" or "model" (the model's own: :func:`ruleset_for`)."""
     if parts > 1:
         from modelcheck.parallel import check_model_split
 
         split = check_model_split(path, ruleset_ref, forces, parts=parts, validate=validate,
-                                  encode_json=encode_json, slim=slim)
+                                  encode_json=encode_json, slim=slim, units=units)
         if split is not None:
             return split
     data = read_model(path, forces, validate=validate)
-    return finish_check(data, ruleset_ref, encode_json, slim, row_file)
+    return finish_check(data, ruleset_ref, encode_json, slim, row_file, units)
+
+
+def display_system(units: str, model_system: str) -> str:
+    """The system a model's results are shown in: ``units`` ("SI", "US"), or for "model" the
+    model's own (US customary when its length unit is the inch or the foot, else SI)."""
+    return model_system if units == "model" else units
+
+
+def ruleset_for(ruleset_ref: str, units: str, model_system: str) -> Any:
+    """The rule set at ``ruleset_ref`` showing its results in the system ``units`` picks for a
+    model whose own system is ``model_system`` (:meth:`RuleSet.in_system`)."""
+    from modelcheck.rules.ruleset import load_ruleset
+
+    return load_ruleset(ruleset_ref).in_system(display_system(units, model_system))
 
 
 def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: bool = False,
-                 row_file: int | None = None) -> CheckedModel:
+                 row_file: int | None = None, units: str = "model") -> CheckedModel:
     """Rules, suggestions and (``encode_json``) JSON rows of a model read into ``data``; the rows
     into the file open as ``row_file`` when given (its descriptor stands for them)."""
-    from modelcheck.rules.ruleset import load_ruleset
-
     if data.error is not None or data.members is None:
         return CheckedModel(data)
-    ruleset = load_ruleset(ruleset_ref)
+    ruleset = ruleset_for(ruleset_ref, units, data.system)
+    data.units = ruleset.units
     from modelcheck.rules.select import excluded_members, exclusion_lines
 
     data.warnings = data.warnings + exclusion_lines(excluded_members(ruleset.select, data.members), ruleset.select)
@@ -301,6 +329,7 @@ def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: boo
         rows: Any = row_file
     else:
         results, rows = evaluate_members(ruleset, data.members, data.forces, encode_json=encode_json, slim=slim)
+    data.coverage = coverage_of(ruleset, data.members, results)
     # send back only what the reports read: a batch worker's result crosses a process boundary
     data.members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
     if slim and rows is not None:
@@ -337,10 +366,13 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
         return evaluate(members, forces), None
     kept: list[pd.DataFrame] = []
     encoded: list[bytes] = []
+    offset = 0
     for m, f in _runs_of_members(members, forces):
         if slim:   # the statuses alone come back: the rows are encoded without a results table
-            status, text = _slim_rows(ruleset, m, f, sink)   # into the sink, when given, as they are joined
-            kept.append(pd.DataFrame({"status": status}))   # a categorical: small to send back, quick to count
+            status, member, text = _slim_rows(ruleset, m, f, sink)   # into the sink, when given, as they are joined
+            # a categorical: small to send back, quick to count; the member codes are dropped by coverage_of
+            kept.append(pd.DataFrame({"status": status, MEMBER_CODE: member + offset}))
+            offset += len(m)
         else:
             res = evaluate(m, f)
             text = encode_results(res)
@@ -357,8 +389,9 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
 
 
 def _slim_rows(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame,
-               sink: Any = None) -> tuple[pd.Categorical, bytes]:
-    """(statuses, JSON rows) of ``members``: what a JSON-only report needs. The suggestions are
+               sink: Any = None) -> tuple[pd.Categorical, np.ndarray, bytes]:
+    """(statuses, positions of their members in ``members``, JSON rows) of ``members``: what a
+    JSON-only report needs. The suggestions are
     worked out on a results table of the failing members' rows only. With ``sink`` the rows are
     written to it (after a separator when it holds rows already) and come back as b""."""
     from modelcheck.design.suggest import suggest
@@ -368,14 +401,14 @@ def _slim_rows(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame,
 
     rows = check_rows(ruleset, members, forces)
     if rows is None:
-        return pd.Categorical([], categories=list(STATUS_RANK)), b""
+        return pd.Categorical([], categories=list(STATUS_RANK)), np.zeros(0, dtype=np.int64), b""
     suggestions: dict[int, Any] = {}
     failing = rows.status == FAIL
     if failing.any():
         sel = np.flatnonzero(np.isin(rows.member, rows.member[failing]))   # every row of a failing member
         found = suggest(ruleset, members, forces, rows.frame(sel))["suggestion"].to_numpy(dtype=object)
         suggestions = {int(sel[j]): found[j] for j in np.flatnonzero(pd.notna(found)).tolist()}
-    return (pd.Categorical.from_codes(rows.status, categories=list(STATUS_RANK)),
+    return (pd.Categorical.from_codes(rows.status, categories=list(STATUS_RANK)), rows.member.astype(np.int64),
             encode_check_rows(rows, suggestions, sink))
 
 
@@ -404,6 +437,80 @@ def _runs_of_members(members: pd.DataFrame, forces: pd.DataFrame) -> Any:
         yield ranked.iloc[start:stop], forces[f_run == r]
 
 
+#: a slim results table's column of member positions (in the member table checked), read and
+#: dropped by coverage_of
+MEMBER_CODE = "_member"
+
+
+@dataclass(frozen=True)
+class Coverage:
+    """How the members of one model fared: each counted once, by its worst status (fail >
+    unchecked > pass), or as left out by the rule set's selection (with the reason), or as
+    selected but met by no check (``uncovered``)."""
+
+    found: int = 0
+    passed: int = 0
+    failed: int = 0
+    unchecked: int = 0
+    excluded: tuple[tuple[str, int], ...] = ()   # (reason, members), most first
+
+    @property
+    def checked(self) -> int:
+        """Members with a verdict (pass or fail) on their checks."""
+        return self.passed + self.failed
+
+    @property
+    def excluded_count(self) -> int:
+        return sum(n for _, n in self.excluded)
+
+    @property
+    def uncovered(self) -> int:
+        return max(0, self.found - self.passed - self.failed - self.unchecked - self.excluded_count)
+
+    @property
+    def verified_nothing(self) -> bool:
+        """Members were found, and not one of them could be checked."""
+        return self.found > 0 and self.checked == 0
+
+    def __add__(self, other: Coverage) -> Coverage:
+        """Two parts of one model as one."""
+        excluded: dict[str, int] = dict(self.excluded)
+        for reason, n in other.excluded:
+            excluded[reason] = excluded.get(reason, 0) + n
+        return Coverage(self.found + other.found, self.passed + other.passed, self.failed + other.failed,
+                        self.unchecked + other.unchecked,
+                        tuple(sorted(excluded.items(), key=lambda kv: (-kv[1], kv[0]))))
+
+
+def coverage_of(ruleset: Any, members: pd.DataFrame, results: pd.DataFrame) -> Coverage:
+    """The Coverage of ``members`` (one model, or a part of one) by their ``results``; a slim
+    results table's member positions (:data:`MEMBER_CODE`) are read and dropped here."""
+    from modelcheck.table import STATUS_RANK
+
+    if MEMBER_CODE in results.columns:
+        codes = results[MEMBER_CODE].to_numpy(dtype=np.int64)
+        results.drop(columns=MEMBER_CODE, inplace=True)
+        n = len(members)
+    elif len(results):
+        codes, uniques = pd.factorize(results["global_id"].astype(object))
+        n = len(uniques)
+    else:
+        codes, n = np.zeros(0, dtype=np.int64), 0
+    counts = [0, 0, 0]
+    if len(codes):
+        status = results["status"]
+        rank = (status.cat.codes.to_numpy() if isinstance(status.dtype, pd.CategoricalDtype)
+                and list(status.cat.categories) == list(STATUS_RANK)
+                else status.map(STATUS_RANK).to_numpy())
+        worst = np.full(n, len(STATUS_RANK), dtype=np.int64)
+        np.minimum.at(worst, codes, rank.astype(np.int64))
+        counts = np.bincount(worst, minlength=len(STATUS_RANK) + 1)[:len(STATUS_RANK)].tolist()
+    left_out = ~ruleset.select.mask(members)
+    excluded = tuple(ruleset.select.left_out(members[left_out])) if left_out.any() else ()
+    by = dict(zip(STATUS_RANK, counts, strict=True))
+    return Coverage(len(members), int(by["pass"]), int(by["fail"]), int(by["unchecked"]), excluded)
+
+
 @dataclass
 class CheckRun:
     ruleset: Any
@@ -417,12 +524,13 @@ class CheckRun:
 
 def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int = 1,
               validate: bool = False, progress: Any = None, scheduler: str | None = None,
-              encode_json: bool = False, slim: bool = False) -> CheckRun:
+              encode_json: bool = False, slim: bool = False, units: str = "model") -> CheckRun:
     """Check every model; unreadable ones are recorded with their error, the rest go on.
 
     ``jobs`` > 1 runs several models in that many local worker processes, and shares a single large
     model out among that many processes (``modelcheck.parallel``); ``scheduler`` sends the models
-    to a Dask cluster instead. Results come back in the order of ``paths`` either way.
+    to a Dask cluster instead. Results come back in the order of ``paths`` either way. ``units``:
+    "model" shows each model's results in its own system, "SI" or "US" all in that one.
     """
     from modelcheck.table import RESULT_COLUMNS
 
@@ -431,7 +539,7 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
     if scheduler:
         from modelcheck.distributed import run_on_cluster
 
-        checked = run_on_cluster(scheduler, paths, ref, forces, validate, progress=progress)
+        checked = run_on_cluster(scheduler, paths, ref, forces, validate, progress=progress, units=units)
     elif jobs > 1 and len(paths) > 1:
         import multiprocessing
         from concurrent.futures import ProcessPoolExecutor
@@ -445,7 +553,7 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
         context = multiprocessing.get_context("fork") if inherit else None
         try:
             with ProcessPoolExecutor(max_workers=min(jobs, len(paths)), mp_context=context) as pool:
-                futures = [pool.submit(check_model, p, ref, forces, validate, encode_json, 1, slim, files[i])
+                futures = [pool.submit(check_model, p, ref, forces, validate, encode_json, 1, slim, files[i], units)
                            for i, p in enumerate(paths)]
                 for fut in futures:
                     checked.append(fut.result())
@@ -467,7 +575,7 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
         try:
             for i, p in enumerate(paths):
                 fd = row_file(i) if here else None
-                checked.append(check_model(p, ref, forces, validate, here, parts, slim, fd))
+                checked.append(check_model(p, ref, forces, validate, here, parts, slim, fd, units))
                 if fd is not None and checked[-1].json_rows != fd:
                     release_rows([fd])   # not used: the model was shared out, or could not be read
                 fd = None

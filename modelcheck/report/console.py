@@ -1,14 +1,28 @@
 """The console report of `modelcheck check`: small rich renderables composed into one screen.
 
-Per model a summary line; then the failing members, worst first, each on its governing load
-case; then the unchecked members grouped by what they lack; then the caution.
+Per model a summary line (its headline says so when nothing could be checked) and its
+warnings; then the failing members, worst first, one line each on its governing check; then
+the unchecked members grouped by what they lack; then the caution.
+
+Two layouts of the same rows. The compact one fits 80–120 columns: member (tag, else name,
+else GlobalId), check, ratio, load case, replacement. The wide one adds GlobalId, class and
+type, storey, section, material, demand and capacity; it is used from :data:`DETAILS_WIDTH`
+columns on, or at any width when asked for (``--details``). Every file report carries the
+details whatever the console shows.
+
+Every text from a model, a rule set or a load table goes in as a ``Text`` (never parsed as
+markup), and every column is at least as wide as its longest word, so no word is broken
+inside a cell (rich wraps at spaces).
 """
 
 from __future__ import annotations
 
+import os
+import sys
 from typing import Any
 
 import pandas as pd
+from rich import box
 from rich.console import Console, Group
 from rich.table import Table
 from rich.text import Text
@@ -17,7 +31,42 @@ from modelcheck.report.members import CAUTION
 from modelcheck.report.text import number
 from modelcheck.table import STATUS_RANK
 
+#: console width from which the failing and unchecked lists show every detail
+DETAILS_WIDTH = 160
 
+#: console width when standard output is no terminal and COLUMNS is not set
+DEFAULT_WIDTH = 100
+
+#: failing members shown on the console, worst first (every one is in the CSV, JSON and HTML reports)
+MAX_FAILING_ROWS = 200
+
+#: members named per group of the unchecked list (the rest counted)
+MAX_NAMED = 8
+
+#: warnings shown per model (the rest counted; every one is in the JSON report)
+MAX_WARNINGS = 20
+
+
+def console_width(stream: Any) -> int:
+    """The terminal's width, else ``COLUMNS`` when set, else :data:`DEFAULT_WIDTH`."""
+    try:
+        if stream.isatty():
+            return os.get_terminal_size(stream.fileno()).columns
+    except (AttributeError, OSError, ValueError):
+        pass
+    columns = os.environ.get("COLUMNS", "").strip()
+    if columns.isdigit() and int(columns) > 0:
+        return int(columns)
+    return DEFAULT_WIDTH
+
+
+def make_console(stderr: bool = False, file: Any = None) -> Console:
+    """A rich console as wide as :func:`console_width` says for the stream it writes to."""
+    stream = file if file is not None else (sys.stderr if stderr else sys.stdout)
+    return Console(file=file, stderr=stderr, width=console_width(stream))
+
+
+# ------------------------------------------------------------------------------ rows
 def governing(results: pd.DataFrame) -> pd.DataFrame:
     """One row per member × check: the load case with the highest ratio (failures first)."""
     if not len(results):
@@ -36,99 +85,261 @@ def member_status(results: pd.DataFrame) -> pd.Series:
     return worst.map({0: "fail", 1: "unchecked", 2: "pass"})
 
 
-def summary_line(model: Any, results: pd.DataFrame) -> Text:
-    if model.error:
-        return Text.assemble((f"{model.path}: ", "bold"), ("cannot be read — ", "bold red"), model.error)
-    r = results[results["model"] == model.path]
-    st = member_status(r) if len(r) else pd.Series(dtype=object)
-    n_fail, n_unchecked, n_pass = (int((st == s).sum()) for s in ("fail", "unchecked", "pass"))
-    checked = n_fail + n_pass
-    return Text.assemble(
-        (f"{model.path}", "bold"), f" ({model.schema}): {model.member_count} members found, {checked} checked — ",
-        (f"{n_pass} pass", "green"), ", ", (f"{n_fail} fail", "bold red" if n_fail else "green"), ", ",
-        (f"{n_unchecked} unchecked", "yellow" if n_unchecked else "green"))
-
-
-#: failing rows shown on the console, worst first (every one is in the CSV, JSON and HTML reports)
-MAX_FAILING_ROWS = 200
-
-
-def failing_table(results: pd.DataFrame, members: pd.DataFrame, units: Any = None) -> Table | None:
-    g = governing(results)
-    fails = g[g["status"] == "fail"].sort_values("ratio", ascending=False, kind="stable")
-    if not len(fails):
+def _text(v: Any) -> str | None:
+    """A text value, or None for a missing one (None, NaN, empty)."""
+    if v is None or (isinstance(v, float) and v != v):
         return None
-    total = len(fails)
-    fails = fails.iloc[:MAX_FAILING_ROWS]
-    shown = fails[["model", "global_id"]].drop_duplicates()
-    info = (members.merge(shown, on=["model", "global_id"], how="inner")
-            .drop_duplicates(["model", "global_id"]).set_index(["model", "global_id"]))
-    more = (f"; the worst {MAX_FAILING_ROWS} shown, every one in --format csv or json"
-            if total > MAX_FAILING_ROWS else "")
-    t = Table(title=f"Failing members ({total} member × check{more})", title_justify="left",
-              header_style="bold", expand=False)
-    for col in ("GlobalId", "Class / type", "Name / tag", "Storey", "Section", "Material", "Check",
-                "Demand", "Capacity", "Ratio", "Load case"):
-        t.add_column(col, overflow="fold", justify="right" if col in ("Demand", "Capacity", "Ratio") else "left",
-                     no_wrap=col in ("GlobalId", "Ratio"))
-    has_sugg = "suggestion" in fails.columns
-    if has_sugg:
-        t.add_column("Passing replacement", overflow="fold")
-    for rec in fails.to_dict("records"):
-        m = info.loc[(rec["model"], rec["global_id"])] if (rec["model"], rec["global_id"]) in info.index else None
-        cls = rec["ifc_class"].removeprefix("Ifc")
-        typ = None if m is None else (m["object_type"] or m["predefined_type"] or m["type_name"])
-        label = " / ".join(str(x) for x in (rec["name"], rec["tag"]) if x)
-        ratio = rec["ratio"]
-        row = [Text(str(x)) for x in (
-            rec["global_id"], f"{cls} {typ}" if typ else cls, label or "—",
-            (m["storey"] if m is not None else None) or "—",
-            (m["section_name"] or m["profile_type"] or "—") if m is not None else "—",
-            (m["material"] or "—") if m is not None else "—", rec["check"],
-            f"{number(rec['demand'])} {rec['unit']}", f"{number(rec['capacity'])} {rec['unit']}")]
-        row += [Text(f"{ratio:.2f}" if ratio == ratio else "—", style="bold red"), Text(str(rec["load_case"] or "—"))]
-        if has_sugg:
-            s = rec.get("suggestion")
-            row.append(Text(f"{s['designation']} (ratio {s['ratio']:.2f})" if isinstance(s, dict) else "—"))
+    s = str(v).strip()
+    return s or None
+
+
+def member_label(name: Any, tag: Any, global_id: Any) -> str:
+    """How the console names a member: its tag, else its name, else its GlobalId."""
+    return _text(tag) or _text(name) or str(global_id)
+
+
+# ------------------------------------------------------------------------------ summary
+def summary_line(model: Any, results: pd.DataFrame | None = None) -> Text:
+    """One line per model: what was found and checked; the headline says when nothing was."""
+    path = Text(str(model.path), style="bold")
+    if model.error:
+        return Text.assemble(path, ": ", ("cannot be read", "bold red"), " — ", str(model.error))
+    cov = model.coverage if getattr(model, "coverage", None) is not None else _coverage_from(model, results)
+    units = getattr(model, "units", None)
+    head = Text.assemble(path, f" ({model.schema}" + (f", {units} units" if units else "") + "): ")
+    counts = Text.assemble(f"{cov.found} members found, {cov.checked} checked — ",
+                           (f"{cov.passed} pass", "green"), ", ",
+                           (f"{cov.failed} fail", "bold red" if cov.failed else "green"), ", ",
+                           (f"{cov.unchecked} unchecked", "yellow" if cov.unchecked else "green"))
+    if cov.verified_nothing:
+        head.append("nothing could be checked", style="bold red")
+        head.append(" — ")
+    head.append_text(counts)
+    if cov.excluded:
+        several = len(cov.excluded) > 1
+        head.append(f"; {cov.excluded_count} excluded by the rule set's selection: "
+                    + "; ".join(f"{reason} ({n})" if several else reason for reason, n in cov.excluded))
+    if cov.uncovered:
+        head.append(f"; {cov.uncovered} met by no check of the rule set")
+    return head
+
+
+def _coverage_from(model: Any, results: pd.DataFrame | None) -> Any:
+    """A Coverage from the results table, for a model checked without one."""
+    from modelcheck.pipeline import Coverage
+
+    if results is None or not len(results) or "global_id" not in results.columns:
+        return Coverage(found=int(model.member_count))
+    st = member_status(results[results["model"] == model.path])
+    return Coverage(int(model.member_count), int((st == "pass").sum()), int((st == "fail").sum()),
+                    int((st == "unchecked").sum()))
+
+
+def summary_lines(run: Any) -> list[Text]:
+    """The summary line of every model of a run."""
+    return [summary_line(m, run.results) for m in run.models]
+
+
+def _warning_grid(items: list[tuple[str, str]], style: str = "yellow") -> Table:
+    """Label + text lines with a hanging indent: long texts wrap at word boundaries under the text."""
+    grid = Table.grid(padding=(0, 1))
+    grid.add_column(no_wrap=True, style=style)
+    grid.add_column(ratio=1, overflow="fold")
+    for label, text in items:
+        grid.add_row(Text(label), Text(text))
+    return grid
+
+
+def model_warnings(model: Any) -> list[str]:
+    """The warnings the console lists for a model: the member-list warning of the force join is
+    left out (those members are in the unchecked list, with the reason)."""
+    skip = getattr(model, "no_force_message", None)
+    return [w for w in (list(model.warnings) + list(model.force_messages) + list(model.validation)) if w != skip]
+
+
+# ------------------------------------------------------------------------------ tables
+#: characters between two columns: the separator and one space of padding
+_GAP = 2
+
+
+def _fit(mins: list[int], maxs: list[int], width: int) -> list[int] | None:
+    """Column widths within ``width``: each at least its longest word, the room left shared in
+    proportion to what each needs to show its cells on one line. None when even the longest
+    words do not fit side by side."""
+    room = width - _GAP * (len(mins) - 1)
+    if sum(maxs) <= room:
+        return list(maxs)
+    if sum(mins) > room:
+        return None
+    spare = room - sum(mins)
+    want = [mx - mn for mn, mx in zip(mins, maxs, strict=True)]
+    total = sum(want)
+    widths = [mn + (spare * w // total if total else 0) for mn, w in zip(mins, want, strict=True)]
+    left = room - sum(widths)
+    for i in sorted(range(len(widths)), key=lambda i: -(want[i] - (widths[i] - mins[i]))):
+        if left <= 0:
+            break
+        if widths[i] < maxs[i]:
+            widths[i] += 1
+            left -= 1
+    return widths
+
+
+def _table(title: str, columns: list[tuple[str, str, list[str]]], rows: list[list[Text]], width: int,
+           caption: str | None = None, leading: int = 0) -> Table:
+    """A light table that fits ``width`` without breaking a word, where the words fit at all.
+
+    ``columns``: (header, justify, cell texts) each."""
+    # numbers (right-aligned) keep their unit beside them: the whole cell is one word
+    mins = [max(_words(cells) if justify != "right" else max([len(c) for c in cells] or [1]), _words([header]))
+            for header, justify, cells in columns]
+    maxs = [max([len(line) for c in [header, *cells] for line in str(c).splitlines()] or [1])
+            for header, _, cells in columns]
+    widths = _fit(mins, maxs, width)
+    t = Table(title=Text(title, style="bold"), title_justify="left", header_style="bold", box=box.SIMPLE_HEAD,
+              show_edge=False, pad_edge=False, padding=(0, 1, 0, 0), expand=False, leading=leading,
+              caption=Text(caption) if caption else None, caption_justify="left")
+    for i, (header, justify, _) in enumerate(columns):
+        t.add_column(Text(header), justify=justify, overflow="fold",  # type: ignore[arg-type]
+                     width=widths[i] if widths is not None else None)
+    for row in rows:
         t.add_row(*row)
     return t
 
 
-def unchecked_table(results: pd.DataFrame) -> Table | None:
+def _words(cells: list[str]) -> int:
+    """The longest word of any cell (the narrowest a column can be without breaking one)."""
+    return max((len(w) for c in cells for w in str(c).split()), default=1)
+
+
+def failing_table(results: pd.DataFrame, members: pd.DataFrame, details: bool = False,
+                  width: int = DEFAULT_WIDTH) -> Table | None:
+    """The failing members, worst first: one line each, on its governing check and load case."""
+    g = governing(results)
+    fails = g[g["status"] == "fail"]
+    if not len(fails):
+        return None
+    fails = fails.assign(_ratio=fails["ratio"].astype(float).fillna(float("inf")))
+    fails = fails.sort_values("_ratio", ascending=False, kind="stable")
+    more_checks = fails.groupby(["model", "global_id"], sort=False)["check"].transform("size") - 1
+    first = ~fails.duplicated(["model", "global_id"], keep="first")
+    worst = fails[first].assign(_more=more_checks[first])
+    total, total_checks = len(worst), len(fails)
+    worst = worst.iloc[:MAX_FAILING_ROWS]
+    info = None
+    if details:
+        shown = worst[["model", "global_id"]]
+        info = (members.merge(shown, on=["model", "global_id"], how="inner")
+                .drop_duplicates(["model", "global_id"]).set_index(["model", "global_id"]))
+    cols: dict[str, list[str]] = {k: [] for k in (
+        "Member", "GlobalId", "Class / type", "Storey", "Section", "Material", "Check", "Demand", "Capacity",
+        "Ratio", "Load case", "Replacement")}
+    for rec in worst.to_dict("records"):
+        cols["Member"].append(member_label(rec["name"], rec["tag"], rec["global_id"]))
+        extra = int(rec["_more"])
+        cols["Check"].append(str(rec["check"]) + (f" (+{extra})" if extra else ""))
+        ratio = rec["ratio"]
+        cols["Ratio"].append(f"{ratio:.2f}" if ratio == ratio and ratio is not None else "—")
+        cols["Load case"].append(_text(rec["load_case"]) or "—")
+        s = rec.get("suggestion")
+        if isinstance(s, dict):
+            cols["Replacement"].append(f"{s['designation']} (ratio {s['ratio']:.2f})" if details
+                                       else str(s["designation"]))
+        else:
+            cols["Replacement"].append("—")
+        if details:
+            key = (rec["model"], rec["global_id"])
+            m = info.loc[key] if info is not None and key in info.index else None
+            cls = str(rec["ifc_class"]).removeprefix("Ifc")
+            typ = None if m is None else (_text(m["object_type"]) or _text(m["predefined_type"])
+                                         or _text(m["type_name"]))
+            cols["GlobalId"].append(str(rec["global_id"]))
+            cols["Class / type"].append(f"{cls} {typ}" if typ else cls)
+            cols["Storey"].append((_text(m["storey"]) if m is not None else None) or "—")
+            cols["Section"].append((_text(m["section_name"]) or _text(m["profile_type"]) if m is not None else None)
+                                   or "—")
+            cols["Material"].append((_text(m["material"]) if m is not None else None) or "—")
+            unit = _unit_label(rec["unit"])
+            cols["Demand"].append(f"{number(rec['demand'])} {unit}".strip())
+            cols["Capacity"].append(f"{number(rec['capacity'])} {unit}".strip())
+    order = (["Member", "GlobalId", "Class / type", "Storey", "Section", "Material", "Check", "Demand", "Capacity",
+              "Ratio", "Load case", "Replacement"] if details
+             else ["Member", "Check", "Ratio", "Load case", "Replacement"])
+    right = {"Demand", "Capacity", "Ratio"}
+    columns = [(c, "right" if c in right else "left", cols[c]) for c in order]
+    rows = [[Text(cols[c][i], style="bold red" if c == "Ratio" else "") for c in order]
+            for i in range(len(worst))]
+    title = f"Failing members: {total} ({total_checks} failing checks), worst first"
+    caption = "Check: the member's governing check; (+n): n more of its checks fail"
+    if total > MAX_FAILING_ROWS:
+        caption += f"; the worst {MAX_FAILING_ROWS} shown, every one in --format csv, json or html"
+    return _table(title, columns, rows, width, caption)
+
+
+def _unit_label(unit: Any) -> str:
+    from modelcheck.units import ureg
+
+    text = _text(unit)
+    if text is None:
+        return ""
+    try:
+        return f"{ureg.Unit(text):~P}"
+    except (ValueError, AttributeError, TypeError, KeyError):
+        return text
+
+
+def unchecked_table(results: pd.DataFrame, details: bool = False, width: int = DEFAULT_WIDTH) -> Table | None:
+    """The unchecked members grouped by what they lack (the missing inputs over their checks)."""
     g = governing(results)
     un = g[g["status"] == "unchecked"]
     if not len(un):
         return None
-    # group members by what they lack (the set of missing inputs over their checks)
-    lack = un.groupby(["model", "global_id"])["missing"].agg(
+    lack = un.groupby(["model", "global_id"], sort=False)["missing"].agg(
         lambda s: tuple(sorted({m for lst in s for m in (lst or [])})))
-    groups = lack.groupby(lack).apply(lambda s: sorted(g for _, g in s.index))
-    t = Table(title=f"Unchecked members ({len(lack)}), grouped by what they lack", title_justify="left",
-              header_style="bold")
-    t.add_column("Missing input (and where it was looked for)", overflow="fold")
-    t.add_column("Members", justify="right")
-    t.add_column("GlobalIds", overflow="fold", min_width=24)
-    for missing, gids in groups.items():
-        shown = ", ".join(gids[:8]) + (f" … (+{len(gids) - 8})" if len(gids) > 8 else "")
-        t.add_row(Text("\n".join(missing) or "(no reason given)"), str(len(gids)), Text(shown))
-    return t
+    labels = un.drop_duplicates(["model", "global_id"]).set_index(["model", "global_id"])
+    groups: dict[tuple[str, ...], list[str]] = {}
+    for key, missing in lack.items():
+        rec = labels.loc[key]
+        name = member_label(rec["name"], rec["tag"], key[1])
+        groups.setdefault(missing, []).append(f"{name} ({key[1]})" if details and name != key[1] else name)
+    missing_col, count_col, who_col = [], [], []
+    for missing, names in sorted(groups.items(), key=lambda kv: (-len(kv[1]), kv[0])):
+        names = sorted(names)
+        missing_col.append("\n".join(missing) or "(no reason given)")
+        count_col.append(str(len(names)))
+        who_col.append(", ".join(names[:MAX_NAMED]) + (f" (+{len(names) - MAX_NAMED} more)"
+                                                       if len(names) > MAX_NAMED else ""))
+    columns = [("Missing input (and where it was looked for)", "left", missing_col),
+               ("Members", "right", count_col), ("Which", "left", who_col)]
+    rows = [[Text(missing_col[i]), Text(count_col[i]), Text(who_col[i])] for i in range(len(missing_col))]
+    return _table(f"Unchecked members: {len(lack)}, grouped by what they lack", columns, rows, width,
+                  leading=1 if any(len(m) > 1 for m in groups) else 0)
 
 
-def render_check(run: Any, console: Console, units: Any = None, comparison: Any = None) -> None:
-    parts: list[Any] = [Text(f"Rule set: {run.ruleset.name} — {getattr(run.ruleset, 'basis', '')}", style="dim")]
+# ------------------------------------------------------------------------------ screen
+def render_check(run: Any, console: Console, comparison: Any = None, details: bool | None = None) -> None:
+    """The whole console report. ``details`` None: the wide layout from :data:`DETAILS_WIDTH` on."""
+    wide = details if details is not None else console.width >= DETAILS_WIDTH
+    basis = getattr(run.ruleset, "basis", "") or ""
+    parts: list[Any] = [Text(f"Rule set: {run.ruleset.name}" + (f" — {basis}" if basis else ""), style="dim")]
     for m in run.models:
         parts.append(summary_line(m, run.results))
-        for w in (m.warnings + m.force_messages + m.validation)[:20]:
-            parts.append(Text(f"  warning: {w}", style="yellow"))
+        warnings = [] if m.error else model_warnings(m)
+        items = [("  warning:", w) for w in warnings[:MAX_WARNINGS]]
+        if len(warnings) > MAX_WARNINGS:
+            items.append(("  warning:", f"… and {len(warnings) - MAX_WARNINGS} more (every one in --format json)"))
+        if items:
+            parts.append(_warning_grid(items))
     from modelcheck.pipeline import unmatched_lines
 
-    for line in unmatched_lines(run.unmatched_rows):
-        parts.append(Text(f"warning: {line}", style="yellow"))
+    lines = unmatched_lines(run.unmatched_rows)
+    if lines:
+        parts.append(_warning_grid([("warning:", line) for line in lines]))
     if comparison is not None:
         parts.append(comparison)
-    ft = failing_table(run.results, run.members, units)
+    ft = failing_table(run.results, run.members, wide, console.width) if "global_id" in run.results.columns else None
     parts.append(ft if ft is not None else Text("No failing members.", style="green"))
-    ut = unchecked_table(run.results)
+    ut = unchecked_table(run.results, wide, console.width) if "global_id" in run.results.columns else None
     if ut is not None:
         parts.append(ut)
     parts.append(Text(CAUTION, style="italic dim"))

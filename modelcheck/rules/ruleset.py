@@ -18,7 +18,7 @@ from __future__ import annotations
 import re
 import tomllib
 from collections.abc import Callable, Mapping
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from types import MappingProxyType
 from typing import Any
@@ -142,6 +142,7 @@ class Check:
     definitions: tuple[str, ...]     # definitions it uses, in file order
     parameters: tuple[str, ...]      # parameters it uses, in file order
     magnitude: bool = False          # compare |demand| with the capacity (a signed demand's size)
+    unit_given: bool = False         # the unit is the check's own ``unit`` key, not the display's
 
     @property
     def needs_force(self) -> bool:
@@ -192,6 +193,34 @@ class RuleSet:
     def display_unit(self, q: pint.Quantity | pint.Unit) -> str:
         """The unit this rule set shows a quantity of that dimension in ('ksi' for a stress)."""
         return display_unit_for(self.display, q)
+
+    def in_system(self, system: str) -> RuleSet:
+        """This rule set showing its results in ``system`` ("SI" or "US").
+
+        In the rule set's own system it is returned as written ([display] and each check's
+        ``unit`` kept). In the other system the display units are that system's, a check's
+        demand and capacity are shown in them (a dimensionless ``unit`` such as "%" is kept), and
+        the suggestions come from that system's stock series unless the rule set's [stock]
+        table names a series itself. The checks themselves do not change: units mix freely.
+
+        Example::
+
+            >>> load_ruleset("steel-asd-us").in_system("SI").check("tension-yield").unit
+            'MPa'
+        """
+        if system == self.units:
+            return self
+        if system not in DEFAULT_DISPLAY:
+            raise ValueError(f"units system {system!r} is not one of {', '.join(DEFAULT_DISPLAY)}")
+        display = DEFAULT_DISPLAY[system]
+        checks = tuple(c if c.unit_given and _dimensionless(c.unit)
+                       else replace(c, unit=display_unit_for(display, ureg.parse_units(c.unit)))
+                       for c in self.checks)
+        return replace(self, units=system, display=display, checks=checks)
+
+
+def _dimensionless(unit: str) -> bool:
+    return not unit.strip() or bool(ureg.parse_units(unit).dimensionless)
 
 
 def _unit_fits(unit: str, q: pint.Quantity) -> bool:
@@ -833,6 +862,7 @@ def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetErr
             definitions=tuple(n for n in defs if n in used_defs),
             parameters=tuple(n for n in params if n in reached),
             magnitude=raw.get("magnitude") is True,
+            unit_given=isinstance(raw.get("unit"), str),
         ))
 
     if errors.items:

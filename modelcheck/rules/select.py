@@ -89,6 +89,25 @@ def _column(members: pd.DataFrame, column: str) -> np.ndarray:
     return members[column].to_numpy(dtype=object, na_value=None)
 
 
+def _label(key: str) -> str:
+    return "class" if key == "ifc_class" else key.replace("_", " ")
+
+
+def _values(key: str, members: pd.DataFrame) -> list[str]:
+    """'<key> <value>' of each member for one selector key ('<key> unknown' where it has none)."""
+    column = SELECTOR_KEYS[key][0] if key != "any_name" else "name"
+    vals = _column(members, column)
+    return [f"{_label(key)} {v}" if v is not None and str(v).strip() else f"{_label(key)} unknown"
+            for v in vals.tolist()]
+
+
+def _mismatch(key: str, patterns: tuple[str, ...], members: pd.DataFrame) -> list[str]:
+    """Why members do not match one selector key: their value, or for ``any_name`` the patterns."""
+    if key == "any_name":
+        return [f"no name matching {', '.join(patterns)}"] * len(members)
+    return _values(key, members)
+
+
 @dataclass(frozen=True)
 class Selector:
     """Selector keys with their patterns; ``exclude`` another selector whose matches are dropped."""
@@ -106,6 +125,30 @@ class Selector:
         if self.exclude is not None and self.exclude.keys:
             text += "; except " + self.exclude.describe()
         return text
+
+    def left_out(self, members: pd.DataFrame) -> list[tuple[str, int]]:
+        """Why each of ``members`` (ones this selector does not select) is left out, counted:
+        [(reason, members)], most first. The reason names the first key a member does not
+        match with the member's own value ("shape flat-bar", "class IfcBeam", "no name matching
+        *rod*"), or, for a member the exclusion matches, its values of the exclusion's keys
+        ("material category concrete")."""
+        n = len(members)
+        if not n:
+            return []
+        reason = np.full(n, None, dtype=object)
+        for key, patterns in self.keys:
+            open_ = pd.isna(reason)
+            miss = open_ & ~Selector(((key, patterns),)).mask(members)
+            if miss.any():
+                reason[miss] = _mismatch(key, patterns, members[miss])
+        if self.exclude is not None and self.exclude.keys:
+            open_ = pd.isna(reason)
+            hit = open_ & self.exclude.mask(members)
+            if hit.any():
+                texts = [_values(key, members[hit]) for key, _ in self.exclude.keys]
+                reason[hit] = [", ".join(parts) for parts in zip(*texts, strict=True)]
+        counts = pd.Series(reason, dtype=object).fillna("selection").value_counts(sort=False)
+        return sorted(((str(k), int(v)) for k, v in counts.items()), key=lambda kv: (-kv[1], kv[0]))
 
     def mask(self, members: pd.DataFrame, cache: dict[Any, np.ndarray] | None = None) -> np.ndarray:
         """Boolean array: which rows of ``members`` this selector selects.
