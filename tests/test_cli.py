@@ -130,8 +130,11 @@ def test_exit_codes_pass_fail_strict_and_input_error(tmp_path):
     bad = tmp_path / "bad.ifc"
     mb2.write(str(bad))
     assert run("check", str(bad), "--rules", "steel-ec3").returncode == 1
-    # only an unchecked member: 0 normally, 1 with --strict
+    # a passing member and an unchecked one: 0 normally, 1 with --strict
     mb3 = ModelBuilder(schema="IFC4", units="mm")
+    steel3 = mb3.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    rod3 = mb3.f.createIfcCircleProfileDef("AREA", "RD20", None, 10.0)
+    mb3.member("IfcMember", name="ok", profile=rod3, material=steel3, length=1000.0, psets=light)
     mb3.member("IfcMember", name="bare", length=1000.0, body=None)
     bare = tmp_path / "bare.ifc"
     mb3.write(str(bare))
@@ -314,7 +317,8 @@ def test_rows_written_to_a_file_in_blocks_are_the_rows_joined_at_once(tmp_path: 
     path = str(SAMPLES / "nettlebrook-hall.ifc")
     forces = ForceOptions(property=("MC_MemberForces", "AxialForce"))
     data = read_model(path, forces)
-    rows = check_rows(load_ruleset("steel-asd-us"), data.members, data.forces)
+    # in the model's own system, as check_model shows it by default
+    rows = check_rows(load_ruleset("steel-asd-us").in_system(data.system), data.members, data.forces)
     at_once = check_json.encode_check_rows(rows)
     monkeypatch.setattr(check_json, "JOIN_BLOCK", 3)
     assert len(rows) > 3 * 3   # several blocks, the last one partial or not

@@ -22,6 +22,8 @@ annotate = "reports/annotated/"
 validate = false
 scheduler = "tcp://127.0.0.1:8786"
 analysis_frame = "local"
+units = "SI"
+details = true
 """
 
 
@@ -39,6 +41,7 @@ def test_modelcheck_toml_with_every_key(tmp_path):
     assert cfg["format"] == "console,junit,html"  # a list becomes the --format text
     assert (cfg["fail_on"], cfg["strict"], cfg["jobs"], cfg["validate"]) == ("new", True, 4, False)
     assert cfg["analysis_frame"] == "local"
+    assert (cfg["units"], cfg["details"]) == ("SI", True)
 
 
 def test_pyproject_tool_table(tmp_path):
@@ -67,6 +70,8 @@ def test_both_files_is_an_error(tmp_path):
     ('format = ""', "format"),
     ('format = ["junit", 3]', "format"),
     ('rules = ""', "rules"),
+    ('units = "metric"', "units"),
+    ('details = "yes"', "details"),
 ])
 def test_wrong_type_names_file_and_key(tmp_path, line, key):
     p = tmp_path / "modelcheck.toml"

@@ -16,10 +16,11 @@ from modelcheck.ifc.author import ModelBuilder
 from modelcheck.pipeline import ForceOptions, check_model
 
 
-def echo_task(path, ruleset_ref, forces, validate):
+def echo_task(path, ruleset_ref, forces, validate, units="model"):
     """Stand-in for check_model: what arrived on the worker, and a fresh token per run."""
     rows = int(sum(len(t) for t in forces.tables))
-    return {"path": path, "ruleset": ruleset_ref, "rows": rows, "validate": validate, "pid": os.getpid(),
+    return {"path": path, "ruleset": ruleset_ref, "rows": rows, "validate": validate, "units": units,
+            "pid": os.getpid(),
             "token": uuid.uuid4().hex}
 
 
@@ -35,9 +36,10 @@ def test_results_come_back_in_input_order_from_another_process(cluster):
     ticks = []
     out = run_on_cluster(cluster.scheduler_address, ["b.ifc", "a.ifc", "b.ifc"], "steel-asd-us",
                          ForceOptions(tables=(table,)), True, progress=lambda: ticks.append(1),
-                         task=echo_task)
+                         task=echo_task, units="US")
     assert [o["path"] for o in out] == ["b.ifc", "a.ifc", "b.ifc"]
-    assert all(o["ruleset"] == "steel-asd-us" and o["rows"] == 1 and o["validate"] for o in out)
+    assert all(o["ruleset"] == "steel-asd-us" and o["rows"] == 1 and o["validate"] and o["units"] == "US"
+               for o in out)
     assert all(o["pid"] != os.getpid() for o in out)  # the work ran on the worker process
     assert out[0]["token"] != out[2]["token"]          # the same path twice runs twice (pure=False)
     assert len(ticks) == 3

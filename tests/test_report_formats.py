@@ -328,9 +328,9 @@ def test_the_console_shows_the_worst_failures_and_says_how_many_more(monkeypatch
                            + [member_row("m.ifc", gids[0], name="H0")],   # a GlobalId given twice
                            columns=list(REPORT_MEMBER_COLUMNS))
     buf = io.StringIO()
-    Console(file=buf, width=250).print(con.failing_table(results_frame(rows), members))
+    Console(file=buf, width=250).print(con.failing_table(results_frame(rows), members, details=True, width=250))
     text = buf.getvalue()
-    assert "12 member × check; the worst 5 shown" in text
+    assert "Failing members: 12" in text and "the worst 5 shown" in text
     shown = [g for g in gids if g in text]
     assert shown == gids[-5:]      # the five highest ratios
 
