@@ -443,7 +443,9 @@ def cmd_rules(args: argparse.Namespace) -> int:
         return EXIT_INPUT
     for w in rs.ruleset_warnings(rs.load_ruleset(args.target)):
         print(w, file=sys.stderr)
-    con.print(f"{args.target}: valid")
+    from rich.markup import escape
+
+    con.print(f"{escape(args.target)}: valid", highlight=False)
     return EXIT_OK
 
 

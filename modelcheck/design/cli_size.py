@@ -109,7 +109,9 @@ def _fmt(q: dict[str, Any] | None, digits: str = ".4g") -> str:
 
 def render_size(result: Any, console: Any) -> None:
     """The size result as rich tables, ending with the caution."""
+    from rich.markup import escape
     from rich.table import Table
+    from rich.text import Text
 
     from modelcheck.report.members import CAUTION
 
@@ -118,41 +120,42 @@ def render_size(result: Any, console: Any) -> None:
     mat = doc["material"]
     what = "tension" if result.force > 0 else "compression"
     force = dict(doc["force"], value=abs(doc["force"]["value"]))
-    head = Table(title=f"Size for {_fmt(force)} {what} — rule set {result.ruleset}",
+    head = Table(title=Text(f"Size for {_fmt(force)} {what} — rule set {result.ruleset}"),
                  title_justify="left", show_header=False, box=None, pad_edge=False)
     head.add_column(style="bold")
     head.add_column()
     name = mat["grade"] if mat["name"] == mat["grade"] else f"{mat['name']} → {mat['grade']}"
-    head.add_row("Material", f"{name} (Fy {_fmt(mat['Fy'])}, Fu {_fmt(mat['Fu'])}, "
-                             f"E {_fmt(mat['E'], '.0f')})")
-    head.add_row("Stock", result.stock)
+    head.add_row("Material", Text(f"{name} (Fy {_fmt(mat['Fy'])}, Fu {_fmt(mat['Fu'])}, "
+                                  f"E {_fmt(mat['E'], '.0f')})"))
+    head.add_row("Stock", Text(str(result.stock)))
     if doc["length"] is not None:
-        head.add_row("Length", _fmt(doc["length"]))
+        head.add_row("Length", Text(_fmt(doc["length"])))
     if doc["thickness"] is not None:
-        head.add_row("Thickness", _fmt(doc["thickness"]))
-    head.add_row("Required area", f"{_fmt(doc['required_area'])}  ({doc['required_area_basis']})"
-                 if doc["required_area"] else "—")
-    head.add_row("Selected", f"[bold green]{sel['designation']}[/]")
-    head.add_row("Area", _fmt(sel["area"]))
+        head.add_row("Thickness", Text(_fmt(doc["thickness"])))
+    head.add_row("Required area", Text(f"{_fmt(doc['required_area'])}  ({doc['required_area_basis']})"
+                                       if doc["required_area"] else "—"))
+    head.add_row("Selected", Text(str(sel["designation"]), style="bold green"))
+    head.add_row("Area", Text(_fmt(sel["area"])))
     if sel["tensile_stress_area"] is not None:
-        head.add_row("Tensile-stress area", _fmt(sel["tensile_stress_area"]))
-    head.add_row("Stress", f"{_fmt(sel['stress'])}  ({sel['stress']['source']})" if sel["stress"] else "—")
-    head.add_row("Ratio", f"{sel['ratio']:.3f}  (governing: {sel['governing_check']})")
+        head.add_row("Tensile-stress area", Text(_fmt(sel["tensile_stress_area"])))
+    head.add_row("Stress", Text(f"{_fmt(sel['stress'])}  ({sel['stress']['source']})" if sel["stress"] else "—"))
+    head.add_row("Ratio", Text(f"{sel['ratio']:.3f}  (governing: {sel['governing_check']})"))
     head.add_row("Elongation" if result.force > 0 else "Shortening",
-                 _fmt(dict(sel["elongation"], value=abs(sel["elongation"]["value"])), ".3g")
-                 if sel["elongation"] is not None else "— (give --length)")
+                 Text(_fmt(dict(sel["elongation"], value=abs(sel["elongation"]["value"])), ".3g")
+                      if sel["elongation"] is not None else "— (give --length)"))
     console.print(head)
 
-    t = Table(title=f"Checks of {sel['designation']}", title_justify="left", header_style="bold")
+    t = Table(title=Text(f"Checks of {sel['designation']}"), title_justify="left", header_style="bold")
     for col, just in (("Check", "left"), ("Clause", "left"), ("Demand", "right"), ("Capacity", "right"),
                       ("Ratio", "right"), ("Status", "left")):
         t.add_column(col, justify=just, overflow="fold")
     for c in doc["checks"]:
         colour = {"pass": "green", "fail": "red"}.get(c["status"], "yellow")
         ratio = "—" if c["ratio"] is None or not math.isfinite(c["ratio"]) else f"{c['ratio']:.3f}"
-        t.add_row(c["check"], c["clause"], _fmt(c["demand"]), _fmt(c["capacity"]), ratio,
-                  f"[{colour}]{c['status']}[/]")
+        t.add_row(Text(str(c["check"])), Text(str(c["clause"])), Text(_fmt(c["demand"])), Text(_fmt(c["capacity"])),
+                  ratio, Text(str(c["status"]), style=colour))
     console.print(t)
     for na in doc["not_applicable"]:
-        console.print(f"[yellow]not applied:[/] {na['check']} — {na['reason']}", highlight=False)
+        console.print(f"[yellow]not applied:[/] {escape(str(na['check']))} — {escape(str(na['reason']))}",
+                      highlight=False)
     console.print(f"\n[dim]{CAUTION}[/]")

@@ -204,16 +204,16 @@ def comparison_renderable(cmp: dict[str, Any], *, max_rows: int = 30) -> Any:
         parts.append(Text(f"  note: {note}", style="yellow"))
 
     def table(title: str, rows: list[dict[str, Any]], style: str, extra: str) -> Table:
-        t = Table(title=title, title_justify="left", header_style="bold")
+        t = Table(title=Text(title), title_justify="left", header_style="bold")
         for col in ("Model", "GlobalId", "Check", "Load case", "Ratio", extra):
             t.add_column(col, overflow="fold", justify="right" if col in ("Ratio", extra) else "left")
         for e in rows[:max_rows]:
             other = e.get("baseline_ratio") if extra == "Baseline ratio" else e.get("baseline_status")
-            t.add_row(e["model"], e["global_id"], e["check"], e["load_case"] or "—",
-                      Text(_num(e.get("ratio")), style=style), _num(other) if extra == "Baseline ratio"
-                      else str(other or "absent"))
+            t.add_row(Text(str(e["model"])), Text(str(e["global_id"])), Text(str(e["check"])),
+                      Text(str(e["load_case"] or "—")), Text(_num(e.get("ratio")), style=style),
+                      Text(_num(other) if extra == "Baseline ratio" else str(other or "absent")))
         if len(rows) > max_rows:
-            t.caption = f"… and {len(rows) - max_rows} more (see the JSON report)"
+            t.caption = Text(f"… and {len(rows) - max_rows} more (see the JSON report)")
         return t
 
     if cmp["new_failures"]:

@@ -63,7 +63,7 @@ def console_width(stream: Any) -> int:
 def make_console(stderr: bool = False, file: Any = None) -> Console:
     """A rich console as wide as :func:`console_width` says for the stream it writes to."""
     stream = file if file is not None else (sys.stderr if stderr else sys.stdout)
-    return Console(file=file, stderr=stderr, width=console_width(stream))
+    return Console(file=file, stderr=stderr, width=console_width(stream), emoji=False, highlight=False)
 
 
 # ------------------------------------------------------------------------------ rows

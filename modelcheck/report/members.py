@@ -93,27 +93,50 @@ def members_csv(members: pd.DataFrame, units: DisplayUnits) -> pd.DataFrame:
 
 
 def members_table(members: pd.DataFrame, units: DisplayUnits, title: str) -> Any:
-    """A rich Table of the members of one model."""
-    from rich.markup import escape
+    """A rich Table of the members of one model. Every text goes in as a ``Text`` (a name, a
+    header unit such as ``A [mm²]``: never read as markup); numbers in plain decimals."""
     from rich.table import Table
+    from rich.text import Text
 
-    t = Table(title=escape(title), title_justify="left", header_style="bold")
+    from modelcheck.report.text import plain
+
+    t = Table(title=Text(title), title_justify="left", header_style="bold")
     for col, just in (("GlobalId", "left"), ("Class", "left"), ("Name / tag", "left"), ("Section", "left"),
                       (f"A [{units.unit('area')}]", "right"), (f"r min [{units.unit('r_min')}]", "right"),
                       (f"L [{units.unit('length')}]", "right"), ("Material", "left"),
                       (f"Fy [{units.unit('Fy')}]", "right"), ("Notes", "left")):
-        t.add_column(col, justify=just, overflow="fold")
+        t.add_column(Text(_unit_header(col)), justify=just, overflow="fold",  # type: ignore[arg-type]
+                     min_width=22 if col == "GlobalId" else None)   # a GlobalId is 22 characters, kept whole
 
-    def num(v: float, q: str, fmt: str = "{:.4g}") -> str:
-        return "—" if v is None or not math.isfinite(v) else fmt.format(units.convert(q, v))
+    def num(v: float, q: str) -> str:
+        return "—" if v is None or not math.isfinite(v) else plain(units.convert(q, v))
 
+    def text(v: Any) -> str | None:
+        v = _s(v)
+        return str(v) if v is not None and str(v).strip() else None
+
+    none = Text("none", style="red")
     for rec in members.to_dict("records"):
-        label = " / ".join(x for x in (rec["name"], rec["tag"]) if x)
-        sec = rec["section_name"] or (rec["profile_type"] or "").removeprefix("Ifc").removesuffix("ProfileDef")
+        label = " / ".join(x for x in (text(rec["name"]), text(rec["tag"])) if x)
+        sec = text(rec["section_name"]) or (text(rec["profile_type"]) or "").removeprefix("Ifc").removesuffix(
+            "ProfileDef")
+        material = text(rec["material"])
         warn = rec["warnings"] or []
-        t.add_row(escape(rec["global_id"]), rec["ifc_class"].removeprefix("Ifc"), escape(label or "—"),
-                  escape(sec) if sec else "[red]none[/]",
-                  num(rec["area"], "area"), num(rec["r_min"], "r_min"), num(rec["length"], "length"),
-                  escape(rec["material"]) if rec["material"] else "[red]none[/]", num(rec["Fy"], "Fy"),
-                  (f"[yellow]{len(warn)} warning(s)[/]" if warn else ""))
+        t.add_row(Text(str(rec["global_id"])), Text(str(rec["ifc_class"]).removeprefix("Ifc")), Text(label or "—"),
+                  Text(sec) if sec else none, num(rec["area"], "area"), num(rec["r_min"], "r_min"),
+                  num(rec["length"], "length"), Text(material) if material else none, num(rec["Fy"], "Fy"),
+                  Text(f"{len(warn)} warning(s)", style="yellow") if warn else "")
     return t
+
+
+def _unit_header(text: str) -> str:
+    """A header with its unit written as pint's short symbol: 'A [mm**2]' -> 'A [mm²]'."""
+    if "[" not in text:
+        return text
+    head, unit = text[:-1].split("[", 1)
+    from modelcheck.units import ureg
+
+    try:
+        return f"{head}[{ureg.Unit(unit):~P}]"
+    except (ValueError, AttributeError, TypeError, KeyError):
+        return text

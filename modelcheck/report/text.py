@@ -7,10 +7,27 @@ from typing import Any
 
 
 def number(v: Any) -> str:
-    """Four significant figures, or an em dash for a missing / non-finite value."""
+    """Four significant figures in plain decimals (19480, 0.01948; never 1.948e+04), or an em
+    dash for a missing / non-finite value."""
     if v is None or (isinstance(v, float) and not math.isfinite(v)):
         return "—"
-    return f"{v:.4g}"
+    return plain(float(v))
+
+
+def plain(v: float, digits: int = 4) -> str:
+    """``v`` to ``digits`` significant figures without an exponent, trailing zeros dropped; an
+    exponent only beyond 10¹⁵ or below 10⁻⁹, where plain decimals would be unreadable."""
+    if v == 0 or not math.isfinite(v):
+        return f"{v:g}"
+    mag = math.floor(math.log10(abs(v)))
+    if mag >= 15 or mag < -9:
+        return f"{v:.{digits}g}"
+    if mag >= digits - 1:
+        text = f"{round(v, digits - 1 - mag):.0f}"
+    else:
+        text = f"{v:.{digits - 1 - mag}f}"
+        text = text.rstrip("0").rstrip(".") if "." in text else text
+    return "0" if text in ("-0", "") else text
 
 
 def xml_text(text: Any) -> str:
