@@ -190,12 +190,7 @@ def _table(title: str, columns: list[tuple[str, str, list[str]]], rows: list[lis
     """A light table that fits ``width`` without breaking a word, where the words fit at all.
 
     ``columns``: (header, justify, cell texts) each."""
-    # numbers (right-aligned) keep their unit beside them: the whole cell is one word
-    mins = [max(_words(cells) if justify != "right" else max([len(c) for c in cells] or [1]), _words([header]))
-            for header, justify, cells in columns]
-    maxs = [max([len(line) for c in [header, *cells] for line in str(c).splitlines()] or [1])
-            for header, _, cells in columns]
-    widths = _fit(mins, maxs, width)
+    widths = _fit(*_limits(columns), width)
     t = Table(title=Text(title, style="bold"), title_justify="left", header_style="bold", box=box.SIMPLE_HEAD,
               show_edge=False, pad_edge=False, padding=(0, 1, 0, 0), expand=False, leading=leading,
               caption=Text(caption) if caption else None, caption_justify="left")
@@ -273,7 +268,36 @@ def failing_table(results: pd.DataFrame, members: pd.DataFrame, details: bool = 
     caption = "Check: the member's governing check; (+n): n more of its checks fail"
     if total > MAX_FAILING_ROWS:
         caption += f"; the worst {MAX_FAILING_ROWS} shown, every one in --format csv, json or html"
+    if details and _fit(*_limits(columns), width) is None:
+        return _stacked(title, cols, len(worst), caption)
     return _table(title, columns, rows, width, caption)
+
+
+def _stacked(title: str, cols: dict[str, list[str]], n: int, caption: str) -> Table:
+    """The details of each failing member in two wrapped lines beside its name: the wide layout
+    for a console too narrow for its columns."""
+    t = Table.grid(padding=(0, 2, 0, 0))
+    t.title, t.title_justify, t.caption, t.caption_justify = Text(title, style="bold"), "left", Text(caption), "left"
+    t.add_column(no_wrap=True)
+    t.add_column(ratio=1)
+    for i in range(n):
+        verdict = Text.assemble(f"{cols['Check'][i]} · ratio ", (cols["Ratio"][i], "bold red"),
+                                f" · load case {cols['Load case'][i]} · replacement {cols['Replacement'][i]}")
+        about = Text(f"GlobalId {cols['GlobalId'][i]} · {cols['Class / type'][i]} · storey {cols['Storey'][i]} · "
+                     f"section {cols['Section'][i]} · material {cols['Material'][i]} · "
+                     f"demand {cols['Demand'][i]}, capacity {cols['Capacity'][i]}", style="dim")
+        t.add_row(Text(cols["Member"][i]), Text.assemble(verdict, "\n", about))
+    return t
+
+
+def _limits(columns: list[tuple[str, str, list[str]]]) -> tuple[list[int], list[int]]:
+    """(narrowest, widest) of each column: its longest word (a right-aligned number with its unit
+    is one word) and its longest line."""
+    mins = [max(_words(cells) if justify != "right" else max([len(c) for c in cells] or [1]), _words([header]))
+            for header, justify, cells in columns]
+    maxs = [max([len(line) for c in [header, *cells] for line in str(c).splitlines()] or [1])
+            for header, _, cells in columns]
+    return mins, maxs
 
 
 def _unit_label(unit: Any) -> str:

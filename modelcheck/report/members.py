@@ -105,8 +105,7 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str) -> Any
                       (f"A [{units.unit('area')}]", "right"), (f"r min [{units.unit('r_min')}]", "right"),
                       (f"L [{units.unit('length')}]", "right"), ("Material", "left"),
                       (f"Fy [{units.unit('Fy')}]", "right"), ("Notes", "left")):
-        t.add_column(Text(_unit_header(col)), justify=just, overflow="fold",  # type: ignore[arg-type]
-                     min_width=22 if col == "GlobalId" else None)   # a GlobalId is 22 characters, kept whole
+        t.add_column(Text(_unit_header(col)), justify=just, overflow="fold")  # type: ignore[arg-type]
 
     def num(v: float, q: str) -> str:
         return "—" if v is None or not math.isfinite(v) else plain(units.convert(q, v))
