@@ -469,6 +469,7 @@ def check_document(run: Any, *, comparison: dict[str, Any] | None = None,
         "ruleset": {"name": rs.name, "path": str(rs.path), "basis": getattr(rs, "basis", "") or "",
                     "units": getattr(rs, "units", "") or ""},
         "models": [{"path": m.path, "schema": m.schema, "error": m.error, "members": int(m.member_count),
+                    "units": getattr(m, "units", None),
                     "warnings": list(m.warnings) + list(m.force_messages) + list(m.validation)}
                    for m in run.models],
         "results": ((EncodedRows(run.json_rows) if getattr(run, "json_rows", None) is not None

@@ -265,7 +265,7 @@ def failing_table(results: pd.DataFrame, members: pd.DataFrame, details: bool = 
     rows = [[Text(cols[c][i], style="bold red" if c == "Ratio" else "") for c in order]
             for i in range(len(worst))]
     title = f"Failing members: {total} ({total_checks} failing checks), worst first"
-    caption = "Check: the member's governing check; (+n): n more of its checks fail"
+    caption = "(+n): n more of the member's checks fail"
     if total > MAX_FAILING_ROWS:
         caption += f"; the worst {MAX_FAILING_ROWS} shown, every one in --format csv, json or html"
     if details and _fit(*_limits(columns), width) is None:

@@ -1,0 +1,321 @@
+"""The console report of `modelcheck check`: it fits 80–200 columns without breaking a word, reads
+names as text (never as markup), always says what each model verified, and shows results in the
+model's own system of units.
+
+The models are built in code. Numbers checked against pint: f = P/A for a round bar (common
+practice), A = π d²/4 (geometry).
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import subprocess
+import sys
+from pathlib import Path
+
+import pandas as pd
+import pytest
+from rich.cells import cell_len
+from rich.console import Console
+
+from modelcheck.ifc.author import ModelBuilder
+from modelcheck.pipeline import ForceOptions, run_check
+from modelcheck.report.console import DEFAULT_WIDTH, console_width, governing, render_check
+from modelcheck.rules.ruleset import load_ruleset
+from modelcheck.rules.select import Selector
+from modelcheck.units import Q_
+from tests.conftest import REPO
+
+
+def flat(text: str) -> str:
+    """The text with every run of white space one space (lines wrapped at any width read as one)."""
+    return " ".join(text.split())
+
+
+def run(*args: str, cwd: Path | None = None, env: dict[str, str] | None = None) -> subprocess.CompletedProcess:
+    import os
+
+    environ = {k: v for k, v in os.environ.items() if k != "COLUMNS"} | (env or {})
+    return subprocess.run([sys.executable, "-m", "modelcheck", *args], capture_output=True, text=True,
+                          timeout=300, cwd=cwd or REPO, env=environ)
+
+
+def force(kn: float) -> dict[str, dict[str, tuple[str, float]]]:
+    return {"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", kn * 1000.0)}}   # N in a mm model
+
+
+# ------------------------------------------------------------------------------ models
+def mixed_model(path: Path) -> Path:
+    """Rods, an I section, an angle-free mix of long names, a name full of markup, members that
+    lack data and one the steel rule sets leave out (concrete)."""
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    s355 = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    unknown = mb.material("Product 7", category=None)                   # no strengths anywhere
+    concrete = mb.material("C30/37", category="concrete", E=33000.0)
+    rod = lambda d, name: mb.f.createIfcCircleProfileDef("AREA", name, None, d / 2)  # noqa: E731
+    ub = mb.f.createIfcIShapeProfileDef("AREA", "UB 203x133x25", None, 133.2, 203.2, 5.7, 7.8, None)
+    for i, kn in enumerate((60.0, 140.0, 95.0, 20.0)):
+        mb.member("IfcMember", name=f"Hanger rod over platform bay {i + 1}", tag=f"HR-{i + 1:02d}",
+                  profile=rod(16.0, "RD16 (M16 hanger rod)"), material=s355, length=3400.0, psets=force(kn))
+    mb.member("IfcMember", name="Roof tie [bold]north[/] side", profile=ub, material=s355, length=6000.0,
+              psets=force(1400.0))
+    mb.member("IfcMember", name="Strut without strengths", tag="ST-09", profile=rod(30.0, "RD30"), material=unknown,
+              length=2500.0, psets=force(10.0))
+    mb.member("IfcMember", name="Rod with no force", tag="TR-04", profile=rod(20.0, "RD20"), material=s355,
+              length=2000.0)
+    mb.member("IfcColumn", name="Concrete post", tag="CP-1", profile=rod(300.0, "D300"), material=concrete,
+              length=3000.0, psets=force(200.0))
+    p = path / "mixed.ifc"
+    mb.write(str(p))
+    return p
+
+
+@pytest.fixture(scope="module")
+def mixed_run(tmp_path_factory):
+    p = mixed_model(tmp_path_factory.mktemp("mixed"))
+    return run_check([str(p)], load_ruleset("steel-asd-us"), ForceOptions(property=("MC_MemberForces", "AxialForce")))
+
+
+def rendered(run_, width: int, details: bool | None = None) -> str:
+    buf = io.StringIO()
+    render_check(run_, Console(file=buf, width=width, emoji=False, highlight=False), details=details)
+    return buf.getvalue()
+
+
+# ------------------------------------------------------------------------------ item: fits the terminal
+@pytest.mark.parametrize("width", [80, 100, 120, 200])
+def test_the_console_fits_the_width_and_breaks_no_word(mixed_run, width):
+    text = rendered(mixed_run, width)
+    assert max(cell_len(line) for line in text.splitlines()) <= width
+    g = governing(mixed_run.results)
+    fails = g[g["status"] == "fail"]
+    unchecked = g[g["status"] == "unchecked"]
+    assert len(fails) and len(unchecked)
+    # every word of what each listed member's line says, whole in the output
+    words: set[str] = set()
+    # each failing member on its governing check: the highest ratio of its failing checks
+    fails = fails.sort_values("ratio", ascending=False, kind="stable").drop_duplicates(["model", "global_id"])
+    for rec in fails.to_dict("records"):
+        words |= set(str(rec["tag"] or rec["name"]).split()) | {rec["check"], str(rec["load_case"])}
+        words |= set(str(rec["suggestion"]["designation"]).split()) if isinstance(rec["suggestion"], dict) else set()
+    for rec in unchecked.to_dict("records"):
+        words |= set(str(rec["tag"] or rec["name"]).split())
+        words |= {w for m in rec["missing"] for w in m.split()}
+    broken = sorted(w for w in words if w not in text)
+    assert not broken, f"words broken at {width} columns: {broken}"
+    if width >= 160:   # the details: GlobalId, section and material of each failing member
+        for gid in fails["global_id"]:
+            assert gid in text
+        assert "UB 203x133x25" in text.replace("\n", " ") or "203x133x25" in text
+
+
+@pytest.mark.parametrize("width", [80, 120])
+def test_details_on_request_fit_a_narrow_console(mixed_run, width):
+    text = rendered(mixed_run, width, details=True)
+    assert max(cell_len(line) for line in text.splitlines()) <= width
+    g = governing(mixed_run.results)
+    for gid in g.loc[g["status"] == "fail", "global_id"]:
+        assert gid in text            # a GlobalId (22 characters) is never folded
+
+
+def test_compact_layout_below_the_details_width_wide_layout_from_it(mixed_run):
+    narrow, wide = rendered(mixed_run, 120), rendered(mixed_run, 200)
+    g = governing(mixed_run.results)
+    gid = g.loc[g["status"] == "fail", "global_id"].iloc[0]
+    assert gid not in narrow and "Material" not in narrow
+    assert gid in wide and "Material" in wide and "Demand" in wide
+
+
+def test_width_terminal_else_columns_else_100(monkeypatch):
+    class NotATerminal(io.StringIO):
+        def isatty(self) -> bool:
+            return False
+
+    monkeypatch.delenv("COLUMNS", raising=False)
+    assert console_width(NotATerminal()) == DEFAULT_WIDTH == 100
+    monkeypatch.setenv("COLUMNS", "132")
+    assert console_width(NotATerminal()) == 132
+
+
+def test_long_warnings_wrap_at_word_boundaries(mixed_run):
+    text = rendered(mixed_run, 80)
+    # the member without strengths: its missing-input text wraps, each word whole (checked above);
+    # here the model line: every word of the summary whole at 80 columns
+    first = mixed_run.models[0]
+    for word in f"{first.path} members found checked excluded".split():
+        assert word in text
+
+
+# ------------------------------------------------------------------------------ item: markup
+def test_names_holding_markup_are_shown_as_written(mixed_run):
+    text = rendered(mixed_run, 200)
+    assert "[bold]north[/]" in text
+
+
+def test_members_headers_keep_their_units_and_areas_are_plain(tmp_path):
+    p = mixed_model(tmp_path)
+    r = run("members", str(p), env={"COLUMNS": "200"})
+    assert r.returncode == 0, r.stderr
+    assert "A [mm²]" in r.stdout and "L [m]" in r.stdout and "Fy [MPa]" in r.stdout
+    assert "[bold]north[/]" in r.stdout
+    # π/4 · 300² = 70686 mm² (geometry, pint for the arithmetic) in plain decimals, not 7.069e+04
+    area = Q_(math.pi / 4 * 300.0**2, "mm**2").m_as("mm**2")
+    assert f"{round(area, -1):.0f}" in r.stdout and "e+0" not in r.stdout
+
+
+# ------------------------------------------------------------------------------ item: never silent
+def test_a_run_writing_only_files_still_prints_a_line_per_model(tmp_path):
+    p = mixed_model(tmp_path)
+    out = tmp_path / "r.json"
+    r = run("check", str(p), "--format", "json", "--output", str(out), "--jobs", "1")
+    assert r.returncode == 1
+    assert "mixed.ifc" in r.stdout and "8 members found" in flat(r.stdout)
+    # a report on standard output: the line goes to standard error, the JSON stays clean
+    r = run("check", str(p), "--format", "json", "--jobs", "1")
+    json.loads(r.stdout)
+    assert "members found" in flat(r.stderr) and "members" not in r.stdout.split('"results"')[0].split('"models"')[0]
+
+
+def test_nothing_checked_is_the_headline_and_exit_1(tmp_path):
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    bare = mb.material("Product 7")
+    for i in range(3):
+        mb.member("IfcMember", name=f"Bare {i}", profile=mb.f.createIfcCircleProfileDef("AREA", "RD20", None, 10.0),
+                  material=bare, length=1000.0, psets=force(5.0))
+    p = tmp_path / "bare.ifc"
+    mb.write(str(p))
+    r = run("check", str(p), "--jobs", "1", env={"COLUMNS": "300"})
+    assert r.returncode == 1, r.stdout + r.stderr
+    line = next(x for x in r.stdout.splitlines() if "bare.ifc" in x)
+    assert "nothing could be checked" in line and "3 members found, 0 checked" in line
+    assert "3 unchecked" in line
+    # the same with only a file written, and whatever the format
+    r = run("check", str(p), "--format", "junit", "--output", str(tmp_path / "r.xml"), "--jobs", "1")
+    assert r.returncode == 1 and "nothing could be checked" in flat(r.stdout)
+
+
+def test_every_member_excluded_is_nothing_checked_with_the_reason(tmp_path):
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    concrete = mb.material("C30/37", category="concrete", E=33000.0)
+    for i in range(5):
+        mb.member("IfcColumn", name=f"Post {i}", profile=mb.f.createIfcCircleProfileDef("AREA", "D300", None, 150.0),
+                  material=concrete, length=3000.0, psets=force(200.0))
+    p = tmp_path / "posts.ifc"
+    mb.write(str(p))
+    r = run("check", str(p), "--jobs", "1", env={"COLUMNS": "300"})
+    assert r.returncode == 1
+    line = next(x for x in r.stdout.splitlines() if "posts.ifc" in x)
+    assert "nothing could be checked" in line
+    assert "5 excluded by the rule set's selection: material category concrete" in line
+
+
+def test_exit_code_1_for_nothing_checked_is_documented():
+    r = run("check", "--help")
+    assert "none" in r.stdout and "could be checked" in r.stdout
+    readme = (REPO / "README.md").read_text(encoding="utf-8")
+    assert "nothing could be checked" in readme
+
+
+def test_excluded_members_are_counted_with_the_selectors_reason():
+    members = pd.DataFrame({"ifc_class": ["IfcMember"] * 4, "shape": ["round-bar", "flat-bar", None, "flat-bar"],
+                            "material_category": ["concrete", None, None, "steel"]})
+    sel = Selector((("shape", ("round-bar", "flat-bar")),),
+                   exclude=Selector((("material_category", ("concrete*",)),)))
+    out = sel.left_out(members[~sel.mask(members)])
+    assert out == [("material category concrete", 1), ("shape unknown", 1)]
+    assert Selector((("any_name", ("*rod*",)),)).left_out(pd.DataFrame({"name": ["Brace"]})) == [
+        ("no name matching *rod*", 1)]
+
+
+def test_the_no_force_warning_is_not_repeated_beside_the_unchecked_list(mixed_run):
+    text = rendered(mixed_run, 200)
+    assert "no axial force from any route" not in text
+    assert "P: no axial force" in text and "TR-04" in text
+    model = mixed_run.models[0]
+    assert any("no axial force from any route" in w for w in model.force_messages)   # still in the JSON
+
+
+# ------------------------------------------------------------------------------ item: units follow the model
+def formats_of(tmp_path: Path, model: Path, *extra: str) -> dict[str, str]:
+    out = tmp_path / ("out" + "-".join(extra))
+    r = run("check", str(model), "--format", "json,csv,junit,bcf,html", "--output", str(out), "--jobs", "1", *extra)
+    assert r.returncode == 1, r.stderr
+    import zipfile
+
+    texts = {ext: (out / f"modelcheck-report.{ext}").read_text(encoding="utf-8") for ext in ("json", "csv", "xml",
+                                                                                           "html")}
+    with zipfile.ZipFile(out / "modelcheck-report.bcfzip") as z:
+        texts["bcf"] = "".join(z.read(n).decode("utf-8") for n in z.namelist() if n.endswith(".bcf"))
+    return texts
+
+
+def test_a_metric_model_is_reported_in_si_by_every_format(tmp_path):
+    p = mixed_model(tmp_path)
+    texts = formats_of(tmp_path, p)
+    doc = json.loads(texts["json"])
+    row = next(r for r in doc["results"] if r["tag"] == "HR-02" and r["check"] == "tension-yield")
+    # f = P/A = 140 kN / (π · 8² mm²) (common practice), in MPa by pint
+    f = (Q_(140.0, "kN") / (math.pi * Q_(8.0, "mm") ** 2)).m_as("MPa")
+    assert row["demand"]["unit"] == "MPa" and row["demand"]["value"] == pytest.approx(f, rel=1e-5)
+    assert {r["demand"]["unit"] for r in doc["results"] if r["demand"] and r["check"].startswith("tension")} == {"MPa"}
+    assert doc["models"][0]["units"] == "SI"
+    rows = list(csv.DictReader(io.StringIO(texts["csv"])))
+    assert {r["unit"] for r in rows if r["check"] == "tension-yield" and r["status"] != "unchecked"} == {"MPa"}
+    for ext in ("xml", "bcf", "html"):
+        assert "MPa" in texts[ext] and "ksi" not in texts[ext], ext
+
+
+def test_units_us_on_request_for_every_format(tmp_path):
+    p = mixed_model(tmp_path)
+    texts = formats_of(tmp_path, p, "--units", "US")
+    doc = json.loads(texts["json"])
+    row = next(r for r in doc["results"] if r["tag"] == "HR-02" and r["check"] == "tension-yield")
+    f = (Q_(140.0, "kN") / (math.pi * Q_(8.0, "mm") ** 2)).m_as("ksi")   # pint
+    assert row["demand"]["unit"] == "ksi" and row["demand"]["value"] == pytest.approx(f, rel=1e-5)
+    for ext in ("xml", "bcf", "html"):
+        assert "ksi" in texts[ext] and "MPa" not in texts[ext], ext
+
+
+def test_an_inch_model_is_reported_in_us_units(tmp_path):
+    mb = ModelBuilder(schema="IFC4", units="inch-kip")
+    a36 = mb.material("ASTM A36", category="steel")
+    rod = mb.f.createIfcCircleProfileDef("AREA", "ROD 3/4", None, 0.375)
+    mb.member("IfcMember", name="Hanger rod", tag="H1", profile=rod, material=a36, length=120.0,
+              psets={"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 15.0)}})   # 15 kip
+    p = tmp_path / "inch.ifc"
+    mb.write(str(p))
+    r = run("check", str(p), "--rules", "steel-ec3", "--format", "json", "--jobs", "1")
+    doc = json.loads(r.stdout)
+    units = {x["demand"]["unit"] for x in doc["results"] if x["demand"] and x["check"].startswith("tension")}
+    assert units == {"ksi"}     # a rule set written in SI, shown in the model's US units
+
+
+def test_a_replacement_comes_from_the_catalogue_of_the_model_system(tmp_path):
+    p = mixed_model(tmp_path)
+
+    def suggestions(*extra: str) -> dict[str, str]:
+        r = run("check", str(p), "--format", "json", "--jobs", "1", *extra)
+        doc = json.loads(r.stdout)
+        return {x["name"]: x["suggestion"]["designation"] for x in doc["results"]
+                if x["status"] == "fail" and x["suggestion"]}
+
+    own, us = suggestions(), suggestions("--units", "US")
+    tie = "Roof tie [bold]north[/] side"
+    # a European UB section: an EN catalogue section (IPE/HEA, shapes-en.csv) by default, a W shape on request
+    assert own[tie].startswith(("IPE", "HE")) and us[tie].startswith("W")
+    # a metric hanger rod: a metric thread (ISO 261) whatever the display (it matches M16)
+    rod = next(k for k in own if k.startswith("Hanger rod"))
+    assert own[rod].startswith("M")
+
+
+def test_ruleset_in_another_system_shows_that_systems_units():
+    asd = load_ruleset("steel-asd-us")
+    assert asd.in_system("US") is asd                               # its own system: as written
+    si = asd.in_system("SI")
+    assert si.check("tension-yield").unit == "MPa" and si.check("elongation").unit == "mm"
+    assert si.check("slenderness-tension").unit == ""               # a number stays a number
+    ec3 = load_ruleset("steel-ec3").in_system("US")
+    assert ec3.check("tension-plastic").unit == "kip" or ec3.check("tension-plastic").unit == "ksi"
