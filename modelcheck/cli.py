@@ -566,11 +566,12 @@ def cmd_check(args: argparse.Namespace) -> int:
         render_check(run, report_console(stderr=bool(files) and not args.output), comparison=comp_view,
                      details=args.details)
     else:   # file formats only: still one line per model, on stderr when a report goes to stdout
-        from modelcheck.report.console import summary_lines
+        from modelcheck.report.console import summary_line
 
         con = report_console(stderr=not args.output)
-        for line in summary_lines(run):
-            con.print(line)
+        for m in run.models:
+            if not m.error:   # an unreadable model has its one error line below
+                con.print(summary_line(m, run.results))
     for m in run.models:
         if m.error:
             print(f"modelcheck: error: {m.error}", file=sys.stderr)

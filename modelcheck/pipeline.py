@@ -488,8 +488,7 @@ def coverage_of(ruleset: Any, members: pd.DataFrame, results: pd.DataFrame) -> C
     from modelcheck.table import STATUS_RANK
 
     if MEMBER_CODE in results.columns:
-        codes = results[MEMBER_CODE].to_numpy(dtype=np.int64)
-        results.drop(columns=MEMBER_CODE, inplace=True)
+        codes = results.pop(MEMBER_CODE).to_numpy(dtype=np.int64)
         n = len(members)
     elif len(results):
         codes, uniques = pd.factorize(results["global_id"].astype(object))

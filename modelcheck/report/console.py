@@ -135,11 +135,6 @@ def _coverage_from(model: Any, results: pd.DataFrame | None) -> Any:
                     int((st == "unchecked").sum()))
 
 
-def summary_lines(run: Any) -> list[Text]:
-    """The summary line of every model of a run."""
-    return [summary_line(m, run.results) for m in run.models]
-
-
 def _warning_grid(items: list[tuple[str, str]], style: str = "yellow") -> Table:
     """Label + text lines with a hanging indent: long texts wrap at word boundaries under the text."""
     grid = Table.grid(padding=(0, 1))
