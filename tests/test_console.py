@@ -192,9 +192,13 @@ def test_nothing_checked_is_the_headline_and_exit_1(tmp_path):
     line = next(x for x in r.stdout.splitlines() if "bare.ifc" in x)
     assert "nothing could be checked" in line and "3 members found, 0 checked" in line
     assert "3 unchecked" in line
-    # the same with only a file written, and whatever the format
+    # the same with only a file written, and whatever the format; the JUnit file fails as the exit code does
     r = run("check", str(p), "--format", "junit", "--output", str(tmp_path / "r.xml"), "--jobs", "1")
     assert r.returncode == 1 and "nothing could be checked" in flat(r.stdout)
+    import xml.etree.ElementTree as ET
+
+    failures = ET.parse(tmp_path / "r.xml").getroot().findall(".//failure")
+    assert len(failures) == 1 and "nothing could be checked" in failures[0].get("message", "")
 
 
 def test_every_member_excluded_is_nothing_checked_with_the_reason(tmp_path):

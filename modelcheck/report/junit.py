@@ -32,7 +32,7 @@ import xml.etree.ElementTree as ET
 from pathlib import Path
 from typing import Any
 
-from modelcheck.report.console import governing
+from modelcheck.report.console import governing, summary_line
 from modelcheck.report.csv_report import member_info
 from modelcheck.report.text import number, xml_text
 
@@ -123,6 +123,15 @@ def junit_tree(run: Any, *, strict: bool = False) -> ET.Element:
                 else:
                     ET.SubElement(case, "skipped", {"message": xml_text(f"unchecked: missing {missing}")})
                     counts["skipped"] += 1
+        coverage = getattr(model, "coverage", None)
+        if coverage is not None and coverage.verified_nothing:   # the exit code counts it: so does the file
+            case = ET.SubElement(suite, "testcase", {"classname": _stem(model.path), "name": "members checked",
+                                                     "time": "0"})
+            text = xml_text(summary_line(model).plain)
+            el = ET.SubElement(case, "failure", {"message": text, "type": "nothing-checked"})
+            el.text = text
+            counts["tests"] += 1
+            counts["failures"] += 1
         for k, v in counts.items():
             suite.set(k, str(v))
             totals[k] += v
