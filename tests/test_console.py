@@ -199,6 +199,9 @@ def test_nothing_checked_is_the_headline_and_exit_1(tmp_path):
 
     failures = ET.parse(tmp_path / "r.xml").getroot().findall(".//failure")
     assert len(failures) == 1 and "nothing could be checked" in failures[0].get("message", "")
+    # the JSON report alone (its rows made without a results table) tells the same
+    r = run("check", str(p), "--format", "json", "--output", str(tmp_path / "r.json"), "--jobs", "1")
+    assert r.returncode == 1 and "nothing could be checked" in flat(r.stdout)
 
 
 def test_every_member_excluded_is_nothing_checked_with_the_reason(tmp_path):
