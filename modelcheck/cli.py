@@ -421,12 +421,10 @@ def force_summary(d: Any) -> dict[str, Any]:
 
 # ---------------------------------------------------------------------------- rules
 def cmd_rules(args: argparse.Namespace) -> int:
-    from rich.console import Console
-
     from modelcheck.rules import ruleset as rs
     from modelcheck.rules import show
 
-    con = Console()
+    con = report_console()
     if args.action == "list":
         con.print(show.ruleset_list(rs.list_rulesets()))
         return EXIT_OK
