@@ -555,14 +555,14 @@ def cmd_check(args: argparse.Namespace) -> int:
     if "console" in formats:
         from modelcheck.report.console import render_check  # rich: imported only for a console report
 
+        # console report on stdout unless a file format goes to stdout
+        con = report_console(stderr=bool(files) and not args.output)
         comp_view = None
         if comparison is not None:
             from modelcheck.report.compare import comparison_renderable
 
-            comp_view = comparison_renderable(comparison)
-        # console report on stdout unless a file format goes to stdout
-        render_check(run, report_console(stderr=bool(files) and not args.output), comparison=comp_view,
-                     details=args.details)
+            comp_view = comparison_renderable(comparison, width=con.width)
+        render_check(run, con, comparison=comp_view, details=args.details)
     else:   # file formats only: still one line per model, on stderr when a report goes to stdout
         from modelcheck.report.console import summary_line
 

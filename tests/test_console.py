@@ -326,3 +326,17 @@ def test_ruleset_in_another_system_shows_that_systems_units():
     assert si.check("slenderness-tension").unit == ""               # a number stays a number
     ec3 = load_ruleset("steel-ec3").in_system("US")
     assert ec3.check("tension-plastic").unit == "kip" or ec3.check("tension-plastic").unit == "ksi"
+
+
+@pytest.mark.parametrize("width", [100, 120])
+def test_the_baseline_comparison_fits_the_console(width):
+    from modelcheck.report.check_json import check_document
+    from modelcheck.report.compare import compare, comparison_renderable
+    from tests.report_runs import GID_D, make_run
+
+    cmp = compare(check_document(make_run(d_demand=200.0)), check_document(make_run()))
+    buf = io.StringIO()
+    Console(file=buf, width=width).print(comparison_renderable(cmp, width=width))
+    text = buf.getvalue()
+    assert max(cell_len(line) for line in text.splitlines()) <= width
+    assert GID_D in text and "axial_stress" in text and "New failures (1)" in text

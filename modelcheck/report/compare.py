@@ -182,8 +182,9 @@ def load_baseline(path: str | os.PathLike[str]) -> dict[str, Any]:
 
 
 # ------------------------------------------------------------------------------- console
-def comparison_renderable(cmp: dict[str, Any], *, max_rows: int = 30) -> Any:
-    """A rich renderable: one summary line, then new failures and resolved results."""
+def comparison_renderable(cmp: dict[str, Any], *, max_rows: int = 30, width: int = 100) -> Any:
+    """A rich renderable for a console ``width`` wide: one summary line, then new failures and
+    resolved results."""
     from rich.console import Group
     from rich.table import Table
     from rich.text import Text
@@ -204,17 +205,19 @@ def comparison_renderable(cmp: dict[str, Any], *, max_rows: int = 30) -> Any:
         parts.append(Text(f"  note: {note}", style="yellow"))
 
     def table(title: str, rows: list[dict[str, Any]], style: str, extra: str) -> Table:
-        t = Table(title=Text(title), title_justify="left", header_style="bold")
-        for col in ("Model", "GlobalId", "Check", "Load case", "Ratio", extra):
-            t.add_column(col, overflow="fold", justify="right" if col in ("Ratio", extra) else "left")
-        for e in rows[:max_rows]:
-            other = e.get("baseline_ratio") if extra == "Baseline ratio" else e.get("baseline_status")
-            t.add_row(Text(str(e["model"])), Text(str(e["global_id"])), Text(str(e["check"])),
-                      Text(str(e["load_case"] or "—")), Text(_num(e.get("ratio")), style=style),
-                      Text(_num(other) if extra == "Baseline ratio" else str(other or "absent")))
-        if len(rows) > max_rows:
-            t.caption = Text(f"… and {len(rows) - max_rows} more (see the JSON report)")
-        return t
+        from modelcheck.report.console import fitted_table
+
+        shown = rows[:max_rows]
+        cells = {"Model": [str(e["model"]) for e in shown], "GlobalId": [str(e["global_id"]) for e in shown],
+                 "Check": [str(e["check"]) for e in shown], "Load case": [str(e["load_case"] or "—") for e in shown],
+                 "Ratio": [_num(e.get("ratio")) for e in shown],
+                 extra: [_num(e.get("baseline_ratio")) if extra == "Baseline ratio"
+                         else str(e.get("baseline_status") or "absent") for e in shown]}
+        columns = [(c, "right" if c in ("Ratio", extra) else "left", v) for c, v in cells.items()]
+        body = [[Text(v[i], style=style if c == "Ratio" else "") for c, v in cells.items()]
+                for i in range(len(shown))]
+        more = f"… and {len(rows) - max_rows} more (see the JSON report)" if len(rows) > max_rows else None
+        return fitted_table(title, columns, body, width, more)
 
     if cmp["new_failures"]:
         parts.append(table(f"New failures ({c['new_failures']})", cmp["new_failures"], "bold red",

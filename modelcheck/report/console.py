@@ -180,7 +180,7 @@ def _fit(mins: list[int], maxs: list[int], width: int) -> list[int] | None:
     return widths
 
 
-def _table(title: str, columns: list[tuple[str, str, list[str]]], rows: list[list[Text]], width: int,
+def fitted_table(title: str, columns: list[tuple[str, str, list[str]]], rows: list[list[Text]], width: int,
            caption: str | None = None, leading: int = 0) -> Table:
     """A light table that fits ``width`` without breaking a word, where the words fit at all.
 
@@ -265,7 +265,7 @@ def failing_table(results: pd.DataFrame, members: pd.DataFrame, details: bool = 
         caption += f"; the worst {MAX_FAILING_ROWS} shown, every one in --format csv, json or html"
     if details and _fit(*_limits(columns), width) is None:
         return _stacked(title, cols, len(worst), caption)
-    return _table(title, columns, rows, width, caption)
+    return fitted_table(title, columns, rows, width, caption)
 
 
 def _stacked(title: str, cols: dict[str, list[str]], n: int, caption: str) -> Table:
@@ -331,7 +331,7 @@ def unchecked_table(results: pd.DataFrame, details: bool = False, width: int = D
     columns = [("Missing input (and where it was looked for)", "left", missing_col),
                ("Members", "right", count_col), ("Which", "left", who_col)]
     rows = [[Text(missing_col[i]), Text(count_col[i]), Text(who_col[i])] for i in range(len(missing_col))]
-    return _table(f"Unchecked members: {len(lack)}, grouped by what they lack", columns, rows, width,
+    return fitted_table(f"Unchecked members: {len(lack)}, grouped by what they lack", columns, rows, width,
                   leading=1 if any(len(m) > 1 for m in groups) else 0)
 
 
