@@ -569,7 +569,7 @@ def cmd_check(args: argparse.Namespace) -> int:
         con = report_console(stderr=not args.output)
         for m in run.models:
             if not m.error:   # an unreadable model has its one error line below
-                con.print(summary_line(m, run.results))
+                con.print(summary_line(m, run.results), soft_wrap=True)   # one line, whatever its length
     for m in run.models:
         if m.error:
             print(f"modelcheck: error: {m.error}", file=sys.stderr)

@@ -27,6 +27,9 @@ from typing import Any
 from modelcheck.cli import main
 from modelcheck.ifc.author import ModelBuilder
 
+#: the summary line of a model (one line, printed whatever the formats)
+SUMMARY_RE = re.compile(r"\): (nothing could be checked — )?\d+ members found, \d+ checked — ")
+
 #: a member's GlobalId as ifcopenshell.guid writes it (22 characters of the IFC base-64 alphabet)
 GUID_RE = re.compile(r"[0-9A-Za-z_$]{22}")
 
@@ -47,8 +50,9 @@ class Outcome:
 
     @property
     def lines(self) -> list[str]:
-        """Non-empty stderr lines."""
-        return [ln for ln in self.stderr.splitlines() if ln.strip()]
+        """Non-empty stderr lines but the summary line of each model (``path (schema, units):
+        N members found, …``), which a run writing its report to standard output prints there."""
+        return [ln for ln in self.stderr.splitlines() if ln.strip() and not SUMMARY_RE.search(ln)]
 
     @property
     def errors(self) -> list[str]:

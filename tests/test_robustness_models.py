@@ -487,7 +487,8 @@ def test_missing_unit_assignments_leave_members_unchecked_and_say_why(capsys, tm
     p = write_model(mb, tmp_path / "no-units.ifc")
     assert "IFCUNITASSIGNMENT" not in p.read_text(encoding="ascii")
     out, doc = check_json(capsys, p)
-    assert out.code == 0 and out.lines == [], out.stderr   # nothing failed; --strict would say 1
+    assert out.code == 1 and out.lines == [], out.stderr   # nothing failed, but nothing could be checked
+    assert "nothing could be checked" in out.stderr
     assert statuses(doc) == {"H1": {"unchecked"}, "H2": {"unchecked"}}
     assert {"A", "L", "P"} <= missing_of(doc, "H1")
     warnings = " | ".join(doc["models"][0]["warnings"])
@@ -500,14 +501,14 @@ def test_missing_unit_assignments_leave_members_unchecked_and_say_why(capsys, tm
     # no LENGTHUNIT: no section, no length
     p = _without_unit(good_builder(), tmp_path / "no-length-unit.ifc", "LENGTHUNIT")
     out, doc = check_json(capsys, p)
-    assert out.code == 0 and statuses(doc) == {"H1": {"unchecked"}, "H2": {"unchecked"}}
+    assert out.code == 1 and statuses(doc) == {"H1": {"unchecked"}, "H2": {"unchecked"}}   # nothing checked
     assert {"A", "L"} <= missing_of(doc, "H2") and "P" not in missing_of(doc, "H2")
     assert any("no LENGTHUNIT" in w for w in doc["models"][0]["warnings"])
     # no FORCEUNIT, but the forces are IfcForceMeasure: never assumed to be newtons
     mb = good_builder(force_unit=False)
     p = write_model(mb, tmp_path / "no-force-unit.ifc")
     out, doc = check_json(capsys, p)
-    assert out.code == 0 and statuses(doc) == {"H1": {"unchecked"}, "H2": {"unchecked"}}
+    assert out.code == 1 and statuses(doc) == {"H1": {"unchecked"}, "H2": {"unchecked"}}   # nothing checked
     assert missing_of(doc, "H1") == {"P"}
     line = next(w for w in doc["models"][0]["warnings"] if "FORCEUNIT" in w)
     assert str(p) in line and all(gid in line for gid in member_ids(mb).values())

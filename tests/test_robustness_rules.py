@@ -203,7 +203,8 @@ def test_a_capacity_that_is_no_finite_number_leaves_members_unchecked(capsys, mo
     assert out.code == 0, out.stderr
     out = run_inprocess(capsys, ["check", str(model), "--rules", str(path), "--jobs", "1", "--no-config",
                                  "--format", "json"], inputs=[path, model])
-    assert out.code == 0 and out.lines == [], out.stderr      # no numpy warning on stderr either
+    # nothing failed, but nothing could be checked: exit 1; no numpy warning on stderr either
+    assert out.code == 1 and out.lines == [], out.stderr
     results = out.json()["results"]
     assert results and {r["status"] for r in results} == {"unchecked"}
     assert all("finite" in r["message"] for r in results)
