@@ -351,32 +351,40 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
     bytes returned when None): the results of a large model never exist whole as rows of text
     beside their table. ``slim`` keeps only the status column of the results. The rows are in the
     report's order (GlobalId, check, load case), as one run over all members would give them.
+    The results carry the columns :data:`MEMBER_CODE` and (but for ``slim``) :data:`STATUS_CODE`,
+    which :func:`coverage_of` reads and drops.
     """
     from modelcheck.design.suggest import suggest
     from modelcheck.report.check_json import ROW_SEPARATOR, encode_results
-    from modelcheck.rules.engine import run_checks
+    from modelcheck.rules.engine import check_rows, empty_results
 
-    def evaluate(m: pd.DataFrame, f: pd.DataFrame) -> pd.DataFrame:
-        res = run_checks(ruleset, m, f)
+    def evaluate(m: pd.DataFrame, f: pd.DataFrame) -> tuple[pd.DataFrame, np.ndarray, np.ndarray]:
+        rows = check_rows(ruleset, m, f)
+        res = empty_results() if rows is None else rows.frame()
         if (res["status"] == "fail").any():
             res = suggest(ruleset, m, f, res)
-        return res
+        if rows is None:
+            return res, np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int8)
+        return res, rows.member.astype(np.int64), rows.status.astype(np.int8)
 
     if not encode_json:
-        return evaluate(members, forces), None
+        res, member, code = evaluate(members, forces)
+        res[MEMBER_CODE], res[STATUS_CODE] = member, code
+        return res, None
     kept: list[pd.DataFrame] = []
     encoded: list[bytes] = []
-    offset = 0
+    offset = 0   # member codes run on over the runs of members
     for m, f in _runs_of_members(members, forces):
         if slim:   # the statuses alone come back: the rows are encoded without a results table
             status, member, text = _slim_rows(ruleset, m, f, sink)   # into the sink, when given, as they are joined
-            # a categorical: small to send back, quick to count; the member codes are dropped by coverage_of
+            # a categorical: small to send back, quick to count
             kept.append(pd.DataFrame({"status": status, MEMBER_CODE: member + offset}))
-            offset += len(m)
         else:
-            res = evaluate(m, f)
+            res, member, code = evaluate(m, f)
             text = encode_results(res)
+            res[MEMBER_CODE], res[STATUS_CODE] = member + offset, code
             kept.append(res)
+        offset += len(m)
         if text:
             if sink is None:
                 encoded.append(text)
@@ -437,9 +445,9 @@ def _runs_of_members(members: pd.DataFrame, forces: pd.DataFrame) -> Any:
         yield ranked.iloc[start:stop], forces[f_run == r]
 
 
-#: a slim results table's column of member positions (in the member table checked), read and
-#: dropped by coverage_of
-MEMBER_CODE = "_member"
+#: the results' columns of each row's member (its position in the member table checked) and
+#: status code (table.STATUS_RANK), read and dropped by coverage_of
+MEMBER_CODE, STATUS_CODE = "_member", "_status"
 
 
 @dataclass(frozen=True)
@@ -483,8 +491,9 @@ class Coverage:
 
 
 def coverage_of(ruleset: Any, members: pd.DataFrame, results: pd.DataFrame) -> Coverage:
-    """The Coverage of ``members`` (one model, or a part of one) by their ``results``; a slim
-    results table's member positions (:data:`MEMBER_CODE`) are read and dropped here."""
+    """The Coverage of ``members`` (one model, or a part of one) by their ``results``; the
+    results' member positions and status codes (:data:`MEMBER_CODE`, :data:`STATUS_CODE`) are
+    read and dropped here."""
     from modelcheck.table import STATUS_RANK
 
     if MEMBER_CODE in results.columns:
@@ -496,11 +505,16 @@ def coverage_of(ruleset: Any, members: pd.DataFrame, results: pd.DataFrame) -> C
     else:
         codes, n = np.zeros(0, dtype=np.int64), 0
     counts = [0, 0, 0]
+    given = results.pop(STATUS_CODE).to_numpy(dtype=np.int64) if STATUS_CODE in results.columns else None
     if len(codes):
         status = results["status"]
-        rank = (status.cat.codes.to_numpy() if isinstance(status.dtype, pd.CategoricalDtype)
-                and list(status.cat.categories) == list(STATUS_RANK)
-                else status.map(STATUS_RANK).to_numpy())
+        if given is not None:
+            rank = given
+        elif isinstance(status.dtype, pd.CategoricalDtype) and list(status.cat.categories) == list(STATUS_RANK):
+            rank = status.cat.codes.to_numpy()
+        else:   # each distinct text ranked once
+            found, names = pd.factorize(status)
+            rank = np.array([STATUS_RANK[str(x)] for x in names], dtype=np.int64)[found]
         worst = np.full(n, len(STATUS_RANK), dtype=np.int64)
         np.minimum.at(worst, codes, rank.astype(np.int64))
         counts = np.bincount(worst, minlength=len(STATUS_RANK) + 1)[:len(STATUS_RANK)].tolist()
