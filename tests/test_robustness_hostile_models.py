@@ -141,7 +141,7 @@ def test_a_force_unit_assigned_twice_leaves_forces_from_the_model_unchecked(caps
     path = write_model(mb, tmp_path / "force-units.ifc")
     out = check(capsys, path)
     doc = out.json()
-    assert out.code == 0 and out.lines == [], out.stderr
+    assert out.code == 1 and out.lines == [], out.stderr   # nothing could be checked: exit 1
     ids = member_ids(mb)
     for gid in ids.values():   # every check of the shipped rule set needs the force (its 'when' at least)
         assert statuses_of(doc, gid) == {"unchecked"}
@@ -233,7 +233,8 @@ def test_a_capacity_that_is_not_a_positive_finite_value_never_passes(capsys, tmp
         unit = "MPa"
         """)
     out = check(capsys, model, extra=("--rules", str(rules)), inputs=(rules,))
-    assert out.code == 0 and out.lines == [], out.stderr   # no numpy warning either
+    # nothing could be checked: exit 1; no numpy warning either
+    assert out.code == 1 and out.lines == [], out.stderr
     rows = out.json()["results"]
     assert rows and {r["status"] for r in rows} == {"unchecked"}
     for r in rows:
@@ -253,7 +254,7 @@ def test_a_demand_that_is_not_finite_never_passes(capsys, tmp_path, two_hangers,
         """)
     out = check(capsys, model, extra=("--rules", str(rules)), inputs=(rules,))
     rows = out.json()["results"]
-    assert out.code == 0 and rows and {r["status"] for r in rows} == {"unchecked"}
+    assert out.code == 1 and rows and {r["status"] for r in rows} == {"unchecked"}   # nothing could be checked
     assert all("demand is not a finite number" in r["message"] for r in rows)
 
 

@@ -120,7 +120,7 @@ def summary_line(model: Any, results: pd.DataFrame | None = None) -> Text:
         head.append(f"; {cov.excluded_count} excluded by the rule set's selection: "
                     + "; ".join(f"{reason} ({n})" if several else reason for reason, n in cov.excluded))
     if cov.uncovered:
-        head.append(f"; {cov.uncovered} met by no check of the rule set")
+        head.append(f"; {cov.uncovered} with no check of the rule set that applies")
     return head
 
 
