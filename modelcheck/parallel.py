@@ -498,8 +498,9 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
     from modelcheck.rules.ruleset import load_ruleset
     from modelcheck.rules.select import exclusion_lines
 
-    data.warnings += exclusion_lines({k: sorted(v) for k, v in sorted(excluded.items())},
-                                     load_ruleset(ruleset_ref).select)
+    data.exclusion_messages = exclusion_lines({k: sorted(v) for k, v in sorted(excluded.items())},
+                                              load_ruleset(ruleset_ref).select)
+    data.warnings += data.exclusion_messages
     data.matched_rows = set().union(*(o.matched_rows for o in outs))
     data.coverage = sum((o.coverage for o in outs[1:]), outs[0].coverage)
     log = outs[0].prop_log

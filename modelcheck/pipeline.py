@@ -34,6 +34,7 @@ class ModelData:
     units: str | None = None                 # the system its check results are shown in
     coverage: Coverage | None = None         # how its members fared in the check
     no_force_message: str | None = None      # the force_messages line naming members with no force
+    exclusion_messages: list[str] = field(default_factory=list)   # the warnings naming excluded members
     members: pd.DataFrame | None = None
     member_count: int = 0
     forces: pd.DataFrame = field(default_factory=empty_forces)
@@ -321,7 +322,8 @@ def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: boo
     data.units = ruleset.units
     from modelcheck.rules.select import excluded_members, exclusion_lines
 
-    data.warnings = data.warnings + exclusion_lines(excluded_members(ruleset.select, data.members), ruleset.select)
+    data.exclusion_messages = exclusion_lines(excluded_members(ruleset.select, data.members), ruleset.select)
+    data.warnings = data.warnings + data.exclusion_messages
     if encode_json and row_file is not None:
         with os.fdopen(os.dup(row_file), "wb") as sink:
             results, _ = evaluate_members(ruleset, data.members, data.forces, encode_json=True, slim=slim,

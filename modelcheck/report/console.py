@@ -145,11 +145,16 @@ def _warning_grid(items: list[tuple[str, str]], style: str = "yellow") -> Table:
     return grid
 
 
-def model_warnings(model: Any) -> list[str]:
-    """The warnings the console lists for a model: the member-list warning of the force join is
-    left out (those members are in the unchecked list, with the reason)."""
-    skip = getattr(model, "no_force_message", None)
-    return [w for w in (list(model.warnings) + list(model.force_messages) + list(model.validation)) if w != skip]
+def model_warnings(model: Any, details: bool = False) -> list[str]:
+    """The warnings the console lists for a model. Left out: the force join's list of members with
+    no force (they are in the unchecked list, with the reason) and, but for the wide layout, the
+    lists of members the rule set's selection leaves out (the summary line counts them, with
+    the reason; the lines name their GlobalIds)."""
+    skip = {getattr(model, "no_force_message", None)}
+    if not details:
+        skip |= set(getattr(model, "exclusion_messages", None) or [])
+    return [w for w in (list(model.warnings) + list(model.force_messages) + list(model.validation))
+            if w not in skip]
 
 
 # ------------------------------------------------------------------------------ tables
@@ -343,7 +348,7 @@ def render_check(run: Any, console: Console, comparison: Any = None, details: bo
     parts: list[Any] = [Text(f"Rule set: {run.ruleset.name}" + (f" — {basis}" if basis else ""), style="dim")]
     for m in run.models:
         parts.append(summary_line(m, run.results))
-        warnings = [] if m.error else model_warnings(m)
+        warnings = [] if m.error else model_warnings(m, wide)
         items = [("  warning:", w) for w in warnings[:MAX_WARNINGS]]
         if len(warnings) > MAX_WARNINGS:
             items.append(("  warning:", f"… and {len(warnings) - MAX_WARNINGS} more (every one in --format json)"))
