@@ -17,7 +17,7 @@ from pathlib import Path
 from typing import Any
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
 from modelcheck.errors import RuleSetError
@@ -263,6 +263,7 @@ def members(tmp_path_factory: Any) -> Any:
 @settings(max_examples=50, deadline=None, suppress_health_check=[HealthCheck.too_slow,
                                                                    HealthCheck.function_scoped_fixture])
 @given(st.recursive(_LEAF, _combine, max_leaves=10), st.booleans())
+@example("(1e300 [GPa] * 1 [kN])", True)   # a demand whose conversion to its display unit overflows
 def test_a_rule_that_validates_runs_on_every_member_without_error_or_warning(tmp_path, members, expr, as_demand):
     path = tmp_path / "random.toml"
     if as_demand:  # demand and capacity alike: valid whenever the expression has one dimension

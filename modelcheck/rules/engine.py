@@ -353,7 +353,9 @@ def _evaluate(check: Check, scope: Scope, n: int) -> tuple[np.ndarray, np.ndarra
     capacity_q = check.capacity.evaluate(scope)
     if not isinstance(demand_q, pint.Quantity) or not isinstance(capacity_q, pint.Quantity):
         raise ExpressionError("demand and capacity must be numbers")
-    return keep, unknown, _broadcast(demand_q.m_as(check.unit), n), _broadcast(capacity_q.m_as(check.unit), n)
+    with np.errstate(over="ignore", invalid="ignore"):   # a value too large for a float becomes inf: unchecked
+        demand, capacity = demand_q.m_as(check.unit), capacity_q.m_as(check.unit)
+    return keep, unknown, _broadcast(demand, n), _broadcast(capacity, n)
 
 
 def _unverifiable(check: Check, demand: np.ndarray,
