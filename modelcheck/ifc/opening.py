@@ -2,8 +2,11 @@
 
 from __future__ import annotations
 
+import contextlib
 import os
 import re
+import shutil
+import tempfile
 import zipfile
 import zlib
 from pathlib import Path
@@ -15,6 +18,11 @@ from modelcheck.errors import ModelReadError
 from modelcheck.files import input_file
 
 SUPPORTED_SCHEMAS = ("IFC2X3", "IFC4", "IFC4X3")
+
+#: the UTF-8 byte-order mark some exporters and text editors write before ``ISO-10303-21;``
+UTF8_BOM = b"\xef\xbb\xbf"
+#: how far into a file its first keyword is looked for (a byte-order mark and white space before it)
+_HEAD_BYTES = 1024
 
 
 def open_model(path: str | os.PathLike[str]) -> Any:
@@ -55,6 +63,11 @@ def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
     entities (none of its placements, styles or most of its geometry), so this is where it saves
     most of the open's time and memory. The price: a syntax error inside an entity shows when
     that entity is read, as a RuntimeError naming its byte offset (see ``explain_parse_error``).
+
+    A UTF-8 byte-order mark before ``ISO-10303-21;`` (which ifcopenshell's parser refuses) is read
+    from a temporary copy in which the mark's three bytes are three spaces: every other byte keeps
+    its offset, so a byte offset the parser names is the same line of the input file, which itself
+    is never written.
     """
     p = input_file(path, ModelReadError, "an IFC file")
     name = str(path)
@@ -62,27 +75,37 @@ def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
     if size == 0:
         raise ModelReadError("empty file, not an IFC model", path=name)
     with open(p, "rb") as fh:
-        head = fh.read(64)
-    if zipfile.is_zipfile(p):
+        head = fh.read(_HEAD_BYTES)
+    zipped = zipfile.is_zipfile(p)
+    bom = False
+    if zipped:
         if p.suffix.lower() != ".ifczip":
             raise ModelReadError("is a zip archive, not an IFC model (rename to .ifczip if it holds one)", path=name)
         tail = _zipped_model_tail(p)
         if tail is not None and b"END-ISO-10303-21" not in tail:
             raise ModelReadError("the model in the zip archive is truncated or empty: it does not end with "
                                  "END-ISO-10303-21;", path=name)
-    elif not head.lstrip().startswith(b"ISO-10303-21"):
-        if head.lstrip().startswith(b"<"):
-            raise ModelReadError("is XML; only IFC-SPF (.ifc) and .ifczip are read", path=name)
-        raise ModelReadError("not an IFC-SPF file (it does not start with ISO-10303-21)", path=name)
-    if not zipfile.is_zipfile(p):
+        member = _zipped_model_name(p)
+        if member is not None:
+            with zipfile.ZipFile(p) as zf, zf.open(member) as fh:
+                bom = fh.read(len(UTF8_BOM)) == UTF8_BOM
+    else:
+        bom = head.startswith(UTF8_BOM)
+        start = head.removeprefix(UTF8_BOM).lstrip()
+        if not start.startswith(b"ISO-10303-21"):
+            if start.startswith(b"<"):
+                raise ModelReadError("is XML; only IFC-SPF (.ifc) and .ifczip are read", path=name)
+            raise ModelReadError("not an IFC-SPF file (it does not start with ISO-10303-21)", path=name)
         with open(p, "rb") as fh:
             fh.seek(max(0, size - 256))
             tail = fh.read()
         if b"END-ISO-10303-21" not in tail:
             raise ModelReadError("file is truncated: it does not end with END-ISO-10303-21;", path=name)
     ifcopenshell.get_log()  # drop what earlier opens in this process left in the parser's log
+    copy = _copy_without_bom(p, member if zipped else None) if bom else None
     try:
-        model = ifcopenshell.open(str(p), lazy=True)
+        model = ifcopenshell.open(str(copy or p), lazy=True)
+        fds = _fds_on(copy or p)
     except (ifcopenshell.Error, RuntimeError, OSError, ValueError, UnicodeDecodeError, LookupError) as exc:
         text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
         logged = _parser_messages(p, ifcopenshell.get_log())
@@ -90,6 +113,9 @@ def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
             line, msg = logged[0]
             text = text.removesuffix(", check logs") + (f" at line {line}" if line else "") + f": {msg}"
         raise ModelReadError(f"cannot be parsed as IFC: {text}", path=name) from None
+    finally:
+        if copy is not None:   # the lazy parser keeps its descriptor: the copy lives until it closes
+            copy.unlink(missing_ok=True)
     schema = _schema_of(model)
     if schema not in SUPPORTED_SCHEMAS:
         raise ModelReadError(f"schema {model.schema!r} is not supported (IFC2X3, IFC4, IFC4X3)", path=name)
@@ -109,7 +135,29 @@ def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
               if where else "")
         raise ModelReadError(f"cannot be parsed as IFC: {at}an entity is not closed (a ')' or a quote is missing?); "
                              "the rest of the file was read as part of it", path=name)
-    return model, log, _fds_on(p)
+    return model, log, fds
+
+
+def _copy_without_bom(p: Path, member: str | None = None) -> Path:
+    """A temporary copy of ``p`` (or of the model ``member`` of the zip archive ``p``) with its
+    leading UTF-8 byte-order mark turned into three spaces (white space before ``ISO-10303-21;`` is
+    read; the byte offsets stay those of the input)."""
+    fd, tmp = tempfile.mkstemp(prefix="modelcheck-", suffix=".ifc")
+    try:
+        with contextlib.ExitStack() as stack:
+            dst = stack.enter_context(os.fdopen(fd, "wb"))
+            if member is None:
+                src = stack.enter_context(open(p, "rb"))
+            else:
+                src = stack.enter_context(stack.enter_context(zipfile.ZipFile(p)).open(member))
+            src.read(len(UTF8_BOM))
+            dst.write(b" " * len(UTF8_BOM))
+            shutil.copyfileobj(src, dst, 1 << 20)
+    except (OSError, zipfile.BadZipFile, zlib.error) as exc:
+        Path(tmp).unlink(missing_ok=True)
+        raise ModelReadError(f"starts with a byte-order mark and a copy without it cannot be written: {exc}",
+                             path=str(p)) from None
+    return Path(tmp)
 
 
 #: the parser met an entity name a second time
@@ -165,6 +213,16 @@ def raise_if_parse_error(path: str | os.PathLike[str], exc: BaseException) -> No
     have at the open had the file been parsed eagerly: one line naming the file and its line."""
     if is_parse_error(exc):
         raise ModelReadError(f"cannot be parsed as IFC: {explain_parse_error(path, exc)}", path=str(path)) from None
+
+
+def _zipped_model_name(p: Path) -> str | None:
+    """The name of the IFC-SPF file in a zip (the one ifcopenshell.open would read), or None."""
+    try:
+        with zipfile.ZipFile(p) as zf:
+            name = next((n for n in zf.namelist() if Path(n).suffix.lower() in (".ifc", ".ifcxml")), None)
+    except (zipfile.BadZipFile, OSError) as exc:
+        raise ModelReadError(f"the zip archive cannot be read: {exc}", path=str(p)) from None
+    return name if name is not None and Path(name).suffix.lower() == ".ifc" else None
 
 
 def _zipped_model_tail(p: Path) -> bytes | None:
