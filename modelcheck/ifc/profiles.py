@@ -41,6 +41,7 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
 from typing import Any
 
+from modelcheck.ifc.curves import conic_sweep, line_trims, orient, trim_choice
 from modelcheck.ifc.outline import (
     MAX_OUTLINE_POINTS,
     Arc,
@@ -552,20 +553,24 @@ def _curve_segments(curve: Any, ctx: _Ctx, within: tuple[int, ...] = ()) -> list
                            + " → ".join(f"#{i}" for i in (*within, curve.id())) + ")")
         if len(within) >= MAX_CURVE_NESTING:
             raise ctx.fail(f"{kind} #{curve.id()} nests composite curves more than {MAX_CURVE_NESTING} deep")
-        segs: list[Segment] = []
+        parts: list[tuple[list[Segment], bool]] = []
         for part in curve.Segments:
             if not part.is_a("IfcCompositeCurveSegment"):
                 raise ctx.fail(f"{part.is_a()} #{part.id()} in a composite curve is not supported")
             parent = part.ParentCurve
             if parent is None:
                 raise ctx.fail(f"IfcCompositeCurveSegment #{part.id()} has no ParentCurve")
-            sub = _curve_segments(parent, ctx, (*within, curve.id()))
+            if parent.is_a("IfcTrimmedCurve"):
+                seg, ambiguous = _trimmed(parent, ctx)
+                sub = [seg]
+            else:
+                sub, ambiguous = _curve_segments(parent, ctx, (*within, curve.id())), False
             if not part.SameSense:
                 sub = [s.reversed() for s in reversed(sub)]
-            segs.extend(sub)
-        return segs
+            parts.append((sub, ambiguous))
+        return orient(parts)
     if kind == "IfcTrimmedCurve":
-        return [_trimmed(curve, ctx)]
+        return [_trimmed(curve, ctx)[0]]
     if kind in ("IfcCircle", "IfcEllipse"):
         return [_conic(curve, ctx, 0.0, _TWO_PI)]
     raise ctx.fail(f"{kind} #{curve.id()} is a curve type modelcheck cannot integrate")
@@ -626,45 +631,40 @@ def _conic(curve: Any, ctx: _Ctx, t0: float, sweep: float) -> Arc:
     return Arc(centre, uu, vv, t0, sweep)
 
 
-def _trim_choice(trim: Any, master: str | None) -> tuple[Point | None, float | None]:
-    point, param = None, None
-    for item in trim or ():
-        if item.is_a("IfcCartesianPoint"):
-            point = item
-        elif item.is_a("IfcParameterValue"):
-            param = float(item.wrappedValue)
-    if point is not None and param is not None:
-        # both given: the curve's MasterRepresentation decides (a point otherwise, because it
-        # does not depend on the file's angle unit)
-        return (None, param) if master == "PARAMETER" else (point, None)
-    return point, param
-
-
-def _trimmed(curve: Any, ctx: _Ctx) -> Segment:
-    """IfcTrimmedCurve of an IfcLine, IfcCircle or IfcEllipse, from Trim1 to Trim2.
+def _trimmed(curve: Any, ctx: _Ctx) -> tuple[Segment, bool]:
+    """IfcTrimmedCurve of an IfcLine, IfcCircle or IfcEllipse, from Trim1 to Trim2, in the senses
+    ``modelcheck.ifc.curves`` documents (``line_trims``, ``conic_sweep``).
 
     Trims by IfcCartesianPoint are projected on the basis curve; trims by IfcParameterValue are
     a length along the line's direction vector, or an angle (file unit × angle_factor) on a
-    conic. SenseAgreement False runs the conic clockwise (decreasing parameter)."""
+    conic. On a line the piece runs from Trim1 to Trim2; where SenseAgreement contradicts that
+    order the piece is returned as written and marked ambiguous (True), for the composite curve
+    to run it the way that joins its neighbours. On a conic, SenseAgreement False runs clockwise."""
     p = ctx.profile
     basis = curve.BasisCurve
     master = getattr(curve, "MasterRepresentation", None)
-    (p1, t1), (p2, t2) = _trim_choice(curve.Trim1, master), _trim_choice(curve.Trim2, master)
+    (p1, t1), (p2, t2) = trim_choice(curve.Trim1, master), trim_choice(curve.Trim2, master)
     if (p1 is None and t1 is None) or (p2 is None and t2 is None):
         raise ctx.fail(f"IfcTrimmedCurve #{curve.id()} has an empty trim")
+    sense = bool(curve.SenseAgreement)
     if basis.is_a("IfcLine"):
         origin = _coords(p, basis.Pnt)
         vec = basis.Dir
         d = _direction(p, vec.Orientation, (1.0, 0.0))
         mag = float(vec.Magnitude)
+        if not (math.isfinite(mag) and mag > 0):
+            raise ctx.fail(f"IfcTrimmedCurve #{curve.id()}: the line's vector has magnitude {mag:g}")
 
-        def on_line(pt: Any, t: float | None) -> Point:
+        def on_line(pt: Any, t: float | None) -> tuple[float, Point]:
+            """(parameter, point): a point trim is kept as written, its parameter projected."""
             if pt is not None:
-                return _coords(p, pt)
+                q = _coords(p, pt)
+                return ((q[0] - origin[0]) * d[0] + (q[1] - origin[1]) * d[1]) / mag, q
             assert t is not None
-            return (origin[0] + t * mag * d[0], origin[1] + t * mag * d[1])
+            return t, (origin[0] + t * mag * d[0], origin[1] + t * mag * d[1])
 
-        return Line(on_line(p1, t1), on_line(p2, t2))
+        (u1, q1), (u2, q2) = on_line(p1, t1), on_line(p2, t2)
+        return Line(q1, q2), line_trims(u1, u2, sense)[2]
     if basis.is_a("IfcCircle") or basis.is_a("IfcEllipse"):
         centre, uu, vv = _conic_axes(basis, ctx)
         det = uu[0] * vv[1] - uu[1] * vv[0]
@@ -683,14 +683,8 @@ def _trimmed(curve: Any, ctx: _Ctx) -> Segment:
             s = (uu[0] * dy - uu[1] * dx) / det
             return math.atan2(s, c)
 
-        a1, a2 = angle(p1, t1), angle(p2, t2)
-        if curve.SenseAgreement:
-            sweep = (a2 - a1) % _TWO_PI
-        else:
-            sweep = -((a1 - a2) % _TWO_PI)
-        if abs(sweep) < 1e-12:
-            sweep = _TWO_PI if curve.SenseAgreement else -_TWO_PI
-        return Arc(centre, uu, vv, a1, sweep)
+        a1 = angle(p1, t1)
+        return Arc(centre, uu, vv, a1, conic_sweep(a1, angle(p2, t2), sense)), False
     raise ctx.fail(f"IfcTrimmedCurve #{curve.id()} of {basis.is_a()} is not supported")
 
 

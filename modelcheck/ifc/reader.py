@@ -39,6 +39,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from modelcheck.ifc.curves import CurveError, curve_length
 from modelcheck.ifc.index import (
     ModelIndex,
     SIValue,
@@ -202,7 +203,7 @@ class _Reader:
                 dims = {"d": 2 * r} | ({"t": r - ri} if ri > 0 else {})
                 sec = Section(area, rg, src, None, "IfcSweptDiskSolid", "round-tube" if ri > 0 else "round-bar", dims)
             clen = self.curve_length(item.Directrix) if item.Directrix is not None else None
-            length = (clen * lf * scale, "IfcSweptDiskSolid.Directrix") if clen is not None else None
+            length = (clen * lf * scale, "IfcSweptDiskSolid.Directrix") if isinstance(clen, float) else None
             return sec, length
         if cls == "IfcMappedItem":
             src = item.MappingSource
@@ -225,41 +226,16 @@ class _Reader:
             return self._body_item(op, scale, depth + 1) if op is not None else (None, None)
         return None, None
 
-    def curve_length(self, curve: Any) -> float | None:
-        """Length of a straight-segment curve in file units (None if not a polyline-like curve)."""
-        cls = curve.is_a()
-        if cls == "IfcPolyline":
+    def curve_length(self, curve: Any) -> float | str:
+        """Length of a curve in file units (``modelcheck.ifc.curves``), or why it cannot be measured."""
+        if curve.is_a() == "IfcPolyline":
             points = curve.get_argument(0)
             if len(points) == 2:   # the usual axis: its two ends
                 return math.dist(points[0].get_argument(0), points[1].get_argument(0))
-            pts = [p.get_argument(0) for p in points]
-            if len(pts) < 2:
-                return None
-            return sum(math.dist(a, b) for a, b in zip(pts[:-1], pts[1:], strict=True))
-        elif cls == "IfcIndexedPolyCurve":
-            if curve.Segments:
-                for seg in curve.Segments:
-                    if seg.is_a("IfcArcIndex"):
-                        return None
-            pts = np.array(curve.Points.CoordList, dtype=float)  # noqa: F841
-        elif cls == "IfcTrimmedCurve" and curve.BasisCurve.is_a("IfcLine"):
-            t1, t2 = curve.Trim1, curve.Trim2
-            p1 = next((t for t in t1 if hasattr(t, "Coordinates")), None)
-            p2 = next((t for t in t2 if hasattr(t, "Coordinates")), None)
-            if p1 is not None and p2 is not None:
-                pts = np.array([p1.Coordinates, p2.Coordinates], dtype=float)
-            else:
-                v1 = next((t.wrappedValue for t in t1 if t.is_a("IfcParameterValue")), None)
-                v2 = next((t.wrappedValue for t in t2 if t.is_a("IfcParameterValue")), None)
-                if v1 is None or v2 is None:
-                    return None
-                mag = float(curve.BasisCurve.Dir.Magnitude)
-                return abs(float(v2) - float(v1)) * mag
-        else:
-            return None
-        if len(pts) < 2:
-            return None
-        return float(np.sum(np.linalg.norm(np.diff(pts, axis=0), axis=1)))
+        try:
+            return curve_length(curve, self.angle)
+        except CurveError as exc:
+            return str(exc)
 
     # ----------------------------------------------------------------- materials
     def material(self, select: Any) -> tuple[MaterialInfo | None, list[Any]]:
@@ -519,11 +495,16 @@ class _Reader:
             warnings.extend(dict.fromkeys(problems))  # the profile set and the body often name one profile
 
         # --- length candidates, ranked
+        axis_problem = None
+        if isinstance(axis_len, str):
+            axis_problem, axis_len = axis_len, None
         if analysis:
             tl = self._topology_length(el)
             lengths = [x for x in (tl, axis_len, body_len, qlen) if x is not None]
         else:
             lengths = [x for x in (axis_len, body_len, qlen) if x is not None]
+        if axis_problem is not None:
+            warnings.append(axis_problem)
         length, length_src = math.nan, None
         for val, src in lengths:
             if not (math.isfinite(val) and MIN_LENGTH <= val <= MAX_LENGTH):
@@ -663,18 +644,23 @@ class _Reader:
             return None
         return None
 
-    def _representation(self, rep: Any) -> tuple[Section | str | None, tuple[float, str] | None, tuple[float, str] | None]:
-        body_sec = body_len = axis_len = None
+    def _representation(self, rep: Any) -> tuple[Section | str | None, tuple[float, str] | None,
+                                                  tuple[float, str] | str | None]:
+        """(body section or reason, body length, axis length or why the axis cannot be measured)."""
+        body_sec = body_len = None
+        axis_len: tuple[float, str] | str | None = None
         lf = self.lf
         for r in rep.get_argument(2) or ():
             ident = r.get_argument(1)
             if ident == "Axis":
-                if axis_len is None and lf is not None:
+                if not isinstance(axis_len, tuple) and lf is not None:
                     for it in r.get_argument(3) or ():
                         cl = self.curve_length(it)
-                        if cl is not None:
-                            axis_len = (cl * lf, "Axis")
-                            break
+                        if isinstance(cl, str):
+                            axis_len = axis_len or f"Axis not measured: {cl}"
+                            continue
+                        axis_len = (cl * lf, "Axis")
+                        break
             elif ident in ("Body", None) and body_sec is None:
                 items = r.get_argument(3)
                 first = items[0] if items else None
