@@ -180,14 +180,28 @@ class ModelBuilder:
             self.f.create_entity("IfcRelDefinesByProperties", GlobalId=self.guid(), OwnerHistory=self._owner,
                                  RelatedObjects=[obj], RelatingPropertyDefinition=pset)
 
+    #: quantity class of each base-quantity name ``quantities`` writes
+    QUANTITY_CLASSES = {"Length": "IfcQuantityLength", "Height": "IfcQuantityLength", "Width": "IfcQuantityLength",
+                        "Depth": "IfcQuantityLength", "CrossSectionArea": "IfcQuantityArea",
+                        "OuterSurfaceArea": "IfcQuantityArea", "NetVolume": "IfcQuantityVolume",
+                        "GrossVolume": "IfcQuantityVolume", "GrossWeight": "IfcQuantityWeight",
+                        "NetWeight": "IfcQuantityWeight"}
+
     def quantities(self, obj: Any, name: str, length: float | None = None,
-                   area: float | None = None) -> Any:
+                   area: float | None = None, *, more: dict[str, float] | None = None) -> Any:
+        """An IfcElementQuantity called ``name`` on ``obj``: Length, CrossSectionArea and any of
+        ``QUANTITY_CLASSES`` in ``more``, each in the model's units (no unit of its own)."""
         f = self.f
         qs = []
         if length is not None:
             qs.append(f.createIfcQuantityLength("Length", None, None, length))
         if area is not None:
             qs.append(f.createIfcQuantityArea("CrossSectionArea", None, None, area))
+        for qname, value in (more or {}).items():
+            qs.append(f.create_entity(self.QUANTITY_CLASSES[qname], Name=qname, **{
+                "IfcQuantityLength": {"LengthValue": value}, "IfcQuantityArea": {"AreaValue": value},
+                "IfcQuantityVolume": {"VolumeValue": value},
+                "IfcQuantityWeight": {"WeightValue": value}}[self.QUANTITY_CLASSES[qname]]))
         eq = f.create_entity("IfcElementQuantity", GlobalId=self.guid(), OwnerHistory=self._owner,
                              Name=name, Quantities=qs)
         f.create_entity("IfcRelDefinesByProperties", GlobalId=self.guid(), OwnerHistory=self._owner,

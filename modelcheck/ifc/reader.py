@@ -13,9 +13,17 @@ becomes a warning on the member, both values named):
 
 * section: IfcMaterialProfileSetUsage / IfcMaterialProfileSet on the occurrence, then on its
   type; the body (IfcExtrudedAreaSolid swept area, IfcSweptDiskSolid radii, also through
-  IfcMappedItem and the first operand of clippings); Pset_ProfileMechanical on the profile or the
-  element (IFC2X3: IfcStructuralProfileProperties); Qto_*BaseQuantities.CrossSectionArea.
-* length: the Axis representation, the extrusion depth, the swept-disk directrix, Qto_*.Length.
+  IfcMappedItem and the first operand of clippings); the profile a profile-properties entity
+  names (ProfileDefinition), then the area it states: Pset_ProfileMechanical on the profile or
+  the element (IFC2X3: IfcStructuralProfileProperties); the quantity sets' CrossSectionArea.
+* length: the Axis representation (any curve ``modelcheck.ifc.curves`` measures), the extrusion
+  depth, the swept-disk directrix, the quantity sets' Length (a column's Height where there is
+  no Length); last, NetVolume over the section's area, marked as derived.
+* quantity sets rank Qto_* first, then BaseQuantities (IFC2X3 exports), then any other
+  IfcElementQuantity; each quantity is taken from the first set that has it.
+* an area read in a stated area unit (the file's AREAUNIT or the value's own unit) that is
+  ``UNIT_CONTRADICTION`` times or more away from the area worked out from lengths is not used:
+  the member carries a warning with both values and both sources.
 * material: on the occurrence (directly or via profile / layer / constituent sets and lists),
   else on its type. Its category and grade from IfcMaterial.Category and its name
   (``modelcheck.material_names``; "unknown" when nothing recognises them). Mechanical values by the
@@ -66,6 +74,20 @@ SHEAR_LAG_PROPERTY = ("MC_NetSection", "ShearLagFactor")
 _NO_NET: tuple[float, str | None, float, str | None] = (math.nan, None, math.nan, None)
 _NET_SET = NET_AREA_PROPERTY[0]
 
+#: quantities read from a member's quantity sets: name -> (quantity class, measure, value attribute)
+_QUANTITIES = {"CrossSectionArea": ("IfcQuantityArea", "IfcAreaMeasure", "AreaValue"),
+               "Length": ("IfcQuantityLength", "IfcLengthMeasure", "LengthValue"),
+               "Height": ("IfcQuantityLength", "IfcLengthMeasure", "LengthValue"),
+               "NetVolume": ("IfcQuantityVolume", "IfcVolumeMeasure", "VolumeValue")}
+#: classes whose Height quantity is their length (a column stands; a beam's Height is its depth)
+_HEIGHT_IS_LENGTH = frozenset({"IfcColumn", "IfcColumnStandardCase"})
+#: names of sets that are never quantity sets (buildingSMART's property sets, our own)
+_NOT_QUANTITY_SETS = ("Pset_", "MC_")
+
+#: two areas of one member this many times apart, one read in a stated area unit and one worked
+#: out from lengths, mean the stated unit is not what the value means (two orders of magnitude:
+#: cm² for mm² is 100, ft² for in² 144, m² for mm² a million)
+UNIT_CONTRADICTION = 100.0
 AREA_TOLERANCE = 0.02     # 2 % between two sources of the cross-section area
 LENGTH_TOLERANCE = 0.05   # 5 % between two sources of the length (end cuts make axis ≠ body)
 
@@ -89,6 +111,9 @@ class Section:
     shape: str | None = None
     dims: dict[str, float] = field(default_factory=dict)
     r_source: str | None = None   # where r_min came from, when not from ``source``
+    #: the area is a number read in a stated area unit (the file's AREAUNIT or the value's own
+    #: unit), not worked out from lengths in the file's LENGTHUNIT
+    stated_unit: bool = False
 
 
 @dataclass(frozen=True)
@@ -434,7 +459,9 @@ class _Reader:
                 candidates.append(tendon)
         psets = idx.psets_of.get(eid)
         mech_sets: list[Any] = []
-        qsets: list[Any] = []
+        qsets: list[Any] = []        # quantity sets, ranked: Qto_*, then BaseQuantities, then any other
+        base_sets: list[Any] = []
+        other_sets: list[Any] = []
         net: tuple[float, str | None, float, str | None] | None = None
         if psets:   # the occurrence's own sets, each looked at once
             net_sets = []
@@ -447,6 +474,11 @@ class _Reader:
                     mech_sets.append(ent)
                 elif n.startswith("Qto_"):
                     qsets.append(ent)
+                elif n == "BaseQuantities":
+                    base_sets.append(ent)
+                elif not n.startswith(_NOT_QUANTITY_SETS) and ent.is_a("IfcElementQuantity"):
+                    other_sets.append(ent)
+            qsets += base_sets + other_sets
             if net_sets:
                 net = self._net_from(net_sets, "occurrence", warnings)
         if net is None:
@@ -457,16 +489,18 @@ class _Reader:
             else:
                 net = _NO_NET
         if idx.profile_props or mech_sets or idx.object_profile_props:
-            mech = self._profile_mechanical(self._profiles_of(own_sel, type_sel) if idx.profile_props else [],
-                                            mech_sets, eid)
-            if mech is not None:
-                candidates.append(mech)
-        qarea = qlen = None
+            mech, mech_problems = self._profile_mechanical(
+                self._profiles_of(own_sel, type_sel) if idx.profile_props else [], mech_sets, eid, candidates)
+            candidates.extend(mech)
+            problems.extend(mech_problems)
+        qarea = qlen = qvol = None
         if qsets:
-            qarea, qlen = self._quantities(qsets, warnings)
+            qarea, qlen, qvol = self._quantities(qsets, cls, warnings)
         if qarea is not None:
             candidates.append(qarea)
 
+        if len(candidates) > 1:
+            candidates = self._unit_contradictions(candidates, warnings)
         section = None
         doubts = self._doubts
         for cand in candidates:
@@ -516,6 +550,15 @@ class _Reader:
             elif abs(val - length) / length > LENGTH_TOLERANCE:
                 warnings.append(f"inconsistent length: {length_src} gives {length:.6g} m, "
                                 f"{src} gives {val:.6g} m; using the first")
+        if length_src is None and qvol is not None and section is not None:
+            # the last resort: the member's net volume over its section's area
+            val = qvol[0] / section.area
+            src = f"{qvol[1]} / area from {section.source} (derived)"
+            if math.isfinite(val) and MIN_LENGTH <= val <= MAX_LENGTH:
+                length, length_src = val, src
+            else:
+                warnings.append(f"length {val:.6g} m from {src} is not plausible for a member (outside "
+                                f"{MIN_LENGTH * 1e3:g} mm – {MAX_LENGTH:g} m); not used")
         if section is not None and net[1] is not None and net[0] > section.area * (1 + AREA_TOLERANCE):
             warnings.append(f"net area {net[0] * 1e6:.6g} mm² from {net[1]} is more than the gross area "
                             f"{section.area * 1e6:.6g} mm² from {section.source}; not used")
@@ -538,6 +581,28 @@ class _Reader:
             gid = f"#{eid}"
         return (gid, cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
                 section, minfo, length, length_src, warnings, eid, net)
+
+    def _unit_contradictions(self, candidates: list[Section], warnings: list[str]) -> list[Section]:
+        """The candidates without those whose area, read in a stated area unit, contradicts the
+        area worked out from lengths (a profile's dimensions in the LENGTHUNIT) by a factor of
+        ``UNIT_CONTRADICTION`` or more: such a unit cannot be what the value means. Each dropped
+        one is a warning naming both values and both sources; the geometry's value is kept."""
+        base = next((c for c in candidates if not c.stated_unit and _doubt_section(c) is None), None)
+        if base is None:
+            return candidates
+        kept = []
+        for c in candidates:
+            if c.stated_unit and c.area > 0 and math.isfinite(c.area):
+                factor = max(c.area / base.area, base.area / c.area)
+                if factor >= UNIT_CONTRADICTION:
+                    warnings.append(
+                        f"unit contradiction: {c.source} gives {c.area * 1e6:.6g} mm², {base.source} gives "
+                        f"{base.area * 1e6:.6g} mm² from its dimensions, {factor:.3g} times "
+                        f"{'less' if c.area < base.area else 'more'}: the stated unit cannot be what the value "
+                        f"means; {c.source} not used")
+                    continue
+            kept.append(c)
+        return kept
 
     def _same_profile(self, a: Section, b: Section) -> bool:
         """Whether two sections name the same profile entity (their sources' first two words);
@@ -604,27 +669,41 @@ class _Reader:
                     return profs
         return []
 
-    def _quantities(self, psets: list[Any], warnings: list[str]) -> tuple[Section | None, tuple[float, str] | None]:
-        """Qto_*.CrossSectionArea and Qto_*.Length of a member, in SI."""
-        qarea = qlen = None
-        for ps in psets:
+    def _quantities(self, qsets: list[Any], cls: str, warnings: list[str]
+                    ) -> tuple[Section | None, tuple[float, str] | None, tuple[float, str] | None]:
+        """(CrossSectionArea, Length, NetVolume) of a member in SI from its quantity sets, each the
+        first one found in the sets' rank order (``qsets`` comes ranked: Qto_*, BaseQuantities, any
+        other IfcElementQuantity). A column's Height is its length where no set gives a Length."""
+        found: dict[str, tuple[float, str]] = {}
+        for ps in qsets:
             if not ps.is_a("IfcElementQuantity"):
                 continue
             qname = ps.Name or ""
-            if not qname.startswith("Qto_"):
-                continue
             for q in ps.Quantities or ():
                 n = q.Name
+                if n in found:
+                    continue
+                wanted = _QUANTITIES.get(n)
+                if wanted is None or not q.is_a(wanted[0]):
+                    continue
+                measure, attr = wanted[1], wanted[2]
+                raw = getattr(q, attr, None)
+                if raw is None:
+                    continue
                 try:
-                    if n == "CrossSectionArea" and qarea is None and q.is_a("IfcQuantityArea"):
-                        v = measure_si(self.idx, "IfcAreaMeasure", float(q.AreaValue), getattr(q, "Unit", None))
-                        qarea = Section(v.value, math.nan, f"{qname}.CrossSectionArea [{v.unit}]")
-                    elif n == "Length" and qlen is None and q.is_a("IfcQuantityLength"):
-                        v = measure_si(self.idx, "IfcLengthMeasure", float(q.LengthValue), getattr(q, "Unit", None))
-                        qlen = (v.value, f"{qname}.Length [{v.unit}]")
+                    v = measure_si(self.idx, measure, float(raw), getattr(q, "Unit", None))
                 except MissingUnit as exc:
                     warnings.append(f"{qname}.{n} not used: {exc}")
-        return qarea, qlen
+                    continue
+                found[n] = (v.value, f"{qname}.{n} [{v.unit}]")
+        qarea = None
+        if "CrossSectionArea" in found:
+            value, src = found["CrossSectionArea"]
+            qarea = Section(value, math.nan, src, stated_unit=True)
+        qlen = found.get("Length")
+        if qlen is None and "Height" in found and cls in _HEIGHT_IS_LENGTH:
+            qlen = found["Height"]
+        return qarea, qlen, found.get("NetVolume")
 
     def _tendon(self, el: Any) -> Section | None:
         """IfcTendon's own CrossSectionArea / NominalDiameter attributes."""
@@ -635,7 +714,7 @@ class _Reader:
                 v = measure_si(self.idx, "IfcAreaMeasure", float(a))
                 dims = {"d": measure_si(self.idx, "IfcLengthMeasure", float(d)).value} if d is not None else {}
                 return Section(v.value, math.nan, f"IfcTendon.CrossSectionArea [{v.unit}]", None, None,
-                               "round-bar" if dims else None, dims)
+                               "round-bar" if dims else None, dims, stated_unit=True)
             if d is not None:
                 dv = measure_si(self.idx, "IfcLengthMeasure", float(d)).value
                 return Section(math.pi * dv * dv / 4, dv / 4, "IfcTendon.NominalDiameter", None, None,
@@ -687,34 +766,51 @@ class _Reader:
         return ("material profile set with several profiles (" + ", ".join(s.source for s in areas)
                 + "): their relative placement is not stated; not combined")
 
-    def _profile_mechanical(self, profiles: list[Any], psets: list[Any], eid: int | None = None) -> Section | None:
-        """Pset_ProfileMechanical (profile or element) / IFC2X3 IfcStructuralProfileProperties
-        (on the profile, or on the element through IfcRelAssociatesProfileProperties)."""
-        sources: list[tuple[str, dict[str, SIValue]]] = []
+    def _profile_mechanical(self, profiles: list[Any], psets: list[Any], eid: int | None = None,
+                            known: list[Section] | None = None) -> tuple[list[Section], list[str]]:
+        """(section candidates, reasons) from Pset_ProfileMechanical (profile or element) / IFC2X3
+        IfcStructuralProfileProperties (on the profile, or on the element through
+        IfcRelAssociatesProfileProperties).
+
+        A properties entity names its profile (ProfileDefinition): that profile's own section comes
+        first (geometry, from its dimensions in the LENGTHUNIT) unless ``known`` holds it already,
+        then the area the properties state (in the AREAUNIT), which carries the profile's class."""
+        sources: list[tuple[str, dict[str, SIValue], Any]] = []
+        out: list[Section] = []
+        reasons: list[str] = []
         props = [pp for prof in profiles[:1] for pp in self.idx.profile_props.get(prof.id(), ())]
         if eid is not None:
             props += self.idx.object_profile_props.get(eid, [])
-        if props:
-            for pp in props:
-                if pp.is_a("IfcStructuralProfileProperties") or pp.is_a("IfcGeneralProfileProperties"):
-                    vals: dict[str, SIValue] = {}
-                    for attr, measure in (("CrossSectionArea", "IfcAreaMeasure"),
-                                          ("MomentOfInertiaY", "IfcMomentOfInertiaMeasure"),
-                                          ("MomentOfInertiaZ", "IfcMomentOfInertiaMeasure"),
-                                          ("MomentOfInertiaYZ", "IfcMomentOfInertiaMeasure")):
-                        raw = getattr(pp, attr, None)
-                        if raw is not None:
-                            try:
-                                vals[attr] = measure_si(self.idx, measure, float(raw))
-                            except MissingUnit:
-                                pass  # reported below as a missing r_min / area source
-                    sources.append((f"{pp.is_a()} #{pp.id()}", vals))
-                elif getattr(pp, "Name", None) == "Pset_ProfileMechanical":
-                    sources.append((f"Pset_ProfileMechanical #{pp.id()}", self._props_si(pp.Properties)))
+        seen = {f"{p.is_a()} #{p.id()}" for p in profiles} | {" ".join(k.source.split(" ", 2)[:2]) for k in known or ()}
+        for pp in props:
+            prof = getattr(pp, "ProfileDefinition", None)
+            if prof is not None and f"{prof.is_a()} #{prof.id()}" not in seen:
+                seen.add(f"{prof.is_a()} #{prof.id()}")
+                sec = self.profile(prof)
+                if isinstance(sec, Section):
+                    out.append(replace(sec, source=f"{sec.source} (the profile of {pp.is_a()} #{pp.id()})"))
+                else:
+                    reasons.append(sec)
+            if pp.is_a("IfcStructuralProfileProperties") or pp.is_a("IfcGeneralProfileProperties"):
+                vals: dict[str, SIValue] = {}
+                for attr, measure in (("CrossSectionArea", "IfcAreaMeasure"),
+                                      ("MomentOfInertiaY", "IfcMomentOfInertiaMeasure"),
+                                      ("MomentOfInertiaZ", "IfcMomentOfInertiaMeasure"),
+                                      ("MomentOfInertiaYZ", "IfcMomentOfInertiaMeasure")):
+                    raw = getattr(pp, attr, None)
+                    if raw is not None:
+                        try:
+                            vals[attr] = measure_si(self.idx, measure, float(raw))
+                        except MissingUnit:
+                            pass  # reported below as a missing r_min / area source
+                sources.append((f"{pp.is_a()} #{pp.id()}", vals, prof))
+            elif getattr(pp, "Name", None) == "Pset_ProfileMechanical":
+                sources.append((f"Pset_ProfileMechanical #{pp.id()}", self._props_si(pp.Properties), prof))
         for ps in psets:
             if ps.is_a("IfcPropertySet") and ps.Name == "Pset_ProfileMechanical":
-                sources.append((f"Pset_ProfileMechanical #{ps.id()}", self._props_si(ps.HasProperties)))
-        for src, vals in sources:
+                sources.append((f"Pset_ProfileMechanical #{ps.id()}", self._props_si(ps.HasProperties),
+                                profiles[0] if profiles else None))
+        for src, vals, prof in sources:
             a = vals.get("CrossSectionArea")
             if a is None:
                 continue
@@ -725,8 +821,12 @@ class _Reader:
                 c, d = (iy.value + iz.value) / 2, math.hypot((iy.value - iz.value) / 2, iyz)
                 if c - d > 0:
                     r = math.sqrt((c - d) / a.value)
-            return Section(a.value, r, f"{src}.CrossSectionArea")
-        return None
+            name = getattr(prof, "ProfileName", None) if prof is not None else None
+            out.append(Section(a.value, r, f"{src}.CrossSectionArea [{a.unit}]",
+                               name if isinstance(name, str) else None,
+                               prof.is_a() if prof is not None else None, stated_unit=True))
+            break
+        return out, reasons
 
     def _props_si(self, props: Any) -> dict[str, SIValue]:
         out: dict[str, SIValue] = {}
