@@ -297,3 +297,31 @@ def test_a_composite_axis_whose_segments_do_not_join_is_not_measured():
     b = f.createIfcPolyline([p3(f, 0, 0, 1500), p3(f, 0, 0, 2500)])   # 500 above the end of a
     with pytest.raises(CurveError, match="do not join"):
         curve_length(f.createIfcCompositeCurve([seg(f, a), seg(f, b)], False))
+
+
+def test_a_profile_swept_along_a_curved_directrix(tmp_path):
+    """A curved beam's body: a 200 × 10 flat swept along a quarter circle of radius 5000
+    (IfcFixedReferenceSweptAreaSolid): the section from the profile, the length R·θ."""
+    mb = degree_model()
+    f = mb.f
+    steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    flat = f.createIfcRectangleProfileDef("AREA", "FL200x10", None, 200.0, 10.0)
+    arc = quarter_circle(f, True, 0, 90)
+    sweep = f.createIfcFixedReferenceSweptAreaSolid(flat, None, arc, None, None, f.createIfcDirection((0.0, 0.0, 1.0)))
+    el = mb.member("IfcBeam", name="curved", material=steel, material_via="direct", body=None, axis=False)
+    el.Representation = f.createIfcProductDefinitionShape(None, None, [
+        f.createIfcShapeRepresentation(mb.body_ctx, "Body", "AdvancedSweptSolid", [sweep])])
+    path = tmp_path / "curved.ifc"
+    mb.write(str(path))
+    m = read_members(build_index(str(path))).set_index("name").loc["curved"]
+    hand = 5000 * math.pi / 2    # R·θ (common practice)
+    assert m["length"] == pytest.approx(hand / 1000, rel=1e-10)
+    assert m["length_source"] == "IfcFixedReferenceSweptAreaSolid.Directrix"
+    assert m["area"] == pytest.approx(2000e-6, rel=1e-12)   # 200 × 10 mm
+    # the kernel's solid: its volume over the area is the length (Pappus: the profile is centred
+    # on the directrix), to within its facets
+    g = ifcopenshell.geom.create_shape(fine(), sweep)
+    v = np.array(g.verts, dtype=float).reshape(-1, 3)
+    t = np.array(g.faces, dtype=int).reshape(-1, 3)
+    vol = abs(np.einsum("ij,ij->i", v[t[:, 0]], np.cross(v[t[:, 1]], v[t[:, 2]])).sum()) / 6.0 * 1e9   # mm³
+    assert vol / 2000.0 == pytest.approx(hand, rel=1e-3)   # ifcopenshell.geom

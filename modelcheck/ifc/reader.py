@@ -74,6 +74,9 @@ SHEAR_LAG_PROPERTY = ("MC_NetSection", "ShearLagFactor")
 _NO_NET: tuple[float, str | None, float, str | None] = (math.nan, None, math.nan, None)
 _NET_SET = NET_AREA_PROPERTY[0]
 
+#: bodies that sweep a profile along a directrix curve (the whole curve where no parameters trim it)
+_DIRECTRIX_SWEEPS = frozenset({"IfcFixedReferenceSweptAreaSolid", "IfcSurfaceCurveSweptAreaSolid",
+                               "IfcDirectrixCurveSweptAreaSolid"})
 #: quantities read from a member's quantity sets: name -> (quantity class, measure, value attribute)
 _QUANTITIES = {"CrossSectionArea": ("IfcQuantityArea", "IfcAreaMeasure", "AreaValue"),
                "Length": ("IfcQuantityLength", "IfcLengthMeasure", "LengthValue"),
@@ -229,6 +232,18 @@ class _Reader:
                 sec = Section(area, rg, src, None, "IfcSweptDiskSolid", "round-tube" if ri > 0 else "round-bar", dims)
             clen = self.curve_length(item.Directrix) if item.Directrix is not None else None
             length = (clen * lf * scale, "IfcSweptDiskSolid.Directrix") if isinstance(clen, float) else None
+            return sec, length
+        if cls in _DIRECTRIX_SWEEPS:
+            # a profile swept along a curve (curved beams): the profile's section, the curve's length
+            swept = item.SweptArea
+            sec = (self.profile(swept, scale) if swept is not None
+                   else f"{cls} #{item.id()} has no SweptArea (a null or dangling reference)")
+            length = None
+            directrix = item.Directrix
+            if lf is not None and directrix is not None and item.StartParam is None and item.EndParam is None:
+                clen = self.curve_length(directrix)
+                if isinstance(clen, float):
+                    length = (clen * lf * scale, f"{cls}.Directrix")
             return sec, length
         if cls == "IfcMappedItem":
             src = item.MappingSource
