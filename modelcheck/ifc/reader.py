@@ -148,6 +148,7 @@ class _Reader:
         except MissingUnit:
             self.angle = 1.0  # IFC's own default for plane angles is the radian (IfcPlaneAngleMeasure)
         self._profile_cache: dict[int, Section | str] = {}
+        self._named_profile_cache: dict[int, Section | str] = {}   # profile-properties id -> its profile
         self._material_cache: dict[int, MaterialInfo] = {}
         self._body_cache: dict[int, tuple[Section | str | None, tuple[float, str] | None]] = {}
         self._type_facts_cache: dict[int, tuple[Any, ...]] = {}
@@ -801,9 +802,14 @@ class _Reader:
             prof = getattr(pp, "ProfileDefinition", None)
             if prof is not None and f"{prof.is_a()} #{prof.id()}" not in seen:
                 seen.add(f"{prof.is_a()} #{prof.id()}")
-                sec = self.profile(prof)
+                sec = self._named_profile_cache.get(pp.id())
+                if sec is None:
+                    sec = self.profile(prof)
+                    if isinstance(sec, Section):   # shared by every member of these properties
+                        sec = replace(sec, source=f"{sec.source} (the profile of {pp.is_a()} #{pp.id()})")
+                    self._named_profile_cache[pp.id()] = sec
                 if isinstance(sec, Section):
-                    out.append(replace(sec, source=f"{sec.source} (the profile of {pp.is_a()} #{pp.id()})"))
+                    out.append(sec)
                 else:
                     reasons.append(sec)
             if pp.is_a("IfcStructuralProfileProperties") or pp.is_a("IfcGeneralProfileProperties"):
