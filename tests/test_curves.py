@@ -325,3 +325,25 @@ def test_a_profile_swept_along_a_curved_directrix(tmp_path):
     t = np.array(g.faces, dtype=int).reshape(-1, 3)
     vol = abs(np.einsum("ij,ij->i", v[t[:, 0]], np.cross(v[t[:, 1]], v[t[:, 2]])).sum()) / 6.0 * 1e9   # mm³
     assert vol / 2000.0 == pytest.approx(hand, rel=1e-3)   # ifcopenshell.geom
+
+
+@pytest.mark.parametrize(("same_sense", "quarters"), [(True, 1), (False, 3)])
+def test_an_analysis_member_along_a_circular_edge(tmp_path, same_sense, quarters):
+    """An IfcStructuralCurveMember whose edge is an IfcEdgeCurve on a circle of radius 5000 from
+    (5000, 0) to (0, 5000): a quarter counter-clockwise (SameSense true), three quarters clockwise."""
+    from modelcheck.ifc.author_analysis import AnalysisWriter
+
+    mb = degree_model()
+    f = mb.f
+    an = AnalysisWriter(mb)
+    cm = an.curve_member((5000.0, 0.0, 0.0), (0.0, 5000.0, 0.0), name="arch")
+    edge = cm.Representation.Representations[0].Items[0]
+    circle = f.createIfcCircle(f.createIfcAxis2Placement3D(p3(f, 0, 0, 0), None, None), 5000.0)
+    curved = f.createIfcEdgeCurve(edge.EdgeStart, edge.EdgeEnd, circle, same_sense)
+    cm.Representation.Representations[0].Items = [curved]
+    an.finish()
+    path = tmp_path / "arch.ifc"
+    mb.write(str(path))
+    m = read_members(build_index(str(path))).set_index("name").loc["arch"]
+    assert m["length"] == pytest.approx(5.0 * quarters * math.pi / 2, rel=1e-12)   # R·θ (common practice)
+    assert m["length_source"].startswith("IfcEdgeCurve #")

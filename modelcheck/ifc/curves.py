@@ -43,12 +43,13 @@ from typing import Any, Protocol, TypeVar
 
 from modelcheck.ifc.outline import Arc
 
-__all__ = ["CurveError", "conic_sweep", "curve_length", "line_trims", "orient", "trim_choice"]
+__all__ = ["CurveError", "conic_sweep", "curve_length", "edge_curve_length", "line_trims", "orient", "trim_choice"]
 
 _TWO_PI = 2.0 * math.pi
 #: a gap between consecutive segments of a composite curve larger than this share of the
-#: curve's length means the segments do not form one curve
-GAP_TOLERANCE = 1e-6
+#: curve's length means the segments do not form one curve (the closing tolerance of profile
+#: outlines, ``profiles.GAP_TOLERANCE``: exporters round coordinates)
+GAP_TOLERANCE = 1e-4
 
 Vec = tuple[float, float, float]
 
@@ -196,6 +197,27 @@ def curve_length(curve: Any, angle_factor: float = 1.0) -> float:
     return total
 
 
+def edge_curve_length(edge: Any, angle_factor: float = 1.0) -> float:
+    """Length of an IfcEdgeCurve (an analysis member's edge) in the file's length unit: the part of
+    its EdgeGeometry between its two vertices: on an IfcLine their distance, on an IfcCircle or
+    IfcEllipse the arc from EdgeStart to EdgeEnd (counter-clockwise when SameSense is true), on a
+    bounded curve the whole curve. CurveError where it cannot be measured."""
+    try:
+        geom = edge.EdgeGeometry
+        a, b = _point(edge.EdgeStart.VertexGeometry), _point(edge.EdgeEnd.VertexGeometry)
+        if geom is None or geom.is_a("IfcLine"):
+            return math.dist(a, b)
+        if geom.is_a("IfcCircle") or geom.is_a("IfcEllipse"):
+            c = _Conic.of(geom)
+            a1 = c.angle_of(a)
+            return c.length(a1, conic_sweep(a1, c.angle_of(b), bool(edge.SameSense)))
+    except CurveError as exc:
+        raise CurveError(f"{edge.is_a()} #{edge.id()}: {exc}") from None
+    except (AttributeError, TypeError, ValueError, ArithmeticError) as exc:
+        raise CurveError(f"{edge.is_a()} #{edge.id()} cannot be measured: {exc}") from None
+    return curve_length(geom, angle_factor)
+
+
 def _pieces(curve: Any, af: float, depth: int) -> list[_Piece]:
     if depth > 8:
         raise CurveError("composite curves nested too deep")
@@ -283,7 +305,7 @@ def _composite(curve: Any, af: float, depth: int) -> list[_Piece]:
     total = sum(p.length for p in out)
     for i, (a, b) in enumerate(zip(out, out[1:], strict=False)):
         gap = math.dist(a.end, b.start)
-        if gap > GAP_TOLERANCE * max(total, 1.0):
+        if gap > GAP_TOLERANCE * total:
             raise CurveError(f"the segments do not join: a gap of {gap:g} after piece {i + 1} "
                              "(each run in the sense SameSense and SenseAgreement give it)")
     return out

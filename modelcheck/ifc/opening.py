@@ -115,7 +115,8 @@ def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
         raise ModelReadError(f"cannot be parsed as IFC: {text}", path=name) from None
     finally:
         if copy is not None:   # the lazy parser keeps its descriptor: the copy lives until it closes
-            copy.unlink(missing_ok=True)
+            with contextlib.suppress(OSError):   # (a system that cannot remove an open file keeps it)
+                copy.unlink(missing_ok=True)
     schema = _schema_of(model)
     if schema not in SUPPORTED_SCHEMAS:
         raise ModelReadError(f"schema {model.schema!r} is not supported (IFC2X3, IFC4, IFC4X3)", path=name)

@@ -47,7 +47,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from modelcheck.ifc.curves import CurveError, curve_length
+from modelcheck.ifc.curves import CurveError, curve_length, edge_curve_length
 from modelcheck.ifc.index import (
     ModelIndex,
     SIValue,
@@ -549,7 +549,7 @@ class _Reader:
         if isinstance(axis_len, str):
             axis_problem, axis_len = axis_len, None
         if analysis:
-            tl = self._topology_length(el)
+            tl = self._topology_length(el, warnings)
             lengths = [x for x in (tl, axis_len, body_len, qlen) if x is not None]
         else:
             lengths = [x for x in (axis_len, body_len, qlen) if x is not None]
@@ -861,12 +861,19 @@ class _Reader:
                     out[p.Name] = v
         return out
 
-    def _topology_length(self, el: Any) -> tuple[float, str] | None:
-        """Length of an analysis curve member from its IfcEdge topology."""
+    def _topology_length(self, el: Any, warnings: list[str]) -> tuple[float, str] | None:
+        """Length of an analysis curve member from its IfcEdge topology (an IfcEdgeCurve along its
+        curve: ``curves.edge_curve_length``)."""
         if self.lf is None or el.Representation is None:
             return None
         for r in el.Representation.Representations or ():
             for it in r.Items or ():
+                if it.is_a("IfcEdgeCurve"):
+                    try:
+                        return edge_curve_length(it, self.angle) * self.lf, f"IfcEdgeCurve #{it.id()}"
+                    except CurveError as exc:
+                        warnings.append(f"analysis edge not measured: {exc}")
+                        continue
                 if it.is_a("IfcEdge"):
                     try:
                         a = np.array(it.EdgeStart.VertexGeometry.Coordinates, dtype=float)
