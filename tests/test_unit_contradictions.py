@@ -143,3 +143,16 @@ def test_profile_properties_alone_still_name_the_profile_class(tmp_path):
     assert m["area"] == pytest.approx(1200e-6)    # 1200 mm², as stated
     assert m["profile_type"] == "IfcArbitraryOpenProfileDef" and m["section_name"] == "PL-LINE"
     assert m["area_source"].startswith("IfcStructuralProfileProperties #")
+
+
+def test_the_canopy_strut_reads_the_profile_its_properties_name() -> None:
+    """Sample model: ST-14 states its section only through IfcStructuralProfileProperties."""
+    from tests.conftest import SAMPLES
+
+    ms = read_members(build_index(str(SAMPLES / "nettlebrook-canopy.ifc"))).set_index("tag")
+    st = ms.loc["ST-14"]
+    assert st["profile_type"] == "IfcRectangleHollowProfileDef" and st["section_name"] == "HSS4X4X1/4"
+    # AISC Manual Table 1-12, HSS4X4X1/4: A = 3.37 in², r = 1.52 in (from memory)
+    assert st["area"] == pytest.approx(Q_(3.37, "in**2").to("m**2").m, rel=2e-3)
+    assert st["r_min"] == pytest.approx(Q_(1.52, "in").to("m").m, rel=2e-3)
+    assert not contradictions(st)
