@@ -87,8 +87,11 @@ def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
                                  "END-ISO-10303-21;", path=name)
         member = _zipped_model_name(p)
         if member is not None:
-            with zipfile.ZipFile(p) as zf, zf.open(member) as fh:
-                bom = fh.read(len(UTF8_BOM)) == UTF8_BOM
+            try:
+                with zipfile.ZipFile(p) as zf, zf.open(member) as fh:
+                    bom = fh.read(len(UTF8_BOM)) == UTF8_BOM
+            except (zipfile.BadZipFile, zlib.error, OSError, EOFError, NotImplementedError, RuntimeError) as exc:
+                raise ModelReadError(f"the zip archive cannot be read: {exc}", path=name) from None
     else:
         bom = head.startswith(UTF8_BOM)
         start = head.removeprefix(UTF8_BOM).lstrip()
