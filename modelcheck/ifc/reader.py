@@ -22,8 +22,9 @@ becomes a warning on the member, both values named):
 * quantity sets rank Qto_* first, then BaseQuantities (IFC2X3 exports), then any other
   IfcElementQuantity; each quantity is taken from the first set that has it.
 * an area read in a stated area unit (the file's AREAUNIT or the value's own unit) that is
-  ``UNIT_CONTRADICTION`` times or more away from the area worked out from lengths is not used:
-  the member carries a warning with both values and both sources.
+  ``UNIT_CONTRADICTION`` times or more away from the area worked out from lengths, and that the
+  outline bound does not already refuse, is not used: the member carries a warning with both
+  values and both sources.
 * material: on the occurrence (directly or via profile / layer / constituent sets and lists),
   else on its type. Its category and grade from IfcMaterial.Category and its name
   (``modelcheck.material_names``; "unknown" when nothing recognises them). Mechanical values by the
@@ -608,7 +609,8 @@ class _Reader:
             return candidates
         kept = []
         for c in candidates:
-            if c.stated_unit and c.area > 0 and math.isfinite(c.area):
+            # (an area the section's outline cannot hold is flagged as such, by the ranking below)
+            if c.stated_unit and c.area > 0 and math.isfinite(c.area) and _beyond_family(base, c) is None:
                 factor = max(c.area / base.area, base.area / c.area)
                 if factor >= UNIT_CONTRADICTION:
                     warnings.append(
