@@ -189,9 +189,12 @@ def _give_back_freed_memory() -> None:
 
 
 def _say(line: str) -> None:
-    """One line on standard error, whatever its encoding: a file name in another encoding than
-    UTF-8 (undecodable bytes, kept by Python as lone surrogates) is written as escapes."""
-    print(line.encode("utf-8", "backslashreplace").decode("utf-8"), file=sys.stderr)
+    """One line on standard error, whatever it quotes: control characters (an escape sequence in
+    a model's text or a file name) and undecodable bytes of a file name (kept by Python as lone
+    surrogates) are written as visible escapes (``report.text.shown_line``)."""
+    from modelcheck.report.text import shown_line
+
+    print(shown_line(line), file=sys.stderr)
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -332,7 +335,12 @@ def read_inputs(args: argparse.Namespace, paths: list[str], load_paths: list[str
 
 # ---------------------------------------------------------------------------- members
 def cmd_members(args: argparse.Namespace) -> int:
-    from rich.markup import escape
+    from rich.markup import escape as markup_escape
+
+    from modelcheck.report.text import MAX_SHOWN, shown
+
+    def escape(text: str, limit: int | None = MAX_SHOWN * 5) -> str:   # the model's text, safe for a terminal
+        return markup_escape(shown(text, limit))
 
     from modelcheck.pipeline import expand_paths, read_model, unmatched_lines, unmatched_rows
     from modelcheck.report.members import CAUTION, member_dicts, members_csv, members_table
@@ -386,15 +394,18 @@ def cmd_members(args: argparse.Namespace) -> int:
         import pandas as pd
 
         frames = [members_csv(d.members, units_for(d)) for d in datas if d.members is not None]
+        from modelcheck.report.text import csv_frame
+
         df = pd.concat(frames, ignore_index=True) if frames else pd.DataFrame()
-        write_text(df.to_csv(index=False), args.output, inputs)
+        write_text(csv_frame(df).to_csv(index=False), args.output, inputs)
     else:
         if args.output:
             guard_output(args.output, inputs)
         con = report_console(file=open(args.output, "w", encoding="utf-8") if args.output else None)  # noqa: SIM115
         for d in datas:
             if d.error:
-                con.print(f"[bold red]{escape(d.path)}: cannot be read[/] — {escape(d.error)}", highlight=False)
+                con.print(f"[bold red]{escape(d.path, None)}: cannot be read[/] — {escape(d.error, None)}",
+                          highlight=False)
                 continue
             u = units_for(d)
             con.print(members_table(d.members, u, f"{d.path} ({d.schema}, {len(d.members)} members)"))
@@ -408,7 +419,7 @@ def cmd_members(args: argparse.Namespace) -> int:
         con.print(f"\n[dim]{CAUTION}[/]")
     for d in datas:
         if d.error:
-            print(f"modelcheck: error: {d.error}", file=sys.stderr)
+            _say(f"modelcheck: error: {d.error}")
     return EXIT_INPUT if any_error else EXIT_OK
 
 
@@ -435,15 +446,17 @@ def cmd_rules(args: argparse.Namespace) -> int:
         return EXIT_OK
     errors = rs.validate_ruleset_file(args.target)
     for e in errors:
-        print(e, file=sys.stderr)
+        _say(e)
     if errors:
-        print(f"modelcheck: error: {args.target}: {len(errors)} error(s)", file=sys.stderr)
+        _say(f"modelcheck: error: {args.target}: {len(errors)} error(s)")
         return EXIT_INPUT
     for w in rs.ruleset_warnings(rs.load_ruleset(args.target)):
-        print(w, file=sys.stderr)
+        _say(w)
     from rich.markup import escape
 
-    con.print(f"{escape(args.target)}: valid", highlight=False)
+    from modelcheck.report.text import shown
+
+    con.print(f"{escape(shown(args.target, None))}: valid", highlight=False)
     return EXIT_OK
 
 
@@ -572,7 +585,7 @@ def cmd_check(args: argparse.Namespace) -> int:
                 con.print(summary_line(m, run.results), soft_wrap=True)   # one line, whatever its length
     for m in run.models:
         if m.error:
-            print(f"modelcheck: error: {m.error}", file=sys.stderr)
+            _say(f"modelcheck: error: {m.error}")
     return exit_code(run, bool(args.strict), args.fail_on or "any", comparison)
 
 

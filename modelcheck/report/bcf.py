@@ -39,7 +39,7 @@ from typing import Any
 from modelcheck.report.console import governing
 from modelcheck.report.csv_report import member_info
 from modelcheck.report.members import CAUTION
-from modelcheck.report.text import number, xml_text
+from modelcheck.report.text import number, xml_clean, xml_text
 
 #: namespace of every UUID this module derives (a fixed random UUID of our own)
 BCF_NAMESPACE = uuid.UUID("5e0f3c1a-8b27-4d6e-9a41-2f7c6b90d3e8")
@@ -58,6 +58,7 @@ def _str(v: Any) -> str | None:
 
 
 def _xml(root: ET.Element) -> bytes:
+    xml_clean(root)   # every text and attribute: no character XML 1.0 forbids
     ET.indent(root, space="  ")
     return ET.tostring(root, encoding="utf-8", xml_declaration=True) + b"\n"
 

@@ -11,7 +11,9 @@ Columns, in this order::
 a length or a plain number, depending on the check). ``missing`` joins the missing inputs with
 " | ". Numbers carry six significant digits, as in the JSON report. Rows keep the order of the
 results table (the JSON report's order), so the same inputs give the same bytes: the CSV has no
-timestamp at all.
+timestamp at all. A text cell beginning with ``= + - @``, a tab or a carriage return is written
+with a leading apostrophe (``report.text.csv_cell``: a spreadsheet must not run a model's text as a
+formula); numbers are written as numbers.
 
 Example::
 
@@ -73,6 +75,8 @@ def results_frame(run: Any) -> pd.DataFrame:
 
 def write_csv(run: Any, path: str | Path) -> None:
     """Write the results of a check run as CSV (UTF-8, comma-separated, header row)."""
-    df = results_frame(run)
+    from modelcheck.report.text import csv_frame
+
+    df = csv_frame(results_frame(run))   # a text cell a spreadsheet would run as a formula is neutralised
     text = df.to_csv(index=False, float_format="%.6g", lineterminator="\n")
     Path(path).write_text(text, encoding="utf-8", newline="")

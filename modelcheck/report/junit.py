@@ -34,7 +34,7 @@ from typing import Any
 
 from modelcheck.report.console import governing, summary_line
 from modelcheck.report.csv_report import member_info
-from modelcheck.report.text import number, xml_text
+from modelcheck.report.text import number, xml_clean, xml_text
 
 
 def _stem(model: str) -> str:
@@ -144,7 +144,7 @@ def junit_tree(run: Any, *, strict: bool = False) -> ET.Element:
 
 def write_junit(run: Any, path: str | Path, *, strict: bool = False) -> None:
     """Write the JUnit XML report of a check run (UTF-8)."""
-    root = junit_tree(run, strict=strict)
+    root = xml_clean(junit_tree(run, strict=strict))   # no character XML 1.0 forbids, anywhere
     ET.indent(root, space="  ")
     data = ET.tostring(root, encoding="utf-8", xml_declaration=True)
     Path(path).write_bytes(data + b"\n")

@@ -1,9 +1,38 @@
-"""Small text helpers shared by the file reporters."""
+"""Small text helpers shared by the reporters: numbers, and text from the inputs made safe for
+where it goes.
+
+Text read from a model, a load table or a rule file is the user's and may be hostile. Three
+places need it made safe, each with one helper used by every writer of that kind of output:
+
+* a terminal (the console reports and every line on standard error): ``shown`` replaces control
+  characters with a visible escape (``\\x1b``) and cuts a text longer than ``MAX_SHOWN`` characters
+  with an ellipsis;
+* a spreadsheet (every CSV the project writes): ``csv_cell`` neutralises a text cell that a
+  spreadsheet would read as a formula;
+* XML 1.0 (JUnit, BCF): ``xml_text`` and ``xml_clean`` drop every character XML 1.0 forbids.
+"""
 
 from __future__ import annotations
 
 import math
+import re
 from typing import Any
+
+#: characters of one text in a console table cell or a warning line; longer texts end in "…"
+MAX_SHOWN = 200
+#: characters of one line on standard error (an error naming a file, row and GlobalId)
+MAX_LINE = 2000
+
+#: C0 controls, DEL and C1 controls: what a terminal may act on instead of showing
+_CONTROL_RE = re.compile(r"[\x00-\x1f\x7f-\x9f]")
+#: the same, but tab and newline are left for a text whose layout they are
+_CONTROL_BUT_LAYOUT_RE = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
+#: lone surrogates (undecodable bytes of a file name, kept by Python as U+DC80…U+DCFF)
+_SURROGATE_RE = re.compile(r"[\ud800-\udfff]")
+#: every character XML 1.0 does not allow (its production 'Char')
+_NOT_XML_RE = re.compile(r"[^\t\n\r\x20-\ud7ff\ue000-\ufffd\U00010000-\U0010ffff]")
+#: the first characters of a cell that a spreadsheet takes for a formula (OWASP, CSV injection)
+CSV_FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
 
 
 def number(v: Any) -> str:
@@ -30,7 +59,79 @@ def plain(v: float, digits: int = 4) -> str:
     return "0" if text in ("-0", "") else text
 
 
+def _escape(m: re.Match[str]) -> str:
+    code = ord(m.group())
+    return f"\\x{code:02x}" if code < 0x100 else f"\\u{code:04x}"
+
+
+def shown(text: Any, limit: int | None = MAX_SHOWN, *, layout: bool = False) -> str:
+    """``text`` as it may reach a terminal: every control character (C0, DEL, C1; with ``layout``
+    tab and newline are kept) and every lone surrogate written as a visible escape (ESC becomes
+    ``\\x1b``), and cut to ``limit`` characters with an ellipsis (None: not cut).
+
+    >>> shown("H1\\x1b[2J")
+    'H1\\\\x1b[2J'
+    """
+    s = "" if text is None else str(text)
+    if limit is not None and len(s) > limit:
+        s = s[:limit - 1] + "…"
+    s = (_CONTROL_BUT_LAYOUT_RE if layout else _CONTROL_RE).sub(_escape, s)
+    return _SURROGATE_RE.sub(_escape, s)
+
+
+def shown_line(text: Any) -> str:
+    """One line for standard error: ``shown`` with newlines escaped too, at most ``MAX_LINE``."""
+    return shown(text, MAX_LINE)
+
+
+def csv_cell(value: Any) -> Any:
+    """A cell for a CSV file: a text beginning with ``= + - @``, a tab or a carriage return gets
+    a leading apostrophe, so that a spreadsheet shows it as text instead of running it as a
+    formula (OWASP, CSV injection). Numbers are numbers and stay as they are (-42.0 is written
+    -42.0, never a formula); only texts are touched."""
+    if isinstance(value, str) and value.startswith(CSV_FORMULA_STARTS):
+        return "'" + value
+    return value
+
+
+def csv_frame(df: Any) -> Any:
+    """A copy of a table whose text cells and column names went through ``csv_cell`` (only the
+    text columns are scanned; a column of numbers is left as it is)."""
+    import pandas as pd
+
+    out = df.copy()
+    for col in out.columns:
+        s = out[col]
+        if not (s.dtype == object or isinstance(s.dtype, pd.StringDtype)):
+            continue
+        try:   # one vectorised test over the column's texts (None and numbers are not texts)
+            starts = s.str.startswith(CSV_FORMULA_STARTS, na=False).to_numpy(dtype=bool)
+        except AttributeError:   # no text in the column at all
+            continue
+        if starts.any():
+            fixed = s.copy()
+            fixed[starts] = "'" + s[starts].astype(str)
+            out[col] = fixed
+    out.columns = [csv_cell(str(c)) for c in out.columns]
+    return out
+
+
 def xml_text(text: Any) -> str:
-    """Text safe for XML 1.0: missing -> "", control characters other than tab/newline dropped."""
+    """Text safe for XML 1.0: missing -> "", every character XML 1.0 forbids dropped (C0
+    controls but tab, newline and carriage return; lone surrogates; U+FFFE and U+FFFF)."""
     s = "" if text is None or (isinstance(text, float) and math.isnan(text)) else str(text)
-    return "".join(ch for ch in s if ch in "\t\n\r" or ord(ch) >= 0x20)
+    return _NOT_XML_RE.sub("", s)
+
+
+def xml_clean(root: Any) -> Any:
+    """Every text, tail and attribute of an ElementTree element and its descendants made XML 1.0
+    text (``xml_text``), in place; returns ``root``. Called on a whole tree just before it is
+    written, so no attribute or text can be missed."""
+    for el in root.iter():
+        if el.text is not None:
+            el.text = xml_text(el.text)
+        if el.tail is not None:
+            el.tail = xml_text(el.tail)
+        for k, v in list(el.attrib.items()):
+            el.attrib[k] = xml_text(v)
+    return root

@@ -16,8 +16,15 @@ from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
+from modelcheck.report.text import MAX_LINE, shown
 from modelcheck.rules.ruleset import RuleSet
 from modelcheck.units import ureg
+
+
+def _e(text: str) -> str:
+    """A rule file's text for a table cell: control characters escaped, cut at ``MAX_LINE``
+    characters, rich markup escaped."""
+    return escape(shown(text, MAX_LINE, layout=True))
 
 
 def _unit(unit: str) -> str:
@@ -32,22 +39,22 @@ def ruleset_list(rulesets: Sequence[RuleSet]) -> Table:
     table.add_column("checks", justify="right")
     table.add_column("basis")
     for rs in rulesets:
-        table.add_row(escape(rs.name), rs.units, str(len(rs.checks)), escape(rs.basis))
+        table.add_row(_e(rs.name), rs.units, str(len(rs.checks)), _e(rs.basis))
     return table
 
 
 def _header(rs: RuleSet) -> Panel:
     lines = Text()
-    lines.append(rs.name, style="bold")
+    lines.append(shown(rs.name, MAX_LINE), style="bold")
     lines.append(f"   ({rs.units} display units)\n")
     lines.append("basis: ", style="dim")
-    lines.append(rs.basis + "\n")
+    lines.append(shown(rs.basis, MAX_LINE, layout=True) + "\n")
     if rs.description:
-        lines.append(rs.description + "\n")
+        lines.append(shown(rs.description, MAX_LINE, layout=True) + "\n")
     lines.append("file: ", style="dim")
-    lines.append(rs.path + "\n")
+    lines.append(shown(rs.path, MAX_LINE) + "\n")
     lines.append("applies to: ", style="dim")
-    lines.append(rs.select.describe())
+    lines.append(shown(rs.select.describe(), MAX_LINE))
     return Panel(lines, expand=False)
 
 
@@ -57,7 +64,7 @@ def parameters_table(rs: RuleSet) -> Table:
     table.add_column("value", no_wrap=True)
     table.add_column("about")
     for p in rs.parameters:
-        table.add_row(escape(p.name), escape(p.text), escape(p.about))
+        table.add_row(_e(p.name), _e(p.text), _e(p.about))
     return table
 
 
@@ -66,7 +73,7 @@ def definitions_table(rs: RuleSet) -> Table:
     table.add_column("name", style="bold", no_wrap=True)
     table.add_column("=")
     for d in rs.definitions:
-        table.add_row(escape(d.name), escape(d.expr.source) + (f"\n[dim]{escape(d.about)}[/dim]" if d.about else ""))
+        table.add_row(_e(d.name), _e(d.expr.source) + (f"\n[dim]{_e(d.about)}[/dim]" if d.about else ""))
     return table
 
 
@@ -79,12 +86,12 @@ def checks_table(rs: RuleSet) -> Table:
     table.add_column("capacity")
     table.add_column("unit", no_wrap=True)
     for c in rs.checks:
-        when = escape(c.when.source) if c.when is not None else "always"
+        when = _e(c.when.source) if c.when is not None else "always"
         if not c.select.empty:
-            when += "\n[dim]members: " + escape(c.select.describe()) + "[/dim]"
-        demand = f"|{escape(c.demand.source)}|" if c.magnitude else escape(c.demand.source)
-        table.add_row(escape(c.id) + f"\n[dim]{escape(c.title)}[/dim]", escape(c.clause), when,
-                      demand, escape(c.capacity.source), escape(_unit(c.unit)))
+            when += "\n[dim]members: " + _e(c.select.describe()) + "[/dim]"
+        demand = f"|{_e(c.demand.source)}|" if c.magnitude else _e(c.demand.source)
+        table.add_row(_e(c.id) + f"\n[dim]{_e(c.title)}[/dim]", _e(c.clause), when,
+                      demand, _e(c.capacity.source), _e(_unit(c.unit)))
     return table
 
 
