@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+import stat
 from pathlib import Path
 
 from modelcheck.errors import ModelcheckError
@@ -21,7 +22,17 @@ def input_file(path: str | os.PathLike[str], error: type[ModelcheckError], what:
         raise error("no such file", path=str(path))
     if p.is_dir():
         raise error(f"is a folder, not {what}", path=str(path))
+    if not regular_file(p):   # reading a device or a pipe may never end (/dev/zero, a FIFO nobody writes)
+        raise error(f"is not a regular file (a device, pipe or socket), not {what}; name a file", path=str(path))
     return p
+
+
+def regular_file(p: Path) -> bool:
+    """Whether ``p`` (links followed) is a regular file: not a device, pipe or socket."""
+    try:
+        return stat.S_ISREG(p.stat().st_mode)
+    except OSError:
+        return False
 
 
 def utf8_name(name: str) -> bool:

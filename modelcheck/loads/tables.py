@@ -73,6 +73,17 @@ _HEADER_RE = re.compile(r"^\s*(?P<name>[^\[\(]*?)\s*(?:\[(?P<u1>[^\]]*)\]|\((?P<
 VALUE_RE = VALUE_PATTERN
 _CONTROL_RE = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")
 _OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
+
+#: bytes of a load table: a CSV file's size, or the uncompressed size a workbook's zip declares
+#: for all its parts together (checked before anything is read or inflated)
+MAX_TABLE_BYTES = 512 * 1024 * 1024
+#: rows of a load table (a sheet's rows, blank ones included)
+MAX_TABLE_ROWS = 2_000_000
+#: cells of a workbook's sheet as read (rows × the sheet's width: a cell far to the right widens
+#: every row)
+MAX_TABLE_CELLS = 40_000_000
+#: parts (files) in a workbook's zip archive
+MAX_WORKBOOK_PARTS = 10_000
 _ZIP_MAGIC = b"PK\x03\x04"
 
 
@@ -114,6 +125,10 @@ def read_load_table(path: str | os.PathLike[str]) -> pd.DataFrame:
     """
     name = str(path)
     p = input_file(path, LoadTableError, "a load table")
+    size = p.stat().st_size
+    if size > MAX_TABLE_BYTES:
+        raise LoadTableError(f"is {_mib(size)}, more than a load table may be ({_mib(MAX_TABLE_BYTES)}); "
+                             "split it into several tables", path=name)
     try:
         data = p.read_bytes()
     except OSError as exc:
@@ -135,6 +150,9 @@ def read_load_table(path: str | os.PathLike[str]) -> pd.DataFrame:
         raise LoadTableError(f"holds binary data (control character {bad.group()!r}), not a CSV table",
                              path=name, where=f"line {line}")
     records = _csv_records(text, name)
+    if len(records) > MAX_TABLE_ROWS:
+        raise LoadTableError(f"has more than {MAX_TABLE_ROWS:,} rows; split it into several tables", path=name,
+                             where=f"row {MAX_TABLE_ROWS + 1}")
     df = _parse(records, name, None, all_text=True)
     df.attrs["encoding"] = encoding
     return df
@@ -198,21 +216,107 @@ def _csv_records(text: str, name: str) -> list[list[str]]:
     return records
 
 
+def _mib(n: int) -> str:
+    return f"{n / (1024 * 1024):,.0f} MiB" if n >= 1024 * 1024 else f"{n:,} bytes"
+
+
+def _xml_part(head: bytes) -> bool:
+    """Whether a part's first bytes are those of an XML text (a byte-order mark, or '<')."""
+    return head.startswith((b"\xef\xbb\xbf", b"\xff\xfe", b"\xfe\xff")) or head.lstrip().startswith(b"<")
+
+
+def check_workbook_archive(p: Path, name: str) -> None:
+    """A workbook's zip archive judged before any part is read: its parts and the uncompressed
+    size they declare (Python's zip reader never inflates a part beyond the size it declares: a
+    part that holds more fails its check), then every XML part's prolog read with a hardened
+    parser (defusedxml) that refuses a document type declaration, so no part can declare
+    entities (nested entity expansion) or fetch anything from outside."""
+    import zipfile
+    import zlib
+    from xml.etree.ElementTree import ParseError
+
+    import defusedxml
+    import defusedxml.ElementTree as safe_et
+
+    try:
+        with zipfile.ZipFile(p) as zf:
+            infos = zf.infolist()
+            if len(infos) > MAX_WORKBOOK_PARTS:
+                raise LoadTableError(f"the workbook has {len(infos):,} parts, more than {MAX_WORKBOOK_PARTS:,}; "
+                                     "not a load table", path=name)
+            total = sum(i.file_size for i in infos)
+            if total > MAX_TABLE_BYTES:
+                raise LoadTableError(f"the workbook declares {_mib(total)} uncompressed, more than a load table "
+                                     f"may be ({_mib(MAX_TABLE_BYTES)}); split it into several tables", path=name)
+            for info in infos:
+                if info.is_dir():
+                    continue
+                part = info.filename
+                try:
+                    with zf.open(info) as fh:
+                        if not _xml_part(fh.read(64)):
+                            continue
+                    with zf.open(info) as fh:
+                        for _ in safe_et.iterparse(fh, events=("start",), forbid_dtd=True):
+                            break   # the root element is open: the prolog, where a DTD would be, is read
+                except defusedxml.DefusedXmlException:
+                    raise LoadTableError(f"part {part} holds a document type declaration (<!DOCTYPE>), which "
+                                         "a workbook never needs; refused (entity expansion or outside "
+                                         "references)", path=name) from None
+                except ParseError as exc:
+                    raise LoadTableError(f"part {part} is not well-formed XML ({exc})", path=name) from None
+                except (zipfile.BadZipFile, zlib.error, EOFError, NotImplementedError, RuntimeError) as exc:
+                    raise LoadTableError(f"part {part} cannot be read from the zip archive ({exc})",
+                                         path=name) from None
+    except (zipfile.BadZipFile, zlib.error, EOFError, OSError) as exc:
+        raise LoadTableError(f"cannot be read as an Excel workbook: the zip archive is damaged or truncated "
+                             f"({exc})", path=name) from None
+
+
+def _workbook_error(exc: BaseException, name: str) -> LoadTableError:
+    """One line for an error met while the workbook's parts are read."""
+    from xml.etree.ElementTree import ParseError
+
+    cause = exc.__cause__ or exc.__context__
+    inner = cause if isinstance(exc, ValueError) and cause is not None else exc
+    if isinstance(inner, IndexError):
+        why = "a cell refers to a shared string the workbook does not hold (xl/sharedStrings.xml)"
+    elif isinstance(inner, ParseError):
+        why = f"a part is not well-formed XML ({inner})"
+    elif isinstance(inner, KeyError):
+        why = f"a part the workbook names is missing ({inner})"
+    else:
+        why = f"{type(inner).__name__}: {inner}"
+    return LoadTableError(f"cannot be read as an Excel workbook: {why}", path=name)
+
+
 def _read_xlsx(p: Path, name: str) -> pd.DataFrame:
     import zipfile
+    import zlib
+    from xml.etree.ElementTree import ParseError
 
     import openpyxl
     from openpyxl.utils.exceptions import InvalidFileException
 
+    check_workbook_archive(p, name)
+    # what a damaged or hand-made workbook can raise from inside the reader (a shared-string index
+    # out of range is an IndexError, a truncated part a zlib error or a parse error, ...)
+    broken = (InvalidFileException, zipfile.BadZipFile, zlib.error, EOFError, ParseError, KeyError, IndexError,
+              ValueError, TypeError, AttributeError, OverflowError, OSError)
     try:
         wb = openpyxl.load_workbook(p, read_only=True, data_only=True)
-    except (InvalidFileException, zipfile.BadZipFile, KeyError, OSError, ValueError, TypeError) as exc:
-        raise LoadTableError(f"cannot be read as an Excel workbook: {exc}", path=name) from None
+    except broken as exc:
+        raise _workbook_error(exc, name) from None
     try:
         missing: list[str] = []
         for ws in wb.worksheets:
-            records = [list(r) for r in ws.iter_rows(min_row=1, values_only=True)]
             sheet = ws.title
+            try:
+                records = _sheet_records(ws, name, sheet)
+            except LoadTableError:
+                raise
+            except broken as exc:
+                raise _workbook_error(exc, name) from None
             if _find_header(records) is None:
                 missing.append(sheet)
                 continue
@@ -224,6 +328,23 @@ def _read_xlsx(p: Path, name: str) -> pd.DataFrame:
     raise LoadTableError(
         "no sheet has a header naming a key column (global_id or tag) and axial_force "
         f"within its first {_HEADER_SEARCH_ROWS} rows (sheets: {', '.join(missing) or 'none'})", path=name)
+
+
+def _sheet_records(ws: Any, name: str, sheet: str) -> list[list[Any]]:
+    """A sheet's rows as lists of cell values, within ``MAX_TABLE_ROWS`` and ``MAX_TABLE_CELLS``."""
+    records: list[list[Any]] = []
+    cells = 0
+    for row in ws.iter_rows(min_row=1, values_only=True):
+        if len(records) >= MAX_TABLE_ROWS:
+            raise LoadTableError(f"has more than {MAX_TABLE_ROWS:,} rows; split it into several tables",
+                                 path=name, where=f"{sheet}:row {MAX_TABLE_ROWS + 1}")
+        cells += len(row)
+        if cells > MAX_TABLE_CELLS:
+            raise LoadTableError(f"has more than {MAX_TABLE_CELLS:,} cells as read (rows × the sheet's width: "
+                                 f"{len(row):,} columns at this row); not a load table", path=name,
+                                 where=f"{sheet}:row {len(records) + 1}")
+        records.append(list(row))
+    return records
 
 
 def _cell_text(v: Any) -> str:
@@ -425,7 +546,7 @@ def _forces_si(raw: pd.Series, header: _Header, name: str, where: Callable[[int]
             why = _why_not_number(first, header.force_unit)
             raise _row_error(name, where, rows, bad, why, value=first)
         _check_finite(numbers, raw, name, where, rows)
-        return numbers * factor
+        return _in_newtons(numbers, np.full(len(numbers), factor), raw, name, where, rows)
     # units in each cell: split number and unit, convert each distinct unit once
     if pd.api.types.infer_dtype(raw, skipna=False) == "string":
         text = raw
@@ -461,7 +582,21 @@ def _forces_si(raw: pd.Series, header: _Header, name: str, where: Callable[[int]
             raise _row_error(name, where, rows, codes == k, why, value=first) from None
     numbers = _numbers(parts["num"], raw, name, where, rows)
     _check_finite(numbers, raw, name, where, rows)
-    return numbers * factors[codes]
+    return _in_newtons(numbers, factors[codes], raw, name, where, rows)
+
+
+def _in_newtons(numbers: np.ndarray, factors: np.ndarray, raw: pd.Series, name: str, where: Callable[[int], str],
+                rows: np.ndarray) -> np.ndarray:
+    """``numbers`` × ``factors``; a force too large for a floating-point number once converted
+    ('1e308 kip') is refused with its row instead of becoming infinite."""
+    with np.errstate(over="ignore", invalid="ignore"):
+        newtons = numbers * factors
+    bad = ~np.isfinite(newtons)
+    if bad.any():
+        first = raw.iloc[int(np.flatnonzero(bad)[0])]
+        raise _row_error(name, where, rows, bad, "too large a force: it overflows when converted to newtons",
+                         value=first)
+    return newtons
 
 
 def _numbers(text: pd.Series, raw: pd.Series, name: str, where: Callable[[int], str], rows: np.ndarray) -> np.ndarray:

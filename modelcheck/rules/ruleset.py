@@ -911,8 +911,11 @@ def resolve_ruleset(name_or_path: str | Path) -> Path:
     if looks_like_path or candidate.exists():
         if candidate.is_dir():
             raise RuleSetError("is a folder, not a rule-set file (.toml)", path=text)
-        if not candidate.is_file():
+        if not candidate.exists():
             raise RuleSetError("no such rule-set file", path=text)
+        if not candidate.is_file():   # a device or a pipe: reading it may never end
+            raise RuleSetError("is not a regular file (a device, pipe or socket), not a rule-set file (.toml)",
+                               path=text)
         return candidate
     shipped = data_dir() / f"{text}.toml"
     if _NAME_RE.match(text.replace("-", "_")) and shipped.is_file() and text in shipped_names():
