@@ -32,6 +32,7 @@ from __future__ import annotations
 import json
 import os
 from collections.abc import Iterable
+from pathlib import Path
 from typing import Any
 
 from modelcheck.errors import UsageError
@@ -152,10 +153,22 @@ def new_problems(cmp: dict[str, Any], *, strict: bool = False) -> int:
 _RESULT_KEYS = ("model", "global_id", "check", "status")
 
 
+#: bytes of a baseline report (a check of 100,000 members writes about 190 MB)
+MAX_BASELINE_BYTES = 2 * 1024 * 1024 * 1024
+
+
 def load_baseline(path: str | os.PathLike[str]) -> dict[str, Any]:
-    """Read an earlier JSON check report; a clear UsageError naming the file when it is not one."""
+    """Read an earlier JSON check report; a clear UsageError naming the file when it is not one.
+
+    Beyond the keys the comparison reads, the whole document must satisfy the check report's
+    JSON Schema (``modelcheck/schemas/check.schema.json``): a list or an object where a text
+    belongs, a nesting deeper than a report has, is named by its place in the document."""
     p = input_file(path, UsageError, "a JSON check report (baseline)")
     name = str(path)
+    size = p.stat().st_size
+    if size > MAX_BASELINE_BYTES:
+        raise UsageError(f"baseline is {size / 2**20:,.0f} MiB, more than a check report may be "
+                         f"({MAX_BASELINE_BYTES / 2**20:,.0f} MiB)", path=name)
     try:
         text = p.read_text(encoding="utf-8")
     except UnicodeDecodeError as exc:
@@ -166,6 +179,10 @@ def load_baseline(path: str | os.PathLike[str]) -> dict[str, Any]:
     except json.JSONDecodeError as exc:
         raise UsageError(f"not valid JSON: {exc.msg} (column {exc.colno})", path=name,
                          where=f"line {exc.lineno}") from None
+    except RecursionError:
+        raise UsageError("not a JSON report of 'modelcheck check': nested far deeper than a report is",
+                         path=name) from None
+    del text
     if not isinstance(doc, dict) or not isinstance(doc.get("results"), list) or \
             not isinstance(doc.get("models"), list) or not isinstance(doc.get("ruleset"), dict):
         raise UsageError("not a JSON report of 'modelcheck check' (needs 'ruleset', 'models' and 'results'; "
@@ -178,7 +195,55 @@ def load_baseline(path: str | os.PathLike[str]) -> dict[str, Any]:
             raise UsageError(f"result entry without {', '.join(_RESULT_KEYS)}", path=name, where=f"results[{i}]")
         if r["status"] not in STATUS_RANK:
             raise UsageError(f"unknown status {r['status']!r}", path=name, where=f"results[{i}]")
+    _validate_report(doc, name)
     return doc
+
+
+def _shape(value: Any) -> Any:
+    """What the schema can tell apart in a value: the types, keys and nesting (texts and numbers
+    alike stand for every text and number; the status, an enumeration, by its value)."""
+    kind = type(value)
+    if kind is dict:
+        return tuple((k, value[k] if k == "status" else _shape(value[k])) for k in value)
+    if kind is list:
+        return ("[]", frozenset(_shape(v) for v in value))
+    return kind
+
+
+def _validate_report(doc: dict[str, Any], name: str) -> None:
+    """``doc`` against the check report's schema; the first violation as a UsageError naming its
+    place (``results[12].name``). Results of one shape are validated once: a report of 400,000
+    rows has a handful of shapes, and validating each row would take minutes."""
+    import jsonschema
+
+    from modelcheck.report.text import shown
+
+    schema_path = Path(__file__).resolve().parent.parent / "schemas" / "check.schema.json"
+    schema = json.loads(schema_path.read_text(encoding="utf-8"))
+    try:
+        first_of_shape: dict[Any, int] = {}
+        nested = (dict, list)
+        for i, r in enumerate(doc["results"]):   # _shape(r), with the calls for plain values saved
+            key = tuple((k, v if k == "status" else _shape(v) if type(v) in nested else type(v))
+                        for k, v in r.items())
+            first_of_shape.setdefault(key, i)
+        picked = sorted(first_of_shape.values())
+        probe = dict(doc, results=[doc["results"][i] for i in picked])
+        validator = jsonschema.validators.validator_for(schema)(schema)
+        error = jsonschema.exceptions.best_match(validator.iter_errors(probe))
+    except RecursionError:
+        raise UsageError("not a JSON report of 'modelcheck check': nested far deeper than a report is",
+                         path=name) from None
+    if error is None:
+        return
+    steps = list(error.absolute_path)
+    if len(steps) > 1 and steps[0] == "results" and isinstance(steps[1], int):
+        steps[1] = picked[steps[1]]
+    where = "".join(f"[{s}]" if isinstance(s, int) else (f".{s}" if i else str(s)) for i, s in enumerate(steps))
+    what = {"type": f"is {type(error.instance).__name__}, not {error.validator_value}",
+            "required": shown(error.message, 120), "enum": f"is not one of {error.validator_value}"}.get(
+        str(error.validator), shown(error.message, 120))
+    raise UsageError(f"not a JSON report of 'modelcheck check': {where or 'the document'} {what}", path=name)
 
 
 # ------------------------------------------------------------------------------- console

@@ -85,6 +85,13 @@ CHECK_KEYS = ("id", "title", "clause", "select", "when", "demand", "capacity", "
 _ID_RE = re.compile(r"[A-Za-z][A-Za-z0-9_.-]{0,63}\Z")
 _NAME_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]{0,63}\Z")
 _SPEC_RE = re.compile(r"[<>^=+\- #0-9,._%eEfFgGn]{0,16}\Z")
+#: the width and precision of a format spec ([[fill]align][sign][#][0][width][,_][.precision][type])
+_SPEC_SIZES_RE = re.compile(r"(?:.?[<>^=])?[+\- ]?#?0?(?P<width>\d*)[,_]?(?:\.(?P<precision>\d+))?[eEfFgGn%]?\Z")
+#: the widest number a message may ask for, and the most digits after its point
+MAX_FORMAT_WIDTH = 40
+MAX_FORMAT_PRECISION = 17
+#: checks in one rule set (a shipped one has fewer than ten)
+MAX_CHECKS = 500
 
 
 # ---------------------------------------------------------------------------------------------
@@ -495,6 +502,12 @@ def _parse_message(text: str, names: set[str]) -> tuple[MessagePart, ...]:
             spec = spec.strip()
             if not _SPEC_RE.match(spec):
                 raise ExpressionError(f"message: {spec!r} is not a number format like .3g or .2%")
+            sizes = _SPEC_SIZES_RE.match(spec)
+            width = int(sizes.group("width") or 0) if sizes else 0
+            precision = int(sizes.group("precision") or 0) if sizes else 0
+            if width > MAX_FORMAT_WIDTH or precision > MAX_FORMAT_PRECISION:
+                raise ExpressionError(f"message: {spec!r}: a number format is at most {MAX_FORMAT_WIDTH} wide "
+                                      f"with at most {MAX_FORMAT_PRECISION} digits after the point")
             try:
                 format(1.0, spec)
             except ValueError as exc:
@@ -727,6 +740,10 @@ def parse_ruleset(text: str, path: str) -> tuple[RuleSet | None, list[RuleSetErr
         raw_checks = []
     if not raw_checks and "check" not in data:
         errors.add(("ruleset",), "the rule set has no [[check]]")
+    if len(raw_checks) > MAX_CHECKS:
+        errors.add(("check", MAX_CHECKS), f"the rule set has {len(raw_checks):,} checks, more than {MAX_CHECKS}; "
+                   "split it into several rule sets")
+        raw_checks = raw_checks[:MAX_CHECKS]
     seen_ids: set[str] = set()
     names_for_checks = all_names
     for k, raw in enumerate(raw_checks):
