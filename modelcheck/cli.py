@@ -142,6 +142,13 @@ def run() -> None:
         os.environ.setdefault("NUMPY_MADVISE_HUGEPAGE", "0")
     _keep_freed_memory()
     lifetime.ENDS_WITH_EXIT = True
+    import signal
+
+    from modelcheck.batch import raise_terminated
+
+    # SIGTERM stops the command as Ctrl-C does: every ``finally`` runs, so the processes it
+    # started are stopped too (none is left running on its own)
+    signal.signal(signal.SIGTERM, raise_terminated)
     code = main()
     try:
         sys.stdout.flush()
@@ -200,6 +207,8 @@ def _say(line: str) -> None:
 def main(argv: list[str] | None = None) -> int:
     import gc
 
+    from modelcheck.batch import Terminated
+
     parser = build_parser()
     args = parser.parse_args(argv)
     # A run builds millions of small objects and few reference cycles: the cyclic collector would
@@ -223,6 +232,9 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("modelcheck: interrupted", file=sys.stderr)
         return 130
+    except Terminated:
+        print("modelcheck: terminated", file=sys.stderr)
+        return 128 + 15
     except BrokenPipeError:
         return EXIT_OK
     except OSError as exc:   # a file that could not be read or written (permissions, a full disk, ...)

@@ -239,6 +239,9 @@ class _Forked:
         pid = os.fork()
         if pid == 0:   # the helper: work, send, end without the parent's exit handlers
             try:
+                from modelcheck.batch import die_with_parent
+
+                die_with_parent()   # never left running once the command has ended
                 try:
                     payload: tuple[str, Any] = ("ok", fn(*args))
                 except ModelcheckError as exc:

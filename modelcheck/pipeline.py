@@ -556,24 +556,21 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
 
         checked = run_on_cluster(scheduler, paths, ref, forces, validate, progress=progress, units=units)
     elif jobs > 1 and len(paths) > 1:
-        import multiprocessing
-        from concurrent.futures import ProcessPoolExecutor
-
+        from modelcheck.batch import Died, run_each
         from modelcheck.parallel import can_split, release_rows, row_file
 
-        # each model's rows go to a memory file the workers inherit (so they must be forked, not
-        # started afresh, whatever this Python's default): not sent back through a pipe
+        # each model's rows go to a memory file its process inherits (so it must be forked, not
+        # started afresh): not sent back through a pipe
         inherit = encode_json and can_split()
         files = [row_file(i) if inherit else None for i in range(len(paths))]
-        context = multiprocessing.get_context("fork") if inherit else None
         try:
-            with ProcessPoolExecutor(max_workers=min(jobs, len(paths)), mp_context=context) as pool:
-                futures = [pool.submit(check_model, p, ref, forces, validate, encode_json, 1, slim, files[i], units)
-                           for i, p in enumerate(paths)]
-                for fut in futures:
-                    checked.append(fut.result())
-                    if progress is not None:
-                        progress()
+            # a process per model: one that dies (out of memory, killed) makes that model an
+            # error, and the others are checked as usual
+            answers = run_each(check_model, [(p, ref, forces, validate, encode_json, 1, slim, files[i], units)
+                                             for i, p in enumerate(paths)], jobs, progress)
+            checked += [CheckedModel(ModelData(path=p, error=f"{p}: the process checking this model ended "
+                                               f"without a result ({a.why}); the model was not checked"))
+                        if isinstance(a, Died) else a for p, a in zip(paths, answers, strict=True)]
         finally:
             used = {c.json_rows for c in checked if isinstance(c.json_rows, int)}
             release_rows([f for f in files if f is not None and f not in used])
