@@ -152,8 +152,14 @@ def run() -> None:
     code = main()
     try:
         sys.stdout.flush()
-        sys.stderr.flush()
     except BrokenPipeError:
+        pass
+    except OSError as exc:   # the report on standard output could not be written (a full disk)
+        _say(f"modelcheck: error: standard output: cannot be written: {exc.strerror or exc}")
+        code = EXIT_INPUT
+    try:
+        sys.stderr.flush()
+    except OSError:
         pass
     os._exit(code)
 
@@ -304,11 +310,16 @@ def expand_load_paths(items: list[str]) -> list[str]:
 
 
 def write_text(text: str, output: str | None, inputs: list[str]) -> None:
+    from modelcheck.files import writing
+
     if output is None:
-        sys.stdout.write(text)
+        with writing(None):
+            sys.stdout.write(text)
+            sys.stdout.flush()
         return
     guard_output(output, inputs)
-    Path(output).write_text(text, encoding="utf-8")
+    with writing(output):
+        Path(output).write_text(text, encoding="utf-8")
 
 
 def guard_output(output: str, inputs: list[str], option: str = "--output", new_folder: bool = False) -> None:
@@ -394,13 +405,16 @@ def cmd_members(args: argparse.Namespace) -> int:
                 entry["forces"] = force_summary(d)
             models.append(entry)
         doc = {"models": models, "unmatched_force_rows": unmatched, "caution": CAUTION}
+        from modelcheck.files import writing
         from modelcheck.report.check_json import write_members_json
 
         if args.output is None:
-            write_members_json(doc, sys.stdout.buffer)
+            with writing(None):
+                write_members_json(doc, sys.stdout.buffer)
+                sys.stdout.buffer.flush()
         else:
             guard_output(args.output, inputs)
-            with open(args.output, "wb") as fh:
+            with writing(args.output), open(args.output, "wb") as fh:
                 write_members_json(doc, fh)
     elif args.format == "csv":
         import pandas as pd
@@ -413,22 +427,29 @@ def cmd_members(args: argparse.Namespace) -> int:
     else:
         if args.output:
             guard_output(args.output, inputs)
-        con = report_console(file=open(args.output, "w", encoding="utf-8") if args.output else None)  # noqa: SIM115
-        for d in datas:
-            if d.error:
-                con.print(f"[bold red]{escape(d.path, None)}: cannot be read[/] — {escape(d.error, None)}",
-                          highlight=False)
-                continue
-            u = units_for(d)
-            con.print(members_table(d.members, u, f"{d.path} ({d.schema}, {len(d.members)} members)"))
-            for w in d.warnings + d.force_messages:
-                con.print(f"[yellow]warning:[/] {escape(w)}", highlight=False)
-            for gid, ws in zip(d.members["global_id"], d.members["warnings"], strict=True):
-                for w in ws or []:
-                    con.print(f"[yellow]{escape(gid)}:[/] {escape(w)}", highlight=False)
-        for line in unmatched_lines(unmatched):
-            con.print(f"[yellow]warning:[/] {escape(line)}", highlight=False)
-        con.print(f"\n[dim]{CAUTION}[/]")
+        from contextlib import ExitStack
+
+        from modelcheck.files import writing
+
+        with writing(args.output), ExitStack() as stack:
+            sink = stack.enter_context(open(args.output, "w", encoding="utf-8")) if args.output else None
+            con = report_console(file=sink)
+            for d in datas:
+                if d.error:
+                    con.print(f"[bold red]{escape(d.path, None)}: cannot be read[/] — {escape(d.error, None)}",
+                              highlight=False)
+                    continue
+                u = units_for(d)
+                con.print(members_table(d.members, u, f"{d.path} ({d.schema}, {len(d.members)} members)"))
+                for w in d.warnings + d.force_messages:
+                    con.print(f"[yellow]warning:[/] {escape(w)}", highlight=False)
+                for gid, ws in zip(d.members["global_id"], d.members["warnings"], strict=True):
+                    for w in ws or []:
+                        con.print(f"[yellow]{escape(gid)}:[/] {escape(w)}", highlight=False)
+            for line in unmatched_lines(unmatched):
+                con.print(f"[yellow]warning:[/] {escape(line)}", highlight=False)
+            con.print(f"\n[dim]{CAUTION}[/]")
+            (sink or sys.stdout).flush()
     for d in datas:
         if d.error:
             _say(f"modelcheck: error: {d.error}")
@@ -444,17 +465,24 @@ def force_summary(d: Any) -> dict[str, Any]:
 
 # ---------------------------------------------------------------------------- rules
 def cmd_rules(args: argparse.Namespace) -> int:
+    from modelcheck.files import writing
     from modelcheck.rules import ruleset as rs
     from modelcheck.rules import show
 
     con = report_console()
     if args.action == "list":
-        con.print(show.ruleset_list(rs.list_rulesets()))
+        view = show.ruleset_list(rs.list_rulesets())
+        with writing(None):
+            con.print(view)
+            sys.stdout.flush()
         return EXIT_OK
     if not args.target:
         raise UsageError(f"'modelcheck rules {args.action}' needs a rule-set name or file")
     if args.action == "show":
-        con.print(show.ruleset_view(rs.load_ruleset(args.target)))
+        view = show.ruleset_view(rs.load_ruleset(args.target))
+        with writing(None):
+            con.print(view)
+            sys.stdout.flush()
         return EXIT_OK
     errors = rs.validate_ruleset_file(args.target)
     for e in errors:
@@ -572,8 +600,10 @@ def cmd_check(args: argparse.Namespace) -> int:
     try:
         if args.annotate:   # first: the copy reads every entity, and may find a model unreadable
             _annotate(run, args.annotate, inputs)
+        from modelcheck.files import writing
+
         for fmt in files:
-            with stage(f"write {fmt}"):
+            with stage(f"write {fmt}"), writing(targets[fmt]):
                 _write_format(fmt, run, targets[fmt], inputs, now, comparison, bool(args.strict))
     finally:
         release_rows(run.json_rows)
@@ -587,7 +617,11 @@ def cmd_check(args: argparse.Namespace) -> int:
             from modelcheck.report.compare import comparison_renderable
 
             comp_view = comparison_renderable(comparison, width=con.width)
-        render_check(run, con, comparison=comp_view, details=args.details)
+        from modelcheck.files import writing
+
+        with writing(None):
+            render_check(run, con, comparison=comp_view, details=args.details)
+            (sys.stderr if bool(files) and not args.output else sys.stdout).flush()
     else:   # file formats only: still one line per model, on stderr when a report goes to stdout
         from modelcheck.report.console import summary_line
 
@@ -674,8 +708,11 @@ def _annotate(run: Any, target: str, inputs: list[str]) -> None:
         guard_output(out, inputs, option="--annotate", new_folder=several)
     if several and readable:
         os.makedirs(target, exist_ok=True)
+    from modelcheck.files import writing
+
     for m, out in zip(readable, outs, strict=True):
-        annotate_model(m.path, out, run.results)
+        with writing(out):
+            annotate_model(m.path, out, run.results)
 
 
 def exit_code(run: Any, strict: bool, fail_on: str = "any", comparison: Any = None) -> int:

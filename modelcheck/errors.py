@@ -34,3 +34,8 @@ class RuleSetError(ModelcheckError):
 
 class UsageError(ModelcheckError):
     """Command-line arguments that do not make sense together."""
+
+
+class OutputError(ModelcheckError):
+    """A report or an annotated model that could not be written (a full disk, a device that
+    takes no data, no permission): named with the file it was going to."""

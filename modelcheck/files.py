@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import os
 import stat
+from collections.abc import Iterator
+from contextlib import contextmanager
 from pathlib import Path
 
 from modelcheck.errors import ModelcheckError
@@ -43,3 +45,19 @@ def utf8_name(name: str) -> bool:
     except UnicodeEncodeError:
         return False
     return True
+
+
+@contextmanager
+def writing(path: str | os.PathLike[str] | None) -> Iterator[None]:
+    """Around the writing of an output: an OSError on the way (a full disk, ``/dev/full``, no
+    permission) becomes an :class:`OutputError` naming ``path`` (None: standard output). A closed
+    pipe (a reader that stopped, as ``head`` does) is left to the caller."""
+    from modelcheck.errors import OutputError
+
+    try:
+        yield
+    except BrokenPipeError:
+        raise
+    except OSError as exc:
+        raise OutputError(f"cannot be written: {exc.strerror or exc}",
+                          path=str(path) if path is not None else "standard output") from None

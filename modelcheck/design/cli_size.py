@@ -89,12 +89,16 @@ def cmd_size(args: argparse.Namespace) -> int:
     ruleset = load_ruleset(args.rules)
     result = size(ruleset, force, material=args.material, shape=args.shape, thickness=thickness,
                   length=length, family=tuple(args.family) if args.family else None)
-    if args.format == "json":
-        sys.stdout.write(json.dumps(result.to_dict(), indent=2, ensure_ascii=False) + "\n")
-    else:
-        from modelcheck.cli import report_console
+    from modelcheck.files import writing
 
-        render_size(result, report_console())
+    with writing(None):
+        if args.format == "json":
+            sys.stdout.write(json.dumps(result.to_dict(), indent=2, ensure_ascii=False) + "\n")
+        else:
+            from modelcheck.cli import report_console
+
+            render_size(result, report_console())
+        sys.stdout.flush()
     return 0
 
 
