@@ -79,8 +79,11 @@ def _child(conn: Any, fn: Callable[..., Any], args: Sequence[Any]) -> None:
     ``conn``."""
     die_with_parent()
     signal.signal(signal.SIGTERM, signal.SIG_DFL)   # the command's handler is for the command
+    import numpy as np
+
     try:
-        answer: tuple[str, Any] = ("ok", fn(*args))
+        with np.errstate(all="ignore"):   # as in the command itself (``cli._dispatch``), if started afresh
+            answer: tuple[str, Any] = ("ok", fn(*args))
     except Exception as exc:   # noqa: BLE001  (sent back and raised again in the command, as a pool does)
         answer = ("raise", exc)
     try:

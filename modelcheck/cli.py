@@ -222,16 +222,7 @@ def main(argv: list[str] | None = None) -> int:
     # almost everything, and the command ends without the interpreter's teardown (``run``).
     gc.disable()
     try:
-        if args.command == "members":
-            return cmd_members(args)
-        if args.command == "check":
-            return cmd_check(args)
-        if args.command == "rules":
-            return cmd_rules(args)
-        if args.command == "size":
-            from modelcheck.design.cli_size import cmd_size
-
-            return cmd_size(args)
+        return _dispatch(args)
     except ModelcheckError as exc:
         _say(f"modelcheck: error: {exc}")
         return EXIT_INPUT
@@ -257,6 +248,27 @@ def main(argv: list[str] | None = None) -> int:
         gc.enable()
     parser.error(f"unknown command {args.command}")
     return EXIT_INPUT
+
+
+def _dispatch(args: argparse.Namespace) -> int:
+    """The command named by ``args``, with numpy's floating-point warnings off: every value that
+    overflows or is not a number is judged where it is used (refused, or the member unchecked),
+    and a RuntimeWarning naming a line of numpy or of this package would tell the user nothing.
+    Processes forked for the work inherit the setting."""
+    import numpy as np
+
+    with np.errstate(all="ignore"):
+        if args.command == "members":
+            return cmd_members(args)
+        if args.command == "check":
+            return cmd_check(args)
+        if args.command == "rules":
+            return cmd_rules(args)
+        if args.command == "size":
+            from modelcheck.design.cli_size import cmd_size
+
+            return cmd_size(args)
+    raise UsageError(f"unknown command {args.command}")
 
 
 # ---------------------------------------------------------------------------- helpers
