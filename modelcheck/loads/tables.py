@@ -334,6 +334,9 @@ def _sheet_records(ws: Any, name: str, sheet: str) -> list[list[Any]]:
     """A sheet's rows as lists of cell values, within ``MAX_TABLE_ROWS`` and ``MAX_TABLE_CELLS``."""
     records: list[list[Any]] = []
     cells = 0
+    # the size a sheet declares (<dimension>) may be short of its cells: read every row there is
+    # (openpyxl's read-only sheet would otherwise stop at the declared size, without a word)
+    ws.reset_dimensions()
     for row in ws.iter_rows(min_row=1, values_only=True):
         if len(records) >= MAX_TABLE_ROWS:
             raise LoadTableError(f"has more than {MAX_TABLE_ROWS:,} rows; split it into several tables",
