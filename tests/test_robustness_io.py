@@ -382,10 +382,12 @@ def test_no_numpy_warning_reaches_the_user_and_nothing_unverified_passes(tmp_pat
     model, ids = _model(tmp_path)
     table = tmp_path / "forces.csv"
     table.write_text(f"global_id,axial_force [N]\n{ids['H1']},1e305\n", encoding="utf-8")
-    out = run_process(["check", str(model), "--loads", str(table), "--format", "json", "--no-config", "--jobs", "1"],
-                      [model, table], timeout=120)
+    folder = tmp_path / "reports"
+    out = run_process(["check", str(model), "--loads", str(table), "--format", "json,csv,junit,html,bcf",
+                       "--output", str(folder), "--no-config", "--jobs", "1"], [model, table], timeout=120)
     assert "Warning" not in out.stderr and out.lines == [], out.stderr
-    h1 = [r for r in out.json()["results"] if r["global_id"] == ids["H1"] and r["load_case"] == "default"]
+    doc = json.loads((folder / "modelcheck-report.json").read_text(encoding="utf-8"))
+    h1 = [r for r in doc["results"] if r["global_id"] == ids["H1"] and r["load_case"] == "default"]
     assert h1 and all(r["status"] != "pass" for r in h1 if r["check"] != "slenderness-tension")
 
 
