@@ -78,7 +78,7 @@ _OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
 #: for all its parts together (checked before anything is read or inflated)
 MAX_TABLE_BYTES = 512 * 1024 * 1024
 #: rows of a load table (a sheet's rows, blank ones included)
-MAX_TABLE_ROWS = 2_000_000
+MAX_TABLE_ROWS = 5_000_000
 #: cells of a workbook's sheet as read (rows × the sheet's width: a cell far to the right widens
 #: every row)
 MAX_TABLE_CELLS = 40_000_000
