@@ -1,10 +1,11 @@
-"""Several models checked at once: each in a process of its own, at most ``jobs`` at a time.
+"""Several models checked at once, in at most ``jobs`` worker processes, each taking one model
+at a time.
 
-A process per model, rather than a pool of workers that each take several, so that a process
-that dies (killed by the system for want of memory, by a user's ``kill -9``, or by a crash in a
-library) loses exactly one model, which is known: that model becomes an error naming it, and the
-others are checked and reported as usual. (A pool breaks as a whole when one of its workers dies,
-and does not say which model it was working on.)
+The workers are this module's own rather than a standard process pool, because a standard pool
+breaks as a whole when one of its workers dies (killed by the system for want of memory, by a
+user's ``kill -9``, or by a crash in a library) and does not say which model it was on. Here the
+model a worker was on when it died is known: that model becomes an error naming it, a new worker
+takes the models left, and the others are checked and reported as usual.
 
 Every process started here ends with the command: the command's own SIGTERM (``cli.run`` turns
 it into :class:`Terminated`) and any other way out of ``run_each`` stop the processes still
@@ -12,7 +13,7 @@ running, and each process asks the system to end it when the command's process e
 that happens (``die_with_parent``; Linux).
 
     results = run_each(check_model, [(path, ref, ...) for path in paths], jobs=2)
-    # a result, or a Died naming why the process ended without one
+    # a result, or a Died naming why the worker ended without one
 """
 
 from __future__ import annotations
@@ -74,23 +75,30 @@ def exit_reason(exitcode: int | None) -> str:
     return f"exit status {exitcode}"
 
 
-def _child(conn: Any, fn: Callable[..., Any], args: Sequence[Any]) -> None:
-    """The work of one item, in its own process: the answer (or the exception) goes back over
-    ``conn``."""
-    die_with_parent()
-    signal.signal(signal.SIGTERM, signal.SIG_DFL)   # the command's handler is for the command
+def _worker(conn: Any, fn: Callable[..., Any], items: Sequence[Sequence[Any]]) -> None:
+    """A worker process: ``fn(*items[i])`` for each index ``i`` it is sent, the answer (or the
+    exception) sent back over ``conn``, until it is sent None. The items themselves are inherited
+    (or, started afresh, given once), never sent one by one."""
     import numpy as np
 
-    try:
-        with np.errstate(all="ignore"):   # as in the command itself (``cli._dispatch``), if started afresh
-            answer: tuple[str, Any] = ("ok", fn(*args))
-    except Exception as exc:   # noqa: BLE001  (sent back and raised again in the command, as a pool does)
-        answer = ("raise", exc)
-    try:
-        conn.send(answer)
-    except Exception as exc:   # noqa: BLE001  (an answer that cannot be sent: named, not lost)
-        conn.send(("raise", RuntimeError(f"the answer could not be sent back: {type(exc).__name__}: {exc}")))
-    conn.close()
+    die_with_parent()
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)   # the command's handler is for the command
+    while True:
+        try:
+            i = conn.recv()
+        except (EOFError, OSError):
+            return
+        if i is None:
+            return
+        try:
+            with np.errstate(all="ignore"):   # as in the command itself (``cli._dispatch``)
+                answer: tuple[str, Any] = ("ok", fn(*items[i]))
+        except Exception as exc:   # noqa: BLE001  (sent back and raised again in the command, as a pool does)
+            answer = ("raise", exc)
+        try:
+            conn.send(answer)
+        except Exception as exc:   # noqa: BLE001  (an answer that cannot be sent: named, not lost)
+            conn.send(("raise", RuntimeError(f"the answer could not be sent back: {type(exc).__name__}: {exc}")))
 
 
 def _context() -> Any:
@@ -103,40 +111,61 @@ def _context() -> Any:
 
 def run_each(fn: Callable[..., Any], items: Sequence[Sequence[Any]], jobs: int,
              progress: Callable[[], None] | None = None) -> list[Any]:
-    """``fn(*item)`` for every item, each in a process of its own, at most ``jobs`` at once;
-    the answers in the order of ``items``. An item whose process ended without answering gives
-    a :class:`Died`; an exception ``fn`` raised is raised here (the processes still running are
-    stopped first)."""
+    """``fn(*item)`` for every item in at most ``jobs`` worker processes, each taking one item at a
+    time (a worker keeps what it has imported and cached from one item to the next); the answers
+    in the order of ``items``. An item whose worker ended without answering (killed, out of
+    memory) gives a :class:`Died`, and a new worker takes the items left; an exception ``fn``
+    raised is raised here (the workers still running are stopped first)."""
     from multiprocessing.connection import wait
 
     ctx = _context()
     answers: list[Any] = [None] * len(items)
-    pending = deque(enumerate(items))
-    live: dict[Any, tuple[int, Any]] = {}
+    pending = deque(range(len(items)))
+    busy: dict[Any, tuple[Any, int]] = {}   # this end of a worker's pipe -> (worker, item it works on)
+
+    def give(conn: Any, proc: Any) -> None:
+        i = pending.popleft()
+        conn.send(i)
+        busy[conn] = (proc, i)
+
+    def start() -> None:
+        here, there = ctx.Pipe(duplex=True)
+        proc = ctx.Process(target=_worker, args=(there, fn, items), daemon=False)
+        proc.start()
+        there.close()   # the worker holds the only other end: its end is this end's EOF
+        give(here, proc)
+
     try:
-        while pending or live:
-            while pending and len(live) < max(1, jobs):
-                i, args = pending.popleft()
-                receive, send = ctx.Pipe(duplex=False)
-                proc = ctx.Process(target=_child, args=(send, fn, tuple(args)), daemon=False)
-                proc.start()
-                send.close()   # the child holds the only writing end: its end is this end's EOF
-                live[receive] = (i, proc)
-            for conn in wait(list(live)):
-                i, proc = live.pop(conn)
+        for _ in range(min(max(1, jobs), len(items))):
+            start()
+        while busy:
+            for conn in wait(list(busy)):
+                proc, i = busy.pop(conn)
                 try:
                     kind, value = conn.recv()
                 except (EOFError, OSError):
                     kind, value = "died", None
-                conn.close()
-                proc.join()
                 if kind == "raise":
+                    busy[conn] = (proc, i)   # stopped with the others, below
                     raise value
-                answers[i] = value if kind == "ok" else Died(exit_reason(proc.exitcode))
+                if kind == "died":
+                    conn.close()
+                    proc.join()
+                    answers[i] = Died(exit_reason(proc.exitcode))
+                    if pending:
+                        start()
+                else:
+                    answers[i] = value
+                    if pending:
+                        give(conn, proc)
+                    else:
+                        conn.send(None)   # no more work: the worker ends
+                        conn.close()
+                        proc.join()
                 if progress is not None:
                     progress()
     finally:
-        for conn, (_, proc) in live.items():   # stopped early: nothing is left running
+        for conn, (proc, _) in busy.items():   # stopped early: nothing is left running
             proc.kill()
             proc.join()
             conn.close()

@@ -564,8 +564,8 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
         inherit = encode_json and can_split()
         files = [row_file(i) if inherit else None for i in range(len(paths))]
         try:
-            # a process per model: one that dies (out of memory, killed) makes that model an
-            # error, and the others are checked as usual
+            # a worker that dies (out of memory, killed) makes the model it was on an error, and
+            # the others are checked as usual
             answers = run_each(check_model, [(p, ref, forces, validate, encode_json, 1, slim, files[i], units)
                                              for i, p in enumerate(paths)], jobs, progress)
             checked += [CheckedModel(ModelData(path=p, error=f"{p}: the process checking this model ended "
