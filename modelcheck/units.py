@@ -479,6 +479,8 @@ def parse_quantity(text: str, dimension: str | None = None, *, what: str = "valu
                 unit.dimensionality == ureg.pound.dimensionality else ""
             raise QuantityTextError(f"{what} {raw.strip()!r}: {unit_text!r} is not a {dimension}{hint}")
     quantity = Q_(magnitude, unit)
+    if not math.isfinite(float(quantity.to_base_units().magnitude)):   # '1e308 kip': finite as written
+        raise QuantityTextError(f"{what} {raw.strip()!r}: too large: it overflows when converted to SI units")
     return QuantityText(number=number, unit=normalise_unit(unit_text) if unit_text else "", quantity=quantity)
 
 
