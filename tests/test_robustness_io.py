@@ -363,7 +363,7 @@ def test_message_formats_and_the_number_of_checks_are_bounded(capsys, tmp_path):
 
 
 # ------------------------------------------------------------------ 5. faults
-def test_a_force_that_overflows_once_converted_is_refused_with_file_and_row(capsys, tmp_path):
+def test_a_number_that_overflows_once_converted_is_refused_where_it_is_read(capsys, tmp_path):
     model, _ = _model(tmp_path)
     for text, row in (("tag,axial_force [kip]\nH1,1\nH2,1e308\n", "row 3"),
                       ("tag,axial_force\nH1,1e306 kip\n", "row 2")):
@@ -374,6 +374,16 @@ def test_a_force_that_overflows_once_converted_is_refused_with_file_and_row(caps
         _one_line(out, f"{table}:{row}", "overflows")
     out = run_inprocess(capsys, ["size", "--force", "1e308 kip"])
     _one_line(out, "--force", "overflows")
+    # a rule set's parameter and literal: 1 mi = 1609.344 m (pint; international mile, by definition)
+    head = '[ruleset]\nname = "x"\nbasis = "test"\nunits = "SI"\n\n'
+    for text, line in ((head + '[parameters]\nbig = "1e308 mi"\n\n[[check]]\nid = "c1"\ndemand = "L"\n'
+                        'capacity = "big"\n', ":7:"),
+                       (head + '[[check]]\nid = "c1"\ndemand = "L"\ncapacity = "1e308 [mi]"\n', ":9:")):
+        rules = tmp_path / "big.toml"
+        rules.write_text(text, encoding="utf-8")
+        out = run_inprocess(capsys, ["check", str(model), "--rules", str(rules), "--no-config", "--jobs", "1"],
+                            [model, rules])
+        _one_line(out, f"{rules}{line}", "overflows")
 
 
 def test_no_numpy_warning_reaches_the_user_and_nothing_unverified_passes(tmp_path):

@@ -206,6 +206,9 @@ def checked_quantity(magnitude: float, unit: pint.Unit, text: str) -> pint.Quant
             f"{text!r}: a temperature with an offset (degC, degF) is ambiguous here; "
             "write a temperature change as delta_degC, delta_degF or K"
         )
+    # Python floats: an overflow is inf, not a warning ('1e308 [mi]' is finite only as written)
+    if not math.isfinite(magnitude * float(Q_(1.0, unit).to_base_units().magnitude)):
+        raise ExpressionError(f"{text!r}: too large: it overflows when converted to SI units")
     return q
 
 
