@@ -118,17 +118,18 @@ def render_size(result: Any, console: Any) -> None:
     from rich.text import Text
 
     from modelcheck.report.members import CAUTION
+    from modelcheck.report.text import shown
 
     doc = result.to_dict()
     sel = doc["selected"]
     mat = doc["material"]
     what = "tension" if result.force > 0 else "compression"
     force = dict(doc["force"], value=abs(doc["force"]["value"]))
-    head = Table(title=Text(f"Size for {_fmt(force)} {what} — rule set {result.ruleset}"),
+    head = Table(title=Text(f"Size for {_fmt(force)} {what} — rule set {shown(result.ruleset)}"),
                  title_justify="left", show_header=False, box=None, pad_edge=False)
     head.add_column(style="bold")
     head.add_column()
-    name = mat["grade"] if mat["name"] == mat["grade"] else f"{mat['name']} → {mat['grade']}"
+    name = shown(mat["grade"] if mat["name"] == mat["grade"] else f"{mat['name']} → {mat['grade']}")
     head.add_row("Material", Text(f"{name} (Fy {_fmt(mat['Fy'])}, Fu {_fmt(mat['Fu'])}, "
                                   f"E {_fmt(mat['E'], '.0f')})"))
     head.add_row("Stock", Text(str(result.stock)))
@@ -143,7 +144,7 @@ def render_size(result: Any, console: Any) -> None:
     if sel["tensile_stress_area"] is not None:
         head.add_row("Tensile-stress area", Text(_fmt(sel["tensile_stress_area"])))
     head.add_row("Stress", Text(f"{_fmt(sel['stress'])}  ({sel['stress']['source']})" if sel["stress"] else "—"))
-    head.add_row("Ratio", Text(f"{sel['ratio']:.3f}  (governing: {sel['governing_check']})"))
+    head.add_row("Ratio", Text(f"{sel['ratio']:.3f}  (governing: {shown(sel['governing_check'])})"))
     head.add_row("Elongation" if result.force > 0 else "Shortening",
                  Text(_fmt(dict(sel["elongation"], value=abs(sel["elongation"]["value"])), ".3g")
                       if sel["elongation"] is not None else "— (give --length)"))
@@ -156,10 +157,10 @@ def render_size(result: Any, console: Any) -> None:
     for c in doc["checks"]:
         colour = {"pass": "green", "fail": "red"}.get(c["status"], "yellow")
         ratio = "—" if c["ratio"] is None or not math.isfinite(c["ratio"]) else f"{c['ratio']:.3f}"
-        t.add_row(Text(str(c["check"])), Text(str(c["clause"])), Text(_fmt(c["demand"])), Text(_fmt(c["capacity"])),
+        t.add_row(Text(shown(c["check"])), Text(shown(c["clause"])), Text(_fmt(c["demand"])), Text(_fmt(c["capacity"])),
                   ratio, Text(str(c["status"]), style=colour))
     console.print(t)
     for na in doc["not_applicable"]:
-        console.print(f"[yellow]not applied:[/] {escape(str(na['check']))} — {escape(str(na['reason']))}",
+        console.print(f"[yellow]not applied:[/] {escape(shown(na['check']))} — {escape(shown(na['reason'], None))}",
                       highlight=False)
     console.print(f"\n[dim]{CAUTION}[/]")

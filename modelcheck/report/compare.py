@@ -254,10 +254,13 @@ def comparison_renderable(cmp: dict[str, Any], *, max_rows: int = 30, width: int
     from rich.table import Table
     from rich.text import Text
 
+    from modelcheck.report.text import MAX_LINE
+    from modelcheck.report.text import shown as safe
+
     c = cmp["counts"]
     when = cmp.get("baseline", {}).get("generated")
     parts: list[Any] = [Text.assemble(
-        ("Compared with the baseline", "bold"), (f" of {when}" if when else ""), ": ",
+        ("Compared with the baseline", "bold"), (f" of {safe(when)}" if when else ""), ": ",
         (f"{c['new_failures']} new failure(s)", "bold red" if c["new_failures"] else "green"), ", ",
         (f"{c['resolved']} resolved", "green"), ", ", f"{c['still_failing']} still failing, ",
         (f"{c['new_unchecked']} newly unchecked", "yellow" if c["new_unchecked"] else ""), ", ",
@@ -265,19 +268,19 @@ def comparison_renderable(cmp: dict[str, Any], *, max_rows: int = 30, width: int
     for label, key in (("models added", "models_added"), ("models no longer checked", "models_removed"),
                        ("models not readable now (not compared)", "models_unreadable")):
         if cmp.get(key):
-            parts.append(Text(f"  {label}: " + ", ".join(cmp[key]), style="yellow"))
+            parts.append(Text(f"  {label}: " + ", ".join(safe(k) for k in cmp[key]), style="yellow"))
     for note in cmp.get("notes", []):
-        parts.append(Text(f"  note: {note}", style="yellow"))
+        parts.append(Text(f"  note: {safe(note, MAX_LINE)}", style="yellow"))
 
     def table(title: str, rows: list[dict[str, Any]], style: str, extra: str) -> Table:
         from modelcheck.report.console import fitted_table
 
         shown = rows[:max_rows]
-        cells = {"Model": [str(e["model"]) for e in shown], "GlobalId": [str(e["global_id"]) for e in shown],
-                 "Check": [str(e["check"]) for e in shown], "Load case": [str(e["load_case"] or "—") for e in shown],
+        cells = {"Model": [safe(e["model"]) for e in shown], "GlobalId": [safe(e["global_id"]) for e in shown],
+                 "Check": [safe(e["check"]) for e in shown], "Load case": [safe(e["load_case"] or "—") for e in shown],
                  "Ratio": [_num(e.get("ratio")) for e in shown],
                  extra: [_num(e.get("baseline_ratio")) if extra == "Baseline ratio"
-                         else str(e.get("baseline_status") or "absent") for e in shown]}
+                         else safe(e.get("baseline_status") or "absent") for e in shown]}
         columns = [(c, "right" if c in ("Ratio", extra) else "left", v) for c, v in cells.items()]
         body = [[Text(v[i], style=style if c == "Ratio" else "") for c, v in cells.items()]
                 for i in range(len(shown))]

@@ -28,7 +28,7 @@ from rich.table import Table
 from rich.text import Text
 
 from modelcheck.report.members import CAUTION
-from modelcheck.report.text import number
+from modelcheck.report.text import number, shown
 from modelcheck.table import STATUS_RANK
 
 #: console width from which the failing and unchecked lists show every detail
@@ -42,6 +42,9 @@ MAX_FAILING_ROWS = 200
 
 #: members named per group of the unchecked list (the rest counted)
 MAX_NAMED = 8
+
+#: characters of one warning, or one missing input, on the console (it quotes names and values)
+MAX_WARNING = 1000
 
 #: warnings shown per model (the rest counted; every one is in the JSON report)
 MAX_WARNINGS = 20
@@ -86,27 +89,28 @@ def member_status(results: pd.DataFrame) -> pd.Series:
 
 
 def _text(v: Any) -> str | None:
-    """A text value, or None for a missing one (None, NaN, empty)."""
+    """A text value as the console shows it (control characters escaped, a long text cut:
+    ``report.text.shown``), or None for a missing one (None, NaN, empty)."""
     if v is None or (isinstance(v, float) and v != v):
         return None
-    s = str(v).strip()
+    s = shown(str(v).strip())
     return s or None
 
 
 def member_label(name: Any, tag: Any, global_id: Any) -> str:
     """How the console names a member: its tag, else its name, else its GlobalId."""
-    return _text(tag) or _text(name) or str(global_id)
+    return _text(tag) or _text(name) or shown(global_id)
 
 
 # ------------------------------------------------------------------------------ summary
 def summary_line(model: Any, results: pd.DataFrame | None = None) -> Text:
     """One line per model: what was found and checked; the headline says when nothing was."""
-    path = Text(str(model.path), style="bold")
+    path = Text(shown(model.path, None), style="bold")
     if model.error:
-        return Text.assemble(path, ": ", ("cannot be read", "bold red"), " — ", str(model.error))
+        return Text.assemble(path, ": ", ("cannot be read", "bold red"), " — ", shown(model.error, None))
     cov = model.coverage if getattr(model, "coverage", None) is not None else _coverage_from(model, results)
     units = getattr(model, "units", None)
-    head = Text.assemble(path, f" ({model.schema}" + (f", {units} units" if units else "") + "): ")
+    head = Text.assemble(path, f" ({shown(model.schema)}" + (f", {units} units" if units else "") + "): ")
     counts = Text.assemble(f"{cov.found} members found, {cov.checked} checked — ",
                            (f"{cov.passed} pass", "green"), ", ",
                            (f"{cov.failed} fail", "bold red" if cov.failed else "green"), ", ",
@@ -118,7 +122,7 @@ def summary_line(model: Any, results: pd.DataFrame | None = None) -> Text:
     if cov.excluded:
         several = len(cov.excluded) > 1
         head.append(f"; {cov.excluded_count} excluded by the rule set's selection: "
-                    + "; ".join(f"{reason} ({n})" if several else reason for reason, n in cov.excluded))
+                    + "; ".join(f"{shown(reason)} ({n})" if several else shown(reason) for reason, n in cov.excluded))
     if cov.uncovered:
         head.append(f"; {cov.uncovered} with no check of the rule set that applies")
     return head
@@ -141,7 +145,7 @@ def _warning_grid(items: list[tuple[str, str]], style: str = "yellow") -> Table:
     grid.add_column(no_wrap=True, style=style)
     grid.add_column(ratio=1, overflow="fold")
     for label, text in items:
-        grid.add_row(Text(label), Text(text))
+        grid.add_row(Text(label), Text(shown(text, MAX_WARNING)))
     return grid
 
 
@@ -223,8 +227,8 @@ def failing_table(results: pd.DataFrame, members: pd.DataFrame, details: bool = 
     worst = worst.iloc[:MAX_FAILING_ROWS]
     info = None
     if details:
-        shown = worst[["model", "global_id"]]
-        info = (members.merge(shown, on=["model", "global_id"], how="inner")
+        picked = worst[["model", "global_id"]]
+        info = (members.merge(picked, on=["model", "global_id"], how="inner")
                 .drop_duplicates(["model", "global_id"]).set_index(["model", "global_id"]))
     cols: dict[str, list[str]] = {k: [] for k in (
         "Member", "GlobalId", "Class / type", "Storey", "Section", "Material", "Check", "Demand", "Capacity",
@@ -232,23 +236,23 @@ def failing_table(results: pd.DataFrame, members: pd.DataFrame, details: bool = 
     for rec in worst.to_dict("records"):
         cols["Member"].append(member_label(rec["name"], rec["tag"], rec["global_id"]))
         extra = int(rec["_more"])
-        cols["Check"].append(str(rec["check"]) + (f" (+{extra})" if extra else ""))
+        cols["Check"].append(shown(rec["check"]) + (f" (+{extra})" if extra else ""))
         ratio = rec["ratio"]
         cols["Ratio"].append(f"{ratio:.2f}" if ratio == ratio and ratio is not None else "—")
         cols["Load case"].append(_text(rec["load_case"]) or "—")
         s = rec.get("suggestion")
         if isinstance(s, dict):
-            cols["Replacement"].append(f"{s['designation']} (ratio {s['ratio']:.2f})" if details
-                                       else str(s["designation"]))
+            cols["Replacement"].append(f"{shown(s['designation'])} (ratio {s['ratio']:.2f})" if details
+                                       else shown(s["designation"]))
         else:
             cols["Replacement"].append("—")
         if details:
             key = (rec["model"], rec["global_id"])
             m = info.loc[key] if info is not None and key in info.index else None
-            cls = str(rec["ifc_class"]).removeprefix("Ifc")
+            cls = shown(rec["ifc_class"]).removeprefix("Ifc")
             typ = None if m is None else (_text(m["object_type"]) or _text(m["predefined_type"])
                                          or _text(m["type_name"]))
-            cols["GlobalId"].append(str(rec["global_id"]))
+            cols["GlobalId"].append(shown(rec["global_id"]))
             cols["Class / type"].append(f"{cls} {typ}" if typ else cls)
             cols["Storey"].append((_text(m["storey"]) if m is not None else None) or "—")
             cols["Section"].append((_text(m["section_name"]) or _text(m["profile_type"]) if m is not None else None)
@@ -325,11 +329,12 @@ def unchecked_table(results: pd.DataFrame, details: bool = False, width: int = D
     for key, missing in lack.items():
         rec = labels.loc[key]
         name = member_label(rec["name"], rec["tag"], key[1])
-        groups.setdefault(missing, []).append(f"{name} ({key[1]})" if details and name != key[1] else name)
+        groups.setdefault(missing, []).append(f"{name} ({shown(key[1])})" if details and name != shown(key[1])
+                                              else name)
     missing_col, count_col, who_col = [], [], []
     for missing, names in sorted(groups.items(), key=lambda kv: (-len(kv[1]), kv[0])):
         names = sorted(names)
-        missing_col.append("\n".join(missing) or "(no reason given)")
+        missing_col.append("\n".join(shown(m, MAX_WARNING) for m in missing) or "(no reason given)")
         count_col.append(str(len(names)))
         who_col.append(", ".join(names[:MAX_NAMED]) + (f" (+{len(names) - MAX_NAMED} more)"
                                                        if len(names) > MAX_NAMED else ""))
@@ -345,7 +350,8 @@ def render_check(run: Any, console: Console, comparison: Any = None, details: bo
     """The whole console report. ``details`` None: the wide layout from :data:`DETAILS_WIDTH` on."""
     wide = details if details is not None else console.width >= DETAILS_WIDTH
     basis = getattr(run.ruleset, "basis", "") or ""
-    parts: list[Any] = [Text(f"Rule set: {run.ruleset.name}" + (f" — {basis}" if basis else ""), style="dim")]
+    parts: list[Any] = [Text(f"Rule set: {shown(run.ruleset.name)}" + (f" — {shown(basis, MAX_WARNING)}" if basis else ""),
+                             style="dim")]
     for m in run.models:
         parts.append(summary_line(m, run.results))
         warnings = [] if m.error else model_warnings(m, wide)

@@ -98,9 +98,9 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str) -> Any
     from rich.table import Table
     from rich.text import Text
 
-    from modelcheck.report.text import plain
+    from modelcheck.report.text import MAX_LINE, plain, shown
 
-    t = Table(title=Text(title), title_justify="left", header_style="bold")
+    t = Table(title=Text(shown(title, MAX_LINE)), title_justify="left", header_style="bold")
     for col, just in (("GlobalId", "left"), ("Class", "left"), ("Name / tag", "left"), ("Section", "left"),
                       (f"A [{units.unit('area')}]", "right"), (f"r min [{units.unit('r_min')}]", "right"),
                       (f"L [{units.unit('length')}]", "right"), ("Material", "left"),
@@ -110,9 +110,9 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str) -> Any
     def num(v: float, q: str) -> str:
         return "—" if v is None or not math.isfinite(v) else plain(units.convert(q, v))
 
-    def text(v: Any) -> str | None:
+    def text(v: Any) -> str | None:   # the model's text: control characters escaped, long texts cut
         v = _s(v)
-        return str(v) if v is not None and str(v).strip() else None
+        return shown(v) if v is not None and str(v).strip() else None
 
     none = Text("none", style="red")
     for rec in members.to_dict("records"):
@@ -121,7 +121,7 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str) -> Any
             "ProfileDef")
         material = text(rec["material"])
         warn = rec["warnings"] or []
-        t.add_row(Text(str(rec["global_id"])), Text(str(rec["ifc_class"]).removeprefix("Ifc")), Text(label or "—"),
+        t.add_row(Text(shown(rec["global_id"])), Text(shown(rec["ifc_class"]).removeprefix("Ifc")), Text(label or "—"),
                   Text(sec) if sec else none, num(rec["area"], "area"), num(rec["r_min"], "r_min"),
                   num(rec["length"], "length"), Text(material) if material else none, num(rec["Fy"], "Fy"),
                   Text(f"{len(warn)} warning(s)", style="yellow") if warn else "")
