@@ -616,7 +616,8 @@ def cmd_check(args: argparse.Namespace) -> int:
 
         for fmt in files:
             with stage(f"write {fmt}"), writing(targets[fmt]):
-                _write_format(fmt, run, targets[fmt], inputs, now, comparison, bool(args.strict))
+                _write_format(fmt, run, targets[fmt], inputs, now, comparison, bool(args.strict),
+                              only_new=args.fail_on == "new")
     finally:
         release_rows(run.json_rows)
     if "console" in formats:
@@ -666,13 +667,14 @@ def _run_with_progress(paths: list[str], ruleset: Any, fopts: Any, jobs: int, va
 
 
 def _write_format(fmt: str, run: Any, out: str | None, inputs: list[str], now: Any, comparison: Any,
-                  strict: bool) -> None:
+                  strict: bool, only_new: bool = False) -> None:
+    """Write one file format; ``only_new``: --fail-on new (JUnit then fails new problems only)."""
     if out is None and fmt != "json":  # a text format to standard output: write, then copy
         import tempfile
 
         with tempfile.TemporaryDirectory() as tmp:
             path = str(Path(tmp) / f"report.{FILE_FORMATS[fmt]}")
-            _write_format(fmt, run, path, inputs, now, comparison, strict)
+            _write_format(fmt, run, path, inputs, now, comparison, strict, only_new)
             sys.stdout.write(Path(path).read_text(encoding="utf-8"))
         return
     if fmt == "json":
@@ -692,7 +694,7 @@ def _write_format(fmt: str, run: Any, out: str | None, inputs: list[str], now: A
     elif fmt == "junit":
         from modelcheck.report.junit import write_junit
 
-        write_junit(run, out, strict=strict)
+        write_junit(run, out, strict=strict, only_new=comparison if only_new else None)
     elif fmt == "bcf":
         from modelcheck.report.bcf import write_bcf
 

@@ -96,7 +96,8 @@ def test_junit_structure_and_counts(tmp_path):
     assert int(root.get("tests")) == 8 and root.get("errors") == "1"
     failure = good.find("testcase/failure")
     case = good.find("testcase[failure]")
-    assert case.get("name") == f"{GID_B} axial_stress"
+    # the test name carries the tag, else the name, beside the GlobalId (B has no tag)
+    assert case.get("name") == f"{GID_B} (Hanger H2) axial_stress"
     assert case.get("classname") == "tower_A_ifc.IfcMember"
     msg = failure.get("message")
     for part in ("axial_stress", "1.25", "150 MPa", "120 MPa", "LC2", GID_B):
@@ -124,11 +125,11 @@ def test_junit_reads_with_junitparser(tmp_path):
     good = suites["models/tower_A.ifc"]
     assert (good.tests, good.failures, good.skipped, good.errors) == (7, 2, 2, 0)
     results = {c.name: [type(r).__name__ for r in c.result] for c in good}
-    assert results[f"{GID_B} axial_stress"] == ["Failure"]
-    assert results[f"{GID_C} slenderness"] == ["Skipped"]
-    assert results[f"{GID_A} axial_stress"] == []
-    # the member name with XML special characters comes back intact in the failure text
-    d_case = next(c for c in good if c.name == f"{GID_D} axial_stress")
+    assert results[f"{GID_B} (Hanger H2) axial_stress"] == ["Failure"]
+    assert results[f"{GID_C} (Hanger H3) slenderness"] == ["Skipped"]
+    assert results[f"{GID_A} (H1) axial_stress"] == []      # the tag rather than the name
+    # the member name with XML special characters comes back intact in the name and failure text
+    d_case = next(c for c in good if c.name == f"{GID_D} ({NASTY}) axial_stress")
     assert f"name: {NASTY}" in d_case.result[0].text
     assert suites["models/broken.ifc"].errors == 1
 

@@ -44,7 +44,12 @@ Key = tuple[str, str, str, str]      # model name, GlobalId, check, load case ("
 
 def _model_names(doc: dict[str, Any]) -> dict[str, str]:
     """Model path -> comparison name: the basename, or the path when two models share a basename."""
-    paths = [m["path"] for m in doc.get("models", [])] + [r["model"] for r in doc.get("results", [])]
+    return comparison_names([m["path"] for m in doc.get("models", [])] + [r["model"] for r in doc.get("results", [])])
+
+
+def comparison_names(paths: Iterable[str]) -> dict[str, str]:
+    """Model path -> the name results are compared by: its basename, or the whole path when two of
+    ``paths`` share a basename (pass every model path of the run and of its results)."""
     seen: dict[str, set[str]] = {}
     for p in paths:
         seen.setdefault(os.path.basename(p), set()).add(p)
@@ -147,6 +152,13 @@ def new_problems(cmp: dict[str, Any], *, strict: bool = False) -> int:
     """Number of results that got worse: new failures (and, with ``strict``, new unchecked)."""
     c = cmp["counts"]
     return int(c["new_failures"]) + (int(c["new_unchecked"]) if strict else 0)
+
+
+def counted_keys(cmp: dict[str, Any], *, strict: bool = False) -> set[Key]:
+    """The results ``new_problems`` counts (the exit code under ``--fail-on new``), as keys of
+    (comparison name, GlobalId, check, load case or "")."""
+    lists = [cmp["new_failures"]] + ([cmp["new_unchecked"]] if strict else [])
+    return {(e["model"], e["global_id"], e["check"], e.get("load_case") or "") for lst in lists for e in lst}
 
 
 # ------------------------------------------------------------------------------- baseline

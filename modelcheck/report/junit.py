@@ -4,10 +4,12 @@ Layout::
 
     <testsuites name="modelcheck" tests=… failures=… errors=… skipped=… time="0">
       <testsuite name="MODEL PATH" tests=… failures=… errors=… skipped=… time="0">
-        <properties> ruleset, basis, schema, members </properties>
-        <testcase classname="MODEL_STEM.IfcMember" name="GLOBALID CHECK" time="0"/>      pass
-        <testcase …><failure message="…" type="CHECK">details</failure></testcase>      fail
-        <testcase …><skipped message="missing: …"/></testcase>                         unchecked
+        <properties> ruleset, basis, schema, members [, fail_on=new] </properties>
+        <testcase classname="MODEL_STEM.IfcMember" name="GLOBALID (TAG) CHECK" time="0">   pass
+          <properties> global_id, check, load_case, status [, baseline] </properties>
+        </testcase>
+        <testcase …><properties/><failure message="…" type="CHECK">details</failure></testcase>  fail
+        <testcase …><properties/><skipped message="unchecked: missing …"/></testcase>           unchecked
       </testsuite>
       <testsuite name="BROKEN PATH" tests="1" errors="1">                               unreadable model
         <testcase classname="MODEL_STEM" name="read model"><error message="…"/></testcase>
@@ -15,11 +17,17 @@ Layout::
     </testsuites>
 
 One testcase per member × check, on its governing load case (the failing one with the highest
-ratio, else the highest ratio). ``classname`` is the model file's name with dots made
-underscores, a dot, and the IFC class, so CI tools that group by "package.class" group by model
-and class. The failure text states check, demand, capacity, ratio, load case, GlobalId, name,
-tag, storey, section and material. With ``strict=True`` an unchecked member is a failure
-(type "unchecked") instead of skipped, as `--strict` makes it fail the run.
+ratio, else the unchecked one, else the highest ratio). Its name is the GlobalId, the member's tag
+(else its name) in brackets when it has one, and the check. ``classname`` is the model file's name
+with dots made underscores, a dot, and the IFC class, so CI tools that group by "package.class"
+group by model and class. The failure text states check, demand, capacity, ratio, load case,
+GlobalId, name, tag, storey, section and material.
+
+A ``<failure>`` exists exactly when the exit code counts the result: with ``strict=True`` an
+unchecked member × check is a failure (type "unchecked") instead of skipped, as ``--strict`` makes
+it fail the run; with ``only_new`` (``--fail-on new``) only the results new since the baseline are
+failures (the property ``baseline`` says "new"), and a failure the baseline already had is
+``<skipped>`` with the reason (``baseline`` "not new").
 
 Deterministic: no timestamp, no host name, times are 0; suites in the order of the models,
 testcases in the order of the results table.
@@ -31,6 +39,8 @@ import os
 import xml.etree.ElementTree as ET
 from pathlib import Path
 from typing import Any
+
+import pandas as pd
 
 from modelcheck.report.console import governing, summary_line
 from modelcheck.report.csv_report import member_info
@@ -76,10 +86,53 @@ def _message(rec: dict[str, Any]) -> str:
     return xml_text(text)
 
 
-def junit_tree(run: Any, *, strict: bool = False) -> ET.Element:
-    """The <testsuites> element of a check run."""
+def _who(rec: dict[str, Any]) -> str | None:
+    """The member's tag, else its name: what a person recognises beside the GlobalId."""
+    for key in ("tag", "name"):
+        v = rec.get(key)
+        if isinstance(v, str) and v.strip():
+            return " ".join(v.split())
+    return None
+
+
+def _case_name(rec: dict[str, Any]) -> str:
+    who = _who(rec)
+    return f"{rec['global_id']} ({who}) {rec['check']}" if who else f"{rec['global_id']} {rec['check']}"
+
+
+def _counted_mask(run: Any, comparison: dict[str, Any], strict: bool) -> pd.Series:
+    """Which result rows the exit code counts under ``--fail-on new`` (``compare.new_problems``)."""
+    from modelcheck.report.compare import comparison_names, counted_keys
+
+    res = run.results
+    keys = counted_keys(comparison, strict=strict)
+    if not len(res) or not keys:
+        return pd.Series(False, index=res.index)
+    names = comparison_names([m.path for m in run.models] + res["model"].unique().tolist())
+    case = res["load_case"].where(res["load_case"].map(lambda v: isinstance(v, str)), "")
+    idx = pd.MultiIndex.from_arrays([res["model"].map(names), res["global_id"], res["check"], case])
+    return pd.Series(idx.isin(list(keys)), index=res.index)
+
+
+def junit_tree(run: Any, *, strict: bool = False, only_new: dict[str, Any] | None = None) -> ET.Element:
+    """The <testsuites> element of a check run.
+
+    ``only_new``: the comparison with a baseline when only new problems fail the run (``--fail-on
+    new``). A testcase is then a ``<failure>`` only when one of its load cases is a new failure (or,
+    with ``strict``, newly unchecked) and shows that row; a failure or unchecked result the baseline
+    already had is ``<skipped>`` with the reason, so the file agrees with the exit code.
+    """
+    res = run.results
     # governing rows back in the order of the results table (members in model order)
-    gov = governing(run.results).sort_index(kind="stable") if len(run.results) else run.results
+    gov = governing(res).sort_index(kind="stable") if len(res) else res
+    # with only_new: the governing row among each member × check's counted rows
+    new_rows: dict[tuple[str, str, str], dict[str, Any]] | None = None
+    if only_new is not None:
+        new_rows = {}
+        counted = _counted_mask(run, only_new, strict)
+        if counted.any():
+            for r in governing(res[counted]).to_dict("records"):
+                new_rows[(r["model"], r["global_id"], r["check"])] = r
     info_df = member_info(run.members)
     info = {(m, g): {"storey": s, "section": sec, "material": mat} for m, g, s, sec, mat in
             zip(info_df["model"], info_df["global_id"], info_df["storey"], info_df["section"],
@@ -93,8 +146,11 @@ def junit_tree(run: Any, *, strict: bool = False) -> ET.Element:
     for model in run.models:
         suite = ET.SubElement(root, "testsuite", {"name": xml_text(model.path)})
         props = ET.SubElement(suite, "properties")
-        for name, value in (("ruleset", rs.name), ("ruleset_basis", getattr(rs, "basis", "") or ""),
-                            ("schema", model.schema or ""), ("members", str(int(model.member_count)))):
+        suite_props = [("ruleset", rs.name), ("ruleset_basis", getattr(rs, "basis", "") or ""),
+                       ("schema", model.schema or ""), ("members", str(int(model.member_count)))]
+        if only_new is not None:
+            suite_props.append(("fail_on", "new"))
+        for name, value in suite_props:
             ET.SubElement(props, "property", {"name": name, "value": xml_text(value)})
         counts = {"tests": 0, "failures": 0, "errors": 0, "skipped": 0}
         if model.error:
@@ -104,21 +160,39 @@ def junit_tree(run: Any, *, strict: bool = False) -> ET.Element:
             err.text = xml_text(model.error)
             counts["tests"] = counts["errors"] = 1
         for rec in by_model.get(model.path, []):
+            new = None if new_rows is None else new_rows.get((rec["model"], rec["global_id"], rec["check"]))
+            shown = new or rec
             case = ET.SubElement(suite, "testcase", {
-                "classname": f"{_stem(model.path)}.{rec['ifc_class']}",
-                "name": f"{rec['global_id']} {rec['check']}", "time": "0"})
+                "classname": f"{_stem(model.path)}.{rec['ifc_class']}", "name": xml_text(_case_name(rec)),
+                "time": "0"})
+            cprops = ET.SubElement(case, "properties")
+            for name, value in (("global_id", shown["global_id"]), ("check", shown["check"]),
+                                ("load_case", shown["load_case"] if isinstance(shown["load_case"], str) else ""),
+                                ("status", shown["status"])):
+                ET.SubElement(cprops, "property", {"name": name, "value": xml_text(value)})
+            status = shown["status"]
+            # a result the exit code could count: is it new since the baseline?
+            judged = new_rows is not None and (status == "fail" or (status == "unchecked" and strict))
+            if judged:
+                ET.SubElement(cprops, "property", {"name": "baseline", "value": "not new" if new is None else "new"})
             counts["tests"] += 1
-            status = rec["status"]
-            if status == "fail":
-                el = ET.SubElement(case, "failure", {"message": _message(rec), "type": xml_text(rec["check"])})
-                el.text = _details(rec, info.get((rec["model"], rec["global_id"])))
+            missing = "; ".join(shown["missing"] or []) or "(no reason given)"
+            if judged and new is None:
+                what = (f"failing as in the baseline: ratio {number(shown['ratio'])} in load case "
+                        f"{shown['load_case'] if isinstance(shown['load_case'], str) else '—'}"
+                        if status == "fail" else f"unchecked as in the baseline: missing {missing}")
+                ET.SubElement(case, "skipped", {"message": xml_text(f"{what} (--fail-on new counts new problems "
+                                                                    "only)")})
+                counts["skipped"] += 1
+            elif status == "fail":
+                el = ET.SubElement(case, "failure", {"message": _message(shown), "type": xml_text(shown["check"])})
+                el.text = _details(shown, info.get((shown["model"], shown["global_id"])))
                 counts["failures"] += 1
             elif status == "unchecked":
-                missing = "; ".join(rec["missing"] or []) or "(no reason given)"
                 if strict:
                     el = ET.SubElement(case, "failure", {"message": xml_text(f"unchecked: missing {missing}"),
                                                          "type": "unchecked"})
-                    el.text = _details(rec, info.get((rec["model"], rec["global_id"])))
+                    el.text = _details(shown, info.get((shown["model"], shown["global_id"])))
                     counts["failures"] += 1
                 else:
                     ET.SubElement(case, "skipped", {"message": xml_text(f"unchecked: missing {missing}")})
@@ -142,9 +216,9 @@ def junit_tree(run: Any, *, strict: bool = False) -> ET.Element:
     return root
 
 
-def write_junit(run: Any, path: str | Path, *, strict: bool = False) -> None:
-    """Write the JUnit XML report of a check run (UTF-8)."""
-    root = xml_clean(junit_tree(run, strict=strict))   # no character XML 1.0 forbids, anywhere
+def write_junit(run: Any, path: str | Path, *, strict: bool = False, only_new: dict[str, Any] | None = None) -> None:
+    """Write the JUnit XML report of a check run (UTF-8); ``only_new`` as in :func:`junit_tree`."""
+    root = xml_clean(junit_tree(run, strict=strict, only_new=only_new))   # no character XML 1.0 forbids, anywhere
     ET.indent(root, space="  ")
     data = ET.tostring(root, encoding="utf-8", xml_declaration=True)
     Path(path).write_bytes(data + b"\n")
