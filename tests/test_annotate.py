@@ -123,3 +123,27 @@ def test_writes_only_ifc_files(tmp_model, tmp_path):
         annotate_model(src, tmp_path / "out.json", _results(src, gids))
     with pytest.raises(UsageError, match="folder"):
         annotate_model(src, tmp_path, _results(src, gids))
+
+
+def test_a_partly_checked_member_carries_no_ratio_of_the_checks_that_ran(tmp_model, tmp_path):
+    """A member with one passing check and one that could not run is unchecked (never shown as
+    fine, common practice): no WorstRatio a viewer could colour green, Missing says what lacks."""
+    mb, gids = _model(n=2)
+    src = tmp_model(mb, "in.ifc")
+    m = str(src)
+    res = results_frame([
+        # ratio = demand / capacity (definition): 30/120 = 0.25 would read as comfortably passing
+        result_row(m, gids[0], "axial_stress", "LC1", 30.0, 120.0),
+        result_row(m, gids[0], "elongation", "LC1", None, None, unit="mm", missing=["E (material)"]),
+        # a failing member keeps its ratio (it is shown as failing whatever else it lacks)
+        result_row(m, gids[1], "axial_stress", "LC1", 150.0, 120.0),
+        result_row(m, gids[1], "elongation", "LC1", None, None, unit="mm", missing=["E (material)"]),
+    ])
+    out = tmp_path / "out.ifc"
+    assert annotate_model(src, out, res) == 2
+    f = ifcopenshell.open(str(out))
+    part, fail = (ue.get_psets(f.by_guid(g))[PSET_NAME] for g in gids)
+    assert part["Status"] == "unchecked" and "WorstRatio" not in part
+    assert part["GoverningCheck"] == "elongation" and part["Missing"] == "E (material)"
+    assert fail["Status"] == "fail" and math.isclose(fail["WorstRatio"], 1.25, rel_tol=1e-12)
+    assert fail["Missing"] == "E (material)"

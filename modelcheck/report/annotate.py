@@ -4,7 +4,8 @@ Any IFC viewer can then colour or filter the members by status or ratio. The pro
 named ``MC_CheckResult`` (a name of our own: buildingSMART reserves ``Pset_``)::
 
     WorstRatio         IfcRatioMeasure  highest demand/capacity ratio over all checks and load
-                                        cases (left out when no check could be evaluated)
+                                        cases; left out when the status is unchecked (the
+                                        ratios of the checks that ran do not cover the member)
     Status             IfcLabel         fail | unchecked | pass (worst over all checks)
     GoverningCheck     IfcLabel         the check of the governing result
     GoverningLoadCase  IfcLabel         its load case (left out for checks without one)
@@ -72,6 +73,9 @@ def summarize(results: pd.DataFrame) -> pd.DataFrame:
         "load_case": gov["load_case"].to_numpy(dtype=object),
     })
     out["worst_ratio"] = out["global_id"].map(worst).astype(float)
+    # an unchecked member's ratios cover only the checks that ran: none is written, so a viewer
+    # colouring by WorstRatio cannot show an unverified member as fine
+    out.loc[out["status"] == "unchecked", "worst_ratio"] = float("nan")
     out["missing"] = out["global_id"].map(missing).astype(object)
     return out.sort_values("global_id", kind="stable").reset_index(drop=True)
 
