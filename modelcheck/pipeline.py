@@ -257,11 +257,11 @@ def _entity_lines(path: str, ids: set[int]) -> dict[int, int]:
 
 
 # ------------------------------------------------------------------------------ check
-#: member columns the reporters show beside results (identity, section, material)
+#: member columns the reporters show beside results (identity, section, material, the member's warnings)
 REPORT_MEMBER_COLUMNS = ("model", "global_id", "ifc_class", "predefined_type", "object_type", "name", "tag",
                          "storey", "type_name", "section_name", "profile_type", "shape", "material",
                          "material_grade", "area", "r_min", "length", "d", "h", "b", "t", "tf", "tw", "E", "Fy",
-                         "Fu", "alpha")
+                         "Fu", "alpha", "warnings")
 
 
 @dataclass

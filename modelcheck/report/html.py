@@ -105,21 +105,35 @@ def ratio_histogram(ratios: np.ndarray, width: float = 0.1, top: float = 1.5) ->
     return labels, [int(c) for c in counts]
 
 
+def checked_worst_ratios(results: pd.DataFrame) -> np.ndarray:
+    """The worst ratio of each checked member (status pass or fail), in the order of the results.
+
+    An unchecked member is left out: the ratios of the checks that ran do not cover it, and a bar
+    would show it as passing. A failing member counts even where another of its checks could not
+    run (it is shown as failing). So the number of ratios is the summary's "checked" count.
+    """
+    if not len(results):
+        return np.empty(0)
+    ratio = pd.to_numeric(results["ratio"], errors="coerce")
+    worst = ratio.groupby([results["model"], results["global_id"]], sort=False).max()
+    status = member_status(results).reindex(worst.index)
+    return worst[status.to_numpy() != "unchecked"].to_numpy(dtype=float)
+
+
 def _chart(run: Any) -> str:
     res = run.results
     if not len(res):
         return '<p class="muted">No results.</p>'
-    worst = res.assign(_r=pd.to_numeric(res["ratio"], errors="coerce")).groupby(["model", "global_id"])["_r"].max()
-    ratios = worst.to_numpy(dtype=float)
+    ratios = checked_worst_ratios(res)
     labels, counts = ratio_histogram(ratios)
     n = int(np.isfinite(ratios).sum())
     if n == 0:
-        return '<p class="muted">No member has a ratio (every member is unchecked).</p>'
+        return '<p class="muted">No member was checked (every member is unchecked): nothing to draw.</p>'
     w, h, left, bottom, top_pad = 720, 260, 40, 50, 20
     bar_w = (w - left - 10) / len(counts)
     peak = max(counts) or 1
-    parts = [f'<svg role="img" aria-label="Distribution of the worst ratio per member" width="{w}" height="{h}" '
-             f'viewBox="0 0 {w} {h}">',
+    parts = [f'<svg role="img" aria-label="Distribution of the worst ratio per checked member" width="{w}" '
+             f'height="{h}" viewBox="0 0 {w} {h}" data-members="{n}">',
              f'<line x1="{left}" y1="{h - bottom}" x2="{w - 10}" y2="{h - bottom}" stroke="#444"/>']
     for i, (lab, c) in enumerate(zip(labels, counts, strict=True)):
         bh = (h - bottom - top_pad) * c / peak
@@ -136,10 +150,38 @@ def _chart(run: Any) -> str:
     parts.append(f'<line x1="{x1:.1f}" y1="{top_pad - 5}" x2="{x1:.1f}" y2="{h - bottom}" stroke="#b00020" '
                  f'stroke-dasharray="4 3"/>')
     parts.append(f'<text x="{x1 + 4:.1f}" y="{top_pad + 5}" font-size="11" fill="#b00020">ratio 1.0</text>')
-    parts.append(f'<text x="{left}" y="{h - 4}" font-size="11">worst demand/capacity ratio per member '
-                 f'({n} members with a ratio)</text>')
+    parts.append(f'<text x="{left}" y="{h - 4}" font-size="11">worst demand/capacity ratio per checked member '
+                 f'({n} members checked; unchecked members are not drawn)</text>')
     parts.append("</svg>")
     return "".join(parts)
+
+
+def _label(name: Any, tag: Any) -> str | None:
+    """"name / tag" of a member, or None when it has neither."""
+    return " / ".join(str(x) for x in (name, tag) if isinstance(x, str) and x) or None
+
+
+def _lines(items: list[str]) -> str:
+    """Escaped items one per line, or an em dash for none."""
+    return "<br>".join(_e(x) for x in items) or "—"
+
+
+def _member_warnings(members: pd.DataFrame | None) -> dict[tuple[str, str], list[str]]:
+    """(model, GlobalId) -> the member's own warnings (plausibility, disagreeing sources)."""
+    if members is None or not len(members) or "warnings" not in members.columns:
+        return {}
+    out: dict[tuple[str, str], list[str]] = {}
+    for m, g, ws in zip(members["model"], members["global_id"], members["warnings"], strict=True):
+        if isinstance(ws, list | tuple) and ws:
+            out.setdefault((m, g), []).extend(str(w) for w in ws)
+    return out
+
+
+def _suggestion(s: Any) -> str:
+    if not isinstance(s, dict) or not s.get("designation"):
+        return "—"
+    ratio = s.get("ratio")
+    return _e(s["designation"]) + (f" (ratio {_n(ratio, '{:.2f}')})" if isinstance(ratio, int | float) else "")
 
 
 def _failing(run: Any) -> str:
@@ -152,24 +194,34 @@ def _failing(run: Any) -> str:
     total = len(fails)
     fails = fails.iloc[:MAX_ROWS]
     info = {(m, gid): (s, sec, mat) for m, gid, s, sec, mat in member_info(run.members).itertuples(index=False)}
+    warns = _member_warnings(run.members)
     rows = []
     for rec in fails.to_dict("records"):
-        s, sec, mat = info.get((rec["model"], rec["global_id"]), (None, None, None))
-        label = " / ".join(str(x) for x in (rec["name"], rec["tag"]) if isinstance(x, str) and x)
+        key = (rec["model"], rec["global_id"])
+        s, sec, mat = info.get(key, (None, None, None))
         unit = f" {_e(rec['unit'])}" if isinstance(rec["unit"], str) and rec["unit"] else ""
-        rows.append([f"<code>{_e(rec['global_id'])}</code>", _e(rec["ifc_class"]), _e(label or None), _e(s),
-                     _e(sec), _e(mat), _e(rec["check"]), _n(rec["demand"]) + unit, _n(rec["capacity"]) + unit,
+        clause = rec.get("clause")
+        check = _e(rec["check"]) + (f'<br><span class="muted">{_e(clause)}</span>'
+                                    if isinstance(clause, str) and clause else "")
+        message = rec.get("message")
+        rows.append([f"<code>{_e(rec['global_id'])}</code>", _e(rec["ifc_class"]),
+                     _e(_label(rec["name"], rec["tag"])), _e(s), _e(sec), _e(mat), check,
+                     _n(rec["demand"]) + unit, _n(rec["capacity"]) + unit,
                      f'<span class="fail">{_n(rec["ratio"], "{:.2f}")}</span>', _e(rec["load_case"]),
-                     _e(rec["model"])])
-    return _table(["GlobalId", "Class", "Name / tag", "Storey", "Section", "Material", "Check", "Demand",
-                   "Capacity", "Ratio", "Load case", "Model"], rows, numeric={7, 8, 9}, total=total)
+                     _e(message if isinstance(message, str) and message else None),
+                     _suggestion(rec.get("suggestion")), _lines(warns.get(key, [])), _e(rec["model"])])
+    return _table(["GlobalId", "Class", "Name / tag", "Storey", "Section", "Material", "Check / clause", "Demand",
+                   "Capacity", "Ratio", "Load case", "Message", "Passing replacement", "Member warnings", "Model"],
+                  rows, numeric={7, 8, 9}, total=total)
 
 
 def _unchecked(run: Any) -> str:
     g = governing(run.results) if len(run.results) else run.results
     un = g[g["status"] == "unchecked"] if len(g) else g
     if not len(un):
-        return '<p class="pass">Every member was checked.</p>'
+        return '<p class="pass">Every check of every member could run.</p>'
+    status = member_status(run.results)
+    warns = _member_warnings(run.members)
     keys = un[["model", "global_id"]].drop_duplicates()
     total = len(keys)
     un = un.merge(keys.iloc[:MAX_ROWS], on=["model", "global_id"], how="inner", sort=False)
@@ -177,21 +229,59 @@ def _unchecked(run: Any) -> str:
     for (model, gid), grp in un.groupby(["model", "global_id"], sort=False):
         missing = sorted({m for lst in grp["missing"] for m in (lst or [])})
         first = grp.iloc[0]
-        label = " / ".join(str(x) for x in (first["name"], first["tag"]) if isinstance(x, str) and x)
-        rows.append([f"<code>{_e(gid)}</code>", _e(first["ifc_class"]), _e(label or None),
-                     _e(", ".join(grp["check"])), "<br>".join(_e(m) for m in missing) or "—", _e(model)])
-    return _table(["GlobalId", "Class", "Name / tag", "Checks", "Missing input", "Model"], rows, total=total)
+        st = status.get((model, gid), "unchecked")
+        rows.append([f"<code>{_e(gid)}</code>", _e(first["ifc_class"]), _e(_label(first["name"], first["tag"])),
+                     _e(", ".join(grp["check"])), _lines(missing), _e(model), f'<span class="{st}">{st}</span>',
+                     _lines(warns.get((model, gid), []))])
+    note = ('<p class="muted">Every member with a check that could not run. Such a member is counted as '
+            "unchecked, or as failing when another of its checks fails; it is never counted or drawn as "
+            "passing.</p>")
+    return note + _table(["GlobalId", "Class", "Name / tag", "Checks not run", "Missing input", "Model",
+                          "Member status", "Member warnings"], rows, total=total)
 
 
-def _comparison(cmp: dict[str, Any]) -> str:
+def _comparison(cmp: dict[str, Any], run: Any) -> str:
     c = cmp.get("counts", {})
     head = (f"<p>{int(c.get('new_failures', 0))} new failure(s), {int(c.get('resolved', 0))} resolved, "
-            f"{int(c.get('still_failing', 0))} still failing, {int(c.get('members_added', 0))} member(s) added, "
-            f"{int(c.get('members_removed', 0))} removed.</p>")
-    rows = [[_e(x.get("model")), f"<code>{_e(x.get('global_id'))}</code>", _e(x.get("check")),
-             _e(x.get("load_case")), _n(x.get("ratio"), "{:.2f}")] for x in cmp.get("new_failures", [])]
-    table = _table(["Model", "GlobalId", "Check", "Load case", "Ratio"], rows, numeric={4}) if rows else ""
-    return head + table
+            f"{int(c.get('still_failing', 0))} still failing, {int(c.get('new_unchecked', 0))} newly unchecked, "
+            f"{int(c.get('members_added', 0))} member(s) added, {int(c.get('members_removed', 0))} removed.</p>")
+    from modelcheck.report.compare import comparison_names
+
+    # name and tag of each member of this run, by the name the comparison gives its model
+    res = run.results
+    labels: dict[tuple[str, str], str | None] = {}
+    if len(res):
+        names = comparison_names([m.path for m in run.models] + res["model"].unique().tolist())
+        ident = res[["model", "global_id", "name", "tag"]].drop_duplicates(["model", "global_id"])
+        for m, gid, name, tag in ident.itertuples(index=False):
+            labels[(names.get(m, m), gid)] = _label(name, tag)
+    for x in cmp.get("members_removed", []):   # gone from this run: the baseline knows them
+        labels.setdefault((x.get("model"), x.get("global_id")), _label(x.get("name"), x.get("tag")))
+
+    def ident_cells(x: dict[str, Any]) -> list[str]:
+        return [_e(x.get("model")), f"<code>{_e(x.get('global_id'))}</code>",
+                _e(labels.get((x.get("model"), x.get("global_id")))), _e(x.get("check")), _e(x.get("load_case"))]
+
+    parts = [head]
+    heads = ["Model", "GlobalId", "Name / tag", "Check", "Load case"]
+    tables = (
+        ("New failures", "new_failures", ["Ratio", "Baseline status"],
+         lambda x: [_n(x.get("ratio"), "{:.2f}"), _e(x.get("baseline_status") or "absent")]),
+        ("Newly unchecked", "new_unchecked", ["Missing input", "Baseline status"],
+         lambda x: [_lines(list(x.get("missing") or [])), _e(x.get("baseline_status") or "absent")]),
+        ("Still failing", "still_failing", ["Ratio", "Baseline ratio"],
+         lambda x: [_n(x.get("ratio"), "{:.2f}"), _n(x.get("baseline_ratio"), "{:.2f}")]),
+        ("Resolved", "resolved", ["Ratio", "Baseline ratio", "Status now"],
+         lambda x: [_n(x.get("ratio"), "{:.2f}"), _n(x.get("baseline_ratio"), "{:.2f}"), _e(x.get("status"))]),
+    )
+    for title, key, extra, cells in tables:
+        items = cmp.get(key, [])
+        if items:
+            rows = [ident_cells(x) + cells(x) for x in items[:MAX_ROWS]]
+            numeric = {i + 5 for i, h in enumerate(extra) if "atio" in h}
+            parts.append(f"<h3>{escape(title)} ({len(items)})</h3>" + _table(heads + extra, rows, numeric=numeric,
+                                                                           total=len(items)))
+    return "".join(parts)
 
 
 def _warnings(run: Any) -> str:
@@ -226,7 +316,7 @@ def render_html(run: Any, *, now: _dt.datetime | None = None, comparison: dict[s
         "<h2>Ratio distribution</h2>", _chart(run),
     ]
     if comparison is not None:
-        parts += ["<h2>Changes since the baseline</h2>", _comparison(comparison)]
+        parts += ["<h2>Changes since the baseline</h2>", _comparison(comparison, run)]
     parts += ["<h2>Failing members</h2>", _failing(run),
               "<h2>Unchecked members</h2>", _unchecked(run),
               _warnings(run),
