@@ -134,6 +134,73 @@ def test_junit_reads_with_junitparser(tmp_path):
     assert suites["models/broken.ifc"].errors == 1
 
 
+def _cases(root: ET.Element) -> dict[str, tuple[str, dict[str, str], ET.Element]]:
+    """GlobalId + check -> (result element tag or "pass", testcase properties, testcase)."""
+    out = {}
+    for c in root.iter("testcase"):
+        props = {p.get("name"): p.get("value") for p in c.iterfind("properties/property")}
+        kind = next((el.tag for el in c if el.tag in ("failure", "skipped", "error")), "pass")
+        out[f"{props.get('global_id')} {props.get('check')}"] = (kind, props, c)
+    return out
+
+
+def test_junit_under_fail_on_new_fails_only_what_the_exit_code_counts(tmp_path):
+    """Baseline: B fails axial stress in LC2. Now: B still fails there, and newly in LC1 (a lower
+    ratio, not the governing case); D fails newly. A <failure> exists exactly for each result the
+    exit code counts (compare.new_problems)."""
+    from modelcheck.report.check_json import check_document
+    from modelcheck.report.compare import compare, new_problems
+
+    base_run = make_run(broken=None)
+    now_run = make_run(d_demand=200.0, broken=None)
+    res = now_run.results.copy()
+    lc1 = (res["global_id"] == GID_B) & (res["load_case"] == "LC1")
+    # ratio = demand / capacity (definition): 126/120 = 1.05 fails, below LC2's 1.25
+    res.loc[lc1, ["demand", "ratio", "status"]] = [126.0, 126.0 / 120.0, "fail"]
+    now_run.results = res
+    cmp = compare(check_document(now_run), check_document(base_run))
+    assert new_problems(cmp) == 2
+    root = _junit(tmp_path, now_run, only_new=cmp)
+    cases = _cases(root)
+    failures = {k for k, (kind, _, _) in cases.items() if kind == "failure"}
+    assert failures == {f"{GID_B} axial_stress", f"{GID_D} axial_stress"}
+    kind, props, case = cases[f"{GID_B} axial_stress"]
+    assert props["load_case"] == "LC1" and props["baseline"] == "new"   # the new row, not the governing one
+    assert "LC1" in case.find("failure").get("message")
+    # without the new LC1 row, B's failure is known: skipped, with the reason
+    cmp_old = compare(check_document(make_run(d_demand=200.0, broken=None)), check_document(base_run))
+    cases = _cases(_junit(tmp_path, make_run(d_demand=200.0, broken=None), only_new=cmp_old))
+    kind, props, case = cases[f"{GID_B} axial_stress"]
+    assert kind == "skipped" and props["baseline"] == "not new" and props["status"] == "fail"
+    assert "as in the baseline" in case.find("skipped").get("message")
+    assert int(root.get("failures")) == 2
+    # unchecked: skipped unless --strict and new; C was unchecked in the baseline too
+    for strict in (False, True):
+        cases = _cases(_junit(tmp_path, now_run, only_new=cmp, strict=strict))
+        assert cases[f"{GID_C} slenderness"][0] == "skipped"
+        assert sum(k == "failure" for k, _, _ in cases.values()) == new_problems(cmp, strict=strict)
+
+
+def test_junit_under_strict_fails_a_newly_unchecked_member(tmp_path):
+    from modelcheck.report.check_json import check_document
+    from modelcheck.report.compare import compare, new_problems
+
+    base_run = make_run(broken=None)
+    now_run = make_run(broken=None)
+    res = now_run.results.copy()
+    a = (res["global_id"] == GID_A) & (res["check"] == "slenderness")
+    res.loc[a, ["demand", "capacity", "ratio", "status"]] = [math.nan, math.nan, math.nan, "unchecked"]
+    res.loc[a, "missing"] = pd.Series([["r_min (profile)"]] * int(a.sum()), index=res.index[a])
+    now_run.results = res
+    cmp = compare(check_document(now_run), check_document(base_run))
+    for strict in (False, True):
+        cases = _cases(_junit(tmp_path, now_run, only_new=cmp, strict=strict))
+        failures = {k for k, (kind, _, _) in cases.items() if kind == "failure"}
+        assert len(failures) == new_problems(cmp, strict=strict)
+        assert failures == ({f"{GID_A} slenderness"} if strict else set())
+        assert cases[f"{GID_B} axial_stress"][0] == "skipped"   # failing in the baseline too
+
+
 def test_junit_is_byte_identical_for_the_same_run(tmp_path):
     a, b = tmp_path / "a.xml", tmp_path / "b.xml"
     write_junit(make_run(), a)
@@ -355,3 +422,60 @@ def test_the_html_tables_show_the_first_rows_and_count_the_rest(tmp_path, monkey
     assert [g for g in gids if f"<code>{g}</code>" in text] == gids[-3:]   # the three highest ratios
     assert "… and 4 more rows" in text
     assert sum(f"<code>U{i:04d}</code>" in text for i in range(5)) == 3 and "… and 2 more rows" in text
+
+
+def test_html_chart_draws_only_checked_members_and_counts_as_the_summary(tmp_path):
+    """A member whose second check could not run is unchecked: its passing first ratio is not drawn
+    (a partly checked member is never shown as passing, common practice); the bars add up to the
+    summary's "Checked" count."""
+    from tests.report_runs import result_row, results_frame
+
+    run = make_run(broken=None)
+    extra = [result_row("models/tower_A.ifc", "0eeeeeeeeeeeeeeeeeeeeE", "axial_stress", "LC1", 12.0, 120.0),
+             result_row("models/tower_A.ifc", "0eeeeeeeeeeeeeeeeeeeeE", "slenderness", None, None, None, unit="",
+                        missing=["r_min (profile)"])]
+    run.results = results_frame(run.results.to_dict("records") + extra)
+    _, parsed = _html(tmp_path, run)
+    bars = [int(t.rsplit(": ", 1)[1]) for t in parsed.text if "–" in t and ": " in t and t.rsplit(": ", 1)[1].isdigit()]
+    summary = next(r for r in parsed.cells if r and r[0] == "models/tower_A.ifc")
+    # A, B, D are checked; C and E are not (E's 12/120 = 0.1 would sit in the lowest bar)
+    assert summary[3] == "3" and summary[6] == "2"
+    assert sum(bars) == 3
+    svg = next(a for t, a in parsed.tags if t == "svg")
+    assert svg["data-members"] == "3"
+
+
+def test_html_failing_table_lists_clause_message_replacement_and_member_warnings(tmp_path):
+    run = make_run(broken=None)
+    res = run.results.copy()
+    b = (res["global_id"] == GID_B) & (res["load_case"] == "LC2")
+    res["clause"] = "D2(a)"
+    res["suggestion"] = [{"designation": "RD24", "ratio": 0.87} if x else None for x in b]
+    run.results = res
+    members = run.members.copy()
+    members["warnings"] = [[], ["inconsistent area: profile 314 mm², quantity 300 mm²", "second <warning>"],
+                           [], []]
+    run.members = members
+    _, parsed = _html(tmp_path, run)
+    row = next(r for r in parsed.cells if r and r[0] == GID_B)
+    assert row[6] == "axial_stressD2(a)" and row[9] == "1.25" and row[10] == "LC2"
+    assert row[11] == "tension" and row[12] == "RD24 (ratio 0.87)"
+    # each warning listed, not folded into a count; markup in a warning is text
+    assert row[13] == "inconsistent area: profile 314 mm², quantity 300 mm²second <warning>"
+
+
+def test_html_baseline_tables_show_name_and_tag(tmp_path):
+    from modelcheck.report.check_json import check_document
+    from modelcheck.report.compare import compare
+
+    base = check_document(make_run(b_demand=60.0, broken=None))            # B passed then
+    now_run = make_run(d_demand=200.0, broken=None)                          # B and D fail now
+    cmp = compare(check_document(now_run), base)
+    p = tmp_path / "r.html"
+    write_html(now_run, p, now=NOW, comparison=cmp)
+    parser = _Collect()
+    parser.feed(p.read_text(encoding="utf-8"))
+    new = {r[1]: r for r in parser.cells if r and r[0] == "tower_A.ifc"}
+    assert set(new) == {GID_B, GID_D}
+    assert new[GID_B][2] == "Hanger H2" and new[GID_D][2] == NASTY
+    assert new[GID_B][3:5] == ["axial_stress", "LC2"]
