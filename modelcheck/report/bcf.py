@@ -12,7 +12,7 @@ One topic per failing member, on its governing check (the failing check with the
 on its governing load case). The title states check, ratio and member; the description states
 check, load case, demand, capacity, ratio, the member's identity, storey, section and material,
 the member's other failing checks, the model and the rule set, and the caution. Topic type
-"Error", status "Open", label = the check name.
+"Error", status "Open", one label per failing check of the member (the governing one first).
 
 With ``include_unchecked=True`` every member without a failing check but with an unchecked check
 also gets a topic (type "Warning", label "unchecked") listing what it lacks; by default they are
@@ -155,7 +155,11 @@ def _markup(t: dict[str, Any], run: Any, guid: str, vp_guid: str, index: int, da
     topic = _sub(root, "Topic", Guid=guid, TopicType="Error" if fail else "Warning", TopicStatus="Open")
     _sub(topic, "Title", title)
     _sub(topic, "Index", str(index))
-    _sub(topic, "Labels", str(rec["check"]) if fail else "unchecked")
+    if fail:   # one label per failing check of the member, the governing one first
+        for check in dict.fromkeys([str(rec["check"])] + [str(o["check"]) for o in t["others"]]):
+            _sub(topic, "Labels", check)
+    else:
+        _sub(topic, "Labels", "unchecked")
     _sub(topic, "CreationDate", date)
     _sub(topic, "CreationAuthor", "modelcheck")
     _sub(topic, "Description", description)
