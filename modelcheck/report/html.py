@@ -5,10 +5,16 @@ drawn here, there is no script, no image file, no font and no link to anything. 
 comes from a model, a rule set or a path is HTML-escaped.
 
 Sections: rule set and time; a summary per model (members found, checked, pass / fail /
-unchecked, or why the model could not be read); the distribution of each member's worst ratio
-(bars of width 0.1 closed on the right, ratios above 1.5 in the last bar, bars above 1.0 in red); the changes
-since a baseline when a comparison is given; the failing members (governing load case, worst
-first); the unchecked members with what they lack; warnings; the caution.
+unchecked, or why the model could not be read); the distribution of each checked member's worst
+ratio (bars of width 0.1 closed on the right, ratios above 1.5 in the last bar, bars above 1.0 in
+red; an unchecked member is not drawn, so the bars add up to the summary's checked count); the
+changes since a baseline when a comparison is given (new failures, newly unchecked, still failing,
+resolved, each with the member's name and tag); the failing members (governing load case, worst
+first, with clause, message, passing replacement and the member's own warnings); the members with a
+check that could not run, with what they lack; warnings; the caution.
+
+A member's status is its worst over its results (fail > unchecked > pass); it is counted "checked"
+when it passes or fails, never passing when one of its checks could not run.
 """
 
 from __future__ import annotations
