@@ -109,7 +109,7 @@ def _counted_mask(run: Any, comparison: dict[str, Any], strict: bool) -> pd.Seri
     if not len(res) or not keys:
         return pd.Series(False, index=res.index)
     names = comparison_names([m.path for m in run.models] + res["model"].unique().tolist())
-    case = res["load_case"].where(res["load_case"].map(lambda v: isinstance(v, str)), "")
+    case = res["load_case"].astype(object).where(res["load_case"].notna(), "")
     idx = pd.MultiIndex.from_arrays([res["model"].map(names), res["global_id"], res["check"], case])
     return pd.Series(idx.isin(list(keys)), index=res.index)
 
