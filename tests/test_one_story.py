@@ -116,15 +116,16 @@ def from_junit(path: Path) -> JUnitFacts:
     for suite in root.iter("testsuite"):
         model = suite.get("name")
         for case in suite.iter("testcase"):
-            props = {p.get("name"): p.get("value") for p in case.iterfind("properties/property")}
-            if "global_id" not in props:     # an unreadable model's "read model" case
-                continue
-            names.append(case.get("name"))
             kinds = {el.tag for el in case}
+            if "error" in kinds:     # an unreadable model's "read model" case
+                continue
+            name = case.get("name")   # GLOBALID (TAG) CHECK
+            names.append(name)
+            gid, check = name.split(" ", 1)[0], name.rsplit(" ", 1)[-1]
             status = "fail" if "failure" in kinds else "unchecked" if "skipped" in kinds else "pass"
-            story.note(model, props["global_id"], status)
+            story.note(model, gid, status)
             if "failure" in kinds:
-                failures.add((model, props["global_id"], props["check"]))
+                failures.add((model, gid, check))
     return JUnitFacts(story, failures, int(root.get("failures")), names)
 
 

@@ -140,7 +140,8 @@ def _cases(root: ET.Element) -> dict[str, tuple[str, dict[str, str], ET.Element]
     for c in root.iter("testcase"):
         props = {p.get("name"): p.get("value") for p in c.iterfind("properties/property")}
         kind = next((el.tag for el in c if el.tag in ("failure", "skipped", "error")), "pass")
-        out[f"{props.get('global_id')} {props.get('check')}"] = (kind, props, c)
+        name = c.get("name")   # GLOBALID (TAG) CHECK
+        out[f"{name.split(' ', 1)[0]} {name.rsplit(' ', 1)[-1]}"] = (kind, props, c)
     return out
 
 
