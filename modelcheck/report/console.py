@@ -341,8 +341,9 @@ def unchecked_table(results: pd.DataFrame, details: bool = False, width: int = D
     columns = [("Missing input (and where it was looked for)", "left", missing_col),
                ("Members", "right", count_col), ("Which", "left", who_col)]
     rows = [[Text(missing_col[i]), Text(count_col[i]), Text(who_col[i])] for i in range(len(missing_col))]
-    return fitted_table(f"Unchecked members: {len(lack)}, grouped by what they lack", columns, rows, width,
-                  leading=1 if any(len(m) > 1 for m in groups) else 0)
+    # a failing member can lack the input of another check: it is listed here and counted as failing
+    return fitted_table(f"Members with a check that could not run: {len(lack)}, grouped by what they lack",
+                        columns, rows, width, leading=1 if any(len(m) > 1 for m in groups) else 0)
 
 
 # ------------------------------------------------------------------------------ screen
