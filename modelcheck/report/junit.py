@@ -28,7 +28,9 @@ A ``<failure>`` exists exactly when the exit code counts the result: with ``stri
 unchecked member × check is a failure (type "unchecked") instead of skipped, as ``--strict`` makes
 it fail the run; with ``only_new`` (``--fail-on new``) only the results new since the baseline are
 failures (the property ``baseline`` says "new"), and a failure the baseline already had is
-``<skipped>`` with the reason (``baseline`` "not new").
+``<skipped>`` with the reason (``baseline`` "not new"); a model whose members were found but none
+could be checked (``coverage.verified_nothing``) ends its suite with one failing testcase "members
+checked" (type "nothing-checked"), as the exit code fails such a run.
 
 Deterministic: no timestamp, no host name, times are 0; suites in the order of the models,
 testcases in the order of the results table.
