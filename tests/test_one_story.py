@@ -108,16 +108,21 @@ class JUnitFacts:
     failures: set[tuple[str, str, str]]  # (model, gid, check) of every <failure>
     failure_count: int                   # the root's failures attribute
     names: list[str]
+    nothing_checked: set[str]            # models with the failing "members checked" testcase
 
 
 def from_junit(path: Path) -> JUnitFacts:
     root = ET.parse(path).getroot()
-    story, failures, names = Story(), set(), []
+    story, failures, names, nothing = Story(), set(), [], set()
     for suite in root.iter("testsuite"):
         model = suite.get("name")
         for case in suite.iter("testcase"):
             kinds = {el.tag for el in case}
             if "error" in kinds:     # an unreadable model's "read model" case
+                continue
+            if case.get("name") == "members checked":   # a model of which nothing could be checked
+                assert case.find("failure").get("type") == "nothing-checked"
+                nothing.add(model)
                 continue
             name = case.get("name")   # GLOBALID (TAG) CHECK
             names.append(name)
@@ -126,7 +131,7 @@ def from_junit(path: Path) -> JUnitFacts:
             story.note(model, gid, status)
             if "failure" in kinds:
                 failures.add((model, gid, check))
-    return JUnitFacts(story, failures, int(root.get("failures")), names)
+    return JUnitFacts(story, failures, int(root.get("failures")), names, nothing)
 
 
 def from_bcf(path: Path) -> Story:
@@ -263,7 +268,11 @@ def assert_one_story(out: Path, proc: Proc, *, strict: bool = False,
         {k: csv_rows[k] for k in ("pass", "fail", "unchecked")}
 
     ju = from_junit(out / "modelcheck-report.xml")
-    assert ju.failure_count == len(ju.failures)
+    assert ju.failure_count == len(ju.failures) + len(ju.nothing_checked)
+    # members found and none checked (no member passes or fails): the run verified nothing
+    nothing = {m["path"] for m in doc["models"] if not m["error"] and m["members"] > 0
+               and not {"pass", "fail"} & set(js.status.get(m["path"], {}).values())}
+    assert ju.nothing_checked == nothing
     for name in ju.names:   # the tag or name stands beside the GlobalId (where the member has one)
         assert re.fullmatch(r"\S{22}( \(.+\))? \S+", name), name
     # a <failure> exists exactly for what the exit code counts
@@ -275,9 +284,8 @@ def assert_one_story(out: Path, proc: Proc, *, strict: bool = False,
     else:
         counted = {k for k, st in cases.items() if st == "fail"}
         assert ju.story.status == js.status
-        assert proc.returncode == expected_exit(doc, strict=False)
     assert ju.failures == counted
-    assert proc.returncode == (1 if counted else 0), proc.stderr
+    assert proc.returncode == (1 if counted or nothing else 0), proc.stderr
 
     bcf = from_bcf(out / "modelcheck-report.bcfzip")
     assert bcf.status == {m: {g: s for g, s in st.items() if s == "fail"} for m, st in js.status.items()
@@ -317,11 +325,6 @@ def _cases(doc: dict) -> dict[tuple[str, str, str], str]:
     return out
 
 
-def expected_exit(doc: dict, strict: bool) -> int:
-    s = doc["summary"]
-    return 1 if s["fail"] or (strict and s["unchecked"]) else 0
-
-
 def new_problem_cases(doc: dict, strict: bool) -> set[tuple[str, str, str]]:
     """(model path, gid, check) of every result the comparison counts as new (its model names are
     file names here: no two models share one)."""
@@ -346,7 +349,6 @@ def test_the_sample_models_tell_one_story_in_every_format(check, tmp_path):
     assert proc.returncode == 1, proc.stderr       # the samples fail on purpose
     js, doc = assert_one_story(out, proc, annotated=annotated)
     assert len(js.status) == 3 and all(Counter(s.values())["fail"] for s in js.status.values())
-    assert proc.returncode == expected_exit(doc, strict=False)
 
 
 def test_the_samples_against_themselves_as_baseline_fail_nothing(check, tmp_path):
@@ -437,12 +439,25 @@ def test_strict_alone_decides_a_model_with_unchecked_members_and_no_failure(chec
     out, proc = built_run(check, tmp_path, "plain", model, table)
     _, doc = assert_one_story(out, proc)
     assert doc["summary"]["fail"] == 0 and doc["summary"]["unchecked"] > 0
-    assert proc.returncode == expected_exit(doc, strict=False) == 0
+    assert proc.returncode == 0
     assert from_junit(out / "modelcheck-report.xml").failure_count == 0
     out, proc = built_run(check, tmp_path, "strict", model, table, "--strict")
     _, doc = assert_one_story(out, proc, strict=True)
-    assert proc.returncode == expected_exit(doc, strict=True) == 1
+    assert proc.returncode == 1
     assert from_junit(out / "modelcheck-report.xml").failure_count > 0
+
+
+def test_a_model_of_which_nothing_could_be_checked_fails_in_every_format(check, tmp_path):
+    """No member has a force (the table's one row names no member): every one is unchecked, the run
+    verified nothing and fails (exit 1); the JUnit file fails it too, and no format counts or draws
+    a member as checked."""
+    model, table, _ = built_model(tmp_path / "m", "X9,LC1,10\n")
+    out, proc = built_run(check, tmp_path, "plain", model, table)
+    js, doc = assert_one_story(out, proc)
+    assert proc.returncode == 1
+    assert set(js.status[str(model)].values()) == {"unchecked"}
+    assert from_junit(out / "modelcheck-report.xml").nothing_checked == {str(model)}
+    assert from_html(out / "modelcheck-report.html").chart_total == 0
 
 
 @pytest.mark.parametrize("strict", [False, True])
