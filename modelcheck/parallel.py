@@ -40,6 +40,7 @@ import pandas as pd
 from modelcheck import lifetime
 from modelcheck.errors import ModelcheckError
 from modelcheck.pipeline import REPORT_MEMBER_COLUMNS, CheckedModel, ForceOptions, ModelData, describe_model
+from modelcheck.table import concat_rows
 from modelcheck.timing import stage
 
 #: below this many members a model is checked in one process (forking costs more than it saves)
@@ -488,9 +489,9 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
         release_rows([o.json_rows for o in outs if isinstance(o.json_rows, int)])
         data.error = errors[0]
         return CheckedModel(data)
-    members = pd.concat([o.members for o in outs], ignore_index=True)
+    members = concat_rows([o.members for o in outs])
     members = members.sort_values("_pos", kind="stable").drop(columns="_pos").reset_index(drop=True)
-    results = pd.concat([o.results for o in outs], ignore_index=True)
+    results = concat_rows([o.results for o in outs])
     data.members = members
     data.member_count = sum(o.member_count for o in outs)
     data.warnings = list(idx.parse_problems) + list(dict.fromkeys(w for o in outs for w in o.warnings))

@@ -18,7 +18,7 @@ import numpy as np
 import pandas as pd
 
 from modelcheck.errors import ModelcheckError, UsageError
-from modelcheck.table import empty_forces
+from modelcheck.table import concat_rows, empty_forces
 
 IFC_SUFFIXES = (".ifc", ".ifczip")
 
@@ -394,7 +394,7 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
                 if sink.tell():
                     sink.write(ROW_SEPARATOR)
                 sink.write(text)
-    results = pd.concat(kept, ignore_index=True) if len(kept) > 1 else kept[0]
+    results = concat_rows(kept) if len(kept) > 1 else kept[0]
     return results, (ROW_SEPARATOR.join(encoded) if sink is None else None)
 
 
@@ -597,11 +597,11 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
             release_rows([fd] + [c.json_rows for c in checked if isinstance(c.json_rows, int)])
             raise
     frames = [c.results for c in checked if c.results is not None and len(c.results)]
-    results = (pd.concat(frames, ignore_index=True) if frames
+    results = (concat_rows(frames) if frames
                else pd.DataFrame({c: pd.Series(dtype=object) for c in RESULT_COLUMNS}))
     mframes = [c.data.members.loc[:, list(REPORT_MEMBER_COLUMNS)] for c in checked
                if c.data.members is not None and len(c.data.members)]
-    members = (pd.concat(mframes, ignore_index=True) if mframes
+    members = (concat_rows(mframes) if mframes
                else pd.DataFrame({c: pd.Series(dtype=object) for c in REPORT_MEMBER_COLUMNS}))
     for c in checked:  # the heavy member table is not needed past this point
         if c.data.members is not None:

@@ -127,6 +127,9 @@ class MaterialInfo:
     grade: str | None
     values: dict[str, tuple[float, str]]   # E/Fy/Fu/alpha -> (SI value, source)
     warnings: tuple[str, ...] = ()
+    #: (quantity, what was found and why it was not used) of each value the material's
+    #: properties give but the reader rejects (the member table's ``rejected``)
+    rejected: tuple[tuple[str, str], ...] = ()
 
 
 class _Reader:
@@ -289,8 +292,7 @@ class _Reader:
         info = self._material_info(mat)
         if len({m.id() for m in mats}) > 1:
             names = ", ".join(sorted({str(m.Name) for m in mats}))
-            info = MaterialInfo(info.name, info.category, info.grade, info.values,
-                                info.warnings + (f"several materials ({names}); using {mat.Name!r}",))
+            info = replace(info, warnings=info.warnings + (f"several materials ({names}); using {mat.Name!r}",))
         return info, profiles
 
     def _material_info(self, mat: Any) -> MaterialInfo:
@@ -302,9 +304,11 @@ class _Reader:
 
         values: dict[str, tuple[float, str]] = {}
         warnings: list[str] = []
+        rejected: dict[str, str] = {}
+        found: dict[str, tuple[str, str]] = {}   # quantity -> (value as written, with its unit; where)
         ranked = sorted(self.idx.material_props.get(key, ()), key=_material_set_rank)
         for mp in ranked:
-            self._read_material_props(mp, values, warnings)
+            self._read_material_props(mp, values, rejected, found)
         name = mat.Name
         reading = read_name(name, getattr(mat, "Category", None))
         category = reading.category
@@ -326,9 +330,10 @@ class _Reader:
         if category == UNKNOWN:
             warnings.append(f"material {name!r}: category unknown (neither its name nor its Category matches a "
                             "pattern of rulesets/material-names.toml)")
-        self._plausibility(mat, category, values, warnings)
+        self._plausibility(category, values, rejected, found)
         values.pop("density", None)   # screened above; no check uses it
-        info = MaterialInfo(name, category, grade, values, tuple(warnings))
+        warnings += [f"material {name!r}, {q}: {why}" for q, why in rejected.items()]
+        info = MaterialInfo(name, category, grade, values, tuple(warnings), tuple(rejected.items()))
         self._material_cache[key] = info
         return info
 
@@ -338,10 +343,12 @@ class _Reader:
                      "UltimateStress": ("Fu", "IfcPressureMeasure"),
                      "MassDensity": ("density", "IfcMassDensityMeasure")}
 
-    def _read_material_props(self, mp: Any, values: dict[str, tuple[float, str]], warnings: list[str]) -> None:
+    def _read_material_props(self, mp: Any, values: dict[str, tuple[float, str]], rejected: dict[str, str],
+                             found: dict[str, tuple[str, str]]) -> None:
         """The trade's property names from one material property set, in whatever set the model
-        puts them (see ``MATERIAL_PROPERTIES``); a quantity found already (in a higher-ranked
-        set) is kept."""
+        puts them (see ``MATERIAL_PROPERTIES``), into ``values``; a quantity found already (in a
+        higher-ranked set) is kept. A value given without a usable unit goes into ``rejected``
+        (what was found and why it is not used); ``found`` keeps each value as the file writes it."""
         cls = mp.is_a()
         if cls in ("IfcMechanicalMaterialProperties", "IfcMechanicalSteelMaterialProperties",
                    "IfcGeneralMaterialProperties"):
@@ -349,13 +356,15 @@ class _Reader:
                 raw = getattr(mp, attr, None)
                 if raw is None or q in values:
                     continue
+                where = f"{cls} #{mp.id()}.{attr}"
                 try:
                     v = measure_si(self.idx, measure, float(raw))
                 except MissingUnit as exc:
                     if q != "density":   # screened only: nothing is missing without it
-                        warnings.append(f"{cls} #{mp.id()}.{attr} = {raw} not used: {exc} (the unit is never assumed)")
+                        rejected.setdefault(q, f"{_number_as_written(raw)} in {where} {_unit_problem(exc)}; not used")
                     continue
-                values[q] = (v.value, f"{cls} #{mp.id()}.{attr} [{v.unit}]")
+                values[q] = (v.value, f"{where} [{v.unit}]")
+                found[q] = (f"{_number_as_written(v.raw)} {v.unit}".rstrip(), where)
             return
         name = getattr(mp, "Name", None)
         label = name or f"{cls} #{mp.id()}"
@@ -365,18 +374,22 @@ class _Reader:
             q = MATERIAL_PROPERTIES.get(_property_key(prop.Name))
             if q is None or q in values or not prop.is_a("IfcPropertySingleValue"):
                 continue
+            where = f"{label}.{prop.Name}"
             try:
                 v = _material_value(self.idx, prop)
             except MissingUnit as exc:
                 if q != "density":   # screened only: nothing is missing without it
-                    warnings.append(f"{label}.{prop.Name} = {_raw_text(prop)} not used: {exc} and the value carries "
-                                    "no unit of its own (the unit is never assumed)")
+                    rejected.setdefault(q, f"{_raw_text(prop)} in {where} {_unit_problem(exc)} and the value "
+                                           "carries no unit of its own; not used")
                 continue
             if v is not None:
-                values[q] = (v.value, f"{label}.{prop.Name} [{v.unit}]")
+                values[q] = (v.value, f"{where} [{v.unit}]")
+                found[q] = (f"{_number_as_written(v.raw)} {v.unit}".rstrip(), where)
 
-    def _plausibility(self, mat: Any, category: str | None, values: dict[str, tuple[float, str]],
-                      warnings: list[str]) -> None:
+    def _plausibility(self, category: str | None, values: dict[str, tuple[float, str]], rejected: dict[str, str],
+                      found: dict[str, tuple[str, str]]) -> None:
+        """A value outside its category's plausible range is not used: NaN in ``values``, and
+        what was found and why in ``rejected``."""
         from modelcheck.materials import plausible_ranges
 
         ranges = plausible_ranges(category)
@@ -384,9 +397,11 @@ class _Reader:
             r = ranges.get(q)
             if r is None or r.contains(v):
                 continue
-            warnings.append(
-                f"material {mat.Name!r}: {q} = {_fmt_si(q, v)} from {src} is outside the plausible "
-                f"range for {r.category if r.category != 'unknown' else 'any material'} ({r.text}); not used")
+            shown, where = found.get(q, (_fmt_si(q, v), src))
+            if shown != _fmt_si(q, v):   # the file's own unit, and the value in the range's terms
+                shown = f"{shown} (= {_fmt_si(q, v)})"
+            rejected[q] = (f"{shown} in {where} is outside the plausible range for "
+                           f"{r.category if r.category != 'unknown' else 'any material'} ({r.text}); not used")
             values[q] = (math.nan, f"doubted: {src}")
 
     # -------------------------------------------------------------------- member
@@ -419,9 +434,10 @@ class _Reader:
         elif type_sec is not None:
             problem = type_sec
         net_warnings: list[str] = []
-        net = self._net_from(type_sets, "type", net_warnings) if type_sets else None
+        net_rejected: list[tuple[str, str]] = []
+        net = self._net_from(type_sets, "type", net_warnings, net_rejected) if type_sets else None
         hit = self._type_facts_cache[id(typ)] = (typ, type_name, type_sel, tinfo, cand, problem,
-                                                 net or _NO_NET, tuple(net_warnings))
+                                                 net or _NO_NET, tuple(net_warnings), tuple(net_rejected))
         return hit
 
     def member(self, el: Any, analysis: bool = False) -> tuple[Any, ...]:
@@ -432,6 +448,7 @@ class _Reader:
         cls = el.is_a()
         pos = self._pos_cache.get(cls) or self._positions(cls)
         warnings: list[str] = []
+        rejected: list[tuple[str, str]] = []   # (column, what was found and why it was not used)
         typ = idx.type_of.get(eid)
         type_name = type_sel = tinfo = type_cand = type_problem = None
         if typ is not None:
@@ -497,12 +514,13 @@ class _Reader:
                     other_sets.append(ent)
             qsets += base_sets + other_sets
             if net_sets:
-                net = self._net_from(net_sets, "occurrence", warnings)
+                net = self._net_from(net_sets, "occurrence", warnings, rejected)
         if net is None:
             if typ is not None:
                 net = facts[6]
                 if facts[7]:
                     warnings.extend(facts[7])
+                    rejected.extend(facts[8])
             else:
                 net = _NO_NET
         if idx.profile_props or mech_sets or idx.object_profile_props:
@@ -512,7 +530,7 @@ class _Reader:
             problems.extend(mech_problems)
         qarea = qlen = qvol = None
         if qsets:
-            qarea, qlen, qvol = self._quantities(qsets, cls, warnings)
+            qarea, qlen, qvol = self._quantities(qsets, cls, warnings, rejected)
         if qarea is not None:
             candidates.append(qarea)
 
@@ -520,6 +538,7 @@ class _Reader:
             candidates = self._unit_contradictions(candidates, warnings)
         section = None
         doubts = self._doubts
+        doubted: list[str] = []
         for cand in candidates:
             hit = doubts.get(id(cand))
             if hit is None or hit[0] is not cand:
@@ -527,6 +546,7 @@ class _Reader:
             doubt = hit[1]
             if doubt:
                 warnings.append(doubt)
+                doubted.append(doubt)
                 continue
             if section is None:
                 section = cand
@@ -544,6 +564,8 @@ class _Reader:
                 section = replace(section, r_min=cand.r_min, r_source=cand.source)
         if section is None and problems:
             warnings.extend(dict.fromkeys(problems))  # the profile set and the body often name one profile
+        if section is None and (doubted or problems):
+            rejected.append(("section", "; ".join(dict.fromkeys(doubted + problems))))
 
         # --- length candidates, ranked
         axis_problem = None
@@ -557,10 +579,13 @@ class _Reader:
         if axis_problem is not None:
             warnings.append(axis_problem)
         length, length_src = math.nan, None
+        doubted_lengths: list[str] = []
         for val, src in lengths:
             if not (math.isfinite(val) and MIN_LENGTH <= val <= MAX_LENGTH):
-                warnings.append(f"length {val:.6g} m from {src} is not plausible for a member (outside "
-                                f"{MIN_LENGTH * 1e3:g} mm – {MAX_LENGTH:g} m); not used")
+                doubt = (f"{val:.6g} m from {src} is not plausible for a member (outside "
+                         f"{MIN_LENGTH * 1e3:g} mm – {MAX_LENGTH:g} m); not used")
+                warnings.append(f"length {doubt}")
+                doubted_lengths.append(doubt)
                 continue
             if length_src is None:
                 length, length_src = val, src
@@ -574,17 +599,24 @@ class _Reader:
             if math.isfinite(val) and MIN_LENGTH <= val <= MAX_LENGTH:
                 length, length_src = val, src
             else:
-                warnings.append(f"length {val:.6g} m from {src} is not plausible for a member (outside "
-                                f"{MIN_LENGTH * 1e3:g} mm – {MAX_LENGTH:g} m); not used")
+                doubt = (f"{val:.6g} m from {src} is not plausible for a member (outside "
+                         f"{MIN_LENGTH * 1e3:g} mm – {MAX_LENGTH:g} m); not used")
+                warnings.append(f"length {doubt}")
+                doubted_lengths.append(doubt)
         if section is not None and net[1] is not None and net[0] > section.area * (1 + AREA_TOLERANCE):
-            warnings.append(f"net area {net[0] * 1e6:.6g} mm² from {net[1]} is more than the gross area "
-                            f"{section.area * 1e6:.6g} mm² from {section.source}; not used")
+            too_large = (f"net area {net[0] * 1e6:.6g} mm² from {net[1]} is more than the gross area "
+                         f"{section.area * 1e6:.6g} mm² from {section.source}; not used")
+            warnings.append(too_large)
+            rejected.append(("net_area", too_large))
             net = _NO_NET
         if section is not None and length_src is not None:
             larger = _larger_than_length(section, length, length_src)
             if larger:   # a profile drawn in elevation, an extrusion in the wrong unit: neither is used
                 warnings.append(larger)
+                rejected += [("section", larger), ("length", larger)]
                 section, length, length_src = None, math.nan, None
+        if length_src is None and doubted_lengths:
+            rejected.append(("length", "; ".join(doubted_lengths)))
         storey = idx.storey_of.get(eid)
         storey_name = None
         if storey is not None:
@@ -597,7 +629,7 @@ class _Reader:
             warnings.append(f"has no GlobalId (IFC requires one): named #{eid} here")
             gid = f"#{eid}"
         return (gid, cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
-                section, minfo, length, length_src, warnings, eid, net)
+                section, minfo, length, length_src, warnings, eid, net, tuple(rejected))
 
     def _unit_contradictions(self, candidates: list[Section], warnings: list[str]) -> list[Section]:
         """The candidates without those whose area, read in a stated area unit, contradicts the
@@ -630,11 +662,11 @@ class _Reader:
             hit = self._same[(id(a), id(b))] = (a, b, a.source.split(" ", 2)[:2] == b.source.split(" ", 2)[:2])
         return hit[2]
 
-    def _net_from(self, sets: list[Any], where: str,
-                  warnings: list[str]) -> tuple[float, str | None, float, str | None] | None:
+    def _net_from(self, sets: list[Any], where: str, warnings: list[str],
+                  rejected: list[tuple[str, str]]) -> tuple[float, str | None, float, str | None] | None:
         """The net area and shear lag factor from ``sets`` (of the occurrence or its type):
         (An, source, U, source), NaN and None for a value not given or not usable; None where
-        the sets hold neither."""
+        the sets hold neither. A net area given but not usable goes into ``rejected`` with why."""
         pset_name, prop_name = NET_AREA_PROPERTY
         sets = list(sets)
         prop = find_property(sets, pset_name, prop_name)
@@ -647,10 +679,13 @@ class _Reader:
                 v = property_si(self.idx, prop)
             except MissingUnit as exc:
                 warnings.append(f"{pset_name}.{prop_name} not used: {exc}")
+                rejected.append(("net_area", f"{pset_name}.{prop_name} ({where}) has no unit ({exc}); not used"))
                 v = None
             else:
                 if v is None or not (math.isfinite(v.value) and v.value > 0):
                     warnings.append(f"{pset_name}.{prop_name} is not a positive area; not used")
+                    rejected.append(("net_area", f"{pset_name}.{prop_name} ({where}) is not a positive area; "
+                                                 "not used"))
                     v = None
             if v is not None:
                 net = (v.value, f"{pset_name}.{prop_name} ({where}) [{v.unit}]")
@@ -687,11 +722,12 @@ class _Reader:
                     return profs
         return []
 
-    def _quantities(self, qsets: list[Any], cls: str, warnings: list[str]
+    def _quantities(self, qsets: list[Any], cls: str, warnings: list[str], rejected: list[tuple[str, str]]
                     ) -> tuple[Section | None, tuple[float, str] | None, tuple[float, str] | None]:
         """(CrossSectionArea, Length, NetVolume) of a member in SI from its quantity sets, each the
         first one found in the sets' rank order (``qsets`` comes ranked: Qto_*, BaseQuantities, any
-        other IfcElementQuantity). A column's Height is its length where no set gives a Length."""
+        other IfcElementQuantity). A column's Height is its length where no set gives a Length. A
+        quantity without a usable unit goes into ``rejected`` with why."""
         found: dict[str, tuple[float, str]] = {}
         for ps in qsets:
             if not ps.is_a("IfcElementQuantity"):
@@ -712,6 +748,8 @@ class _Reader:
                     v = measure_si(self.idx, measure, float(raw), getattr(q, "Unit", None))
                 except MissingUnit as exc:
                     warnings.append(f"{qname}.{n} not used: {exc}")
+                    column = "section" if n == "CrossSectionArea" else "length"
+                    rejected.append((column, f"{qname}.{n} {_unit_problem(exc)}; not used"))
                     continue
                 found[n] = (v.value, f"{qname}.{n} [{v.unit}]")
         qarea = None
@@ -1032,7 +1070,7 @@ def _unpack_material(select: Any) -> tuple[list[Any], list[Any]]:
 
 def _fmt_si(q: str, v: float) -> str:
     if not math.isfinite(v):
-        return str(v)
+        return "not a finite number"
     if q in ("E", "Fy", "Fu"):
         return f"{v / 1e6:.6g} MPa"
     if q == "alpha":
@@ -1040,6 +1078,19 @@ def _fmt_si(q: str, v: float) -> str:
     if q == "density":
         return f"{v:.6g} kg/m³"
     return f"{v:.6g}"
+
+
+def _unit_problem(exc: MissingUnit) -> str:
+    """'has no unit (…)' or, for a unit the file states but that cannot be used, 'has no usable unit (…)'."""
+    return f"has no usable unit ({exc})" if isinstance(exc, UnusableUnit) else f"has no unit ({exc})"
+
+
+def _number_as_written(raw: Any) -> str:
+    """A number as the file writes it, shortly (210000.0 -> '210000')."""
+    try:
+        return f"{float(raw):.6g}"
+    except (TypeError, ValueError):
+        return repr(raw)
 
 
 def _has_sweep_body(el: Any) -> bool:
@@ -1200,7 +1251,7 @@ def _unreadable_member(el: Any, warning: str) -> tuple[Any, ...]:
         gid = f"#{el.id()}"
     name, tag = (_text_attribute(el, "Name"), _text_attribute(el, "Tag"))
     return (gid, el.is_a(), None, None, name, tag, None, None, None, None, math.nan, None, [warning], el.id(),
-            _NO_NET)
+            _NO_NET, (("*", warning),))
 
 
 def _text_attribute(el: Any, attr: str) -> str | None:
@@ -1236,10 +1287,10 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
     cols: dict[str, Any] = {"model": [path] * n}
     if n:
         (gid, cls, pre, otype, name, tag, storey, tname, secs, mats, length, length_src, warns,
-         eids, nets) = zip(*rows, strict=True)
+         eids, nets, rejects) = zip(*rows, strict=True)
     else:
         gid = cls = pre = otype = name = tag = storey = tname = secs = mats = length = length_src = warns = eids = ()
-        nets = ()
+        nets = rejects = ()
     cols.update(global_id=list(gid), ifc_class=list(cls), predefined_type=list(pre), object_type=list(otype),
                 name=list(name), tag=list(tag), storey=list(storey), type_name=list(tname))
     # members share a few section and material objects: each column is made per distinct object
@@ -1272,13 +1323,19 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
     mat_warnings = [m.warnings for m in mats]
     cols["warnings"] = [list(mat_warnings[c]) + w if mat_warnings[c] else w
                         for c, w in zip(mat_code.tolist(), warns, strict=True)]
+    mat_rejected = [m.rejected for m in mats]
+    cols["rejected"] = _objects([mat_rejected[c] + r if mat_rejected[c] else r
+                                 for c, r in zip(mat_code.tolist(), rejects, strict=True)])
+    cols["warnings"] = _objects(cols["warnings"])
     cols["entity_id"] = np.array(eids, dtype=np.int64)
     cols["net_area"] = np.array([x[0] for x in nets], dtype=float)
     cols["net_area_source"] = [x[1] for x in nets]
     cols["shear_lag"] = np.array([x[2] for x in nets], dtype=float)
     cols["shear_lag_source"] = [x[3] for x in nets]
-    # text columns stay object dtype with None for missing (pandas 3 would infer 'str' with NaN)
-    # (an object array too: pandas 3 would infer 'str' from one and turn its None into NaN)
-    return frame_of({k: pd.Series(cols[k], dtype=object if not isinstance(cols[k], np.ndarray)
-                                  or cols[k].dtype == object else None)
-                     for k in member_columns()})
+    # numbers as floats; texts as objects with None for missing (frame_of), never NaN
+    return frame_of({k: cols[k] for k in member_columns()})
+
+
+def _objects(items: list[Any]) -> pd.Series:
+    """One object per member (a list or tuple each, kept as it is)."""
+    return pd.Series(np.fromiter(items, dtype=object, count=len(items)), dtype=object)

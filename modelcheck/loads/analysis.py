@@ -92,7 +92,7 @@ import pandas as pd
 from modelcheck.ifc.index import ModelIndex
 from modelcheck.loads.messages import MessageLog
 from modelcheck.loads.tables import DEFAULT_LOAD_CASE
-from modelcheck.table import FORCE_COLUMNS, empty_forces
+from modelcheck.table import FORCE_COLUMNS, empty_forces, frame_of
 
 #: curve-reaction types whose load configuration is a distribution of the internal force
 DISTRIBUTION_TYPES = frozenset({"LINEAR", "POLYGONAL", "EQUIDISTANT", "SINUS", "PARABOLA"})
@@ -160,7 +160,7 @@ def forces_from_analysis(idx: ModelIndex, members: pd.DataFrame, *, rel_tol: flo
                 "results not used", gid, _ELEMENTS)
     df = df.loc[known]
     out = _governing(df, log)
-    out.insert(0, "model", idx.path)
+    out.insert(0, "model", pd.Series([idx.path] * len(out), index=out.index, dtype=object))
     return out[list(FORCE_COLUMNS)].reset_index(drop=True), log.messages()
 
 
@@ -541,9 +541,9 @@ def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: M
         read_as = np.where(glob, "read in global axes", "read in member axes")
         changed = glob != flagged_global
         source = np.where(changed, source + ", " + read_as + f" (--analysis-frame {frame})", source)
-    return pd.DataFrame({"global_id": np.asarray(rows.gid, dtype=object),
-                         "load_case": np.asarray(rows.case, dtype=object),
-                         "axial_force": n, "source": source})
+    return frame_of({"global_id": np.asarray(rows.gid, dtype=object),
+                     "load_case": np.asarray(rows.case, dtype=object),
+                     "axial_force": np.asarray(n, dtype=float), "source": np.asarray(source, dtype=object)})
 
 
 def _governing(df: pd.DataFrame, log: MessageLog) -> pd.DataFrame:

@@ -36,7 +36,7 @@ import pint
 from modelcheck.ifc.index import ModelIndex
 from modelcheck.loads.messages import MessageLog
 from modelcheck.loads.tables import DEFAULT_LOAD_CASE, VALUE_RE, ForceUnitError, force_unit_factor
-from modelcheck.table import FORCE_COLUMNS, empty_forces
+from modelcheck.table import FORCE_COLUMNS, empty_forces, frame_of
 from modelcheck.units import (
     MissingUnit,
     UnitDefinitionError,
@@ -188,13 +188,13 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
                         "FORCEUNIT; no force taken (the unit is never assumed)", gid)
     ok = usable[codes]
     forces = np.asarray(raws, dtype=float) * factors[codes]
-    out = pd.DataFrame({
-        "model": idx.path,
+    out = frame_of({
+        "model": np.full(int(ok.sum()), idx.path, dtype=object),
         "global_id": np.asarray(gids, dtype=object)[ok],
         "load_case": np.asarray(cases, dtype=object)[ok],
         "axial_force": forces[ok],
         "source": np.asarray(sources, dtype=object)[ok],
-    }, columns=list(FORCE_COLUMNS))
+    })[list(FORCE_COLUMNS)]
     return out, log.messages() if own_log else []
 
 

@@ -57,6 +57,7 @@ import pandas as pd
 
 from modelcheck.errors import LoadTableError
 from modelcheck.files import input_file
+from modelcheck.table import frame_of
 from modelcheck.units import VALUE_PATTERN, QuantityTextError, parse_number, unit_factor
 
 #: columns of the table ``read_load_table`` returns
@@ -508,14 +509,14 @@ def _parse(records: list[list[Any]], name: str, sheet: str | None, all_text: boo
                              value=raw.iloc[int(np.flatnonzero(typed)[0])])
     force = _forces_si(raw, header, name, where, rows)
     source_prefix = f"{name}:{row_label}"  # "<path>:row " or "<path>:<sheet>:row "
-    out = pd.DataFrame({
+    out = frame_of({
         "key_kind": np.where(by_gid.to_numpy(), "global_id", "tag").astype(object),
         "key": key.to_numpy(dtype=object),
         "load_case": case.to_numpy(dtype=object),
-        "axial_force": force,
+        "axial_force": np.asarray(force, dtype=float),
         "source": np.array([f"{source_prefix}{r}" for r in rows.tolist()], dtype=object),
-    }, columns=list(LOAD_TABLE_COLUMNS))
-    return out
+    })
+    return out[list(LOAD_TABLE_COLUMNS)]
 
 
 def _row_error(name: str, where: Callable[[int], str], rows: np.ndarray, mask: np.ndarray, message: str,

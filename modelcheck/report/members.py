@@ -8,6 +8,7 @@ from typing import Any
 import pandas as pd
 
 from modelcheck.report.quantities import DisplayUnits
+from modelcheck.table import REJECTED
 
 CAUTION = ("modelcheck screens models for data and axial-stress problems; it does not replace design "
            "and checking by a licensed engineer under the governing local code.")
@@ -89,7 +90,9 @@ def members_csv(members: pd.DataFrame, units: DisplayUnits) -> pd.DataFrame:
         df[col] = df[col] * units.convert("small_length", 1.0)
         df = df.rename(columns={col: f"{col} [{units.unit('small_length')}]"})
     df["warnings"] = df["warnings"].map(lambda w: " | ".join(w or []))
-    return df
+    # what the reader did not use is in the warnings, in words; its (column, reason) pairs are not
+    # a spreadsheet value
+    return df.drop(columns=[c for c in (REJECTED,) if c in df.columns])
 
 
 def members_table(members: pd.DataFrame, units: DisplayUnits, title: str) -> Any:
@@ -114,7 +117,7 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str) -> Any
         v = _s(v)
         return shown(v) if v is not None and str(v).strip() else None
 
-    none = Text("none", style="red")
+    none = Text("—", style="red")   # no section or material: an em dash, as every missing text
     for rec in members.to_dict("records"):
         label = " / ".join(x for x in (text(rec["name"]), text(rec["tag"])) if x)
         sec = text(rec["section_name"]) or (text(rec["profile_type"]) or "").removeprefix("Ifc").removesuffix(
