@@ -94,6 +94,7 @@ class _PartResult:
     member_count: int
     excluded: dict[str, list[str]] = field(default_factory=dict)   # left out by the rule set, by reason
     coverage: Any = None           # the part's Coverage
+    member_warnings: dict[str, list[str]] = field(default_factory=dict)   # GlobalId -> the member's own
 
 
 def _table_part(table: pd.DataFrame, part_starts: np.ndarray, k: int) -> pd.DataFrame:
@@ -207,6 +208,9 @@ def _run_part(k: int) -> _PartResult:
         else:
             results, _ = evaluate_members(ruleset, data.members, data.forces)
     coverage = coverage_of(ruleset, data.members, results)
+    from modelcheck.pipeline import member_warnings
+
+    own_warnings = member_warnings(data.members)
     members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
     members["_pos"] = positions
     if st.slim:  # no report reads them
@@ -215,7 +219,7 @@ def _run_part(k: int) -> _PartResult:
     if report is not None and os.getpid() != st.parent_pid:
         report = replace(report, unmatched=())   # judged from matched_rows; not worth the pickling
     return _PartResult(None, members, results, rows, report, log, new_log, warnings, data.matched_rows,
-                       data.member_count, excluded, coverage)
+                       data.member_count, excluded, coverage, own_warnings)
 
 
 class _Forked:
@@ -480,7 +484,7 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
            ruleset_ref: str) -> CheckedModel:
     """The parts' members, results, JSON rows and messages as one model's."""
     from modelcheck.loads.join import ForceReport
-    from modelcheck.pipeline import join_lines, no_force_line
+    from modelcheck.pipeline import join_lines, merge_member_warnings, no_force_line
 
     for out in outs:
         idx.parse_log.extend(out.new_log)
@@ -494,6 +498,7 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
     results = concat_rows([o.results for o in outs])
     data.members = members
     data.member_count = sum(o.member_count for o in outs)
+    data.member_warnings = merge_member_warnings([o.member_warnings for o in outs])
     data.warnings = list(idx.parse_problems) + list(dict.fromkeys(w for o in outs for w in o.warnings))
     excluded: dict[str, list[str]] = {}
     for o in outs:

@@ -43,6 +43,9 @@ class ModelData:
     force_report: dict[str, Any] = field(default_factory=dict)   # ForceReport.to_dict() less 'unmatched'
     warnings: list[str] = field(default_factory=list)      # model-level warnings
     validation: list[str] = field(default_factory=list)    # schema validation findings (--validate)
+    #: GlobalId -> the member's own warnings (plausibility, consistency between sources, values
+    #: not used), for the members that have any; kept when the member table is let go
+    member_warnings: dict[str, list[str]] = field(default_factory=dict)
     report: Any = None   # the join's ForceReport, kept only for a part of a model (modelcheck.parallel)
 
 
@@ -324,6 +327,7 @@ def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: boo
 
     data.exclusion_messages = exclusion_lines(excluded_members(ruleset.select, data.members), ruleset.select)
     data.warnings = data.warnings + data.exclusion_messages
+    data.member_warnings = member_warnings(data.members)
     if encode_json and row_file is not None:
         with os.fdopen(os.dup(row_file), "wb") as sink:
             results, _ = evaluate_members(ruleset, data.members, data.forces, encode_json=True, slim=slim,
@@ -338,6 +342,31 @@ def finish_check(data: ModelData, ruleset_ref: str, encode_json: bool, slim: boo
         data.members = data.members.iloc[0:0]
     data.forces = data.forces.iloc[0:0]
     return CheckedModel(data, results, rows)
+
+
+def member_warnings(members: pd.DataFrame) -> dict[str, list[str]]:
+    """GlobalId -> the warnings of the members that have any, by GlobalId (the order the reports
+    list members in, whether or not the model was shared out); a GlobalId several members share:
+    their warnings together, each once."""
+    out: dict[str, list[str]] = {}
+    if members is None or "warnings" not in members.columns:
+        return out
+    warns = members["warnings"].to_numpy(dtype=object)
+    gids = members["global_id"].to_numpy(dtype=object)
+    for i in np.flatnonzero([bool(w) for w in warns.tolist()]).tolist():
+        have = out.setdefault(str(gids[i]), [])
+        have += [w for w in warns[i] if w not in have]
+    return dict(sorted(out.items()))
+
+
+def merge_member_warnings(parts: list[dict[str, list[str]]]) -> dict[str, list[str]]:
+    """The member warnings of the parts of one model, as ``member_warnings`` of the whole gives them."""
+    out: dict[str, list[str]] = {}
+    for part in parts:
+        for gid, warns in part.items():
+            have = out.setdefault(gid, [])
+            have += [w for w in warns if w not in have]
+    return dict(sorted(out.items()))
 
 
 #: members evaluated at a time when the JSON rows are encoded as they come (a memory bound)

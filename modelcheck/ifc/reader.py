@@ -1086,11 +1086,14 @@ def _unit_problem(exc: MissingUnit) -> str:
 
 
 def _number_as_written(raw: Any) -> str:
-    """A number as the file writes it, shortly (210000.0 -> '210000')."""
+    """A number as the file writes it, shortly (210000.0 -> '210000', 29000000.0 -> '29000000')."""
     try:
-        return f"{float(raw):.6g}"
+        v = float(raw)
     except (TypeError, ValueError):
         return repr(raw)
+    if math.isfinite(v) and v == int(v) and abs(v) < 1e15:
+        return str(int(v))
+    return f"{v:.6g}" if math.isfinite(v) else "a value that is not a finite number"
 
 
 def _has_sweep_body(el: Any) -> bool:

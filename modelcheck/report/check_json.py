@@ -470,7 +470,8 @@ def check_document(run: Any, *, comparison: dict[str, Any] | None = None,
                     "units": getattr(rs, "units", "") or ""},
         "models": [{"path": m.path, "schema": m.schema, "error": m.error, "members": int(m.member_count),
                     "units": getattr(m, "units", None),
-                    "warnings": list(m.warnings) + list(m.force_messages) + list(m.validation)}
+                    "warnings": list(m.warnings) + list(m.force_messages) + list(m.validation),
+                    "member_warnings": {g: list(w) for g, w in m.member_warnings.items()}}
                    for m in run.models],
         "results": ((EncodedRows(run.json_rows) if getattr(run, "json_rows", None) is not None
                      else EncodedRows([encode_results(run.results)])) if encoded

@@ -1,7 +1,7 @@
 """The console report of `modelcheck check`: small rich renderables composed into one screen.
 
-Per model a summary line (its headline says so when nothing could be checked) and its
-warnings; then the failing members, worst first, one line each on its governing check; then
+Per model a summary line (its headline says so when nothing could be checked), its
+warnings and the count of its members' own warnings with the first few; then the failing members, worst first, one line each on its governing check; then
 the unchecked members grouped by what they lack; then the caution.
 
 Two layouts of the same rows. The compact one fits 80–120 columns: member (tag, else name,
@@ -147,6 +147,32 @@ def _warning_grid(items: list[tuple[str, str]], style: str = "yellow") -> Table:
     for label, text in items:
         grid.add_row(Text(label), Text(shown(text, MAX_WARNING)))
     return grid
+
+
+#: member warnings shown on the console per model (every one is in the JSON, CSV and HTML reports)
+MAX_MEMBER_WARNINGS = 3
+
+
+def member_warning_block(model: Any, members: pd.DataFrame | None) -> list[Any]:
+    """'N member warnings on K members, first:' and the first few, each with the member's tag
+    (else name, else GlobalId): the members' own warnings (values not used, sources that disagree)."""
+    warns = getattr(model, "member_warnings", None) or {}
+    if not warns:
+        return []
+    pairs = [(gid, w) for gid, ws in warns.items() for w in ws]
+    n, k = len(pairs), len(warns)
+    shown = pairs[:MAX_MEMBER_WARNINGS]
+    names: dict[str, str] = {}
+    if members is not None and len(members) and {"model", "global_id", "name", "tag"} <= set(members.columns):
+        gids = {gid for gid, _ in shown}
+        rows = members[(members["model"] == model.path) & members["global_id"].isin(gids)]
+        for gid, name, tag in zip(rows["global_id"], rows["name"], rows["tag"], strict=True):
+            names.setdefault(str(gid), member_label(name, tag, gid))
+    head = (f"{n} on {k} member{'s' if k != 1 else ''}"
+            + (f", the first {MAX_MEMBER_WARNINGS} (every one in --format json, csv or html):"
+               if n > MAX_MEMBER_WARNINGS else ":"))
+    items = [("  member warnings:", head)] + [(f"    {names.get(gid, gid)}:", w) for gid, w in shown]
+    return [_warning_grid(items)]
 
 
 def model_warnings(model: Any, details: bool = False) -> list[str]:
@@ -361,6 +387,8 @@ def render_check(run: Any, console: Console, comparison: Any = None, details: bo
             items.append(("  warning:", f"… and {len(warnings) - MAX_WARNINGS} more (every one in --format json)"))
         if items:
             parts.append(_warning_grid(items))
+        if not m.error:
+            parts += member_warning_block(m, run.members)
     from modelcheck.pipeline import unmatched_lines
 
     lines = unmatched_lines(run.unmatched_rows)

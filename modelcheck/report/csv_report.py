@@ -5,11 +5,12 @@ Columns, in this order::
     model, global_id, ifc_class, name, tag, storey, section, material,
     check, load_case, status, demand, capacity, unit, ratio, missing, message,
     demand_source, capacity_source [, other result columns: clause, title, …]
-    [, suggestion, suggestion_ratio]
+    [, suggestion, suggestion_ratio], warnings
 
 ``demand`` and ``capacity`` are in the display unit named in ``unit`` on the same row (a stress,
 a length or a plain number, depending on the check). ``missing`` joins the missing inputs with
-" | ". Numbers carry six significant digits, as in the JSON report. Rows keep the order of the
+" | ", and ``warnings`` the member's own warnings (values not used, sources that disagree) the
+same way, on each of its rows. Numbers carry six significant digits, as in the JSON report. Rows keep the order of the
 results table (the JSON report's order), so the same inputs give the same bytes: the CSV has no
 timestamp at all. A text cell beginning with ``= + - @``, a tab or a carriage return is written
 with a leading apostrophe (``report.text.csv_cell``: a spreadsheet must not run a model's text as a
@@ -57,7 +58,7 @@ def results_frame(run: Any) -> pd.DataFrame:
              and c != "suggestion" and not c.startswith("_")]
     out_cols = list(_IDENTITY) + list(_MEMBER) + list(_RESULT) + extra
     if not len(res):
-        return pd.DataFrame({c: pd.Series(dtype=object) for c in out_cols})
+        return pd.DataFrame({c: pd.Series(dtype=object) for c in out_cols + ["warnings"]})
     df = res.loc[:, [c for c in (*_IDENTITY, *_RESULT, *extra) if c in res.columns]].copy()
     for c in ("model", "global_id"):
         df[c] = df[c].astype(object)
@@ -70,7 +71,17 @@ def results_frame(run: Any) -> pd.DataFrame:
         df["suggestion"] = [s.get("designation") if isinstance(s, dict) else None for s in sugg]
         df["suggestion_ratio"] = [s.get("ratio") if isinstance(s, dict) else math.nan for s in sugg]
         out_cols += ["suggestion", "suggestion_ratio"]
+    df["warnings"] = _member_warning_texts(run, df)
+    out_cols.append("warnings")
     return df.loc[:, out_cols]   # None and NaN alike are written as empty cells
+
+
+def _member_warning_texts(run: Any, df: pd.DataFrame) -> list[str]:
+    """The warnings of each row's member, joined with " | " (empty where it has none)."""
+    joined = {(m.path, gid): " | ".join(ws) for m in run.models for gid, ws in m.member_warnings.items()}
+    if not joined:
+        return [""] * len(df)
+    return [joined.get(key, "") for key in zip(df["model"].tolist(), df["global_id"].tolist(), strict=True)]
 
 
 def write_csv(run: Any, path: str | Path) -> None:

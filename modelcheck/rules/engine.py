@@ -27,7 +27,7 @@ from modelcheck.errors import RuleSetError
 from modelcheck.rules.expr import Cond, Expression, ExpressionError, Text, Value, parse_expression
 from modelcheck.rules.names import MEMBER_QUANTITIES, TEXT_NAMES
 from modelcheck.rules.ruleset import Check, RuleSet, Scope
-from modelcheck.table import RESULT_COLUMNS, STATUS_RANK, frame_of
+from modelcheck.table import REJECTED, RESULT_COLUMNS, SECTION_VALUE_COLUMNS, STATUS_RANK, frame_of
 from modelcheck.threads import thread_tensile_area
 from modelcheck.units import Q_, ureg
 
@@ -50,6 +50,23 @@ class MemberData:
         self.n = len(members)
         self._numbers: dict[str, np.ndarray] = {}
         self._texts: dict[str, np.ndarray] = {}
+        self._rejected: dict[str, np.ndarray] = {}
+
+    def rejected(self, column: str) -> np.ndarray:
+        """Per member, why the model's value for ``column`` was not used (object: str, or None
+        where the model gave none or it was used): the member table's ``rejected`` pairs of that
+        column, of the section for a section value, or of the whole member ("*")."""
+        if column not in self._rejected:
+            keys = {column, "*"} | ({"section"} if column in SECTION_VALUE_COLUMNS else set())
+            out = np.full(self.n, None, dtype=object)
+            if REJECTED in self.members.columns:
+                pairs = self.members[REJECTED].to_numpy(dtype=object)
+                for i in np.flatnonzero([bool(p) for p in pairs.tolist()]).tolist():
+                    reasons = [why for col, why in pairs[i] if col in keys]
+                    if reasons:
+                        out[i] = "; ".join(dict.fromkeys(reasons))
+            self._rejected[column] = out
+        return self._rejected[column]
 
     def text(self, column: str) -> np.ndarray:
         if column not in self._texts:
@@ -293,10 +310,15 @@ def _missing_lists(check: Check, ruleset: RuleSet, data: MemberData, member: np.
     texts: dict[Any, str] = {}   # one text per distinct (input, load case, shape, diameter)
     shape, d = data.text("shape"), data.number("d")
     for name in candidates:
+        column = MEMBER_QUANTITIES[name].column
+        why = data.rejected(column) if column is not None else None
         for j in np.flatnonzero(needed[name]).tolist():
             m = int(member[j])
             if name == "P" and note is not None and note[j] is not None:
                 lists[j].append(note[j])   # the force row says why it has no value
+                continue
+            if why is not None and why[m] is not None:   # the model gave a value the reader did not use
+                lists[j].append(f"{name}: {why[m]}")
                 continue
             key = (name, case[j] if name == "P" else None) if name != "As" else (name, shape[m], d[m])
             text = texts.get(key)
