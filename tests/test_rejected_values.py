@@ -1,0 +1,227 @@
+"""A value the model gives but the reader does not use is reported as such: the missing input says
+what was found, where, and why it was not used (never "no modulus ... in the material properties"
+when the properties hold one), and each member's warnings reach every report of `check`.
+
+Plausible ranges are the library's screening bounds (modelcheck/rulesets/materials.toml, common
+practice): steel E 150–230 GPa.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from html.parser import HTMLParser
+from pathlib import Path
+
+import jsonschema
+import pandas as pd
+import pytest
+
+from modelcheck.cli import main
+from modelcheck.ifc.author import ModelBuilder
+from modelcheck.pipeline import member_warnings, merge_member_warnings
+from tests.conftest import REPO
+
+FORCE = "MC_MemberForces"
+GENERIC_E = "E: no modulus of elasticity in the material properties or the material library"
+
+
+def _kn(kn: float) -> dict[str, dict[str, tuple[str, float]]]:
+    return {FORCE: {"AxialForce": ("IfcForceMeasure", kn * 1000.0)}}   # the model's force unit is N
+
+
+def _check_json(capsys, tmp_path: Path, mb: ModelBuilder, rules: str = "steel-asd-us") -> dict:
+    model, out = tmp_path / "m.ifc", tmp_path / "r.json"
+    mb.write(str(model))
+    code = main(["check", str(model), "--no-config", "--jobs", "1", "--rules", rules, "--format", "json",
+                 "--output", str(out)])
+    capsys.readouterr()
+    assert code in (0, 1)
+    return json.loads(out.read_text(encoding="utf-8"))
+
+
+def _missing_of(doc: dict, tag: str, check: str) -> list[str]:
+    rows = [r for r in doc["results"] if r["tag"] == tag and r["check"] == check]
+    assert rows, (tag, check)
+    assert {r["status"] for r in rows} == {"unchecked"}
+    return rows[0]["missing"]
+
+
+def _rod(mb: ModelBuilder, r: float = 10.0):
+    return mb.f.createIfcCircleProfileDef("AREA", "RD20", None, r)
+
+
+def test_an_implausible_modulus_is_named_with_its_value_source_and_range(capsys, tmp_path):
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    # 210 written where the file's modulus unit is N/mm²: the GPa number slipped in (210 MPa)
+    steel = mb.material("S355 slip", category="steel", E=210.0, Fy=355.0, Fu=490.0)
+    mb.member(name="rod", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
+    missing = _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation")
+    assert missing == ["E: 210 N·mm^-2 in Pset_MaterialMechanical.YoungModulus is outside the plausible range "
+                       "for steel (150–230 GPa); not used"]
+
+
+def test_an_implausible_modulus_in_a_us_file_is_quoted_as_the_file_writes_it(capsys, tmp_path):
+    mb = ModelBuilder(schema="IFC2X3", units="inch-kip")
+    # 29,000,000 in a ksi file: the psi value (29,000 ksi, AISC 360-16 Symbols, from memory) slipped in
+    steel = mb.material("Steel", category="steel", E=29.0e6, Fy=36.0, Fu=58.0)
+    mb.member(name="rod", tag="R1", profile=_rod(mb, 0.375), material=steel, length=120.0,
+              psets={FORCE: {"AxialForce": ("IfcForceMeasure", 5.0)}})
+    (text,) = _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation")
+    assert text.startswith("E: 29000000 KIP·INCH^-2 in IfcMechanicalSteelMaterialProperties #")
+    # IFC2X3 materials carry no category: the "unknown" bounds, 40–250 GPa (materials.toml, common practice)
+    assert text.endswith(".YoungModulus is outside the plausible range for a material of unknown category "
+                         "(40–250 GPa); not used")
+
+
+def test_a_modulus_without_a_unit_says_so(capsys, tmp_path):
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    assignment = mb.project.UnitsInContext   # the file states no unit for a modulus of elasticity
+    assignment.Units = [u for u in assignment.Units if u.UnitType != "MODULUSOFELASTICITYUNIT"]
+    steel = mb.material("House steel 7", category="steel", E=210000.0, Fy=355.0, Fu=490.0)   # no library grade
+    mb.member(name="rod", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
+    (text,) = _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation")
+    assert text.startswith("E: 210000 in Pset_MaterialMechanical.YoungModulus has no unit (")
+    assert "MODULUSOFELASTICITYUNIT" in text and text.endswith("; not used")
+
+
+def test_a_modulus_the_model_does_not_give_keeps_the_plain_reason(capsys, tmp_path):
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    steel = mb.material("House steel 7", category="steel", Fy=355.0, Fu=490.0)   # no E, no library grade
+    mb.member(name="rod", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
+    assert _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation") == [GENERIC_E]
+
+
+def test_an_implausible_section_is_named_for_each_section_value(capsys, tmp_path):
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    plate = mb.f.createIfcRectangleProfileDef("AREA", "PL2500x10", None, 2500.0, 10.0)   # 2.5 m wide
+    mb.member(name="plate", tag="P1", profile=plate, material=steel, length=2000.0, psets=_kn(20.0))
+    doc = _check_json(capsys, tmp_path, mb)
+    (text,) = _missing_of(doc, "P1", "tension-yield")
+    assert text.startswith("A: section from IfcRectangleProfileDef #")
+    assert "not plausible for an axial member (over 2 m); not used" in text
+    (text,) = _missing_of(doc, "P1", "slenderness-tension")   # L/r: the radius of gyration is the section's too
+    assert text.startswith("r: section from IfcRectangleProfileDef #") and text.endswith("; not used")
+
+
+def test_an_implausible_length_is_named(capsys, tmp_path):
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    typ = mb.member_type(name="Rod type", profile=_rod(mb), material=steel)
+    # the only length is a quantity of 500 m: no rod of these kinds is that long
+    mb.member(name="rod", tag="R1", member_type=typ, length=None, body=None, axis=False, psets=_kn(20.0),
+              qto={"Length": 500_000.0})
+    (text,) = _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation")
+    assert text == ("L: 500 m from Qto_MemberBaseQuantities.Length [mm] is not plausible for a member "
+                    "(not over 0 m and up to 200 m); not used")
+
+
+# --------------------------------------------------------------------- member warnings in every report
+def _warned_model() -> ModelBuilder:
+    """R1 fails tension (100 kN on πr² = 314.16 mm², r = 10 mm: 318 MPa against 355/1.67 = 213 MPa,
+    AISC 360-16 D2(a) ASD) and its area quantity disagrees with the profile by +32 %; R2's modulus
+    is implausible (unchecked elongation); R3 has no warning."""
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    slip = mb.material("S355 slip", category="steel", E=210.0, Fy=355.0, Fu=490.0)
+    mb.member(name="rod one", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(100.0),
+              qto={"CrossSectionArea": 415.0})
+    mb.member(name="rod two", tag="R2", profile=_rod(mb), material=slip, length=2000.0, psets=_kn(20.0))
+    mb.member(name="rod three", tag="R3", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
+    return mb
+
+
+class _Rows(HTMLParser):
+    """The text of each table row of an HTML document, cells joined by ' | '."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.rows: list[str] = []
+        self._row: list[str] | None = None
+
+    def handle_starttag(self, tag, attrs):
+        if tag == "tr":
+            self._row = []
+        elif tag in ("td", "th") and self._row is not None:
+            self._row.append("")
+
+    def handle_endtag(self, tag):
+        if tag == "tr" and self._row is not None:
+            self.rows.append(" | ".join(self._row))
+            self._row = None
+
+    def handle_data(self, data):
+        if self._row:
+            self._row[-1] += data
+
+
+@pytest.fixture(scope="module")
+def warned_run(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("warned")
+    model = folder / "warned.ifc"
+    _warned_model().write(str(model))
+    out = folder / "reports"
+    out.mkdir()
+    import contextlib
+    import io
+
+    stdout = io.StringIO()
+    with contextlib.redirect_stdout(stdout):
+        code = main(["check", str(model), "--no-config", "--jobs", "1", "--format", "console,json,csv,html",
+                     "--output", str(out)])
+    assert code == 1   # R1 fails
+    doc = json.loads((out / "modelcheck-report.json").read_text(encoding="utf-8"))
+    gid = {r["tag"]: r["global_id"] for r in doc["results"]}
+    return {"console": stdout.getvalue(), "doc": doc, "gid": gid, "out": out}
+
+
+def test_member_warnings_in_the_json_report(warned_run):
+    doc, gid = warned_run["doc"], warned_run["gid"]
+    schema = json.loads((REPO / "modelcheck" / "schemas" / "check.schema.json").read_text())
+    jsonschema.validate(doc, schema)
+    mw = doc["models"][0]["member_warnings"]
+    assert set(mw) == {gid["R1"], gid["R2"]}   # R3 has none: left out
+    (area,) = mw[gid["R1"]]
+    # +32.1 % = 415 / (π · 10²) − 1 (geometry)
+    assert area.startswith("inconsistent area:") and "415 mm²" in area and "+32.1%" in area
+    assert math.isclose(415 / (math.pi * 100) - 1, 0.321, abs_tol=5e-4)
+    assert mw[gid["R2"]] == ["material 'S355 slip', E: 210 N·mm^-2 in Pset_MaterialMechanical.YoungModulus is "
+                             "outside the plausible range for steel (150–230 GPa); not used"]
+
+
+def test_member_warnings_in_the_csv_report(warned_run):
+    df = pd.read_csv(warned_run["out"] / "modelcheck-report.csv", keep_default_na=False)
+    by_tag = df.groupby("tag")["warnings"].agg(set)
+    assert len(by_tag["R1"]) == 1 and next(iter(by_tag["R1"])).startswith("inconsistent area:")
+    assert all("plausible range" in w for w in by_tag["R2"])
+    assert by_tag["R3"] == {""}
+
+
+def test_member_warnings_listed_in_the_html_tables(warned_run):
+    parser = _Rows()
+    parser.feed((warned_run["out"] / "modelcheck-report.html").read_text(encoding="utf-8"))
+    gid = warned_run["gid"]
+    failing = [r for r in parser.rows if gid["R1"] in r and "tension-yield" in r]
+    assert failing and all("inconsistent area:" in r and "+32.1%" in r for r in failing)
+    unchecked = [r for r in parser.rows if gid["R2"] in r and "elongation" in r]
+    assert unchecked and "outside the plausible range for steel (150–230 GPa); not used" in unchecked[0]
+    assert any(h.startswith("GlobalId") and "Member warnings" in h for h in parser.rows)
+
+
+def test_member_warnings_counted_on_the_console_with_the_first(warned_run):
+    text, gid = warned_run["console"], warned_run["gid"]
+    assert "2 member warnings on 2 members:" in text
+    assert f"{gid['R1']}: inconsistent area:" in text
+    assert f"{gid['R2']}: material 'S355 slip', E: 210" in text
+
+
+def test_member_warnings_of_parts_merge_to_those_of_the_whole():
+    # a model shared out among processes: each part's warnings, merged, are the whole model's
+    members = pd.DataFrame({"global_id": ["B", "A", "C", "A"],
+                            "warnings": [["w1"], [], ["w2", "w3"], ["w4", "w2"]]})
+    whole = member_warnings(members)
+    assert whole == {"A": ["w4", "w2"], "B": ["w1"], "C": ["w2", "w3"]}
+    assert list(whole) == ["A", "B", "C"]   # by GlobalId, whatever the order of the rows
+    parts = [member_warnings(members.iloc[:2]), member_warnings(members.iloc[2:])]
+    assert merge_member_warnings(parts) == whole
