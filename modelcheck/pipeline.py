@@ -18,7 +18,7 @@ import numpy as np
 import pandas as pd
 
 from modelcheck.errors import ModelcheckError, UsageError
-from modelcheck.table import concat_rows, empty_forces
+from modelcheck.table import REJECTED, concat_rows, empty_forces
 
 IFC_SUFFIXES = (".ifc", ".ifczip")
 
@@ -160,12 +160,15 @@ def attach_forces(data: ModelData, idx: Any, opts: ForceOptions, *, analysis: An
 
     messages: list[str] = []
     prop = ana = None
+    from modelcheck.loads.messages import MessageLog
     from modelcheck.timing import stage
 
+    log = prop_log if prop_log is not None else MessageLog(idx.path)
     if opts.property is not None:
         with stage("forces from property"):
-            prop, msgs = forces_from_property(idx, data.members, opts.property[0], opts.property[1], log=prop_log)
-        messages += list(msgs)
+            prop, _ = forces_from_property(idx, data.members, opts.property[0], opts.property[1], log=log)
+        if prop_log is None:   # a part's log is merged with the others' and read by the caller
+            messages += log.messages()
     if analysis is not None:
         ana, msgs = analysis
         messages += list(msgs)
@@ -176,6 +179,7 @@ def attach_forces(data: ModelData, idx: Any, opts: ForceOptions, *, analysis: An
         forces, report = join_forces(data.members, list(opts.tables), prop, ana, messages=messages,
                                      shared_tags=shared_tags)
     data.forces = forces
+    _reject_forces(data.members, forces, log)
     unmatched_here = {u.source for u in report.unmatched}
     data.matched_rows = {s for t in opts.tables for s in t["source"] if s not in unmatched_here}
     data.force_report = report.to_dict(unmatched=False)  # unmatched: judged over all models
@@ -183,6 +187,24 @@ def attach_forces(data: ModelData, idx: Any, opts: ForceOptions, *, analysis: An
     data.no_force_message = no_force_line(report)
     if prop_log is not None:
         data.report = report
+
+
+def _reject_forces(members: pd.DataFrame, forces: pd.DataFrame, log: Any) -> None:
+    """A member left with no force although its model property gives one (no unit, not a
+    number): the property route's reason goes into its ``rejected`` pairs (as "P"), so that a
+    check needing P says why rather than that the model has none."""
+    idents = log.idents()
+    if not idents or REJECTED not in members.columns:
+        return
+    with_force = set(forces["global_id"].tolist()) if len(forces) else set()
+    gids = members["global_id"].to_numpy(dtype=object)
+    rows = [i for i, g in enumerate(gids.tolist()) if g in idents and g not in with_force]
+    if not rows:
+        return
+    column = members[REJECTED].to_numpy(dtype=object).copy()
+    for i in rows:
+        column[i] = tuple(column[i] or ()) + tuple(("P", text) for text in log.texts_of(str(gids[i])))
+    members[REJECTED] = pd.Series(column, index=members.index, dtype=object)
 
 
 def join_lines(report: Any) -> list[str]:

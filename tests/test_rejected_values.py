@@ -225,3 +225,17 @@ def test_member_warnings_of_parts_merge_to_those_of_the_whole():
     assert list(whole) == ["A", "B", "C"]   # by GlobalId, whatever the order of the rows
     parts = [member_warnings(members.iloc[:2]), member_warnings(members.iloc[2:])]
     assert merge_member_warnings(parts) == whole
+
+
+def test_a_force_property_without_a_unit_is_named_where_the_force_is_missing(capsys, tmp_path):
+    mb = ModelBuilder(schema="IFC4", units="mm", force_unit=False)   # the file assigns no FORCEUNIT
+    steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    mb.member(name="rod", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
+    mb.member(name="rod without force", tag="R2", profile=_rod(mb), material=steel, length=2000.0)
+    doc = _check_json(capsys, tmp_path, mb)
+    (text,) = _missing_of(doc, "R1", "tension-yield")
+    assert text.startswith("P: MC_MemberForces.AxialForce") and "no FORCEUNIT" in text
+    assert text.endswith("no force taken (the unit is never assumed)")
+    # a member whose model gives no force keeps the plain reason
+    assert _missing_of(doc, "R2", "tension-yield") == [
+        "P: no axial force from load tables, model properties or IFC analysis results"]

@@ -34,6 +34,14 @@ class MessageLog:
             self._nouns.setdefault(text, other._nouns[text])
             self._ids.setdefault(text, []).extend(ids)
 
+    def texts_of(self, ident: str) -> list[str]:
+        """The texts logged about ``ident``, in the order first logged."""
+        return [text for text, ids in self._ids.items() if ident in ids]
+
+    def idents(self) -> set[str]:
+        """Every id something was logged about."""
+        return {i for ids in self._ids.values() for i in ids}
+
     def messages(self) -> list[str]:
         out = []
         for text, ids in self._ids.items():

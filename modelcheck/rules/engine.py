@@ -310,14 +310,14 @@ def _missing_lists(check: Check, ruleset: RuleSet, data: MemberData, member: np.
     texts: dict[Any, str] = {}   # one text per distinct (input, load case, shape, diameter)
     shape, d = data.text("shape"), data.number("d")
     for name in candidates:
-        column = MEMBER_QUANTITIES[name].column
-        why = data.rejected(column) if column is not None else None
+        why = data.rejected(MEMBER_QUANTITIES[name].column or name)
         for j in np.flatnonzero(needed[name]).tolist():
             m = int(member[j])
             if name == "P" and note is not None and note[j] is not None:
                 lists[j].append(note[j])   # the force row says why it has no value
                 continue
-            if why is not None and why[m] is not None:   # the model gave a value the reader did not use
+            # the model gave a value the reader did not use (for P: the member has no force at all)
+            if why[m] is not None and not (name == "P" and case[j] is not None):
                 lists[j].append(f"{name}: {why[m]}")
                 continue
             key = (name, case[j] if name == "P" else None) if name != "As" else (name, shape[m], d[m])
