@@ -125,20 +125,22 @@ def text_column(values: Iterable[Any] | np.ndarray | pd.Series, index: Any = Non
 def frame_of(columns: dict[str, pd.Series | np.ndarray | Sequence[Any]]) -> pd.DataFrame:
     """A DataFrame of equally long columns (index 0..n-1), each kept as its own block.
 
-    A column that is not numeric (or boolean) is kept as objects, texts with None for missing
-    (``text_column``). ``pd.DataFrame(dict)`` would also consolidate the columns of one dtype into
-    a 2-D block: a copy of every object column, which for a large results table costs more than
-    making the columns."""
+    Numbers (and booleans) stay numbers. An object array or Series is kept as it is, as objects
+    (the caller's texts: ``str`` or None); any other column (a list, a Series of pandas' string
+    dtype) goes through ``text_column``. Nothing is left to pandas' inference, which would turn
+    texts into its string dtype and a missing text into NaN. ``pd.DataFrame(dict)`` would also
+    consolidate the columns of one dtype into a 2-D block: a copy of every object column, which
+    for a large results table costs more than making the columns."""
     if not columns:
         return pd.DataFrame()
     series = []
     for values in columns.values():
-        if isinstance(values, pd.Series) and values.dtype.kind in "fiub":
+        if isinstance(values, pd.Series) and (values.dtype.kind in "fiub" or values.dtype == object):
             series.append(values.reset_index(drop=True))
         elif isinstance(values, np.ndarray) and values.dtype.kind in "fiub":
             series.append(pd.Series(values))
-        elif isinstance(values, pd.Series) and values.dtype == object:
-            series.append(values.reset_index(drop=True))   # kept as it is: the caller's objects
+        elif isinstance(values, np.ndarray) and values.dtype == object:
+            series.append(pd.Series(values, dtype=object))
         else:
             series.append(text_column(values).reset_index(drop=True))
     return pd.concat(series, axis=1, keys=list(columns))
