@@ -114,19 +114,20 @@ def test_an_implausible_length_is_named(capsys, tmp_path):
               qto={"Length": 500_000.0})
     (text,) = _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation")
     assert text == ("L: 500 m from Qto_MemberBaseQuantities.Length [mm] is not plausible for a member "
-                    "(not over 0 m and up to 200 m); not used")
+                    "(outside 1 mm – 200 m); not used")
 
 
 # --------------------------------------------------------------------- member warnings in every report
 def _warned_model() -> ModelBuilder:
     """R1 fails tension (100 kN on πr² = 314.16 mm², r = 10 mm: 318 MPa against 355/1.67 = 213 MPa,
-    AISC 360-16 D2(a) ASD) and its area quantity disagrees with the profile by +32 %; R2's modulus
-    is implausible (unchecked elongation); R3 has no warning."""
+    AISC 360-16 D2(a) ASD) and its area quantity disagrees with the profile by −32 % (smaller,
+    so the profile's outline allows it); R2's modulus is implausible (unchecked elongation); R3
+    has no warning."""
     mb = ModelBuilder(schema="IFC4", units="mm")
     steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
     slip = mb.material("S355 slip", category="steel", E=210.0, Fy=355.0, Fu=490.0)
     mb.member(name="rod one", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(100.0),
-              qto={"CrossSectionArea": 415.0})
+              qto={"CrossSectionArea": 214.0})
     mb.member(name="rod two", tag="R2", profile=_rod(mb), material=slip, length=2000.0, psets=_kn(20.0))
     mb.member(name="rod three", tag="R3", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
     return mb
@@ -183,9 +184,9 @@ def test_member_warnings_in_the_json_report(warned_run):
     mw = doc["models"][0]["member_warnings"]
     assert set(mw) == {gid["R1"], gid["R2"]}   # R3 has none: left out
     (area,) = mw[gid["R1"]]
-    # +32.1 % = 415 / (π · 10²) − 1 (geometry)
-    assert area.startswith("inconsistent area:") and "415 mm²" in area and "+32.1%" in area
-    assert math.isclose(415 / (math.pi * 100) - 1, 0.321, abs_tol=5e-4)
+    # −31.9 % = 214 / (π · 10²) − 1 (geometry)
+    assert area.startswith("inconsistent area:") and "214 mm²" in area and "-31.9%" in area
+    assert math.isclose(214 / (math.pi * 100) - 1, -0.319, abs_tol=5e-4)
     assert mw[gid["R2"]] == ["material 'S355 slip', E: 210 N·mm^-2 in Pset_MaterialMechanical.YoungModulus is "
                              "outside the plausible range for steel (150–230 GPa); not used"]
 
@@ -203,7 +204,7 @@ def test_member_warnings_listed_in_the_html_tables(warned_run):
     parser.feed((warned_run["out"] / "modelcheck-report.html").read_text(encoding="utf-8"))
     gid = warned_run["gid"]
     failing = [r for r in parser.rows if gid["R1"] in r and "tension-yield" in r]
-    assert failing and all("inconsistent area:" in r and "+32.1%" in r for r in failing)
+    assert failing and all("inconsistent area:" in r and "-31.9%" in r for r in failing)
     unchecked = [r for r in parser.rows if gid["R2"] in r and "elongation" in r]
     assert unchecked and "outside the plausible range for steel (150–230 GPa); not used" in unchecked[0]
     assert any(h.startswith("GlobalId") and "Member warnings" in h for h in parser.rows)

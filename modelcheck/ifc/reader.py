@@ -379,7 +379,7 @@ class _Reader:
                 v = _material_value(self.idx, prop)
             except MissingUnit as exc:
                 if q != "density":   # screened only: nothing is missing without it
-                    rejected.setdefault(q, f"{_raw_text(prop)} in {where} {_unit_problem(exc)} and the value "
+                    rejected.setdefault(q, f"{_number_as_written(_raw_text(prop))} in {where} {_unit_problem(exc)} and the value "
                                            "carries no unit of its own; not used")
                 continue
             if v is not None:
@@ -679,7 +679,7 @@ class _Reader:
                 v = property_si(self.idx, prop)
             except MissingUnit as exc:
                 warnings.append(f"{pset_name}.{prop_name} not used: {exc}")
-                rejected.append(("net_area", f"{pset_name}.{prop_name} ({where}) has no unit ({exc}); not used"))
+                rejected.append(("net_area", f"{pset_name}.{prop_name} ({where}) {_unit_problem(exc)}; not used"))
                 v = None
             else:
                 if v is None or not (math.isfinite(v.value) and v.value > 0):
