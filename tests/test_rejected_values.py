@@ -57,8 +57,9 @@ def test_an_implausible_modulus_is_named_with_its_value_source_and_range(capsys,
     steel = mb.material("S355 slip", category="steel", E=210.0, Fy=355.0, Fu=490.0)
     mb.member(name="rod", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
     missing = _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation")
-    assert missing == ["E: 210 N·mm^-2 in Pset_MaterialMechanical.YoungModulus is outside the plausible range "
-                       "for steel (150–230 GPa); not used"]
+    # the value as the file writes it, in its own unit, then in the range's terms
+    assert missing == ["E: 210 N·mm^-2 (= 210 MPa) in Pset_MaterialMechanical.YoungModulus is outside the "
+                       "plausible range for steel (150–230 GPa); not used"]
 
 
 def test_an_implausible_modulus_in_a_us_file_is_quoted_as_the_file_writes_it(capsys, tmp_path):
@@ -68,10 +69,10 @@ def test_an_implausible_modulus_in_a_us_file_is_quoted_as_the_file_writes_it(cap
     mb.member(name="rod", tag="R1", profile=_rod(mb, 0.375), material=steel, length=120.0,
               psets={FORCE: {"AxialForce": ("IfcForceMeasure", 5.0)}})
     (text,) = _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation")
-    assert text.startswith("E: 29000000 KIP·INCH^-2 in IfcMechanicalSteelMaterialProperties #")
-    # IFC2X3 materials carry no category: the "unknown" bounds, 40–250 GPa (materials.toml, common practice)
-    assert text.endswith(".YoungModulus is outside the plausible range for a material of unknown category "
-                         "(40–250 GPa); not used")
+    # 29,000,000 ksi = 1.99948e8 MPa (pint: 1 ksi = 6.894757 MPa)
+    assert text.startswith("E: 29000000 KIP·INCH^-2 (= 1.99948e+08 MPa) in IfcMechanicalSteelMaterialProperties #")
+    # IFC2X3 materials carry no category: the name "Steel" says steel (rulesets/material-names.toml)
+    assert text.endswith(".YoungModulus is outside the plausible range for steel (150–230 GPa); not used")
 
 
 def test_a_modulus_without_a_unit_says_so(capsys, tmp_path):
@@ -187,8 +188,8 @@ def test_member_warnings_in_the_json_report(warned_run):
     # −31.9 % = 214 / (π · 10²) − 1 (geometry)
     assert area.startswith("inconsistent area:") and "214 mm²" in area and "-31.9%" in area
     assert math.isclose(214 / (math.pi * 100) - 1, -0.319, abs_tol=5e-4)
-    assert mw[gid["R2"]] == ["material 'S355 slip', E: 210 N·mm^-2 in Pset_MaterialMechanical.YoungModulus is "
-                             "outside the plausible range for steel (150–230 GPa); not used"]
+    assert mw[gid["R2"]] == ["material 'S355 slip', E: 210 N·mm^-2 (= 210 MPa) in Pset_MaterialMechanical.YoungModulus "
+                             "is outside the plausible range for steel (150–230 GPa); not used"]
 
 
 def test_member_warnings_in_the_csv_report(warned_run):
