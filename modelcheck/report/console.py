@@ -168,11 +168,10 @@ def member_warning_block(model: Any, members: pd.DataFrame | None) -> list[Any]:
         rows = members[(members["model"] == model.path) & members["global_id"].isin(gids)]
         for gid, name, tag in zip(rows["global_id"], rows["name"], rows["tag"], strict=True):
             names.setdefault(str(gid), member_label(name, tag, gid))
-    head = (f"{n} on {k} member{'s' if k != 1 else ''}"
+    head = (f"  {n} member warning{'s' if n != 1 else ''} on {k} member{'s' if k != 1 else ''}"
             + (f", the first {MAX_MEMBER_WARNINGS} (every one in --format json, csv or html):"
                if n > MAX_MEMBER_WARNINGS else ":"))
-    items = [("  member warnings:", head)] + [(f"    {names.get(gid, gid)}:", w) for gid, w in shown]
-    return [_warning_grid(items)]
+    return [Text(head, style="yellow"), _warning_grid([(f"    {names.get(gid, gid)}:", w) for gid, w in shown])]
 
 
 def model_warnings(model: Any, details: bool = False) -> list[str]:
