@@ -339,6 +339,35 @@ def test_a_baseline_that_is_not_a_check_report_is_one_line(capsys, tmp_path, cas
     assert out.stdout == ""
 
 
+@pytest.mark.parametrize(("token", "where"), [
+    ("NaN", "NaN is not a JSON number"),
+    ("Infinity", "Infinity is not a JSON number"),
+    ("-Infinity", "-Infinity is not a JSON number"),
+    ("duplicate", "the name 'results' is given twice"),
+])
+def test_a_baseline_python_reads_but_json_forbids_is_one_line(capsys, tmp_path, token, where):
+    # RFC 8259 section 6: NaN and Infinity are no JSON numbers; its section 4: names within an
+    # object should be unique (a reader keeping the last would silently drop the earlier results)
+    model, _ = _model(tmp_path)
+    report = tmp_path / "base.json"
+    run_inprocess(capsys, ["check", str(model), "--format", "json", "--output", str(report), "--no-config",
+                           "--jobs", "1"], [model])
+    doc = json.loads(report.read_text(encoding="utf-8"))
+    assert doc["results"]
+    doc["results"][0]["ratio"] = "TOKEN"
+    text = json.dumps(doc)
+    if token == "duplicate":
+        text = text[:-1] + ', "results": []}'
+    else:
+        text = text.replace('"TOKEN"', token, 1)
+    base = tmp_path / "prev.json"
+    base.write_text(text, encoding="utf-8")
+    out = run_inprocess(capsys, ["check", str(model), "--baseline", str(base), "--no-config", "--jobs", "1",
+                                 "--format", "json"], [model, base])
+    _one_line(out, str(base), where)
+    assert out.stdout == ""
+
+
 # ------------------------------------------------------------------ 4. rule files
 def test_message_formats_and_the_number_of_checks_are_bounded(capsys, tmp_path):
     model, _ = _model(tmp_path)

@@ -187,10 +187,12 @@ def load_baseline(path: str | os.PathLike[str]) -> dict[str, Any]:
         raise UsageError(f"baseline is not UTF-8 text ({exc.reason}); give a JSON report of 'modelcheck check'",
                          path=name) from None
     try:
-        doc = json.loads(text)
+        doc = json.loads(text, parse_constant=_not_json_constant, object_pairs_hook=_unique_keys)
     except json.JSONDecodeError as exc:
         raise UsageError(f"not valid JSON: {exc.msg} (column {exc.colno})", path=name,
                          where=f"line {exc.lineno}") from None
+    except _NotStrictJson as exc:
+        raise UsageError(f"not valid JSON: {exc}", path=name) from None
     except RecursionError:
         raise UsageError("not a JSON report of 'modelcheck check': nested far deeper than a report is",
                          path=name) from None
@@ -209,6 +211,30 @@ def load_baseline(path: str | os.PathLike[str]) -> dict[str, Any]:
             raise UsageError(f"unknown status {r['status']!r}", path=name, where=f"results[{i}]")
     _validate_report(doc, name)
     return doc
+
+
+class _NotStrictJson(ValueError):
+    """What Python's JSON reader accepts but JSON (RFC 8259) does not, or leaves ambiguous."""
+
+
+def _not_json_constant(token: str) -> Any:
+    """``NaN``, ``Infinity`` and ``-Infinity`` are no JSON numbers (RFC 8259, section 6): a report
+    never holds them (a missing number is null), and a NaN taken in would reach every output."""
+    raise _NotStrictJson(f"{token} is not a JSON number (a missing number is null)")
+
+
+def _unique_keys(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
+    """An object whose names are unique: a name given twice would be read as its last value (an
+    earlier list of results silently replaced), so it is refused."""
+    obj = dict(pairs)
+    if len(obj) != len(pairs):
+        from collections import Counter
+
+        from modelcheck.report.text import shown
+
+        twice = next(k for k, n in Counter(k for k, _ in pairs).items() if n > 1)
+        raise _NotStrictJson(f"the name {shown(twice, 80)!r} is given twice in one object")
+    return obj
 
 
 def _shape(value: Any) -> Any:
