@@ -226,16 +226,24 @@ def _read_cached(name: str, category: str, path: str | None, _stamp: tuple[int, 
                 break
     cat = cat or UNKNOWN
     grade = grade_pattern = fy_text = fy_pattern = None
+    fy = None
+    where = path or str(default_names_path())
     for p, m in hits:
         if not p.applies(cat):
             continue
         if grade is None and p.grade is not None:
             grade, grade_pattern = _fill(p.grade, m), p.name
-        if fy_text is None and p.Fy is not None:
-            fy_text, fy_pattern = _fill(p.Fy, m), p.name
-    fy = None
-    if fy_text is not None:
-        number, _, unit = fy_text.partition(" ")
-        fy_text = f"{number} {_unit_text(unit)}"
-        fy = _quantity(fy_text, path or str(default_names_path()), f"pattern {fy_pattern!r}", "Fy")
+        if fy is None and p.Fy is not None:
+            # every place the pattern matches must state one strength: "345 MPa / 450 MPa" names
+            # two, and which is the yield strength is a guess; the pattern then reads none
+            stated = {_fy_text(p.Fy, each) for each in p.regex.finditer(name)}
+            values = {_quantity(t, where, f"pattern {p.name!r}", "Fy") for t in stated}
+            if len(values) == 1:
+                fy_text, fy_pattern, fy = _fy_text(p.Fy, m), p.name, values.pop()
     return NameReading(cat, cat_pattern, grade, grade_pattern, fy, fy_pattern, fy_text)
+
+
+def _fy_text(template: str, m: re.Match[str]) -> str:
+    """The strength a match of an Fy pattern states, as pint reads it: "345 MPa", "50 ksi"."""
+    number, _, unit = _fill(template, m).partition(" ")
+    return f"{number} {_unit_text(unit)}"

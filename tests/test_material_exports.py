@@ -271,3 +271,20 @@ def test_exclusions_read_the_same_when_the_model_is_shared_out(mixed_ifc2x3: Pat
     b.pop("generated")
     assert a == b
     assert sum(w.startswith("excluded: ") for w in a["models"][0]["warnings"]) == 3
+
+
+def test_an_ultimate_strength_in_the_name_never_makes_a_yield_check_pass(tmp_model: Any) -> None:
+    """IFC2X3, a material named 'Steel Fu 490 MPa' and no property set: the name states the
+    ultimate strength, not Fy, so the yield check has no Fy and the member is unchecked. Read as Fy
+    490 MPa, 20 kN on a 20 mm bar (63.7 MPa = 20 kN / (π·10² mm²), hand value) would pass."""
+    mb = ModelBuilder(schema="IFC2X3", units="mm")
+    mat = mb.f.createIfcMaterial("Steel Fu 490 MPa")
+    rod = mb.f.createIfcCircleProfileDef("AREA", "RD20", mb.f.createIfcAxis2Placement2D(
+        mb.f.createIfcCartesianPoint((0.0, 0.0)), None), 10.0)
+    mb.member("IfcMember", name="H1", tag="H1", profile=rod, material=mat, length=2400.0,
+              psets={"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 20000.0)}})
+    res = check_model(str(tmp_model(mb)), "steel-asd-us", ForceOptions()).results
+    yld = res[res["check"] == "tension-yield"]
+    assert len(yld) == 1
+    assert yld["status"].tolist() == ["unchecked"]
+    assert "Fy" in yld["message"].iloc[0]

@@ -137,6 +137,8 @@ def test_every_pattern_of_the_file_is_exercised_by_the_table() -> None:
     ("A572 Gr 65", "65 ksi", "us-grade-number"),                   # ASTM A572 Grade 65: Fy = 65 ksi (from memory)
     ("fy=355MPa steel", "355 MPa", "fy-with-unit"),
     ("Aluminium 160 MPa", "160 MPa", "stress-in-name"),
+    ("Steel fu=490MPa fy=355MPa", "355 MPa", "fy-with-unit"),     # the labelled one, whatever comes first
+    ("Steel 355 MPa (355 MPa)", "355 MPa", "stress-in-name"),     # one strength, stated twice
 ])
 def test_a_strength_in_the_name_is_a_yield_strength(name: str, fy: str, pattern: str) -> None:
     r = read_name(name)
@@ -152,6 +154,25 @@ def test_a_strength_in_the_name_is_a_yield_strength(name: str, fy: str, pattern:
 ])
 def test_no_yield_strength_where_the_name_states_none(name: str) -> None:
     assert read_name(name).Fy is None
+
+
+@pytest.mark.parametrize("name", [
+    "Steel Fu 490 MPa",                # the ultimate strength (fu, Rm, UTS: common practice of naming)
+    "Steel fu: 490 MPa",
+    "Steel FU=490 MPa",
+    "Steel Rm = 490 MPa",
+    "Steel UTS 490 MPa",
+    "Steel tensile strength 490 MPa",
+    "Steel 345 MPa / 450 MPa",         # two strengths: which is the yield strength is a guess
+    "Steel 1,345 MPa",                 # the end of a longer number, not 345 MPa
+    "Steel 1e308 MPa",                 # an exponent's digits, not 308 MPa
+    "Steel 1.5E+308 MPa",
+])
+def test_a_stress_in_the_name_that_is_not_plainly_the_yield_strength_gives_none(name: str) -> None:
+    # taking any of these as Fy would raise the capacity above what the name supports
+    r = read_name(name)
+    assert r.category == "steel"
+    assert (r.Fy, r.Fy_pattern) == (None, None)
 
 
 @pytest.mark.parametrize(("word", "category"), [
