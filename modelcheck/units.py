@@ -189,10 +189,22 @@ def si_unit_quantity(prefix: str | None, name: str) -> pint.Quantity:
     return Q_(factor, unit).to_base_units() if name != "GRAM" else Q_(factor * 1e-3, "kg")
 
 
-def unit_quantity(unit: Any, _depth: int = 0) -> pint.Quantity:
-    """Any IfcNamedUnit / IfcDerivedUnit entity as a pint quantity (its size in SI base units)."""
-    if _depth > 16:
+#: conversion-based and derived units defined through one another, at most (a real model nests
+#: two or three: a kip of pound-forces of newtons)
+MAX_UNIT_NESTING = 16
+
+
+def unit_quantity(unit: Any, _within: tuple[int, ...] = ()) -> pint.Quantity:
+    """Any IfcNamedUnit / IfcDerivedUnit entity as a pint quantity (its size in SI base units).
+
+    A unit defined through itself (directly or through others) and a chain of definitions
+    deeper than ``MAX_UNIT_NESTING`` are each an UnitDefinitionError saying which it is."""
+    if unit.id() in _within:
         raise UnitDefinitionError(f"unit #{unit.id()} refers to itself")
+    if len(_within) >= MAX_UNIT_NESTING:
+        raise UnitDefinitionError(f"unit #{_within[0]} is defined through more than {MAX_UNIT_NESTING} "
+                                  "other units in a row")
+    _within = (*_within, unit.id())
     cls = unit.is_a()
     if cls == "IfcSIUnit":
         return si_unit_quantity(unit.Prefix, unit.Name)
@@ -207,11 +219,11 @@ def unit_quantity(unit: Any, _depth: int = 0) -> pint.Quantity:
                 f"conversion-based unit #{unit.id()} {unit.Name!r} has factor {magnitude!r}, "
                 "not a positive finite number"
             )
-        return magnitude * unit_quantity(mwu.UnitComponent, _depth + 1)
+        return magnitude * unit_quantity(mwu.UnitComponent, _within)
     if cls == "IfcDerivedUnit":
         result = Q_(1.0, "")
         for el in unit.Elements or ():
-            result = result * unit_quantity(el.Unit, _depth + 1) ** int(el.Exponent)
+            result = result * unit_quantity(el.Unit, _within) ** int(el.Exponent)
         return result.to_base_units()
     if cls == "IfcContextDependentUnit":
         raise UnitDefinitionError(

@@ -112,7 +112,24 @@ def _length_cases() -> dict[str, Any]:
         sec = mb.f.createIfcSIUnit(None, "TIMEUNIT", None, "SECOND")
         _replace_unit(mb, "LENGTHUNIT", _conversion(mb, "LENGTHUNIT", 0.0254, sec))
 
+    def cycle(mb: ModelBuilder) -> None:       # a foot of 12 inches, an inch of 1/12 foot: no size at all
+        f = mb.f
+        dims = f.createIfcDimensionalExponents(1, 0, 0, 0, 0, 0, 0)
+        foot = f.createIfcConversionBasedUnit(dims, "LENGTHUNIT", "FOOT", None)
+        inch = f.createIfcConversionBasedUnit(dims, "LENGTHUNIT", "INCH",
+                                              f.createIfcMeasureWithUnit(f.createIfcLengthMeasure(1 / 12), foot))
+        foot.ConversionFactor = f.createIfcMeasureWithUnit(f.createIfcLengthMeasure(12.0), inch)
+        _replace_unit(mb, "LENGTHUNIT", foot)
+
+    def long_chain(mb: ModelBuilder) -> None:  # 2,000 units each of 1 of the one before: not a cycle
+        unit = mb.f.createIfcSIUnit(None, "LENGTHUNIT", "MILLI", "METRE")
+        for i in range(2000):
+            unit = _conversion(mb, "LENGTHUNIT", 1.0, unit)
+            unit.Name = f"U{i}"
+        _replace_unit(mb, "LENGTHUNIT", unit)
+
     return {"two sizes": (two_sizes, "assigned twice"), "a second": (second, "not of the dimension"),
+            "a cycle": (cycle, "refers to itself"), "a long chain": (long_chain, "defined through more than 16"),
             "a degree": (degree, "not of the dimension"), "factor zero": (zero, "not a positive finite"),
             "factor negative": (negative, "not a positive finite"),
             "factor in seconds": (factor_in_seconds, "not of the dimension")}
