@@ -347,3 +347,27 @@ def test_an_analysis_member_along_a_circular_edge(tmp_path, same_sense, quarters
     m = read_members(build_index(str(path))).set_index("name").loc["arch"]
     assert m["length"] == pytest.approx(5.0 * quarters * math.pi / 2, rel=1e-12)   # R·θ (common practice)
     assert m["length_source"].startswith("IfcEdgeCurve #")
+
+
+@pytest.mark.parametrize("turns", [1e6, 1e300])
+def test_a_trim_angle_beyond_any_turn_of_the_conic_is_not_read(tmp_path, turns):
+    """A circle trimmed from 0 to a parameter a million turns on, or 1e300 rad (where the
+    remainder modulo 2π has lost every digit): no real trim winds so far, so neither the axis nor
+    a profile outline built that way is measured; a quarter (π/2) still is (R·θ, common practice)."""
+    mb = ModelBuilder(units="mm")   # PLANEANGLEUNIT: the radian
+    f = mb.f
+    axis_member(mb, "far", quarter_circle(f, True, 0.0, turns * 2 * math.pi + math.pi / 2))
+    axis_member(mb, "quarter", quarter_circle(f, True, 0.0, math.pi / 2))
+    path = tmp_path / "turns.ifc"
+    mb.write(str(path))
+    ms = read_members(build_index(str(path))).set_index("name")
+    assert math.isnan(ms.loc["far", "length"])
+    assert any("beyond ±1,000 turns" in w for w in ms.loc["far", "warnings"]), ms.loc["far", "warnings"]
+    assert ms.loc["quarter", "length"] == pytest.approx(5.0 * math.pi / 2, rel=1e-12)
+    # the same trim in a closed outline: the stadium's left half circle ends that many turns on
+    g = ModelBuilder(units="mm").f
+    outline = stadium(g, "radian", 1.0)
+    left = outline.Segments[3].ParentCurve
+    left.Trim2 = par(g, 3 * math.pi / 2 + turns * 2 * math.pi)
+    with pytest.raises(ValueError, match="beyond ±1,000 turns"):
+        section_of(g.createIfcArbitraryClosedProfileDef("AREA", None, outline))

@@ -43,7 +43,8 @@ from typing import Any, Protocol, TypeVar
 
 from modelcheck.ifc.outline import Arc
 
-__all__ = ["CurveError", "conic_sweep", "curve_length", "edge_curve_length", "line_trims", "orient", "trim_choice"]
+__all__ = ["MAX_TRIM_ANGLE", "CurveError", "conic_sweep", "curve_length", "edge_curve_length", "line_trims", "orient",
+           "trim_angle_problem", "trim_choice"]
 
 _TWO_PI = 2.0 * math.pi
 #: a gap between consecutive segments of a composite curve larger than this share of the
@@ -110,6 +111,20 @@ def conic_sweep(a1: float, a2: float, sense: bool) -> float:
     if abs(sweep) < 1e-12:
         sweep = _TWO_PI if sense else -_TWO_PI
     return sweep
+
+
+#: a trim angle of a conic beyond this many radians (1,000 turns) is no position on it: its
+#: remainder modulo a turn has lost the precision of a real trim (a slip or a hostile value)
+MAX_TRIM_ANGLE = 1000.0 * _TWO_PI
+
+
+def trim_angle_problem(angle: float) -> str | None:
+    """Why an angle (radians) cannot trim a circle or an ellipse, or None when it can."""
+    if not math.isfinite(angle):
+        return f"a trim angle of {angle!r} rad is not a number"
+    if abs(angle) > MAX_TRIM_ANGLE:
+        return f"a trim angle of {angle:.4g} rad is beyond ±1,000 turns, no position on the conic"
+    return None
 
 
 def trim_choice(trim: Any, master: str | None) -> tuple[Any, float | None]:
@@ -383,7 +398,13 @@ def _trimmed(curve: Any, af: float) -> tuple[_Piece, bool]:
         c = _Conic.of(basis)
 
         def angle(pt: Any, t: float | None) -> float:
-            return c.angle_of(_point(pt)) if pt is not None else float(t) * af  # type: ignore[arg-type]
+            if pt is not None:
+                return c.angle_of(_point(pt))
+            a = float(t) * af  # type: ignore[arg-type]
+            why = trim_angle_problem(a)
+            if why is not None:
+                raise CurveError(why)
+            return a
 
         a1 = angle(p1, t1)
         sweep = conic_sweep(a1, angle(p2, t2), sense)

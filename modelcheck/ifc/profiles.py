@@ -41,7 +41,7 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
 from typing import Any
 
-from modelcheck.ifc.curves import conic_sweep, line_trims, orient, trim_choice
+from modelcheck.ifc.curves import conic_sweep, line_trims, orient, trim_angle_problem, trim_choice
 from modelcheck.ifc.outline import (
     MAX_OUTLINE_POINTS,
     Arc,
@@ -675,6 +675,9 @@ def _trimmed(curve: Any, ctx: _Ctx) -> tuple[Segment, bool]:
                 if not math.isfinite(ctx.angle_factor):
                     raise ctx.fail(f"IfcTrimmedCurve #{curve.id()} is trimmed by angle, and the model's "
                                    "PLANEANGLEUNIT is not usable")
+                why = trim_angle_problem(t * ctx.angle_factor)
+                if why is not None:
+                    raise ctx.fail(f"IfcTrimmedCurve #{curve.id()}: {why}")
                 return t * ctx.angle_factor
             x, y = _coords(p, pt)
             dx, dy = x - centre[0], y - centre[1]
