@@ -137,6 +137,29 @@ def test_control_characters_reach_console_and_stderr_as_visible_escapes(capsys, 
     assert "\x1b" not in line
 
 
+#: what reorders or breaks the text around it without being a C0 or C1 control: the bidirectional
+#: overrides and isolates (Unicode Standard Annex #9: U+202E shows 'LIAF' as 'FAIL'), the line
+#: and paragraph separators (a new line to many log readers), the noncharacters U+FFFE, U+FFFF
+REORDERING = "\u202e\u202d\u202a\u202b\u202c\u2066\u2067\u2068\u2069\u200e\u200f\u061c\u2028\u2029\ufffe\uffff"
+
+
+def test_bidirectional_controls_and_line_separators_reach_the_console_as_visible_escapes(capsys, tmp_path):
+    name = "H1" + "".join(f"{ch}x" for ch in REORDERING)
+    model, ids = _model(tmp_path, names={"H1": name}, tags={"H1": "T\u202eLIAF"})
+    table = tmp_path / "forces.csv"
+    table.write_text(f"global_id,axial_force [kN]\n{ids['H1']},200\nX\u2028Y,1\n", encoding="utf-8")
+    out = run_inprocess(capsys, ["check", str(model), "--loads", str(table), "--no-config", "--jobs", "1",
+                                 "--details"], [model, table])
+    assert out.code == 1, out.stderr
+    for stream in (out.stdout, out.stderr):
+        assert not any(ch in stream for ch in REORDERING), repr(stream[:400])
+    assert "T\\u202eLIAF" in out.stdout and "X\\u2028Y" in out.stdout
+    out = run_inprocess(capsys, ["members", str(model)], [model])
+    assert not any(ch in out.stdout for ch in REORDERING)
+    assert "H1\\u202e" in out.stdout
+    assert shown("Zürich 中文") == "Zürich 中文"       # letters of any script are shown as they are
+
+
 def test_a_long_text_is_cut_with_an_ellipsis_on_the_console(capsys, tmp_path):
     """A tag (the console's name of a member) of a megabyte: the console shows its start and an
     ellipsis, at once."""

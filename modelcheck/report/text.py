@@ -23,10 +23,15 @@ MAX_SHOWN = 200
 #: characters of one line on standard error (an error naming a file, row and GlobalId)
 MAX_LINE = 2000
 
-#: C0 controls, DEL and C1 controls: what a terminal may act on instead of showing
-_CONTROL_RE = re.compile(r"[\x00-\x1f\x7f-\x9f]")
+#: beyond C0 and C1, what changes how the text around it is shown or where a line ends: the
+#: Unicode bidirectional controls (an 'H1' + U+202E + 'LIAF' reads as 'H1FAIL' reversed; Unicode
+#: Standard Annex #9), the line and paragraph separators U+2028 and U+2029 (a new line to many
+#: readers of a log) and the noncharacters U+FFFE and U+FFFF
+_FORMAT = "\u061c\u200e\u200f\u2028\u2029\u202a-\u202e\u2066-\u2069\ufffe\uffff"
+#: C0 controls, DEL, C1 controls and ``_FORMAT``: what a terminal may act on instead of showing
+_CONTROL_RE = re.compile(f"[\\x00-\\x1f\\x7f-\\x9f{_FORMAT}]")
 #: the same, but tab and newline are left for a text whose layout they are
-_CONTROL_BUT_LAYOUT_RE = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
+_CONTROL_BUT_LAYOUT_RE = re.compile(f"[\\x00-\\x08\\x0b-\\x1f\\x7f-\\x9f{_FORMAT}]")
 #: lone surrogates (undecodable bytes of a file name, kept by Python as U+DC80…U+DCFF)
 _SURROGATE_RE = re.compile(r"[\ud800-\udfff]")
 #: every character XML 1.0 does not allow (its production 'Char')
@@ -66,8 +71,9 @@ def _escape(m: re.Match[str]) -> str:
 
 def shown(text: Any, limit: int | None = MAX_SHOWN, *, layout: bool = False) -> str:
     """``text`` as it may reach a terminal: every control character (C0, DEL, C1; with ``layout``
-    tab and newline are kept) and every lone surrogate written as a visible escape (ESC becomes
-    ``\\x1b``), and cut to ``limit`` characters with an ellipsis (None: not cut).
+    tab and newline are kept), every bidirectional control, line or paragraph separator and
+    noncharacter (``_FORMAT``) and every lone surrogate written as a visible escape (ESC becomes
+    ``\\x1b``, U+202E ``\\u202e``), and cut to ``limit`` characters with an ellipsis (None: not cut).
 
     >>> shown("H1\\x1b[2J")
     'H1\\\\x1b[2J'
