@@ -220,3 +220,42 @@ def test_a_spreadsheet_cell_of_truth_value_or_date_is_not_a_force(tmp_path, cell
     message = str(info.value)
     assert message.startswith(f"{path}:Sheet:row 3: axial_force ") and shown in message, message
     assert "not a force" in message
+
+
+def test_formulas_whose_results_were_never_stored_are_one_line(capsys, model, tmp_path):
+    """A workbook written by a program that does not calculate (openpyxl stores a formula without
+    its result): a row whose tag and force are both such formulas reads as blank and would be
+    skipped without a word, the model's own force used in its place. It is an error naming the
+    sheet, the row and the cell; a stored empty text (<v></v>) and a calculated formula are read."""
+    import openpyxl
+
+    model_path, _ = model
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.append(["tag", "axial_force [kN]", "note"])
+    ws.append(["H1", 12, "plain"])
+    ws.append(['="H"&"2"', "=2*30", None])
+    path = tmp_path / "computed.xlsx"
+    wb.save(path)
+    out = run_inprocess(capsys, ["check", str(model_path), "--loads", str(path), "--jobs", "1", "--no-config",
+                                 "--format", "json"], inputs=[path, model_path])
+    assert out.code == 2 and out.stdout == ""
+    assert out.lines == [f"modelcheck: error: {path}:Sheet:row 3: cell A3 holds a formula whose result was never "
+                         "stored, so it reads as empty; open and save the workbook in a spreadsheet program "
+                         "(which calculates it), or write the value itself"], out.stderr
+    # the same sheet as a spreadsheet program saves it: every formula with its result
+    stored = tmp_path / "stored.xlsx"
+    with zipfile.ZipFile(path) as src, zipfile.ZipFile(stored, "w") as dst:
+        for info in src.infolist():
+            data = src.read(info)
+            if info.filename == "xl/worksheets/sheet1.xml":
+                text = data.decode("utf-8")
+                text = text.replace('<c r="A3"><f>"H"&amp;"2"</f><v /></c>',
+                                    '<c r="A3" t="str"><f>"H"&amp;"2"</f><v>H2</v></c>')
+                text = text.replace("<f>2*30</f><v /></c>", '<f>2*30</f><v>60</v></c><c r="C3" t="str">'
+                                    '<f>""</f><v></v></c>')
+                assert "<v>H2</v>" in text and "<v>60</v>" in text, text
+                data = text.encode("utf-8")
+            dst.writestr(info, data)
+    df = read_load_table(stored)
+    assert df.set_index("key")["axial_force"].to_dict() == {"H1": 12_000.0, "H2": 60_000.0}   # kN → N

@@ -321,6 +321,7 @@ def _read_xlsx(p: Path, name: str) -> pd.DataFrame:
             if _find_header(records) is None:
                 missing.append(sheet)
                 continue
+            _refuse_formulas_without_values(p, getattr(ws, "_worksheet_path", None), name, sheet)
             df = _parse(records, name, sheet)
             df.attrs["encoding"] = None
             return df
@@ -329,6 +330,38 @@ def _read_xlsx(p: Path, name: str) -> pd.DataFrame:
     raise LoadTableError(
         "no sheet has a header naming a key column (global_id or tag) and axial_force "
         f"within its first {_HEADER_SEARCH_ROWS} rows (sheets: {', '.join(missing) or 'none'})", path=name)
+
+
+def _refuse_formulas_without_values(p: Path, part: str | None, name: str, sheet: str) -> None:
+    """A cell holding a formula but no stored result (a workbook written by a program that does
+    not calculate, and never opened in a spreadsheet since) reads as empty: a force, a key or a
+    load case the table's author sees would be lost without a word, or a whole row skipped as
+    blank. Such a cell anywhere in the sheet is an error naming it (its sheet, row and cell)."""
+    import zipfile
+
+    import defusedxml.ElementTree as safe_et
+
+    if part is None:
+        return
+    part = part.lstrip("/")
+    with zipfile.ZipFile(p) as zf, zf.open(part) as fh:
+        for _event, el in safe_et.iterparse(fh, events=("end",), forbid_dtd=True):
+            tag = el.tag.rpartition("}")[2]
+            if tag == "c":
+                kids = {k.tag.rpartition("}")[2]: k for k in el}
+                formula, value = kids.get("f"), kids.get("v")
+                inline = kids.get("is")
+                # no <v>, or an empty one in a cell not typed as text (t="str": a stored empty text)
+                unstored = value is None or (not (value.text or "").strip() and el.get("t") != "str")
+                if formula is not None and unstored and inline is None:
+                    ref = el.get("r") or "?"
+                    row = "".join(ch for ch in ref if ch.isdigit()) or "?"
+                    raise LoadTableError(f"cell {ref} holds a formula whose result was never stored, so it reads "
+                                         "as empty; open and save the workbook in a spreadsheet program (which "
+                                         "calculates it), or write the value itself", path=name,
+                                         where=f"{sheet}:row {row}")
+            elif tag == "row":
+                el.clear()   # one row in memory at a time
 
 
 def _sheet_records(ws: Any, name: str, sheet: str) -> list[list[Any]]:
