@@ -133,6 +133,17 @@ class MissingUnit(LookupError):
         super().__init__(f"the model's IfcUnitAssignment has no {unit_type}")
 
 
+class UnusableOwnUnit(MissingUnit):
+    """A value carries a unit of its own (a property's or a quantity's ``Unit``, an
+    IfcMeasureWithUnit) that cannot be used: the value is missing, and the reason names that
+    unit, not the model's unit assignment."""
+
+    def __init__(self, reason: str) -> None:
+        self.unit_type = "its own unit"
+        self.reason = reason
+        LookupError.__init__(self, f"its own unit is not usable ({reason})")
+
+
 class UnitDefinitionError(ValueError):
     """A unit entity in the file that cannot be turned into a quantity."""
 

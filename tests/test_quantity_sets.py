@@ -139,3 +139,28 @@ def test_a_length_from_net_volume_over_area_is_the_last_resort(tmp_path, units, 
     # a stated length wins over the derived one, whatever the two say
     assert ms.loc["ranked", "length"] == pytest.approx(2.9, rel=1e-9)
     assert ms.loc["ranked", "length_source"].startswith("BaseQuantities.Length")
+
+
+def test_a_quantity_with_a_unit_of_its_own_is_read_in_it_or_says_why_not(tmp_path):
+    """A millimetre model whose member's Length quantity carries its own Unit: a foot (0.3048 m,
+    by definition) is read in feet; a kilogram is no length, and the warning names that unit as
+    the quantity's own, not the model's unit assignment (which has a usable LENGTHUNIT)."""
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    f = mb.f
+    steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    metre = f.createIfcSIUnit(None, "LENGTHUNIT", None, "METRE")
+    foot = f.createIfcConversionBasedUnit(f.createIfcDimensionalExponents(1, 0, 0, 0, 0, 0, 0), "LENGTHUNIT", "FOOT",
+                                          f.createIfcMeasureWithUnit(f.createIfcLengthMeasure(0.3048), metre))
+    kilogram = f.createIfcSIUnit(None, "MASSUNIT", "KILO", "GRAM")
+    for name, unit in (("FT", foot), ("KG", kilogram)):
+        el = mb.member("IfcMember", name=name, material=steel, body=None, axis=False)
+        qset = mb.quantities(el, "Qto_MemberBaseQuantities", 8.0, 314.16)
+        qset.Quantities[0].Unit = unit
+    path = tmp_path / "own-units.ifc"
+    mb.write(str(path))
+    ms = read_members(build_index(str(path))).set_index("name")
+    assert ms.loc["FT", "length"] == pytest.approx(8 * 0.3048, rel=1e-12)   # 1 ft = 0.3048 m (exact)
+    assert math.isnan(ms.loc["KG", "length"])
+    warning = next(w for w in ms.loc["KG", "warnings"] if "Length not used" in w)
+    assert f"its own unit is not usable (#{kilogram.id()}" in warning and "[mass]" in warning, warning
+    assert "IfcUnitAssignment" not in warning

@@ -40,6 +40,7 @@ from modelcheck.units import (
     MissingUnit,
     UnitContext,
     UnitDefinitionError,
+    UnusableOwnUnit,
     check_dimension,
     pint,
     unit_label,
@@ -274,7 +275,7 @@ def measure_si(idx: ModelIndex, measure: str, raw: float, unit_entity: Any = Non
             q = unit_quantity(unit_entity)
             check_dimension(MEASURE_UNIT_TYPE.get(measure, ""), q)
         except (UnitDefinitionError, pint.PintError) as exc:
-            raise MissingUnit(f"usable unit (#{unit_entity.id()}: {exc})") from None
+            raise UnusableOwnUnit(f"#{unit_entity.id()}: {exc}") from None
         return SIValue(float(raw) * float(q.to_base_units().magnitude), float(raw),
                        unit_label(unit_entity), measure)
     if measure in UNITLESS_MEASURES:
@@ -295,7 +296,7 @@ def property_si(idx: ModelIndex, prop: Any) -> SIValue | None:
         return None
     unit = getattr(prop, "Unit", None)
     if unit is not None and not hasattr(unit, "is_a"):
-        raise MissingUnit(f"usable unit (the property's Unit is {unit!r})")
+        raise UnusableOwnUnit(f"the property's Unit is {unit!r}, not a unit entity")
     return measure_si(idx, nv.is_a(), float(raw), unit)
 
 
