@@ -288,3 +288,38 @@ def test_an_ultimate_strength_in_the_name_never_makes_a_yield_check_pass(tmp_mod
     assert len(yld) == 1
     assert yld["status"].tolist() == ["unchecked"]
     assert "Fy" in yld["message"].iloc[0]
+
+
+@pytest.mark.parametrize(("second", "category", "status"), [
+    ("C30/37", "concrete", None),        # reinforced concrete or a filled section: excluded with concrete
+    ("GL24h", "timber", None),           # a flitch beam: excluded with timber
+    ("EN AW-6061", "unknown", "unchecked"),   # two metals: which carries the force is not said
+])
+def test_a_member_of_steel_and_another_structural_material_is_never_checked_as_steel(
+        tmp_model: Any, second: str, category: str, status: str | None) -> None:
+    """A 300 × 300 section whose constituent set lists S355 first and a second structural
+    material. Checked as solid S355 it would pass (20 kN / 90,000 mm² = 0.22 MPa, hand value);
+    a coat of paint beside the steel is still no second category (tests/test_reader.py)."""
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    f = mb.f
+    steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    other = mb.material(second, category=None)
+    sel = f.createIfcMaterialConstituentSet("Composite", None, [
+        f.createIfcMaterialConstituent("a", None, steel, None, None),
+        f.createIfcMaterialConstituent("b", None, other, None, None)])
+    sq = f.createIfcRectangleProfileDef("AREA", "300x300", None, 300.0, 300.0)
+    el = mb.member("IfcColumn", name="K1", profile=sq, length=3000.0,
+                   psets={"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 20000.0)}})
+    mb.associate_material([el], sel)
+    path = tmp_model(mb)
+    m = read(path)["K1"]
+    assert m["material_category"] == category
+    assert any("several materials of different categories" in w for w in m["warnings"]), m["warnings"]
+    checked = check_model(str(path), "steel-asd-us", ForceOptions())
+    statuses = set(checked.results.loc[checked.results["global_id"] == el.GlobalId, "status"])
+    assert "pass" not in statuses
+    if status is None:
+        assert statuses == set()
+        assert any(w.startswith(f"excluded: {category}") and el.GlobalId in w for w in checked.data.warnings)
+    else:
+        assert statuses == {status}

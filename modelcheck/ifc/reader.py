@@ -291,7 +291,23 @@ class _Reader:
         mat = mats[0]
         info = self._material_info(mat)
         if len({m.id() for m in mats}) > 1:
+            from modelcheck.materials import UNKNOWN
+
             names = ", ".join(sorted({str(m.Name) for m in mats}))
+            # structural categories among them (not "other": a coat of paint, an insulation)
+            kinds = sorted({c for c in (self._material_info(m).category for m in mats)
+                            if c is not None and c not in ("other", UNKNOWN)})
+            if len(kinds) > 1:
+                # steel and concrete in one member (reinforced concrete, a filled tube, a flitch
+                # beam): taking the first would check a composite section as one material. With
+                # one non-metal among them the member is of that category (so that rule sets
+                # excluding it exclude the member); otherwise which carries the force is unknown
+                non_metal = [k for k in kinds if k in ("concrete", "timber", "masonry")]
+                kind = non_metal[0] if len(non_metal) == 1 else UNKNOWN
+                why = (f"read as {kind}, a composite member: no metal's values are used" if kind != UNKNOWN
+                       else "which one carries the force is not known, so none is used")
+                return MaterialInfo(names, kind, None, {}, (
+                    f"several materials of different categories ({names}: {', '.join(kinds)}); {why}",)), profiles
             info = replace(info, warnings=info.warnings + (f"several materials ({names}); using {mat.Name!r}",))
         return info, profiles
 
