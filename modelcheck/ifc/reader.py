@@ -59,7 +59,7 @@ from modelcheck.ifc.index import (
 )
 from modelcheck.ifc.profiles import ProfileSection, UnsupportedProfile, section_of
 from modelcheck.table import frame_of, member_columns
-from modelcheck.units import UNITLESS_MEASURES, MissingUnit, UnusableUnit
+from modelcheck.units import UNITLESS_MEASURES, MissingUnit, UnusableOwnUnit, UnusableUnit
 
 #: classes that are always axial-member candidates (subtypes included)
 MEMBER_CLASSES = ("IfcMember", "IfcColumn", "IfcBeam", "IfcTendon")
@@ -1097,7 +1097,10 @@ def _fmt_si(q: str, v: float) -> str:
 
 
 def _unit_problem(exc: MissingUnit) -> str:
-    """'has no unit (…)' or, for a unit the file states but that cannot be used, 'has no usable unit (…)'."""
+    """'has no unit (…)' or, for a unit the file states but that cannot be used, 'has no usable unit (…)'
+    ('… of its own' where the value carries that unit itself)."""
+    if isinstance(exc, UnusableOwnUnit):
+        return f"has no usable unit of its own ({exc.reason})"
     return f"has no usable unit ({exc})" if isinstance(exc, UnusableUnit) else f"has no unit ({exc})"
 
 
