@@ -1,6 +1,7 @@
 """Generate a synthetic IFC4 model of N axial members and a load table for the benchmark.
 
     python benchmarks/make_model.py 100000 benchmarks/_work/m100k.ifc
+    python benchmarks/make_model.py 10000 benchmarks/_work/b10k.ifc --building 150000
 
 Mixed profile classes (round, tube, flat, rectangular tube, I, L, U, T), materials through
 profile sets on type objects (a shared IfcMaterialProfileSetUsage per type), half the members
@@ -10,6 +11,12 @@ Forces are drawn as a share of each section's tension yield force (A·235 MPa): 
 5–103 % in tension, 2–25 % in compression — a screened model in which a few per cent of the
 members fail, as in practice, rather than one in five.
 Each member has its own placement, Axis polyline and extruded body, as exported models do.
+
+With ``--building K`` the members are a small share of a whole building: K more elements that
+are not members (walls, slabs, windows, doors, coverings, furniture and spaces) over twenty
+storeys, each with its own placement and extruded body, a property set of its own (as exporters
+write one per element) and, spaces apart, a material (walls and slabs through a layer-set usage,
+the others directly). Every member then has a common property set of its own as well.
 """
 
 from __future__ import annotations
@@ -39,7 +46,86 @@ def profiles(f):  # a realistic mix of stock shapes (mm)
     ]
 
 
-def build(n: int, out: Path, seed: int = 7) -> None:
+#: the elements of a building that are not members: (class, predefined type, share, property set,
+#: width × depth × height of the body in mm, material)
+BUILDING_ELEMENTS = (
+    ("IfcWall", "STANDARD", 0.30, "Pset_WallCommon", (4000.0, 200.0, 3000.0), "Concrete C30/37"),
+    ("IfcSlab", "FLOOR", 0.10, "Pset_SlabCommon", (6000.0, 6000.0, 250.0), "Concrete C30/37"),
+    ("IfcWindow", "WINDOW", 0.20, "Pset_WindowCommon", (1200.0, 100.0, 1500.0), "Glass"),
+    ("IfcDoor", "DOOR", 0.10, "Pset_DoorCommon", (900.0, 60.0, 2100.0), "Oak"),
+    ("IfcCovering", "CEILING", 0.10, "Pset_CoveringCommon", (3000.0, 3000.0, 15.0), "Gypsum board"),
+    ("IfcFurnishingElement", None, 0.10, "Pset_FurnitureTypeCommon", (1600.0, 800.0, 750.0), "Oak"),
+    ("IfcSpace", "INTERNAL", 0.10, "Pset_SpaceCommon", (5000.0, 4000.0, 2800.0), None),
+)
+STOREYS = 20
+
+
+def add_building(mb: ModelBuilder, others: int, rnd: random.Random) -> None:
+    """``others`` elements that are not members, spread over ``STOREYS`` storeys (see the module's
+    docstring)."""
+    f = mb.f
+    zdir, xdir = f.createIfcDirection((0.0, 0.0, 1.0)), f.createIfcDirection((1.0, 0.0, 0.0))
+    storeys = [mb.storey(f"Level {i + 2}", elevation=3000.0 * (i + 1)) for i in range(STOREYS)]
+    materials: dict[str, object] = {}
+    layered: dict[str, object] = {}
+    contained: list[list[object]] = [[] for _ in storeys]
+    spaces: list[list[object]] = [[] for _ in storeys]
+    by_material: dict[int, tuple[object, list[object]]] = {}
+    pset_rels: list[tuple[object, object]] = []
+    done = 0
+    for cls, predefined, share, pset_name, (w, d, h), mat_name in BUILDING_ELEMENTS:
+        count = others - done if cls == BUILDING_ELEMENTS[-1][0] else int(round(others * share))
+        done += count
+        if mat_name is not None and mat_name not in materials:
+            materials[mat_name] = mb.material(mat_name)
+        select = None
+        if mat_name is not None:
+            select = materials[mat_name]
+            if cls in ("IfcWall", "IfcSlab"):
+                if cls not in layered:
+                    layer = f.createIfcMaterialLayer(select, d if cls == "IfcWall" else h, None)
+                    layered[cls] = f.createIfcMaterialLayerSet([layer], f"{cls[3:]} {mat_name}", None)
+                select = f.createIfcMaterialLayerSetUsage(layered[cls], "AXIS2" if cls == "IfcWall" else "AXIS3",
+                                                          "POSITIVE", 0.0, None)
+        shared = f.createIfcRectangleProfileDef("AREA", None, None, w, d)
+        for k in range(count):
+            s = k % STOREYS
+            pt = f.createIfcCartesianPoint((float(k % 700) * 7000.0, float(k // 700) * 7000.0, 0.0))
+            place = f.createIfcLocalPlacement(storeys[s].ObjectPlacement,
+                                              f.createIfcAxis2Placement3D(pt, zdir, xdir))
+            profile = shared
+            if cls in ("IfcWall", "IfcSlab"):  # walls and slabs each have an outline of their own
+                profile = f.createIfcRectangleProfileDef("AREA", None, None, w * rnd.uniform(0.5, 1.5), d)
+            body = f.createIfcShapeRepresentation(mb.body_ctx, "Body", "SweptSolid", [
+                f.createIfcExtrudedAreaSolid(profile, None, zdir, h)])
+            attrs = {"GlobalId": mb.guid(), "Name": f"{cls[3:]} {k}", "ObjectPlacement": place,
+                     "Representation": f.createIfcProductDefinitionShape(None, None, [body])}
+            if predefined is not None:
+                attrs["PredefinedType"] = predefined
+            el = f.create_entity(cls, **attrs)
+            (spaces if cls == "IfcSpace" else contained)[s].append(el)
+            if select is not None:
+                by_material.setdefault(select.id(), (select, []))[1].append(el)
+            props = [f.createIfcPropertySingleValue("Reference", None, f.createIfcIdentifier(f"{cls[3:]}-{k % 40}"),
+                                                    None),
+                     f.createIfcPropertySingleValue("IsExternal", None, f.createIfcBoolean(k % 4 == 0), None)]
+            pset_rels.append((el, f.create_entity("IfcPropertySet", GlobalId=mb.guid(), Name=pset_name,
+                                                  HasProperties=props)))
+    for storey, elements, rooms in zip(storeys, contained, spaces, strict=True):
+        f.create_entity("IfcRelContainedInSpatialStructure", GlobalId=mb.guid(), RelatedElements=elements,
+                        RelatingStructure=storey)
+        if rooms:
+            f.create_entity("IfcRelAggregates", GlobalId=mb.guid(), RelatingObject=storey, RelatedObjects=rooms)
+    for select, elements in by_material.values():
+        mb.associate_material(elements, select)
+    for el, ps in pset_rels:
+        f.create_entity("IfcRelDefinesByProperties", GlobalId=mb.guid(), RelatedObjects=[el],
+                        RelatingPropertyDefinition=ps)
+
+
+def build(n: int, out: Path, seed: int = 7, *, others: int = 0) -> None:
+    """A model of ``n`` members (and, with ``others`` > 0, that many building elements besides)
+    written to ``out``, and its load table beside it."""
     rnd = random.Random(seed)
     mb = ModelBuilder(schema="IFC4", units="mm", name=f"Benchmark {n}")
     f = mb.f
@@ -95,6 +181,11 @@ def build(n: int, out: Path, seed: int = 7) -> None:
             prop = f.createIfcPropertySingleValue("AxialForce", None, f.createIfcForceMeasure(force * 1000.0), None)
             ps = f.create_entity("IfcPropertySet", GlobalId=mb.guid(), Name="MC_MemberForces", HasProperties=[prop])
             prop_rels.append((el, ps))
+        if others:
+            prop = f.createIfcPropertySingleValue("LoadBearing", None, f.createIfcBoolean(True), None)
+            name = "Pset_ColumnCommon" if cls == "IfcColumn" else "Pset_MemberCommon"
+            prop_rels.append((el, f.create_entity("IfcPropertySet", GlobalId=mb.guid(), Name=name,
+                                                  HasProperties=[prop])))
         rows.append(f"{el.GlobalId},LC1,{force:.3f}")
     f.create_entity("IfcRelContainedInSpatialStructure", GlobalId=mb.guid(), RelatedElements=members,
                     RelatingStructure=storey)
@@ -106,6 +197,8 @@ def build(n: int, out: Path, seed: int = 7) -> None:
     for el, ps in prop_rels:
         f.create_entity("IfcRelDefinesByProperties", GlobalId=mb.guid(), RelatedObjects=[el],
                         RelatingPropertyDefinition=ps)
+    if others:
+        add_building(mb, others, rnd)
     out.parent.mkdir(parents=True, exist_ok=True)
     mb.finish().write(str(out))
     table = out.with_name(out.stem + "-forces.csv")
@@ -117,8 +210,10 @@ def main() -> None:
     ap.add_argument("members", type=int)
     ap.add_argument("output", type=Path)
     ap.add_argument("--seed", type=int, default=7)
+    ap.add_argument("--building", type=int, default=0, metavar="K",
+                    help="K building elements that are not members besides the members")
     a = ap.parse_args()
-    build(a.members, a.output, a.seed)
+    build(a.members, a.output, a.seed, others=a.building)
 
 
 if __name__ == "__main__":
