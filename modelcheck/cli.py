@@ -189,8 +189,7 @@ def _give_back_freed_memory() -> None:
     """glibc: return the memory freed during the check to the system before the reports are
     written. The kernel hands out what was freed last first: a large report's page cache then
     reuses pages this process has just used, instead of pages a virtual machine may have given
-    back to its host (slow to fault in again: a 186 MB report took up to 1.4 s to write that way,
-    0.06–0.09 s this way, on the development machine)."""
+    back to its host (slow to fault in again; docs/performance.md gives the figures)."""
     if not sys.platform.startswith("linux"):
         return
     try:

@@ -110,9 +110,9 @@ def _bounds(gids: list[str], parts: int) -> list[tuple[int, int]]:
     """Contiguous runs of equal size that never split members sharing a GlobalId.
 
     Equal, although this process also starts the others and writes the report: a forked part
-    writes its rows to a memory file, which costs about as much. Measured on 100,000 members
-    and two processes: a 5 % larger first part left this process finishing about 0.8 s after the
-    other; a 5 % smaller one, the other 0.8 s after this."""
+    writes its rows to a memory file, which costs about as much. With 100,000 members and two
+    processes, a first part 5 % larger leaves this process finishing about 0.8 s after the other,
+    and one 5 % smaller the other about 0.8 s after this."""
     n = len(gids)
     cuts = [0]
     for k in range(1, parts):

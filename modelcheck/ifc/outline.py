@@ -401,7 +401,7 @@ def crossing_edges(points: Sequence[Point], *, pairwise: int = PAIRWISE_POINTS) 
 
     Up to ``pairwise`` points every pair is compared; beyond, the candidates come from a spatial
     index of the edges (shapely's STRtree: n log n, where comparing every pair of 8,000 edges
-    took gigabytes) and shapely's ``crosses`` decides each one.
+    takes gigabytes) and shapely's ``crosses`` decides each one.
     """
     n = len(points)
     if n < 4:
