@@ -55,6 +55,9 @@ def build_parser() -> argparse.ArgumentParser:
                         "of --rules")
     m.add_argument("--rules", metavar="RULESET", default="steel-asd-us",
                    help="rule set for --capacity (shipped name or file; default steel-asd-us)")
+    m.add_argument("--details", action="store_true", default=None,
+                   help="table: GlobalId, class, storey, E, Fu and the source of each value at any width "
+                        f"(shown from {_details_width()} columns on)")
     add_force_args(m)
 
     c = sub.add_parser("check", help="check members against a rule set",
@@ -377,7 +380,7 @@ def cmd_members(args: argparse.Namespace) -> int:
         return markup_escape(shown(text, limit))
 
     from modelcheck.pipeline import expand_paths, read_model, unmatched_lines, unmatched_rows
-    from modelcheck.report.members import CAUTION, member_dicts, members_csv, members_table
+    from modelcheck.report.members import CAUTION, member_dicts, member_notes, members_csv, members_table
     from modelcheck.report.quantities import DisplayUnits
 
     paths = expand_paths(args.models)
@@ -404,6 +407,11 @@ def cmd_members(args: argparse.Namespace) -> int:
         from modelcheck.design.rating import rate_members
 
         return rate_members(ruleset, d.members, units_for(d))
+
+    def wide(con: Any) -> bool:
+        from modelcheck.report.console import DETAILS_WIDTH
+
+        return bool(args.details) if args.details is not None else con.width >= DETAILS_WIDTH
 
     if args.format == "json":
         models = []
@@ -451,12 +459,13 @@ def cmd_members(args: argparse.Namespace) -> int:
                               highlight=False)
                     continue
                 u = units_for(d)
-                con.print(members_table(d.members, u, f"{d.path} ({d.schema}, {len(d.members)} members)"))
+                cap = capacity_for(d)
+                con.print(members_table(d.members, u, f"{d.path} ({d.schema}, {len(d.members)} members)",
+                                        width=con.width, details=wide(con), capacity=cap))
                 for w in d.warnings + d.force_messages:
                     con.print(f"[yellow]warning:[/] {escape(w)}", highlight=False)
-                for gid, ws in zip(d.members["global_id"], d.members["warnings"], strict=True):
-                    for w in ws or []:
-                        con.print(f"[yellow]{escape(gid)}:[/] {escape(w)}", highlight=False)
+                for line in member_notes(d.members, cap):
+                    con.print(f"[yellow]{escape(line[0])}:[/] {escape(line[1])}", highlight=False)
             for line in unmatched_lines(unmatched):
                 con.print(f"[yellow]warning:[/] {escape(line)}", highlight=False)
             con.print(f"\n[dim]{CAUTION}[/]")

@@ -218,8 +218,12 @@ def fitted_table(title: str, columns: list[tuple[str, str, list[str]]], rows: li
            caption: str | None = None, leading: int = 0) -> Table:
     """A light table that fits ``width`` without breaking a word, where the words fit at all.
 
-    ``columns``: (header, justify, cell texts) each."""
-    widths = _fit(*_limits(columns), width)
+    ``columns``: (header, justify, cell texts) each. A number column's header (``A [mm²]``) stays
+    on one line where the room allows."""
+    mins, maxs = _limits(columns)
+    whole = [max(mn, len(header)) if justify == "right" else mn
+             for mn, (header, justify, _) in zip(mins, columns, strict=True)]
+    widths = _fit(whole, maxs, width) or _fit(mins, maxs, width)
     t = Table(title=Text(title, style="bold"), title_justify="left", header_style="bold", box=box.SIMPLE_HEAD,
               show_edge=False, pad_edge=False, padding=(0, 1, 0, 0), expand=False, leading=leading,
               caption=Text(caption) if caption else None, caption_justify="left")

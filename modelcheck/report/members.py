@@ -95,40 +95,135 @@ def members_csv(members: pd.DataFrame, units: DisplayUnits) -> pd.DataFrame:
     return df.drop(columns=[c for c in (REJECTED,) if c in df.columns])
 
 
-def members_table(members: pd.DataFrame, units: DisplayUnits, title: str) -> Any:
-    """A rich Table of the members of one model. Every text goes in as a ``Text`` (a name, a
-    header unit such as ``A [mm²]``: never read as markup); numbers in plain decimals."""
+def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width: int = 100,
+                  details: bool = False, capacity: pd.DataFrame | None = None) -> Any:
+    """The members of one model as the console shows them, fitted to ``width`` columns without
+    breaking a word (``report.console.fitted_table``).
+
+    The compact layout: member (tag, else name, else GlobalId), section, A, r min, L, material,
+    Fy, notes (and the tension and compression ratings with ``capacity``). The wide one
+    (``details``) adds GlobalId, class, storey, E, Fu and the source of each value; where its
+    columns do not fit side by side, each member takes two wrapped lines instead. Every text goes
+    in as a ``Text`` (a name, a header unit such as ``A [mm²]``: never read as markup); numbers
+    in plain decimals."""
     from rich.table import Table
     from rich.text import Text
 
+    from modelcheck.report.console import _fit, _limits, fitted_table, member_label
     from modelcheck.report.text import MAX_LINE, plain, shown
-
-    t = Table(title=Text(shown(title, MAX_LINE)), title_justify="left", header_style="bold")
-    for col, just in (("GlobalId", "left"), ("Class", "left"), ("Name / tag", "left"), ("Section", "left"),
-                      (f"A [{units.unit('area')}]", "right"), (f"r min [{units.unit('r_min')}]", "right"),
-                      (f"L [{units.unit('length')}]", "right"), ("Material", "left"),
-                      (f"Fy [{units.unit('Fy')}]", "right"), ("Notes", "left")):
-        t.add_column(Text(_unit_header(col)), justify=just, overflow="fold")  # type: ignore[arg-type]
-
-    def num(v: float, q: str) -> str:
-        return "—" if v is None or not math.isfinite(v) else plain(units.convert(q, v))
 
     def text(v: Any) -> str | None:   # the model's text: control characters escaped, long texts cut
         v = _s(v)
-        return shown(v) if v is not None and str(v).strip() else None
+        return shown(str(v).strip()) if v is not None and str(v).strip() else None
 
-    none = Text("—", style="red")   # no section or material: an em dash, as every missing text
+    def nums(col: str, kind: str) -> list[str]:
+        if col not in members.columns:
+            return ["—"] * len(members)
+        factor = units.convert(kind, 1.0)
+        values = pd.to_numeric(members[col], errors="coerce").astype(float) * factor
+        return [plain(v) if math.isfinite(v) else "—" for v in values]
+
+    def header(name: str, kind: str) -> str:
+        return _unit_header(f"{name} [{units.unit(kind)}]")
+
+    recs = members.to_dict("records")
+    cols: dict[str, list[str]] = {
+        "Member": [member_label(r.get("name"), r.get("tag"), r["global_id"]) for r in recs],
+        "GlobalId": [shown(r["global_id"]) for r in recs],
+        "Class": [shown(r["ifc_class"]).removeprefix("Ifc") for r in recs],
+        "Storey": [text(r.get("storey")) or "—" for r in recs],
+        "Section": [text(r.get("section_name")) or (text(r.get("profile_type")) or "").removeprefix("Ifc")
+                    .removesuffix("ProfileDef") or "—" for r in recs],
+        header("A", "area"): nums("area", "area"),
+        header("r min", "r_min"): nums("r_min", "r_min"),
+        header("L", "length"): nums("length", "length"),
+        "Material": [text(r.get("material")) or "—" for r in recs],
+        header("E", "E"): nums("E", "E"),
+        header("Fy", "Fy"): nums("Fy", "Fy"),
+        header("Fu", "Fu"): nums("Fu", "Fu"),
+        "Notes": [f"{len(r['warnings'])} warning" + ("s" if len(r["warnings"]) > 1 else "") if r.get("warnings")
+                  else "" for r in recs],
+        "Sources": [_sources(r) for r in recs],
+    }
+    rating_cols: list[str] = []
+    if capacity is not None:
+        by_id = {rec["global_id"]: rec for rec in capacity.to_dict("records")}
+        for direction, head in (("tension", "T"), ("compression", "C")):
+            name = header(f"{head} allow", "force")
+            rating_cols.append(name)
+            cols[name] = [_rating(by_id.get(r["global_id"], {}).get(direction)) for r in recs]
+    order = (["Member", "GlobalId", "Class", "Storey", "Section", header("A", "area"), header("r min", "r_min"),
+              header("L", "length"), "Material", header("E", "E"), header("Fy", "Fy"), header("Fu", "Fu"),
+              *rating_cols, "Notes", "Sources"] if details
+             else ["Member", "Section", header("A", "area"), header("r min", "r_min"), header("L", "length"),
+                   "Material", header("Fy", "Fy"), *rating_cols, "Notes"])
+    missing_style = {"Section", "Material"}
+    columns = [(c, "right" if "[" in c else "left", cols[c]) for c in order]
+    rows = [[Text(cols[c][i], style="red" if c in missing_style and cols[c][i] == "—"
+                  else "yellow" if c == "Notes" else "") for c in order] for i in range(len(recs))]
+    title_text = shown(title, MAX_LINE)
+    caption = ("T allow, C allow: the allowable tension and compression force (buckling included); "
+               "none: no rating, the reason below the table") if capacity is not None else None
+    if _fit(*_limits(columns), width) is None:
+        grid = Table.grid(padding=(0, 2, 0, 0))
+        grid.title, grid.title_justify = Text(title_text, style="bold"), "left"
+        if caption:
+            grid.caption, grid.caption_justify = Text(caption), "left"
+        grid.add_column(no_wrap=True)
+        grid.add_column(ratio=1)
+        for i in range(len(recs)):
+            line = " · ".join(f"{c} {cols[c][i]}" for c in order[1:-1] if cols[c][i])
+            grid.add_row(Text(cols["Member"][i]),
+                         Text.assemble(line, "\n", (f"sources: {cols['Sources'][i]}", "dim")) if details
+                         else Text(line))
+        return grid
+    return fitted_table(title_text, columns, rows, width, caption)
+
+
+def _sources(rec: dict[str, Any]) -> str:
+    """Where each value of a member came from, values of one source together: 'A, r min: IfcCircleProfileDef #55;
+    L: Axis; E, Fy, Fu: rulesets/materials.toml: EN 10025 S355'."""
+    groups: dict[str, list[str]] = {}
+    for key, label in (("area", "A"), ("r_min", "r min"), ("length", "L"), ("E", "E"), ("Fy", "Fy"), ("Fu", "Fu")):
+        src = _s(rec.get(f"{key}_source"))
+        if src is not None and str(src).strip():
+            groups.setdefault(str(src).strip(), []).append(label)
+    from modelcheck.report.text import shown
+
+    return "; ".join(f"{', '.join(labels)}: {shown(src)}" for src, labels in groups.items()) or "—"
+
+
+def _rating(q: Any) -> str:
+    """A rating of ``rate_members`` (a quantity dict, or None: no rating) as a table cell."""
+    from modelcheck.report.text import plain
+
+    if isinstance(q, dict) and q.get("value") is not None and math.isfinite(float(q["value"])):
+        return plain(float(q["value"]))
+    return "none"
+
+
+def member_notes(members: pd.DataFrame, capacity: pd.DataFrame | None = None) -> list[tuple[str, str]]:
+    """(who, text) lines printed under the members table: each member's warnings and, with
+    ``capacity``, why a direction has no rating or what fails at any force. Who: the member's
+    tag or name with its GlobalId."""
+    from modelcheck.report.console import member_label
+
+    notes: dict[str, dict[str, Any]] = {}
+    if capacity is not None and len(capacity):
+        notes = {rec["global_id"]: rec for rec in capacity.to_dict("records")}
+    out: list[tuple[str, str]] = []
     for rec in members.to_dict("records"):
-        label = " / ".join(x for x in (text(rec["name"]), text(rec["tag"])) if x)
-        sec = text(rec["section_name"]) or (text(rec["profile_type"]) or "").removeprefix("Ifc").removesuffix(
-            "ProfileDef")
-        material = text(rec["material"])
-        warn = rec["warnings"] or []
-        t.add_row(Text(shown(rec["global_id"])), Text(shown(rec["ifc_class"]).removeprefix("Ifc")), Text(label or "—"),
-                  Text(sec) if sec else none, num(rec["area"], "area"), num(rec["r_min"], "r_min"),
-                  num(rec["length"], "length"), Text(material) if material else none, num(rec["Fy"], "Fy"),
-                  Text(f"{len(warn)} warning(s)", style="yellow") if warn else "")
-    return t
+        gid = str(rec["global_id"])
+        label = member_label(rec.get("name"), rec.get("tag"), gid)
+        who = label if label == gid else f"{label} ({gid})"
+        out += [(who, str(w)) for w in rec.get("warnings") or []]
+        cap = notes.get(gid, {})
+        for direction in ("tension", "compression"):
+            note = _s(cap.get(f"{direction}_note"))
+            if note is not None:
+                rated = isinstance(cap.get(direction), dict)
+                out.append((who, f"{direction} rating: {note}" if rated else f"no {direction} rating: {note}"))
+    return out
 
 
 def _unit_header(text: str) -> str:
