@@ -340,3 +340,73 @@ def test_the_baseline_comparison_fits_the_console(width):
     text = buf.getvalue()
     assert max(cell_len(line) for line in text.splitlines()) <= width
     assert GID_D in text and "axial_stress" in text and "New failures (1)" in text
+
+
+# ------------------------------------------------------------------------------ members: fits the terminal
+@pytest.fixture(scope="module")
+def mixed_path(tmp_path_factory):
+    return mixed_model(tmp_path_factory.mktemp("members"))
+
+
+def _member_words(path: Path) -> tuple[set[str], list[str]]:
+    """Every word of each member's label, section and material (what the compact table names),
+    and the GlobalIds, read from the members JSON (another format of the same inventory)."""
+    r = run("members", str(path), "--format", "json")
+    assert r.returncode == 0, r.stderr
+    words: set[str] = set()
+    gids = []
+    for m in json.loads(r.stdout)["models"][0]["members"]:
+        words |= set(str(m["tag"] or m["name"]).split())
+        words |= set(str(m["section"]["name"]).split()) if m["section"]["name"] else set()
+        words |= set(str(m["material"]["name"]).split()) if m["material"] else set()
+        gids.append(m["global_id"])
+    return words, gids
+
+
+@pytest.mark.parametrize("width", [80, 100, 120, 200])
+@pytest.mark.parametrize("capacity", [False, True])
+def test_members_fits_the_width_and_breaks_no_word(mixed_path, width, capacity):
+    r = run("members", str(mixed_path), *(["--capacity"] if capacity else []), env={"COLUMNS": str(width)})
+    assert r.returncode == 0, r.stderr
+    assert max(cell_len(line) for line in r.stdout.splitlines()) <= width
+    words, gids = _member_words(mixed_path)
+    broken = sorted(w for w in words if w not in r.stdout)
+    assert not broken, f"words broken at {width} columns: {broken}"
+    for header in ("A [mm²]", "L [m]", "Fy [MPa]"):   # units kept; the header on one line where it fits
+        assert (header if width >= 100 else header.split()[-1]) in r.stdout
+    if width >= 160:   # the details: every GlobalId whole
+        assert all(g in r.stdout for g in gids)
+        assert "E [MPa]" in r.stdout and "Sources" in r.stdout
+    else:
+        assert not any(g in r.stdout.split("\n", 2)[1] for g in gids)
+
+
+@pytest.mark.parametrize("width", [80, 120])
+def test_members_details_on_request_fit_a_narrow_console(mixed_path, width):
+    r = run("members", str(mixed_path), "--details", env={"COLUMNS": str(width)})
+    assert r.returncode == 0, r.stderr
+    assert max(cell_len(line) for line in r.stdout.splitlines()) <= width
+    _, gids = _member_words(mixed_path)
+    assert all(g in r.stdout for g in gids)            # a GlobalId (22 characters) is never folded
+    assert "IfcCircleProfileDef" in r.stdout            # where the section came from
+
+
+def test_members_capacity_table_shows_the_ratings_of_the_json(tmp_path):
+    # a plain round bar (no thread): AISC 360-16 D2 (a) yielding Pn = Fy·Ag, Ω = 1.67, and (b) rupture
+    # Pn = Fu·Ae, Ω = 2.00 with Ae = An = Ag for a bar with no holes (common practice)
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    s355 = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    bar = mb.f.createIfcCircleProfileDef("AREA", "Bar 20", None, 10.0)
+    mb.member("IfcMember", name="Tie bar", tag="TB-1", profile=bar, material=s355, length=1000.0)
+    p = tmp_path / "bar.ifc"
+    mb.write(str(p))
+    area = math.pi / 4 * 20.0**2                                   # mm², geometry
+    hand = min(355.0 * area / 1.67, 490.0 * area / 2.00) / 1000.0  # kN: yielding governs, 66.78 kN
+    doc = json.loads(run("members", str(p), "--capacity", "--format", "json").stdout)
+    rating = doc["models"][0]["members"][0]["capacity"]["tension"]
+    assert rating["unit"] == "kN" and rating["value"] == pytest.approx(hand, rel=1e-3)
+    r = run("members", str(p), "--capacity", env={"COLUMNS": "100"})
+    assert r.returncode == 0, r.stderr
+    assert "T [kN]" in r.stdout and "C [kN]" in r.stdout and "T, C: the allowable tension" in r.stdout
+    row = next(line for line in r.stdout.splitlines() if line.startswith("TB-1"))
+    assert f"{hand:.4g}" in row.split()          # 66.78, the same number as the JSON

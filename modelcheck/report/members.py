@@ -149,7 +149,7 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width:
     if capacity is not None:
         by_id = {rec["global_id"]: rec for rec in capacity.to_dict("records")}
         for direction, head in (("tension", "T"), ("compression", "C")):
-            name = header(f"{head} allow", "force")
+            name = header(head, "force")
             rating_cols.append(name)
             cols[name] = [_rating(by_id.get(r["global_id"], {}).get(direction)) for r in recs]
     order = (["Member", "GlobalId", "Class", "Storey", "Section", header("A", "area"), header("r min", "r_min"),
@@ -162,7 +162,7 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width:
     rows = [[Text(cols[c][i], style="red" if c in missing_style and cols[c][i] == "—"
                   else "yellow" if c == "Notes" else "") for c in order] for i in range(len(recs))]
     title_text = shown(title, MAX_LINE)
-    caption = ("T allow, C allow: the allowable tension and compression force (buckling included); "
+    caption = ("T, C: the allowable tension and compression force (buckling included); "
                "none: no rating, the reason below the table") if capacity is not None else None
     if _fit(*_limits(columns), width) is None:
         grid = Table.grid(padding=(0, 2, 0, 0))
