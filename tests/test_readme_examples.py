@@ -1,0 +1,39 @@
+"""The README's quick-start example is what the tool prints: the command as written, run from the
+repository at 100 columns (as the README says), gives the README's lines — the summary of each
+model, the warnings, the failing members and the first groups of the unchecked list — and the
+exit code the README states."""
+
+from __future__ import annotations
+
+import os
+import re
+import shlex
+import subprocess
+import sys
+
+from tests.conftest import REPO
+
+
+def _quick_start() -> tuple[list[str], list[str]]:
+    """The quick-start `modelcheck check` command's arguments and the example output block under it."""
+    readme = (REPO / "README.md").read_text(encoding="utf-8")
+    command = re.search(r"pip install -e \. && modelcheck (check [^\n]+)", readme)
+    assert command, "the README's quick start runs `modelcheck check`"
+    after = readme[command.end():]
+    after = after[after.index("\n```") + 4:]           # past the end of the command's block
+    block = re.search(r"\n```\n(.*?)\n```", after, re.S)
+    assert block, "the README shows the quick start's output"
+    return shlex.split(command.group(1)), block.group(1).splitlines()
+
+
+def test_the_quick_start_output_is_what_the_readme_shows():
+    args, shown = _quick_start()
+    env = {k: v for k, v in os.environ.items() if k != "COLUMNS"} | {"COLUMNS": "100"}
+    r = subprocess.run([sys.executable, "-m", "modelcheck", *args], capture_output=True, text=True,
+                       timeout=600, cwd=REPO, env=env)
+    assert r.returncode == 1, r.stderr      # README: exits with code 1 (the samples' deliberate failures)
+    printed = [line.rstrip() for line in r.stdout.splitlines()]
+    cut = shown.index("…") if "…" in shown else len(shown)
+    head, tail = [line.rstrip() for line in shown[:cut]], [line.rstrip() for line in shown[cut + 1:]]
+    assert printed[:len(head)] == head
+    assert printed[len(printed) - len(tail):] == tail
