@@ -37,3 +37,17 @@ def test_the_quick_start_output_is_what_the_readme_shows():
     head, tail = [line.rstrip() for line in shown[:cut]], [line.rstrip() for line in shown[cut + 1:]]
     assert printed[:len(head)] == head
     assert printed[len(printed) - len(tail):] == tail
+
+
+def test_every_code_block_of_the_readmes_closes():
+    # CommonMark: a closing fence is the fence alone on its line (text after it makes it no fence,
+    # and the block runs on into the prose below)
+    for path in (REPO / "README.md", REPO / "DEVELOPERS.md", REPO / "sample_models" / "README.md"):
+        inside = False
+        for n, line in enumerate(path.read_text(encoding="utf-8").splitlines(), 1):
+            if not line.startswith("```"):
+                continue
+            if inside:
+                assert line.strip() == "```", f"{path.name}:{n}: a code block closed by {line!r}"
+            inside = not inside
+        assert not inside, f"{path.name}: a code block never closes"
