@@ -302,3 +302,19 @@ F = \"\"\"
 """ + GOOD_CHECK + GOOD_CHECK.replace('"stress"', '"second"').replace("Fy / Omega", "Fy / Omegax"))
     assert one_error(path) == (f"{path}:{line_of(path, 'Omegax')}: check second: capacity: "
                                "unknown name 'Omegax' (did you mean 'Omega'?)")
+
+
+@pytest.mark.parametrize("name", sorted(shipped_names()))
+def test_validate_takes_a_shipped_name_as_show_does(name, capsys):
+    # `rules validate` and `rules show` take the same target: a shipped name or a file
+    assert validate_ruleset_file(name) == []
+    from modelcheck.cli import main
+
+    assert main(["rules", "validate", name]) == 0
+    assert f"{name}: valid" in capsys.readouterr().out
+
+
+def test_validate_an_unknown_name_lists_the_shipped_ones():
+    errors = validate_ruleset_file("steel-nosuch")
+    assert len(errors) == 1 and "no rule set named 'steel-nosuch'" in errors[0]
+    assert all(n in errors[0] for n in shipped_names())

@@ -966,12 +966,14 @@ def load_ruleset(name_or_path: str | Path) -> RuleSet:
 
 
 def validate_ruleset_file(path: str | Path) -> list[str]:
-    """Every error in a rule-set file, each 'file:line: check <id>: message'; [] when it is valid."""
+    """Every error in a rule set (a shipped name or a file), each 'file:line: check <id>: message';
+    [] when it is valid."""
     try:
-        text = _read(Path(path))
+        resolved = resolve_ruleset(path)
+        text = _read(resolved)
     except RuleSetError as exc:
         return [str(exc)]
-    _, errors = parse_ruleset(text, str(path))
+    _, errors = parse_ruleset(text, str(resolved))
     return [str(e) for e in errors]
 
 
