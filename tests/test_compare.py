@@ -143,3 +143,13 @@ def test_load_baseline_errors_name_the_file(tmp_path, content, words):
     with pytest.raises(UsageError) as exc:
         load_baseline(p)
     assert str(p) in str(exc.value) and words in str(exc.value)
+
+
+def test_a_missing_baseline_says_how_to_make_the_first(tmp_path):
+    # the first run of a CI job whose configuration names a baseline not made yet: one line that
+    # names the file and the command writing it
+    p = tmp_path / "baseline" / "modelcheck-report.json"
+    with pytest.raises(UsageError) as exc:
+        load_baseline(p)
+    text = str(exc.value)
+    assert "\n" not in text and str(p) in text and f"--format json --output {p}" in text

@@ -175,8 +175,11 @@ def load_baseline(path: str | os.PathLike[str]) -> dict[str, Any]:
     Beyond the keys the comparison reads, the whole document must satisfy the check report's
     JSON Schema (``modelcheck/schemas/check.schema.json``): a list or an object where a text
     belongs, a nesting deeper than a report has, is named by its place in the document."""
-    p = input_file(path, UsageError, "a JSON check report (baseline)")
     name = str(path)
+    if not os.path.lexists(path):   # the first run of a CI job: say how a baseline is made
+        raise UsageError(f"no such file; the baseline is the JSON report of an accepted revision: make the "
+                         f"first with 'modelcheck check MODELS --format json --output {name}'", path=name)
+    p = input_file(path, UsageError, "a JSON check report (baseline)")
     size = p.stat().st_size
     if size > MAX_BASELINE_BYTES:
         raise UsageError(f"baseline is {size / 2**20:,.0f} MiB, more than a check report may be "
