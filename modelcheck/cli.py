@@ -438,7 +438,7 @@ def cmd_members(args: argparse.Namespace) -> int:
     elif args.format == "csv":
         import pandas as pd
 
-        frames = [members_csv(d.members, units_for(d)) for d in datas if d.members is not None]
+        frames = [members_csv(d.members, units_for(d), capacity_for(d)) for d in datas if d.members is not None]
         from modelcheck.report.text import csv_frame
 
         df = pd.concat(frames, ignore_index=True) if frames else pd.DataFrame()

@@ -410,3 +410,25 @@ def test_members_capacity_table_shows_the_ratings_of_the_json(tmp_path):
     assert "T [kN]" in r.stdout and "C [kN]" in r.stdout and "T, C: the allowable tension" in r.stdout
     row = next(line for line in r.stdout.splitlines() if line.startswith("TB-1"))
     assert f"{hand:.4g}" in row.split()          # 66.78, the same number as the JSON
+
+
+def test_members_capacity_in_csv_agrees_with_json(tmp_path):
+    # a rod too slender for any compression (KL/r = 1000/2.5 = 400 > 200, common practice): no
+    # compression rating, with the reason, in the CSV as in the JSON; tension by AISC 360-16 D2 (a)
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    s355 = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    bar = mb.f.createIfcCircleProfileDef("AREA", "Bar 10", None, 5.0)
+    mb.member("IfcMember", name="Tie bar", tag="TB-2", profile=bar, material=s355, length=1000.0)
+    p = tmp_path / "bar.ifc"
+    mb.write(str(p))
+    cap = json.loads(run("members", str(p), "--capacity", "--format", "json").stdout)["models"][0]["members"][0][
+        "capacity"]
+    r = run("members", str(p), "--capacity", "--format", "csv")
+    assert r.returncode == 0, r.stderr
+    row = next(csv.DictReader(io.StringIO(r.stdout)))
+    hand = 355.0 * math.pi / 4 * 10.0**2 / 1.67 / 1000.0          # kN, 16.7 kN
+    assert float(row["tension_allowable [kN]"]) == pytest.approx(hand, rel=1e-4)
+    assert float(row["tension_allowable [kN]"]) == pytest.approx(cap["tension"]["value"], rel=1e-6)
+    assert row["tension_check"] == cap["tension_check"] == "tension-yield"
+    assert row["compression_allowable [kN]"] == "" and cap["compression"] is None
+    assert row["compression_note"] == cap["compression_note"] and "400" in row["compression_note"]

@@ -77,9 +77,20 @@ def member_dicts(members: pd.DataFrame, forces: pd.DataFrame | None, units: Disp
     return out
 
 
-def members_csv(members: pd.DataFrame, units: DisplayUnits) -> pd.DataFrame:
-    """A flat table for spreadsheets: one row per member, values in display units."""
+def members_csv(members: pd.DataFrame, units: DisplayUnits, capacity: pd.DataFrame | None = None) -> pd.DataFrame:
+    """A flat table for spreadsheets: one row per member, values in display units; with
+    ``capacity`` (``design.rating.rate_members``, one row per member in the same order) the
+    allowable tension and compression forces, each with its governing check and note."""
     df = members.copy()
+    if capacity is not None:
+        cap = capacity.reset_index(drop=True)
+        unit = units.unit("force")
+        for direction in ("tension", "compression"):
+            df[f"{direction}_allowable [{unit}]"] = [
+                float(q["value"]) if isinstance(q, dict) and q.get("value") is not None else math.nan
+                for q in cap[direction]]
+            df[f"{direction}_check"] = [_s(v) for v in cap[f"{direction}_check"]]
+            df[f"{direction}_note"] = [_s(v) for v in cap[f"{direction}_note"]]
     for col in ("area", "r_min", "length", "E", "Fy", "Fu", "alpha", "net_area"):
         if col not in df.columns:
             continue
