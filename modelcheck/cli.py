@@ -56,7 +56,7 @@ def build_parser() -> argparse.ArgumentParser:
     m.add_argument("--rules", metavar="RULESET", default="steel-asd-us",
                    help="rule set for --capacity (shipped name or file; default steel-asd-us)")
     m.add_argument("--details", action="store_true", default=None,
-                   help="table: GlobalId, class, storey, E, Fu and the source of each value at any width "
+                   help="table: name, GlobalId, class, storey, E, Fu and the source of each value at any width "
                         f"(shown from {_details_width()} columns on)")
     add_force_args(m)
 

@@ -129,7 +129,9 @@ def test_control_characters_reach_console_and_stderr_as_visible_escapes(capsys, 
         assert fragment in out.stdout, fragment
     # the member inventory, and a file name on standard error
     out = run_inprocess(capsys, ["members", str(model)], [model])
-    assert "\x1b" not in out.stdout and "H\\x1b[2J" in out.stdout
+    assert "\x1b" not in out.stdout and "T\\x1b[5m" in out.stdout      # the compact table names it by its tag
+    out = run_inprocess(capsys, ["members", str(model), "--details"], [model])
+    assert "\x1b" not in out.stdout and "H\\x1b[2J" in out.stdout      # the details give its name too
     bad = tmp_path / "a\x1b[2Jb.ifc"
     bad.write_bytes(b"")
     out = run_inprocess(capsys, ["check", str(bad), "--no-config"], [bad])

@@ -113,7 +113,7 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width:
 
     The compact layout: member (tag, else name, else GlobalId), section, A, r min, L, material,
     Fy, notes (and the tension and compression ratings with ``capacity``). The wide one
-    (``details``) adds GlobalId, class, storey, E, Fu and the source of each value; where its
+    (``details``) adds name, GlobalId, class, storey, E, Fu and the source of each value; where its
     columns do not fit side by side, each member takes two wrapped lines instead. Every text goes
     in as a ``Text`` (a name, a header unit such as ``A [mm²]``: never read as markup); numbers
     in plain decimals."""
@@ -140,6 +140,7 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width:
     recs = members.to_dict("records")
     cols: dict[str, list[str]] = {
         "Member": [member_label(r.get("name"), r.get("tag"), r["global_id"]) for r in recs],
+        "Name": [text(r.get("name")) or "—" for r in recs],
         "GlobalId": [shown(r["global_id"]) for r in recs],
         "Class": [shown(r["ifc_class"]).removeprefix("Ifc") for r in recs],
         "Storey": [text(r.get("storey")) or "—" for r in recs],
@@ -163,7 +164,7 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width:
             name = header(head, "force")
             rating_cols.append(name)
             cols[name] = [_rating(by_id.get(r["global_id"], {}).get(direction)) for r in recs]
-    order = (["Member", "GlobalId", "Class", "Storey", "Section", header("A", "area"), header("r min", "r_min"),
+    order = (["Member", "Name", "GlobalId", "Class", "Storey", "Section", header("A", "area"), header("r min", "r_min"),
               header("L", "length"), "Material", header("E", "E"), header("Fy", "Fy"), header("Fu", "Fu"),
               *rating_cols, "Notes", "Sources"] if details
              else ["Member", "Section", header("A", "area"), header("r min", "r_min"), header("L", "length"),
