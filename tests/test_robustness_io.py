@@ -156,9 +156,9 @@ def test_bidirectional_controls_and_line_separators_reach_the_console_as_visible
     for stream in (out.stdout, out.stderr):
         assert not any(ch in stream for ch in REORDERING), repr(stream[:400])
     assert "T\\u202eLIAF" in out.stdout and "X\\u2028Y" in out.stdout
-    out = run_inprocess(capsys, ["members", str(model)], [model])
+    out = run_inprocess(capsys, ["members", str(model), "--details"], [model])   # the details name the member
     assert not any(ch in out.stdout for ch in REORDERING)
-    assert "H1\\u202e" in out.stdout
+    assert "H1\\u202e" in out.stdout and "T\\u202eLIAF" in out.stdout
     assert shown("Zürich 中文") == "Zürich 中文"       # letters of any script are shown as they are
 
 
