@@ -363,7 +363,7 @@ def test_a_trim_angle_beyond_any_turn_of_the_conic_is_not_read(tmp_path, turns):
     ms = read_members(build_index(str(path))).set_index("name")
     assert math.isnan(ms.loc["far", "length"])
     assert any("beyond ±1,000 turns" in w for w in ms.loc["far", "warnings"]), ms.loc["far", "warnings"]
-    assert ms.loc["quarter", "length"] == pytest.approx(5.0 * math.pi / 2, rel=1e-12)
+    assert ms.loc["quarter", "length"] == pytest.approx(5.0 * math.pi / 2, rel=1e-12)  # arc length R·θ, R = 5 m, θ = π/2 (hand value)
     # the same trim in a closed outline: the stadium's left half circle ends that many turns on
     g = ModelBuilder(units="mm").f
     outline = stadium(g, "radian", 1.0)
