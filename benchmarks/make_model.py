@@ -28,7 +28,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from modelcheck.ifc.author import ModelBuilder  # noqa: E402
+from modelcheck.testing.author import ModelBuilder  # noqa: E402
 
 
 def profiles(f):  # a realistic mix of stock shapes (mm)

@@ -15,7 +15,7 @@ from pathlib import Path
 from typing import Any
 
 from modelcheck import __version__
-from modelcheck.errors import ModelcheckError, UsageError
+from modelcheck.common.errors import ModelcheckError, UsageError
 
 EXIT_OK, EXIT_FAIL, EXIT_INPUT = 0, 1, 2
 
@@ -324,7 +324,7 @@ def expand_load_paths(items: list[str]) -> list[str]:
 
 
 def write_text(text: str, output: str | None, inputs: list[str]) -> None:
-    from modelcheck.files import writing
+    from modelcheck.common.files import writing
 
     if output is None:
         with writing(None):
@@ -340,7 +340,7 @@ def guard_output(output: str, inputs: list[str], option: str = "--output", new_f
     """Refuse to write over an input file (by any name: a link to it counts), into a folder that
     does not exist (``new_folder``: the command makes the file's own folder, whose parent must
     exist), or onto a folder."""
-    from modelcheck.files import utf8_name
+    from modelcheck.common.files import utf8_name
 
     if not utf8_name(output):
         raise UsageError(f"{option} {output}: the file name is not UTF-8 text; choose another name")
@@ -424,7 +424,7 @@ def cmd_members(args: argparse.Namespace) -> int:
                 entry["forces"] = force_summary(d)
             models.append(entry)
         doc = {"models": models, "unmatched_force_rows": unmatched, "caution": CAUTION}
-        from modelcheck.files import writing
+        from modelcheck.common.files import writing
         from modelcheck.report.check_json import write_members_json
 
         if args.output is None:
@@ -448,7 +448,7 @@ def cmd_members(args: argparse.Namespace) -> int:
             guard_output(args.output, inputs)
         from contextlib import ExitStack
 
-        from modelcheck.files import writing
+        from modelcheck.common.files import writing
 
         with writing(args.output), ExitStack() as stack:
             sink = stack.enter_context(open(args.output, "w", encoding="utf-8")) if args.output else None
@@ -485,7 +485,7 @@ def force_summary(d: Any) -> dict[str, Any]:
 
 # ---------------------------------------------------------------------------- rules
 def cmd_rules(args: argparse.Namespace) -> int:
-    from modelcheck.files import writing
+    from modelcheck.common.files import writing
     from modelcheck.rules import ruleset as rs
     from modelcheck.rules import show
 
@@ -620,7 +620,7 @@ def cmd_check(args: argparse.Namespace) -> int:
     try:
         if args.annotate:   # first: the copy reads every entity, and may find a model unreadable
             _annotate(run, args.annotate, inputs)
-        from modelcheck.files import writing
+        from modelcheck.common.files import writing
 
         for fmt in files:
             with stage(f"write {fmt}"), writing(targets[fmt]):
@@ -638,7 +638,7 @@ def cmd_check(args: argparse.Namespace) -> int:
             from modelcheck.report.compare import comparison_renderable
 
             comp_view = comparison_renderable(comparison, width=con.width)
-        from modelcheck.files import writing
+        from modelcheck.common.files import writing
 
         with writing(None):
             render_check(run, con, comparison=comp_view, details=args.details)
@@ -730,7 +730,7 @@ def _annotate(run: Any, target: str, inputs: list[str]) -> None:
         guard_output(out, inputs, option="--annotate", new_folder=several)
     if several and readable:
         os.makedirs(target, exist_ok=True)
-    from modelcheck.files import writing
+    from modelcheck.common.files import writing
 
     for m, out in zip(readable, outs, strict=True):
         with writing(out):

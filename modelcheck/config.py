@@ -42,7 +42,7 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
-from modelcheck.errors import UsageError
+from modelcheck.common.errors import UsageError
 
 CONFIG_FILE = "modelcheck.toml"
 PYPROJECT = "pyproject.toml"

@@ -15,7 +15,7 @@ from __future__ import annotations
 from collections.abc import Callable, Sequence
 from typing import Any
 
-from modelcheck.errors import UsageError
+from modelcheck.common.errors import UsageError
 
 
 def run_on_cluster(address: str, paths: Sequence[str], ruleset_ref: str, forces: Any, validate: bool,

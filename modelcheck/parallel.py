@@ -38,9 +38,9 @@ import numpy as np
 import pandas as pd
 
 from modelcheck import lifetime
-from modelcheck.errors import ModelcheckError
+from modelcheck.common.errors import ModelcheckError
+from modelcheck.common.table import concat_rows
 from modelcheck.pipeline import REPORT_MEMBER_COLUMNS, CheckedModel, ForceOptions, ModelData, describe_model
-from modelcheck.table import concat_rows
 from modelcheck.timing import stage
 
 #: below this many members a model is checked in one process (forking costs more than it saves)
@@ -274,7 +274,7 @@ class _Forked:
     def _receive(self) -> Any:
         import pickle
 
-        from modelcheck import errors
+        from modelcheck.common import errors
 
         os.waitpid(self._pid, 0)   # the answer is whole once the helper has ended
         os.lseek(self._fd, 0, os.SEEK_SET)   # where the helper's writes left the shared offset

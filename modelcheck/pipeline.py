@@ -17,8 +17,8 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from modelcheck.errors import ModelcheckError, UsageError
-from modelcheck.table import REJECTED, concat_rows, empty_forces
+from modelcheck.common.errors import ModelcheckError, UsageError
+from modelcheck.common.table import REJECTED, concat_rows, empty_forces
 
 IFC_SUFFIXES = (".ifc", ".ifczip")
 
@@ -78,7 +78,7 @@ def expand_paths(items: list[str]) -> list[str]:
             out += found
         else:
             out.append(item)
-    from modelcheck.files import utf8_name
+    from modelcheck.common.files import utf8_name
 
     for p in out:   # reports name every model: a name they cannot write stops the run before it starts
         if not utf8_name(p):
@@ -455,10 +455,10 @@ def _slim_rows(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame,
     JSON-only report needs. The suggestions are
     worked out on a results table of the failing members' rows only. With ``sink`` the rows are
     written to it (after a separator when it holds rows already) and come back as b""."""
+    from modelcheck.common.table import STATUS_RANK
     from modelcheck.design.suggest import suggest
     from modelcheck.report.check_json import encode_check_rows
     from modelcheck.rules.engine import FAIL, check_rows
-    from modelcheck.table import STATUS_RANK
 
     rows = check_rows(ruleset, members, forces)
     if rows is None:
@@ -547,7 +547,7 @@ def coverage_of(ruleset: Any, members: pd.DataFrame, results: pd.DataFrame) -> C
     """The Coverage of ``members`` (one model, or a part of one) by their ``results``; the
     results' member positions and status codes (:data:`MEMBER_CODE`, :data:`STATUS_CODE`) are
     read and dropped here."""
-    from modelcheck.table import STATUS_RANK
+    from modelcheck.common.table import STATUS_RANK
 
     if MEMBER_CODE in results.columns:
         codes = results.pop(MEMBER_CODE).to_numpy(dtype=np.int64)
@@ -598,7 +598,7 @@ def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int
     to a Dask cluster instead. Results come back in the order of ``paths`` either way. ``units``:
     "model" shows each model's results in its own system, "SI" or "US" all in that one.
     """
-    from modelcheck.table import RESULT_COLUMNS
+    from modelcheck.common.table import RESULT_COLUMNS
 
     ref = str(ruleset.path)
     checked: list[CheckedModel] = []

@@ -35,8 +35,8 @@ from typing import Any
 
 import ifcopenshell.guid
 
-from modelcheck.ifc.author import ModelBuilder
-from modelcheck.ifc.author_analysis import AnalysisWriter
+from modelcheck.testing.author import ModelBuilder
+from modelcheck.testing.author_analysis import AnalysisWriter
 
 HERE = Path(__file__).resolve().parent
 TIMESTAMP = "2025-01-01T00:00:00"   # fixed so that a rebuild is byte-identical

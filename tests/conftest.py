@@ -1,4 +1,4 @@
-"""Shared fixtures: small models built in code with modelcheck.ifc.author."""
+"""Shared fixtures: small models built in code with modelcheck.testing.author."""
 
 from __future__ import annotations
 

@@ -25,7 +25,7 @@ from pathlib import Path
 from typing import Any
 
 from modelcheck.cli import main
-from modelcheck.ifc.author import ModelBuilder
+from modelcheck.testing.author import ModelBuilder
 
 #: the summary line of a model (one line, printed whatever the formats)
 SUMMARY_RE = re.compile(r"\): (nothing could be checked — )?\d+ members found, \d+ checked — ")

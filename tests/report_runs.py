@@ -11,8 +11,8 @@ from dataclasses import dataclass
 
 import pandas as pd
 
+from modelcheck.common.table import RESULT_COLUMNS
 from modelcheck.pipeline import REPORT_MEMBER_COLUMNS, CheckRun, ModelData
-from modelcheck.table import RESULT_COLUMNS
 
 # IFC GlobalIds are 22 characters of the base-64 alphabet 0-9 A-Z a-z _ $ (IFC standard)
 GID_A = "0aaaaaaaaaaaaaaaaaaaaA"

@@ -7,7 +7,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from modelcheck.table import member_columns
+from modelcheck.common.table import member_columns
 
 #: what every hand-built member has unless a row says otherwise
 DEFAULTS: dict[str, Any] = {"model": "m.ifc", "ifc_class": "IfcMember", "name": "Member",

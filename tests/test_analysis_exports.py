@@ -12,12 +12,12 @@ from typing import Any
 import pytest
 
 from modelcheck.cli import main
-from modelcheck.ifc.author import ModelBuilder
-from modelcheck.ifc.author_analysis import AnalysisWriter
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
 from modelcheck.loads.analysis import forces_from_analysis
 from modelcheck.pipeline import ForceOptions, check_model
+from modelcheck.testing.author import ModelBuilder
+from modelcheck.testing.author_analysis import AnalysisWriter
 
 KN = 1000.0   # SI prefix kilo: the file's force unit (kN) in newtons
 

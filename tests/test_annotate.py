@@ -10,9 +10,9 @@ import ifcopenshell.util.element as ue
 import pandas as pd
 import pytest
 
-from modelcheck.errors import ModelcheckError, UsageError
-from modelcheck.ifc.author import ModelBuilder
+from modelcheck.common.errors import ModelcheckError, UsageError
 from modelcheck.report.annotate import PSET_NAME, annotate_model
+from modelcheck.testing.author import ModelBuilder
 from tests.conftest import digest
 from tests.report_runs import result_row, results_frame
 

@@ -9,7 +9,7 @@ import zipfile
 
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
+from modelcheck.testing.author import ModelBuilder
 from tests.conftest import digest
 
 GOOD_HEADER = "ISO-10303-21;\nHEADER;\nFILE_DESCRIPTION(('ViewDefinition [CoordinationView]'),'2;1');\n" \

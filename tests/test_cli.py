@@ -15,8 +15,8 @@ from pathlib import Path
 import jsonschema
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
-from modelcheck.units import Q_
+from modelcheck.common.units import Q_
+from modelcheck.testing.author import ModelBuilder
 from tests.conftest import REPO, SAMPLES, digest
 
 SCHEMAS = REPO / "modelcheck" / "schemas"

@@ -20,8 +20,8 @@ from pathlib import Path
 import pytest
 
 from modelcheck.cli import main
-from modelcheck.ifc.author import ModelBuilder
 from modelcheck.rules.ruleset import list_rulesets
+from modelcheck.testing.author import ModelBuilder
 from tests.conftest import REPO, SAMPLES
 
 #: words a missing or non-finite value turns into when it leaks into text

@@ -8,7 +8,7 @@ import math
 import pytest
 from rich.console import Console
 
-from modelcheck.errors import UsageError
+from modelcheck.common.errors import UsageError
 from modelcheck.report.check_json import check_document
 from modelcheck.report.compare import compare, comparison_renderable, load_baseline, new_problems
 from tests.report_runs import GID_A, GID_B, GID_D, make_run

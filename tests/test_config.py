@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import pytest
 
+from modelcheck.common.errors import UsageError
 from modelcheck.config import KEYS, config_path, load_config
-from modelcheck.errors import UsageError
 
 FULL = """
 models = ["models/", "extra/*.ifc"]

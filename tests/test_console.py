@@ -21,12 +21,12 @@ import pytest
 from rich.cells import cell_len
 from rich.console import Console
 
-from modelcheck.ifc.author import ModelBuilder
+from modelcheck.common.units import Q_
 from modelcheck.pipeline import ForceOptions, run_check
 from modelcheck.report.console import DEFAULT_WIDTH, console_width, governing, render_check
 from modelcheck.rules.ruleset import load_ruleset
 from modelcheck.rules.select import Selector
-from modelcheck.units import Q_
+from modelcheck.testing.author import ModelBuilder
 from tests.conftest import REPO
 
 

@@ -13,11 +13,11 @@ import numpy as np
 import pytest
 from scipy.special import ellipe
 
-from modelcheck.ifc.author import ModelBuilder
 from modelcheck.ifc.curves import CurveError, curve_length
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.profiles import section_of
 from modelcheck.ifc.reader import read_members
+from modelcheck.testing.author import ModelBuilder
 
 DEG = math.pi / 180.0
 
@@ -331,7 +331,7 @@ def test_a_profile_swept_along_a_curved_directrix(tmp_path):
 def test_an_analysis_member_along_a_circular_edge(tmp_path, same_sense, quarters):
     """An IfcStructuralCurveMember whose edge is an IfcEdgeCurve on a circle of radius 5000 from
     (5000, 0) to (0, 5000): a quarter counter-clockwise (SameSense true), three quarters clockwise."""
-    from modelcheck.ifc.author_analysis import AnalysisWriter
+    from modelcheck.testing.author_analysis import AnalysisWriter
 
     mb = degree_model()
     f = mb.f

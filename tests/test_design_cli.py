@@ -15,10 +15,10 @@ from pathlib import Path
 
 import pytest
 
+from modelcheck.common.errors import ModelcheckError, UsageError
+from modelcheck.common.units import Q_
 from modelcheck.design.cli_size import add_size_parser, cmd_size, parse_force
-from modelcheck.errors import ModelcheckError, UsageError
 from modelcheck.report.members import CAUTION
-from modelcheck.units import Q_
 
 ROOT = Path(__file__).resolve().parents[1]
 

@@ -6,11 +6,11 @@ import math
 
 import pytest
 
+from modelcheck.common.errors import UsageError
+from modelcheck.common.units import Q_
 from modelcheck.design.sizing import size
 from modelcheck.design.stock import load_shapes
-from modelcheck.errors import UsageError
 from modelcheck.rules.ruleset import load_ruleset
-from modelcheck.units import Q_
 
 IN = 0.0254
 KSI = Q_(1, "ksi").m_as("Pa")       # pint

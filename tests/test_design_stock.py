@@ -16,11 +16,11 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from modelcheck.data import data_path
+from modelcheck.common.data import data_path
+from modelcheck.common.errors import RuleSetError
+from modelcheck.common.units import Q_
 from modelcheck.design import stock
-from modelcheck.errors import RuleSetError
 from modelcheck.rules.ruleset import load_ruleset
-from modelcheck.units import Q_
 
 IN = 0.0254          # m, exact (pint agrees: test_units)
 IN2 = IN**2

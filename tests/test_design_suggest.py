@@ -11,11 +11,11 @@ import numpy as np
 import pandas as pd
 import pytest
 
+from modelcheck.common.units import Q_
 from modelcheck.design import stock
 from modelcheck.design.suggest import suggest
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import load_ruleset
-from modelcheck.units import Q_
 from tests.tables import member_table
 
 NAN = np.nan

@@ -10,10 +10,10 @@ import distributed
 import pandas as pd
 import pytest
 
+from modelcheck.common.errors import UsageError
 from modelcheck.distributed import run_on_cluster
-from modelcheck.errors import UsageError
-from modelcheck.ifc.author import ModelBuilder
 from modelcheck.pipeline import ForceOptions, check_model
+from modelcheck.testing.author import ModelBuilder
 
 
 def echo_task(path, ruleset_ref, forces, validate, units="model"):

@@ -10,11 +10,11 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from modelcheck.errors import RuleSetError
+from modelcheck.common.errors import RuleSetError
+from modelcheck.common.table import RESULT_COLUMNS
+from modelcheck.common.units import Q_, ureg
 from modelcheck.rules.engine import evaluate_expression, run_checks
 from modelcheck.rules.ruleset import RuleSet, load_ruleset
-from modelcheck.table import RESULT_COLUMNS
-from modelcheck.units import Q_, ureg
 from tests.tables import member_table
 
 NAN = np.nan

@@ -8,9 +8,9 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from modelcheck.errors import ModelcheckError, RuleSetError
+from modelcheck.common.errors import ModelcheckError, RuleSetError
+from modelcheck.common.units import Q_
 from modelcheck.rules.expr import Cond, ExpressionError, Text, parse_expression
-from modelcheck.units import Q_
 
 NAN = np.nan
 

@@ -8,12 +8,12 @@ from typing import Any
 import pandas as pd
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
-from modelcheck.ifc.author_analysis import AnalysisWriter
+from modelcheck.common.table import FORCE_COLUMNS
+from modelcheck.common.units import Q_
 from modelcheck.ifc.index import ModelIndex, build_index
 from modelcheck.loads.analysis import forces_from_analysis
-from modelcheck.table import FORCE_COLUMNS
-from modelcheck.units import Q_
+from modelcheck.testing.author import ModelBuilder
+from modelcheck.testing.author_analysis import AnalysisWriter
 
 LBF_NIST = 4.4482216152605  # NIST SP 811: 1 lbf = 4.448 221 615 260 5 N (exact)
 KN = 1000.0                 # SI prefix kilo: the kN file's force unit in newtons

@@ -10,14 +10,14 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
-from modelcheck.ifc.author_analysis import AnalysisWriter
+from modelcheck.common.table import FORCE_COLUMNS
 from modelcheck.ifc.index import build_index
 from modelcheck.loads.analysis import forces_from_analysis
 from modelcheck.loads.join import ForceReport, join_forces
 from modelcheck.loads.properties import forces_from_property
 from modelcheck.loads.tables import read_load_table
-from modelcheck.table import FORCE_COLUMNS
+from modelcheck.testing.author import ModelBuilder
+from modelcheck.testing.author_analysis import AnalysisWriter
 
 KN = 1000.0  # SI prefix kilo
 

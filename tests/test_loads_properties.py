@@ -8,11 +8,11 @@ from typing import Any
 import pandas as pd
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
+from modelcheck.common.table import FORCE_COLUMNS
+from modelcheck.common.units import Q_
 from modelcheck.ifc.index import build_index
 from modelcheck.loads.properties import forces_from_property, parse_property_name
-from modelcheck.table import FORCE_COLUMNS
-from modelcheck.units import Q_
+from modelcheck.testing.author import ModelBuilder
 
 LBF_NIST = 4.4482216152605  # NIST SP 811: 1 lbf = 4.448 221 615 260 5 N (exact)
 PSET, PROP = "MC_MemberForces", "AxialForce"

@@ -12,10 +12,10 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from modelcheck.errors import LoadTableError
+from modelcheck.common.errors import LoadTableError
+from modelcheck.common.units import Q_, normalise_unit
 from modelcheck.loads import tables
 from modelcheck.loads.tables import LOAD_TABLE_COLUMNS, force_unit_factor, read_load_table
-from modelcheck.units import Q_, normalise_unit
 
 # NIST SP 811 (Appendix B): 1 lbf = 4.448 221 615 260 5 N, exact by definition
 # (0.453 592 37 kg × 9.806 65 m/s²); 1 kip = 1000 lbf.

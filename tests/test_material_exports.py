@@ -11,10 +11,10 @@ from typing import Any
 import pint
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
 from modelcheck.pipeline import ForceOptions, check_model
+from modelcheck.testing.author import ModelBuilder
 
 UREG = pint.UnitRegistry()   # an independent registry as the conversion reference
 

@@ -8,8 +8,8 @@ from pathlib import Path
 import pint
 import pytest
 
-from modelcheck.errors import RuleSetError
-from modelcheck.material_names import category_of_word, load_patterns, read_name
+from modelcheck.common.errors import RuleSetError
+from modelcheck.materials.names import category_of_word, load_patterns, read_name
 
 UREG = pint.UnitRegistry()  # an independent registry as the conversion reference
 

@@ -8,8 +8,8 @@ from pathlib import Path
 import pint
 import pytest
 
-from modelcheck.errors import RuleSetError
-from modelcheck.materials import (
+from modelcheck.common.errors import RuleSetError
+from modelcheck.materials.library import (
     load_library,
     match_candidates,
     match_material,

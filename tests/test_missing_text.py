@@ -13,12 +13,12 @@ import numpy as np
 import pandas as pd
 import pytest
 
+from modelcheck.common.table import concat_rows, frame_of, text_column
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
 from modelcheck.loads.tables import read_load_table
 from modelcheck.pipeline import ForceOptions, read_model, run_check
 from modelcheck.rules.ruleset import load_ruleset
-from modelcheck.table import concat_rows, frame_of, text_column
 from tests.conftest import SAMPLES
 from tests.test_command_matrix import lacking_model
 

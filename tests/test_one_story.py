@@ -34,7 +34,7 @@ import ifcopenshell
 import ifcopenshell.util.element as ue
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
+from modelcheck.testing.author import ModelBuilder
 from tests.conftest import REPO
 from tests.corpus import run_inprocess
 

@@ -3,7 +3,7 @@ for areas and volumes), derived units, conversion-based chains, and values that 
 file in its own units and come back out in SI.
 
 The reference is pint's own unit definitions throughout (``# pint`` beside each comparison):
-pint knows 'centimeter ** 2', 'inch', 'kip' and 'ksi' independently of modelcheck.units.
+pint knows 'centimeter ** 2', 'inch', 'kip' and 'ksi' independently of modelcheck.common.units.
 """
 
 from __future__ import annotations
@@ -16,9 +16,9 @@ import ifcopenshell
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from modelcheck.ifc.author import ModelBuilder
+from modelcheck.common.units import Q_, UnitContext, si_unit_quantity, unit_quantity
 from modelcheck.ifc.index import build_index, property_si
-from modelcheck.units import Q_, UnitContext, si_unit_quantity, unit_quantity
+from modelcheck.testing.author import ModelBuilder
 
 FAST = settings(max_examples=50, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
 SCHEMAS = ("IFC2X3", "IFC4", "IFC4X3")

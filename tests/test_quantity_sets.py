@@ -10,9 +10,9 @@ from typing import Any
 
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
+from modelcheck.testing.author import ModelBuilder
 
 #: HEA 360 (EN 10365, from memory): h 350, b 300, tw 10, tf 17.5, r 27 mm; A = 142.8 cm²
 HEA360 = dict(OverallWidth=300.0, OverallDepth=350.0, WebThickness=10.0, FlangeThickness=17.5, FilletRadius=27.0)

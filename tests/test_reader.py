@@ -6,10 +6,10 @@ import math
 
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
+from modelcheck.common.units import Q_
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
-from modelcheck.units import Q_
+from modelcheck.testing.author import ModelBuilder
 
 
 def members_of(path):

@@ -19,8 +19,8 @@ import pandas as pd
 import pytest
 
 from modelcheck.cli import main
-from modelcheck.ifc.author import ModelBuilder
 from modelcheck.pipeline import member_warnings, merge_member_warnings
+from modelcheck.testing.author import ModelBuilder
 from tests.conftest import REPO
 
 FORCE = "MC_MemberForces"

@@ -25,8 +25,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from modelcheck.ifc.author import ModelBuilder
 from modelcheck.ifc.outline import MAX_OUTLINE_POINTS, crossing_edges
+from modelcheck.testing.author import ModelBuilder
 from tests.corpus import (
     digests,
     good_builder,

@@ -17,7 +17,7 @@ from typing import Any
 
 import pytest
 
-from modelcheck.errors import LoadTableError
+from modelcheck.common.errors import LoadTableError
 from modelcheck.loads.tables import read_load_table
 from tests.corpus import good_builder, member_ids, profile_position, run_inprocess, run_process, write_model
 

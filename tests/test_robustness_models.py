@@ -17,10 +17,10 @@ from typing import Any
 
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
 from modelcheck.pipeline import ForceOptions, read_model
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import load_ruleset
+from modelcheck.testing.author import ModelBuilder
 from tests.conftest import REPO
 from tests.corpus import (
     data_lines,

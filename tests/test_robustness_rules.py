@@ -20,7 +20,7 @@ import pytest
 from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
-from modelcheck.errors import RuleSetError
+from modelcheck.common.errors import RuleSetError
 from modelcheck.pipeline import ForceOptions, read_model
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import load_ruleset, validate_ruleset_file

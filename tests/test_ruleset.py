@@ -7,14 +7,14 @@ from pathlib import Path
 
 import pytest
 
-from modelcheck.errors import RuleSetError
+from modelcheck.common.errors import RuleSetError
+from modelcheck.common.units import Q_
 from modelcheck.rules.ruleset import (
     load_ruleset,
     resolve_ruleset,
     shipped_names,
     validate_ruleset_file,
 )
-from modelcheck.units import Q_
 
 HEAD = """\
 [ruleset]

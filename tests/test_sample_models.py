@@ -23,7 +23,7 @@ import pandas as pd
 import pint
 import pytest
 
-from modelcheck.materials import plausible_range
+from modelcheck.materials.library import plausible_range
 
 REPO = Path(__file__).resolve().parents[1]
 SAMPLES = REPO / "sample_models"

@@ -150,6 +150,6 @@ def test_every_stock_bar_is_what_the_profile_functions_give(ruleset: str) -> Non
 @pytest.mark.parametrize("name", TABLES)
 def test_the_tables_are_as_their_dimensions_compute_them(name: str) -> None:
     # recomputing A and r_min from the dimensions changes nothing in the shipped file
-    from modelcheck.data import data_path
+    from modelcheck.common.data import data_path
 
     assert shape_tables.refresh(name) == data_path(name).read_text(encoding="utf-8")

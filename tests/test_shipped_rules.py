@@ -14,10 +14,10 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from modelcheck.data import data_path
+from modelcheck.common.data import data_path
+from modelcheck.common.units import Q_
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import RuleSet, load_ruleset
-from modelcheck.units import Q_
 from tests.tables import member_table
 
 NAN = np.nan

@@ -10,10 +10,10 @@ from typing import Any
 
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
+from modelcheck.common.units import Q_
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
-from modelcheck.units import Q_
+from modelcheck.testing.author import ModelBuilder
 from tests.test_quantity_sets import HEA360, HEA360_AREA, with_faceted_body
 
 #: an IPE 200 by its dimensions (EN 10365, from memory: h 200, b 100, tw 5.6, tf 8.5, r 12):

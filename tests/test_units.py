@@ -7,8 +7,8 @@ import math
 import ifcopenshell
 import pytest
 
-from modelcheck.ifc.author import ModelBuilder
-from modelcheck.units import Q_, MissingUnit, UnitContext, si_unit_quantity, unit_quantity
+from modelcheck.common.units import Q_, MissingUnit, UnitContext, si_unit_quantity, unit_quantity
+from modelcheck.testing.author import ModelBuilder
 
 
 def _si(f, utype, name, prefix=None):

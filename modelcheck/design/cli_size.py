@@ -17,7 +17,7 @@ import math
 import sys
 from typing import Any
 
-from modelcheck.errors import UsageError
+from modelcheck.common.errors import UsageError
 
 #: the --shape choices (modelcheck.design.sizing.SHAPES; written here so that building the
 #: command line does not import the sizing machinery — start-up time counts)
@@ -56,10 +56,10 @@ def add_size_parser(subparsers: Any) -> argparse.ArgumentParser:
 
 
 def parse_force(text: str) -> float:
-    """'12 kip', '1 1/2 kip', '50 kN' -> newtons, read by :func:`modelcheck.units.parse_quantity`
+    """'12 kip', '1 1/2 kip', '50 kN' -> newtons, read by :func:`modelcheck.common.units.parse_quantity`
     (the reader of every number with a unit); no unit, or a unit that is not a force, is a
     UsageError."""
-    from modelcheck.units import QuantityTextError, parse_quantity
+    from modelcheck.common.units import QuantityTextError, parse_quantity
 
     try:
         return parse_quantity(text or "", "force", what="--force").si()
@@ -68,7 +68,7 @@ def parse_force(text: str) -> float:
 
 
 def parse_length_arg(option: str, text: str | None) -> float | None:
-    from modelcheck.units import QuantityTextError, parse_quantity
+    from modelcheck.common.units import QuantityTextError, parse_quantity
 
     if text is None:
         return None
@@ -89,7 +89,7 @@ def cmd_size(args: argparse.Namespace) -> int:
     ruleset = load_ruleset(args.rules)
     result = size(ruleset, force, material=args.material, shape=args.shape, thickness=thickness,
                   length=length, family=tuple(args.family) if args.family else None)
-    from modelcheck.files import writing
+    from modelcheck.common.files import writing
 
     with writing(None):
         if args.format == "json":
@@ -105,7 +105,7 @@ def cmd_size(args: argparse.Namespace) -> int:
 def _fmt(q: dict[str, Any] | None, digits: str = ".4g") -> str:
     if q is None:
         return "—"
-    from modelcheck.units import ureg
+    from modelcheck.common.units import ureg
 
     unit = f"{ureg.Unit(q['unit']):~P}" if q["unit"] else ""
     return f"{format(q['value'], digits)} {unit}".strip()

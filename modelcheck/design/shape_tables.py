@@ -32,8 +32,8 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import Any
 
-from modelcheck.data import data_path
-from modelcheck.errors import RuleSetError
+from modelcheck.common.data import data_path
+from modelcheck.common.errors import RuleSetError
 
 #: the shipped shape tables
 TABLES: tuple[str, ...] = ("shapes-aisc.csv", "shapes-en.csv")
@@ -141,7 +141,7 @@ def computed_properties(name: str) -> dict[str, tuple[float, float]]:
     r_min columns, computed from the row's dimensions."""
     import ifcopenshell
 
-    from modelcheck.units import Q_, parse_unit
+    from modelcheck.common.units import Q_, parse_unit
 
     table = read_table(name)
     f = ifcopenshell.file(schema="IFC4")

@@ -38,9 +38,9 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from modelcheck.common.errors import UsageError
+from modelcheck.common.units import Q_, ureg
 from modelcheck.design import stock
-from modelcheck.errors import UsageError
-from modelcheck.units import Q_, ureg
 
 SHAPES: tuple[str, ...] = ("round", "square", "flat", "threaded", "catalog")  # = cli_size.SHAPE_CHOICES
 
@@ -176,7 +176,7 @@ def _qd(value: float, unit: str) -> dict[str, Any] | None:
 
 def resolve_material(name: str | None, ruleset: Any) -> dict[str, Any]:
     """Library values of a material name (default by the rule set's units) as member-table values."""
-    from modelcheck.materials import match_candidates, match_material
+    from modelcheck.materials.library import match_candidates, match_material
 
     text = name or DEFAULT_MATERIAL.get(getattr(ruleset, "units", "SI"), "S235")
     grade = match_material(text)
@@ -185,7 +185,7 @@ def resolve_material(name: str | None, ruleset: Any) -> dict[str, Any]:
         if found:
             raise UsageError(f"--material {text!r} matches several grades equally well: "
                              + ", ".join(g.grade for g, _ in found[:6]) + "; name one of them")
-        from modelcheck.materials import load_library
+        from modelcheck.materials.library import load_library
 
         known = ", ".join(m.grade for m in load_library().materials)
         raise UsageError(f"--material {text!r} matches no grade of the material library (rulesets/materials.toml); "

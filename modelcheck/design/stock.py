@@ -9,7 +9,7 @@ Where the sizes come from (data, not code):
   1/2 in wide steps (common practice). SI: the rolled sizes of EN 10060 (round), EN 10059
   (square) and EN 10058 (flat) — the sizes mills roll and stockholders carry, rather than a
   1 mm step that would propose bars to be turned down from the next rolled size.
-* ``rulesets/threads.toml`` through :mod:`modelcheck.threads`: ASME B1.1 UNC and ISO 261 coarse
+* ``rulesets/threads.toml`` through :mod:`modelcheck.design.screw_threads`: ASME B1.1 UNC and ISO 261 coarse
   threads with their tensile-stress areas.
 * ``rulesets/shapes-aisc.csv`` and ``rulesets/shapes-en.csv``: catalog sections, each row naming
   its source.
@@ -46,10 +46,10 @@ import numpy as np
 import pandas as pd
 import pint
 
-from modelcheck.data import data_path
-from modelcheck.errors import RuleSetError
-from modelcheck.threads import INCH, thread_series
-from modelcheck.units import Q_, QuantityTextError, parse_quantity, parse_unit
+from modelcheck.common.data import data_path
+from modelcheck.common.errors import RuleSetError
+from modelcheck.common.units import Q_, QuantityTextError, parse_quantity, parse_unit
+from modelcheck.design.screw_threads import INCH, thread_series
 
 #: columns of a candidate table
 CANDIDATE_COLUMNS: tuple[str, ...] = (
@@ -71,7 +71,7 @@ _HEADER_RE = re.compile(r"\s*([A-Za-z_][A-Za-z_0-9]*)\s*(?:\[(.+)\])?\s*\Z")
 
 def parse_length(text: str, what: str = "length") -> tuple[Fraction, str]:
     """'1 1/2 in' -> (3/2, 'in'); '20 mm' -> (20, 'mm'), read by
-    :func:`modelcheck.units.parse_quantity`. Raises ValueError naming ``what``."""
+    :func:`modelcheck.common.units.parse_quantity`. Raises ValueError naming ``what``."""
     try:
         q = parse_quantity(str(text), "length", what=what)
     except QuantityTextError as exc:
@@ -480,7 +480,7 @@ def as_members(candidates: pd.DataFrame, *, base: Mapping[str, Any] | None = Non
     sources, material names, length, ifc_class …); the name is the candidate's label unless
     ``base`` sets one.
     """
-    from modelcheck.table import member_columns
+    from modelcheck.common.table import member_columns
 
     n = len(candidates)
     base = dict(base or {})

@@ -35,9 +35,9 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from modelcheck.common.units import Q_
 from modelcheck.design import stock
 from modelcheck.rules.select import Selector
-from modelcheck.units import Q_
 
 #: pairs per run_checks call (a memory bound for very large failing sets)
 CHUNK = 200_000
@@ -63,7 +63,7 @@ def _rodlike(members: pd.DataFrame) -> np.ndarray:
 
 def _groups(members: pd.DataFrame, series: stock.StockSeries) -> tuple[list[Any], np.ndarray]:
     """Candidate-group key of every member (None: no suggestion) and a note where None."""
-    from modelcheck.threads import thread_tensile_area
+    from modelcheck.design.screw_threads import thread_tensile_area
 
     n = len(members)
     keys: list[Any] = [None] * n

@@ -22,19 +22,8 @@ from typing import Any
 
 import ifcopenshell
 
-from modelcheck.errors import ModelReadError
-from modelcheck.ifc.opening import (  # noqa: F401  (re-exported: the index is where a model is opened)
-    SUPPORTED_SCHEMAS,
-    _open,
-    _parser_problems,
-    _schema_of,
-    explain_parse_error,
-    is_parse_error,
-    open_model,
-    open_model_checked,
-    raise_if_parse_error,
-)
-from modelcheck.units import (
+from modelcheck.common.errors import ModelReadError
+from modelcheck.common.units import (
     MEASURE_UNIT_TYPE,
     UNITLESS_MEASURES,
     MissingUnit,
@@ -45,6 +34,17 @@ from modelcheck.units import (
     pint,
     unit_label,
     unit_quantity,
+)
+from modelcheck.ifc.opening import (  # noqa: F401  (re-exported: the index is where a model is opened)
+    SUPPORTED_SCHEMAS,
+    _open,
+    _parser_problems,
+    _schema_of,
+    explain_parse_error,
+    is_parse_error,
+    open_model,
+    open_model_checked,
+    raise_if_parse_error,
 )
 
 

@@ -14,8 +14,8 @@ from typing import Any
 
 import ifcopenshell
 
-from modelcheck.errors import ModelReadError
-from modelcheck.files import input_file
+from modelcheck.common.errors import ModelReadError
+from modelcheck.common.files import input_file
 
 SUPPORTED_SCHEMAS = ("IFC2X3", "IFC4", "IFC4X3")
 

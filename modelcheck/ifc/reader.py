@@ -27,7 +27,7 @@ becomes a warning on the member, both values named):
   values and both sources.
 * material: on the occurrence (directly or via profile / layer / constituent sets and lists),
   else on its type. Its category and grade from IfcMaterial.Category and its name
-  (``modelcheck.material_names``; "unknown" when nothing recognises them). Mechanical values by the
+  (``modelcheck.materials.names``; "unknown" when nothing recognises them). Mechanical values by the
   trade's property names (``MATERIAL_PROPERTIES``) from any material property set, buildingSMART's
   first (Pset_*, IFC2X3's IfcMechanical(Steel)MaterialProperties and IfcGeneralMaterialProperties),
   then the others (named after the material or the program) in file order; then a yield strength
@@ -48,6 +48,8 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from modelcheck.common.table import frame_of, member_columns
+from modelcheck.common.units import UNITLESS_MEASURES, MissingUnit, UnusableOwnUnit, UnusableUnit
 from modelcheck.ifc.curves import CurveError, curve_length, edge_curve_length
 from modelcheck.ifc.index import (
     ModelIndex,
@@ -58,8 +60,6 @@ from modelcheck.ifc.index import (
     raise_if_parse_error,
 )
 from modelcheck.ifc.profiles import ProfileSection, UnsupportedProfile, section_of
-from modelcheck.table import frame_of, member_columns
-from modelcheck.units import UNITLESS_MEASURES, MissingUnit, UnusableOwnUnit, UnusableUnit
 
 #: classes that are always axial-member candidates (subtypes included)
 MEMBER_CLASSES = ("IfcMember", "IfcColumn", "IfcBeam", "IfcTendon")
@@ -291,7 +291,7 @@ class _Reader:
         mat = mats[0]
         info = self._material_info(mat)
         if len({m.id() for m in mats}) > 1:
-            from modelcheck.materials import UNKNOWN
+            from modelcheck.materials.library import UNKNOWN
 
             names = ", ".join(sorted({str(m.Name) for m in mats}))
             # structural categories among them (not "other": a coat of paint, an insulation)
@@ -315,8 +315,8 @@ class _Reader:
         key = mat.id()
         if key in self._material_cache:
             return self._material_cache[key]
-        from modelcheck.material_names import read_name
-        from modelcheck.materials import UNKNOWN, match_material
+        from modelcheck.materials.library import UNKNOWN, match_material
+        from modelcheck.materials.names import read_name
 
         values: dict[str, tuple[float, str]] = {}
         warnings: list[str] = []
@@ -406,7 +406,7 @@ class _Reader:
                       found: dict[str, tuple[str, str]]) -> None:
         """A value outside its category's plausible range is not used: NaN in ``values``, and
         what was found and why in ``rejected``."""
-        from modelcheck.materials import plausible_ranges
+        from modelcheck.materials.library import plausible_ranges
 
         ranges = plausible_ranges(category)
         for q, (v, src) in list(values.items()):
@@ -1231,7 +1231,7 @@ def member_keys(idx: ModelIndex, entities: list[tuple[Any, bool]]) -> tuple[list
 
 def read_members(idx: ModelIndex, *, use_library: bool = True,
                  entities: list[tuple[Any, bool]] | None = None) -> pd.DataFrame:
-    """The member table of one model (see ``modelcheck.table``); of ``entities`` only (as
+    """The member table of one model (see ``modelcheck.common.table``); of ``entities`` only (as
     ``member_entities`` gives them) when given."""
     reader = _Reader(idx, use_library)
     rows: list[tuple[Any, ...]] = []

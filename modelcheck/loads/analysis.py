@@ -89,10 +89,10 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from modelcheck.common.table import FORCE_COLUMNS, empty_forces, frame_of
 from modelcheck.ifc.index import ModelIndex
 from modelcheck.loads.messages import MessageLog
 from modelcheck.loads.tables import DEFAULT_LOAD_CASE
-from modelcheck.table import FORCE_COLUMNS, empty_forces, frame_of
 
 #: curve-reaction types whose load configuration is a distribution of the internal force
 DISTRIBUTION_TYPES = frozenset({"LINEAR", "POLYGONAL", "EQUIDISTANT", "SINUS", "PARABOLA"})

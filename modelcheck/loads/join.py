@@ -44,7 +44,7 @@ from typing import Any, Literal, NamedTuple
 import numpy as np
 import pandas as pd
 
-from modelcheck.table import FORCE_COLUMNS, empty_forces
+from modelcheck.common.table import FORCE_COLUMNS, empty_forces
 
 #: route names, in order of precedence (lower index wins)
 ROUTES: tuple[str, ...] = ("table", "analysis", "property")

@@ -33,11 +33,8 @@ import numpy as np
 import pandas as pd
 import pint
 
-from modelcheck.ifc.index import ModelIndex
-from modelcheck.loads.messages import MessageLog
-from modelcheck.loads.tables import DEFAULT_LOAD_CASE, VALUE_RE, ForceUnitError, force_unit_factor
-from modelcheck.table import FORCE_COLUMNS, empty_forces, frame_of
-from modelcheck.units import (
+from modelcheck.common.table import FORCE_COLUMNS, empty_forces, frame_of
+from modelcheck.common.units import (
     MissingUnit,
     UnitDefinitionError,
     UnusableUnit,
@@ -46,6 +43,9 @@ from modelcheck.units import (
     unit_quantity,
     ureg,
 )
+from modelcheck.ifc.index import ModelIndex
+from modelcheck.loads.messages import MessageLog
+from modelcheck.loads.tables import DEFAULT_LOAD_CASE, VALUE_RE, ForceUnitError, force_unit_factor
 
 _NUMBER_UNIT = re.compile(VALUE_RE)   # a number and its unit, as a load table's cell is read
 _TEXT_MEASURES = frozenset({"IfcLabel", "IfcText", "IfcIdentifier"})

@@ -25,7 +25,7 @@ The header is the first row (within the first 20) that names a key column and ``
 title lines above it are skipped. Empty rows are skipped. Everything else that is wrong — a bare
 number with no unit anywhere, a unit that is not a force, an empty or non-finite force, a row
 without a key, an empty file, a binary file, an undecodable text file, a missing column — raises
-:class:`~modelcheck.errors.LoadTableError` naming the file and the row as a spreadsheet shows it
+:class:`~modelcheck.common.errors.LoadTableError` naming the file and the row as a spreadsheet shows it
 (the header row of a plain table is row 1).
 
 Text encodings: UTF-8 (with or without a byte-order mark) and UTF-16 with a byte-order mark are
@@ -55,10 +55,10 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from modelcheck.errors import LoadTableError
-from modelcheck.files import input_file
-from modelcheck.table import frame_of
-from modelcheck.units import VALUE_PATTERN, QuantityTextError, parse_number, unit_factor
+from modelcheck.common.errors import LoadTableError
+from modelcheck.common.files import input_file
+from modelcheck.common.table import frame_of
+from modelcheck.common.units import VALUE_PATTERN, QuantityTextError, parse_number, unit_factor
 
 #: columns of the table ``read_load_table`` returns
 LOAD_TABLE_COLUMNS: tuple[str, ...] = ("key_kind", "key", "load_case", "axial_force", "source")
@@ -70,7 +70,7 @@ DEFAULT_LOAD_CASE = "default"
 _CANONICAL = {"globalid": "global_id", "tag": "tag", "axialforce": "axial_force", "loadcase": "load_case"}
 _HEADER_SEARCH_ROWS = 20
 _HEADER_RE = re.compile(r"^\s*(?P<name>[^\[\(]*?)\s*(?:\[(?P<u1>[^\]]*)\]|\((?P<u2>[^\)]*)\))?\s*$")
-#: a number and the unit after it, as a cell or a property's text gives them (modelcheck.units)
+#: a number and the unit after it, as a cell or a property's text gives them (modelcheck.common.units)
 VALUE_RE = VALUE_PATTERN
 _CONTROL_RE = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f]")
 _OLE_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
@@ -638,7 +638,7 @@ def _in_newtons(numbers: np.ndarray, factors: np.ndarray, raw: pd.Series, name: 
 
 def _numbers(text: pd.Series, raw: pd.Series, name: str, where: Callable[[int], str], rows: np.ndarray) -> np.ndarray:
     """The numbers of a column of number texts: decimals at once, fractions ('3/8', '1 1/2')
-    each as modelcheck.units.parse_number reads them."""
+    each as modelcheck.common.units.parse_number reads them."""
     frac = text.str.contains("/", regex=False).to_numpy(dtype=bool)
     if not frac.any():
         return text.astype(float).to_numpy()

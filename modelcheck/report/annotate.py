@@ -33,8 +33,8 @@ from typing import Any
 
 import pandas as pd
 
-from modelcheck.errors import ModelcheckError, UsageError
-from modelcheck.table import STATUS_RANK
+from modelcheck.common.errors import ModelcheckError, UsageError
+from modelcheck.common.table import STATUS_RANK
 
 PSET_NAME = "MC_CheckResult"
 _NAMESPACE = uuid.UUID("b7d2e4f0-3c5a-4e61-8f2d-9a0c1e7b5d34")

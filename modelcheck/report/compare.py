@@ -35,9 +35,9 @@ from collections.abc import Iterable
 from pathlib import Path
 from typing import Any
 
-from modelcheck.errors import UsageError
-from modelcheck.files import input_file
-from modelcheck.table import STATUS_RANK
+from modelcheck.common.errors import UsageError
+from modelcheck.common.files import input_file
+from modelcheck.common.table import STATUS_RANK
 
 Key = tuple[str, str, str, str]      # model name, GlobalId, check, load case ("" when none)
 

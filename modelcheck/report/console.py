@@ -27,9 +27,9 @@ from rich.console import Console, Group
 from rich.table import Table
 from rich.text import Text
 
+from modelcheck.common.table import STATUS_RANK
 from modelcheck.report.members import CAUTION
 from modelcheck.report.text import number, shown
-from modelcheck.table import STATUS_RANK
 
 #: console width from which the failing and unchecked lists show every detail
 DETAILS_WIDTH = 160
@@ -334,7 +334,7 @@ def _limits(columns: list[tuple[str, str, list[str]]]) -> tuple[list[int], list[
 
 
 def _unit_label(unit: Any) -> str:
-    from modelcheck.units import ureg
+    from modelcheck.common.units import ureg
 
     text = _text(unit)
     if text is None:

@@ -7,8 +7,8 @@ from typing import Any
 
 import pandas as pd
 
+from modelcheck.common.table import REJECTED
 from modelcheck.report.quantities import DisplayUnits
-from modelcheck.table import REJECTED
 
 CAUTION = ("modelcheck screens models for data and axial-stress problems; it does not replace design "
            "and checking by a licensed engineer under the governing local code.")
@@ -243,7 +243,7 @@ def _unit_header(text: str) -> str:
     if "[" not in text:
         return text
     head, unit = text[:-1].split("[", 1)
-    from modelcheck.units import ureg
+    from modelcheck.common.units import ureg
 
     try:
         return f"{head}[{ureg.Unit(unit):~P}]"

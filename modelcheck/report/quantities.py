@@ -11,7 +11,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 from typing import Any
 
-from modelcheck.units import Q_
+from modelcheck.common.units import Q_
 
 #: display unit per member-table quantity, per system (pint-parsable strings)
 DISPLAY: dict[str, dict[str, str]] = {

@@ -23,13 +23,13 @@ import numpy as np
 import pandas as pd
 import pint
 
-from modelcheck.errors import RuleSetError
+from modelcheck.common.errors import RuleSetError
+from modelcheck.common.table import REJECTED, RESULT_COLUMNS, SECTION_VALUE_COLUMNS, STATUS_RANK, frame_of
+from modelcheck.common.units import Q_, ureg
+from modelcheck.design.screw_threads import thread_tensile_area
 from modelcheck.rules.expr import Cond, Expression, ExpressionError, Text, Value, parse_expression
 from modelcheck.rules.names import MEMBER_QUANTITIES, TEXT_NAMES
 from modelcheck.rules.ruleset import Check, RuleSet, Scope
-from modelcheck.table import REJECTED, RESULT_COLUMNS, SECTION_VALUE_COLUMNS, STATUS_RANK, frame_of
-from modelcheck.threads import thread_tensile_area
-from modelcheck.units import Q_, ureg
 
 #: columns of the results table: the contract's, then extras
 EXTRA_COLUMNS: tuple[str, ...] = ("clause", "title")
@@ -541,8 +541,8 @@ def run_checks(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
                checks: list[str] | None = None, *, messages: bool = True) -> pd.DataFrame:
     """Results of ``ruleset`` (or of the listed ``checks`` of it) over ``members`` and ``forces``.
 
-    ``members`` has the columns of :func:`modelcheck.table.member_columns` (absent columns count
-    as missing values); ``forces`` those of :data:`modelcheck.table.FORCE_COLUMNS` (tension
+    ``members`` has the columns of :func:`modelcheck.common.table.member_columns` (absent columns count
+    as missing values); ``forces`` those of :data:`modelcheck.common.table.FORCE_COLUMNS` (tension
     positive, newtons). Returns the columns :data:`COLUMNS` in the order (model, global_id,
     check order in the file, load case in the natural order of its name: LC2 before LC10).
     ``messages=False`` leaves the message of checked results empty (sizing and suggestions

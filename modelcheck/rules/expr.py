@@ -23,7 +23,7 @@ Conditions have three values: true, false, and unknown (a comparison with a miss
 ``and``/``or``/``not`` follow that logic (false and unknown = false; true or unknown = true),
 ``where``/``if`` of an unknown condition is a missing number.
 
-Errors are :class:`ExpressionError` (a :class:`~modelcheck.errors.RuleSetError`); the rule-set
+Errors are :class:`ExpressionError` (a :class:`~modelcheck.common.errors.RuleSetError`); the rule-set
 loader adds the file, line and check id. Nothing else escapes, whatever the text.
 """
 
@@ -43,8 +43,8 @@ import numpy as np
 import pandas as pd
 import pint
 
-from modelcheck.errors import RuleSetError
-from modelcheck.units import Q_, QuantityTextError, parse_unit, ureg
+from modelcheck.common.errors import RuleSetError
+from modelcheck.common.units import Q_, QuantityTextError, parse_unit, ureg
 
 MAX_LENGTH = 2000          # characters of one expression
 MAX_DEPTH = 32             # nesting depth of the syntax tree

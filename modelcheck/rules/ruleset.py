@@ -26,7 +26,8 @@ from typing import Any
 import numpy as np
 import pint
 
-from modelcheck.errors import RuleSetError
+from modelcheck.common.errors import RuleSetError
+from modelcheck.common.units import Q_, QuantityTextError, normalise_unit, parse_unit, split_quantity, ureg
 from modelcheck.rules.expr import (
     Cond,
     Expression,
@@ -41,7 +42,6 @@ from modelcheck.rules.expr import (
 )
 from modelcheck.rules.names import MEMBER_QUANTITIES, MESSAGE_NAMES, RESERVED, TEXT_NAMES
 from modelcheck.rules.select import SELECTOR_KEYS, Selector, ifc_class_name
-from modelcheck.units import Q_, QuantityTextError, normalise_unit, parse_unit, split_quantity, ureg
 
 # ---------------------------------------------------------------------------------------------
 # display units
@@ -920,7 +920,7 @@ class RuleSetErrors(RuleSetError):
 
 def resolve_ruleset(name_or_path: str | Path) -> Path:
     """A shipped rule set by name ('steel-asd-us'), or a file by path."""
-    from modelcheck.data import data_dir
+    from modelcheck.common.data import data_dir
 
     text = str(name_or_path)
     candidate = Path(text)
@@ -942,7 +942,7 @@ def resolve_ruleset(name_or_path: str | Path) -> Path:
 
 def shipped_names() -> list[str]:
     """File stems of the shipped rule sets (TOML files in the data folder with a [ruleset] table)."""
-    from modelcheck.data import data_dir
+    from modelcheck.common.data import data_dir
 
     names = []
     for p in sorted(data_dir().glob("*.toml")):
@@ -1006,6 +1006,6 @@ def ruleset_warnings(ruleset: RuleSet) -> list[str]:
 
 def list_rulesets() -> list[RuleSet]:
     """The shipped rule sets, by name."""
-    from modelcheck.data import data_dir
+    from modelcheck.common.data import data_dir
 
     return sorted((load_ruleset(data_dir() / f"{n}.toml") for n in shipped_names()), key=lambda r: r.name)

@@ -16,9 +16,9 @@ from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
+from modelcheck.common.units import ureg
 from modelcheck.report.text import MAX_LINE, shown
 from modelcheck.rules.ruleset import RuleSet
-from modelcheck.units import ureg
 
 
 def _e(text: str) -> str:

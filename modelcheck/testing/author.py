@@ -2,7 +2,7 @@
 
 Example::
 
-    from modelcheck.ifc.author import ModelBuilder
+    from modelcheck.testing.author import ModelBuilder
     mb = ModelBuilder(schema="IFC4", units="mm")
     steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
     rod = mb.f.createIfcCircleProfileDef("AREA", "RD20", None, 10.0)

@@ -8,7 +8,7 @@ from collections.abc import Iterator
 from contextlib import contextmanager
 from pathlib import Path
 
-from modelcheck.errors import ModelcheckError
+from modelcheck.common.errors import ModelcheckError
 
 
 def input_file(path: str | os.PathLike[str], error: type[ModelcheckError], what: str) -> Path:
@@ -52,7 +52,7 @@ def writing(path: str | os.PathLike[str] | None) -> Iterator[None]:
     """Around the writing of an output: an OSError on the way (a full disk, ``/dev/full``, no
     permission) becomes an :class:`OutputError` naming ``path`` (None: standard output). A closed
     pipe (a reader that stopped, as ``head`` does) is left to the caller."""
-    from modelcheck.errors import OutputError
+    from modelcheck.common.errors import OutputError
 
     try:
         yield

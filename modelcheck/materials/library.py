@@ -7,7 +7,7 @@ source the file names beside it.
 
 Example::
 
-    >>> from modelcheck.materials import match_material
+    >>> from modelcheck.materials.library import match_material
     >>> m = match_material("ASTM A36 plate")
     >>> m.grade, round(m.Fy / 1e6, 1), m.Fy_source
     ('ASTM A36', 248.2, 'rulesets/materials.toml: ASTM A36')
@@ -38,9 +38,9 @@ from typing import Any
 
 import pint
 
-from modelcheck.data import data_path
-from modelcheck.errors import RuleSetError
-from modelcheck.units import QuantityTextError, parse_quantity
+from modelcheck.common.data import data_path
+from modelcheck.common.errors import RuleSetError
+from modelcheck.common.units import QuantityTextError, parse_quantity
 
 #: material categories ("unknown" is the fallback of plausible_range: a name nothing recognises)
 CATEGORIES: tuple[str, ...] = ("steel", "stainless", "aluminium", "concrete", "timber", "masonry", "other")

@@ -24,7 +24,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from modelcheck.errors import RuleSetError
+from modelcheck.common.errors import RuleSetError
 
 INCH = 0.0254  # m, exact by definition
 #: how far a rod diameter may lie from a series size and still be that size
@@ -60,7 +60,7 @@ def _inch_size(text: str) -> float:
 
 @lru_cache(maxsize=1)
 def _load_series() -> tuple[ThreadSize, ...]:
-    from modelcheck.data import data_path
+    from modelcheck.common.data import data_path
 
     path = data_path("threads.toml")
     try:

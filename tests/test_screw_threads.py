@@ -1,4 +1,4 @@
-"""Thread series and tensile-stress areas (modelcheck.threads)."""
+"""Thread series and tensile-stress areas (modelcheck.design.screw_threads)."""
 
 from __future__ import annotations
 
@@ -7,14 +7,14 @@ import math
 import numpy as np
 import pytest
 
-from modelcheck.threads import (
+from modelcheck.common.units import Q_
+from modelcheck.design.screw_threads import (
     INCH,
     iso_tensile_area,
     thread_series,
     thread_tensile_area,
     unc_tensile_area,
 )
-from modelcheck.units import Q_
 
 IN2 = INCH**2
 

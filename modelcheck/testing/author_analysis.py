@@ -36,7 +36,7 @@ import math
 from collections.abc import Sequence
 from typing import Any
 
-from modelcheck.ifc.author import ModelBuilder
+from modelcheck.testing.author import ModelBuilder
 
 Vector = Sequence[float]
 

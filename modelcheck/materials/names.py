@@ -6,7 +6,7 @@ applies it.
 
 Example::
 
-    >>> from modelcheck.material_names import read_name
+    >>> from modelcheck.materials.names import read_name
     >>> r = read_name("Metal - Steel - 345 MPa")
     >>> r.category, r.category_pattern, round(r.Fy / 1e6), r.Fy_pattern
     ('steel', 'steel-word', 345, 'stress-in-name')
@@ -25,9 +25,9 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
-from modelcheck.data import data_path
-from modelcheck.errors import RuleSetError
-from modelcheck.materials import CATEGORIES, UNKNOWN, _quantity, load_library
+from modelcheck.common.data import data_path
+from modelcheck.common.errors import RuleSetError
+from modelcheck.materials.library import CATEGORIES, UNKNOWN, _quantity, load_library
 
 _KEYS = frozenset({"name", "match", "category", "grade", "Fy", "applies_to", "about"})
 _LETTER = r"[^\W\d_]"

@@ -1,0 +1,1 @@
+"""Model-writing helpers for the sample models, the test fixtures and the benchmark (no check reads them)."""
