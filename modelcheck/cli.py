@@ -75,7 +75,7 @@ def build_parser() -> argparse.ArgumentParser:
     c.add_argument("--rules", metavar="RULESET", default=None,
                    help="shipped rule-set name or a .toml file (default steel-asd-us)")
     c.add_argument("--format", default=None, metavar="FORMATS",
-                   help="console, json, csv, junit, bcf, html — comma-separated for several (default console)")
+                   help=f"{', '.join(_format_names())} — comma-separated for several (default console)")
     c.add_argument("--output", "-o", metavar="PATH",
                    help="output file (one file format) or folder (several: modelcheck-report.<ext> in it)")
     c.add_argument("--strict", action="store_true", default=None,
@@ -120,6 +120,12 @@ def build_parser() -> argparse.ArgumentParser:
 
     add_size_parser(sub)
     return p
+
+
+def _format_names() -> list[str]:
+    from modelcheck.report.formats import format_names
+
+    return format_names()
 
 
 def _details_width() -> int:
@@ -521,10 +527,6 @@ def cmd_rules(args: argparse.Namespace) -> int:
 
 
 # ---------------------------------------------------------------------------- check
-#: file format -> extension
-FILE_FORMATS = {"json": "json", "csv": "csv", "junit": "xml", "bcf": "bcfzip", "html": "html"}
-
-
 def merge_config(args: argparse.Namespace) -> argparse.Namespace:
     """Fill options not given on the command line from the project configuration file."""
     from modelcheck.config import load_config
@@ -543,10 +545,11 @@ def merge_config(args: argparse.Namespace) -> argparse.Namespace:
             if key == "format":   # named here, where the file is known, not as if typed as --format
                 from modelcheck.config import config_path
 
-                unknown = [f.strip() for f in cfg[key].split(",") if f.strip() not in ("console", *FILE_FORMATS)]
+                names = _format_names()
+                unknown = [f.strip() for f in cfg[key].split(",") if f.strip() not in names]
                 if unknown:
-                    raise UsageError(f"format: unknown {', '.join(unknown)} (choose from console, "
-                                     f"{', '.join(FILE_FORMATS)})", path=str(config_path(Path.cwd())))
+                    raise UsageError(f"format: unknown {', '.join(unknown)} (choose from {', '.join(names)})",
+                                     path=str(config_path(Path.cwd())))
     return args
 
 
@@ -561,14 +564,17 @@ def cmd_check(args: argparse.Namespace) -> int:
 
     if not args.models:
         raise UsageError("no model given (name files, folders or patterns, or set 'models' in modelcheck.toml)")
-    formats = [f.strip() for f in (args.format or "console").split(",") if f.strip()]
-    unknown = [f for f in formats if f != "console" and f not in FILE_FORMATS]
+    from modelcheck.report.formats import FORMATS, WriteOptions, default_file_name, format_named, write_report
+
+    names = [f.strip() for f in (args.format or "console").split(",") if f.strip()]
+    unknown = [f for f in names if format_named(f) is None]
     if unknown:
         raise UsageError(f"unknown --format {', '.join(unknown)} "
-                         f"(choose from console, {', '.join(FILE_FORMATS)})")
-    files = [f for f in formats if f != "console"]
-    if files and not args.output and (len(files) > 1 or "bcf" in files):
-        raise UsageError(f"--format {','.join(files)} needs --output "
+                         f"(choose from {', '.join(_format_names())})")
+    formats = [fmt for fmt in map(format_named, names) if fmt is not None]
+    files = [f for f in formats if f.extension is not None]   # the rest go to the terminal
+    if files and not args.output and (len(files) > 1 or any(f.binary for f in files)):
+        raise UsageError(f"--format {','.join(f.name for f in files)} needs --output "
                          f"({'a folder for several formats' if len(files) > 1 else 'a file'})")
     if args.fail_on == "new" and not args.baseline:
         raise UsageError("--fail-on new needs --baseline PREVIOUS.json")
@@ -577,8 +583,8 @@ def cmd_check(args: argparse.Namespace) -> int:
     inputs = read_inputs(args, paths, load_paths)
     if len(files) > 1 and Path(args.output).exists() and not Path(args.output).is_dir():
         raise UsageError(f"--output {args.output}: several formats are written into a folder, and this is a file")
-    targets = {fmt: (os.path.join(args.output, f"modelcheck-report.{ext}") if len(files) > 1 else args.output)
-               for fmt, ext in FILE_FORMATS.items() if fmt in files}
+    targets = {f.name: (os.path.join(args.output, default_file_name(f)) if len(files) > 1 else args.output)
+               for f in FORMATS if f in files}
     for out in targets.values():
         if out:
             guard_output(out, inputs, new_folder=len(files) > 1)
@@ -596,12 +602,13 @@ def cmd_check(args: argparse.Namespace) -> int:
         ruleset = load_ruleset(args.rules or "steel-asd-us")
         # one model for several processes: its tables are read while it opens
         fopts = force_options(args, ruleset, read_ahead=len(paths) == 1 and jobs > 1 and not args.scheduler)
-    # the JSON report alone needs no results table beyond the statuses (summary, exit code)
-    only_json = formats == ["json"] and not args.baseline and not args.annotate
+    # formats that need no results table: the statuses alone (summary, exit code), the rows encoded
+    slim = bool(formats) and not any(f.needs_results for f in formats) and not args.baseline and not args.annotate
     try:
         with stage("check models"):
             run = _run_with_progress(paths, ruleset, fopts, jobs, bool(args.validate), args.scheduler,
-                                     encode_json="json" in files, slim=only_json, units=args.units or "model")
+                                     encode_json=any(f.json_rows for f in files), slim=slim,
+                                     units=args.units or "model")
     finally:
         if hasattr(fopts.tables, "close"):   # tables read ahead by a helper process
             fopts.tables.close()
@@ -622,27 +629,26 @@ def cmd_check(args: argparse.Namespace) -> int:
             _annotate(run, args.annotate, inputs)
         from modelcheck.common.files import writing
 
-        for fmt in files:
-            with stage(f"write {fmt}"), writing(targets[fmt]):
-                _write_format(fmt, run, targets[fmt], inputs, now, comparison, bool(args.strict),
-                              only_new=args.fail_on == "new")
+        options = WriteOptions(now=now, comparison=comparison, strict=bool(args.strict),
+                               only_new=args.fail_on == "new", details=args.details)
+        for f in files:
+            target = targets[f.name]
+            with stage(f"write {f.name}"), writing(target):
+                if target is not None:
+                    guard_output(target, inputs)   # again: --annotate has written meanwhile
+                write_report(f, run, target, options)
     finally:
         release_rows(run.json_rows)
-    if "console" in formats:
-        from modelcheck.report.console import render_check  # rich: imported only for a console report
-
-        # console report on stdout unless a file format goes to stdout
-        con = report_console(stderr=bool(files) and not args.output)
-        comp_view = None
-        if comparison is not None:
-            from modelcheck.report.compare import comparison_renderable
-
-            comp_view = comparison_renderable(comparison, width=con.width)
+    terminal = list(dict.fromkeys(f for f in formats if f.extension is None))
+    if terminal:
         from modelcheck.common.files import writing
 
+        # on standard output, unless a file format goes there
+        stream = sys.stderr if bool(files) and not args.output else sys.stdout
         with writing(None):
-            render_check(run, con, comparison=comp_view, details=args.details)
-            (sys.stderr if bool(files) and not args.output else sys.stdout).flush()
+            for f in terminal:
+                f.write(run, stream, options)
+            stream.flush()
     else:   # file formats only: still one line per model, on stderr when a report goes to stdout
         from modelcheck.report.console import summary_line
 
@@ -672,45 +678,6 @@ def _run_with_progress(paths: list[str], ruleset: Any, fopts: Any, jobs: int, va
         task = bar.add_task("checking models", total=len(paths))
         return run_check(paths, ruleset, fopts, jobs=jobs, validate=validate, scheduler=scheduler,
                          progress=lambda: bar.advance(task), encode_json=encode_json, slim=slim, units=units)
-
-
-def _write_format(fmt: str, run: Any, out: str | None, inputs: list[str], now: Any, comparison: Any,
-                  strict: bool, only_new: bool = False) -> None:
-    """Write one file format; ``only_new``: --fail-on new (JUnit then fails new problems only)."""
-    if out is None and fmt != "json":  # a text format to standard output: write, then copy
-        import tempfile
-
-        with tempfile.TemporaryDirectory() as tmp:
-            path = str(Path(tmp) / f"report.{FILE_FORMATS[fmt]}")
-            _write_format(fmt, run, path, inputs, now, comparison, strict, only_new)
-            sys.stdout.write(Path(path).read_text(encoding="utf-8"))
-        return
-    if fmt == "json":
-        from modelcheck.report.check_json import check_document, write_json
-
-        doc = check_document(run, comparison=comparison, now=now, encoded=True)
-        if out is None:
-            write_json(doc, sys.stdout.buffer)
-        else:
-            guard_output(out, inputs)
-            with open(out, "wb") as fh:
-                write_json(doc, fh)
-    elif fmt == "csv":
-        from modelcheck.report.csv_report import write_csv
-
-        write_csv(run, out)
-    elif fmt == "junit":
-        from modelcheck.report.junit import write_junit
-
-        write_junit(run, out, strict=strict, only_new=comparison if only_new else None)
-    elif fmt == "bcf":
-        from modelcheck.report.bcf import write_bcf
-
-        write_bcf(run, out, now=now)
-    elif fmt == "html":
-        from modelcheck.report.html import write_html
-
-        write_html(run, out, now=now, comparison=comparison)
 
 
 def _annotate(run: Any, target: str, inputs: list[str]) -> None:

@@ -10,11 +10,11 @@ follow one another: the report is the one a single process writes, byte for byte
 What a part cannot judge alone is settled over the whole model, here, before the fork or after:
 
 * a tag that several members of the model share is ambiguous in every part (``shared_tags``);
-* the structural-analysis route reads every result of the model once (it also reports results
-  of elements that are not members);
+* a force source that depends on the whole model (``whole_model``: the structural-analysis
+  results, which also reports results of elements that are not members) is read once;
 * a load-table row is unmatched only when no part used it (``matched_rows``, as across models);
-* the parser's log, the property route's messages and the join's report are merged, and their
-  lines written once.
+* the parser's log, the other force sources' messages and the join's report are merged, and
+  their lines written once.
 
 The model is opened lazily (``modelcheck.ifc.index``), so each process also parses only the
 entities of its own members. Sharing out needs Linux (fork, and ``/proc`` for
@@ -66,7 +66,7 @@ class _Shared:
     units: str                     # the system the results are shown in ("SI" or "US")
     forces: ForceOptions
     shared_tags: dict[str, tuple[str, ...]]
-    analysis: pd.DataFrame | None  # forces of the analysis route, whole model
+    whole: dict[str, Any]          # the whole_model force sources' reads, by name
     encode_json: bool
     slim: bool                     # only the status column of the results comes back
     log_start: int                 # parse-log entries before the fork
@@ -87,7 +87,7 @@ class _PartResult:
     results: pd.DataFrame | None
     json_rows: bytes | int | None   # a part's rows: the descriptor of its memory file
     report: Any
-    prop_log: Any
+    sources: tuple[Any, ...]       # what each force source read in the part, less its forces
     new_log: list[str]
     warnings: list[str]            # reader and unit warnings (parse problems are merged from new_log)
     matched_rows: set[str]
@@ -157,7 +157,7 @@ def _own_file_offset(offsets: dict[int, int]) -> None:
 
 def _run_part(k: int) -> _PartResult:
     """Check part ``k`` of the shared model (in a forked process, or in this one)."""
-    from modelcheck.loads.messages import MessageLog
+    from modelcheck.loads.sources import part_of
     from modelcheck.pipeline import read_into
     from modelcheck.rules.ruleset import load_ruleset
 
@@ -171,22 +171,15 @@ def _run_part(k: int) -> _PartResult:
     # would be scattered over it (each read wasting most of its block)
     entities = [st.entities[i] for i in positions]
     data = ModelData(path=idx.path)
-    log = MessageLog(idx.path)
-    analysis = None
-    if st.forces.analysis:
-        ana = st.analysis
-        if ana is not None and len(ana):
-            gids = {st.gids[i] for i in positions}
-            ana = ana[ana["global_id"].isin(gids)]
-        analysis = (ana, [])
+    given = part_of(st.whole, {st.gids[i] for i in positions}) if st.whole else {}
     # each load table cut down to the rows this part can match: its GlobalIds, and every tag row
     with stage(f"part {k}: its load table rows"):
         opts = replace(st.forces, tables=tuple(_table_part(t, st.part_starts, k) for t in st.tables))
     with stage(f"part {k}: read + forces"):
-        read_into(data, idx, opts, entities, analysis=analysis, prop_log=log, shared_tags=st.shared_tags)
+        read_into(data, idx, opts, entities, given=given, part=True, shared_tags=st.shared_tags)
     new_log = list(idx.parse_log[st.log_start:])
     if data.error is not None or data.members is None:
-        return _PartResult(data.error, None, None, None, None, log, new_log, [], set(), 0)
+        return _PartResult(data.error, None, None, None, None, (), new_log, [], set(), 0)
     n_parse = data.members.attrs.get("parse_problem_count", 0)
     # what the model-wide parts of the warnings were is rebuilt by the caller from the merged log
     warnings = [w for w in data.warnings[n_parse:]]
@@ -218,7 +211,7 @@ def _run_part(k: int) -> _PartResult:
     report = data.report
     if report is not None and os.getpid() != st.parent_pid:
         report = replace(report, unmatched=())   # judged from matched_rows; not worth the pickling
-    return _PartResult(None, members, results, rows, report, log, new_log, warnings, data.matched_rows,
+    return _PartResult(None, members, results, rows, report, data.sources, new_log, warnings, data.matched_rows,
                        data.member_count, excluded, coverage, own_warnings)
 
 
@@ -413,18 +406,15 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
         if t is not None and t.strip():
             by_tag.setdefault(t, []).append(g)
     shared_tags = {t: tuple(sorted(gs)) for t, gs in by_tag.items() if len(gs) > 1}
-    analysis, analysis_msgs = None, []
-    if forces.analysis:
-        from modelcheck.loads.analysis import forces_from_analysis
+    from modelcheck.loads.sources import read_whole_model
 
-        try:
-            analysis, analysis_msgs = forces_from_analysis(
-                idx, pd.DataFrame({"model": [path] * len(gids), "global_id": gids}), frame=forces.analysis_frame)
-        except (AttributeError, TypeError, ValueError, ArithmeticError, RuntimeError) as exc:
-            from modelcheck.ifc.index import unreadable_model
+    try:
+        whole = read_whole_model(idx, pd.DataFrame({"model": [path] * len(gids), "global_id": gids}), forces)
+    except (AttributeError, TypeError, ValueError, ArithmeticError, RuntimeError) as exc:
+        from modelcheck.ifc.index import unreadable_model
 
-            data.error = unreadable_model(path, exc)
-            return CheckedModel(data)
+        data.error = unreadable_model(path, exc)
+        return CheckedModel(data)
     idx.drain_log()
     with stage("share out"):
         bounds = _bounds(sorted_gids, parts)
@@ -437,7 +427,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
 
     data.units = display_system(units, data.system)
     _SHARED = _Shared(idx, entities, runs, gids, ruleset_ref, data.units,
-                      forces, shared_tags, analysis, encode_json, slim, len(idx.parse_log),
+                      forces, shared_tags, whole, encode_json, slim, len(idx.parse_log),
                       os.getpid(), _file_offsets(idx.file_fds), tables, part_starts, row_files)
     try:
         with stage("parts"):
@@ -449,7 +439,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
         lifetime.keep(_SHARED, order, sorted_gids, by_tag)
         _SHARED = None
     with stage("merge parts"):
-        checked = _merge(data, idx, outs, analysis_msgs, ruleset_ref)
+        checked = _merge(data, idx, outs, whole, ruleset_ref)
     kept = checked.json_rows or []
     release_rows([fd for fd in row_files.values() if fd not in kept])   # a part that stopped early
     return checked
@@ -480,10 +470,11 @@ def _in_one_process(data: ModelData, idx: Any, ruleset_ref: str, forces: ForceOp
     return finish_check(data, ruleset_ref, encode_json, slim, units=units)
 
 
-def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: list[str],
+def _merge(data: ModelData, idx: Any, outs: list[_PartResult], whole: dict[str, Any],
            ruleset_ref: str) -> CheckedModel:
     """The parts' members, results, JSON rows and messages as one model's."""
     from modelcheck.loads.join import ForceReport
+    from modelcheck.loads.sources import merged_messages
     from modelcheck.pipeline import join_lines, merge_member_warnings, no_force_line
 
     for out in outs:
@@ -512,9 +503,6 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
     data.warnings += data.exclusion_messages
     data.matched_rows = set().union(*(o.matched_rows for o in outs))
     data.coverage = sum((o.coverage for o in outs[1:]), outs[0].coverage)
-    log = outs[0].prop_log
-    for o in outs[1:]:
-        log.merge(o.prop_log)
     reports = [o.report for o in outs if o.report is not None]
     if reports:
         ambiguous = list(dict.fromkeys(a for r in reports for a in r.ambiguous))
@@ -522,12 +510,12 @@ def _merge(data: ModelData, idx: Any, outs: list[_PartResult], analysis_msgs: li
         for r in reports:
             for route, count in r.used_by_route.items():
                 used[route] = used.get(route, 0) + count
-        notes = list(dict.fromkeys(m for r in reports for m in r.messages))   # the join's own (table encodings)
         report = ForceReport(
             duplicates=tuple(d for r in reports for d in r.duplicates), ambiguous=tuple(ambiguous),
             missing=tuple(sorted((m for r in reports for m in r.missing), key=lambda x: (x.model, x.global_id))),
             overridden=tuple(o for r in reports for o in r.overridden),
-            messages=tuple(notes) + tuple(log.messages()) + tuple(analysis_msgs), used_by_route=used)
+            messages=tuple(merged_messages([o.sources for o in outs], whole)), used_by_route=used,
+            routes=reports[0].routes)
         data.force_report = report.to_dict(unmatched=False)
         data.force_messages = list(report.messages) + join_lines(report)
         data.no_force_message = no_force_line(report)

@@ -19,6 +19,7 @@ import pandas as pd
 
 from modelcheck.common.errors import ModelcheckError, UsageError
 from modelcheck.common.table import REJECTED, concat_rows, empty_forces
+from modelcheck.loads.sources import ForceOptions
 
 IFC_SUFFIXES = (".ifc", ".ifczip")
 
@@ -47,14 +48,7 @@ class ModelData:
     #: not used), for the members that have any; kept when the member table is let go
     member_warnings: dict[str, list[str]] = field(default_factory=dict)
     report: Any = None   # the join's ForceReport, kept only for a part of a model (modelcheck.parallel)
-
-
-@dataclass(frozen=True)
-class ForceOptions:
-    tables: tuple[pd.DataFrame, ...] = ()
-    property: tuple[str, str] | None = None   # (pset, property)
-    analysis: bool = True
-    analysis_frame: str | None = None   # --analysis-frame: None tests each member's flag
+    sources: tuple[Any, ...] = ()   # a part of a model: what each source read there, less its forces
 
 
 def expand_paths(items: list[str]) -> list[str]:
@@ -146,53 +140,39 @@ def read_into(data: ModelData, idx: Any, forces: ForceOptions | None, entities: 
         data.members, data.member_count, data.forces = None, 0, empty_forces()
 
 
-def attach_forces(data: ModelData, idx: Any, opts: ForceOptions, *, analysis: Any = None,
-                  prop_log: Any = None, shared_tags: dict[str, tuple[str, ...]] | None = None) -> None:
-    """Join the forces of every route onto one model's members (precedence: modelcheck.loads.join).
+def attach_forces(data: ModelData, idx: Any, opts: ForceOptions, *, given: dict[str, Any] | None = None,
+                  part: bool = False, shared_tags: dict[str, tuple[str, ...]] | None = None) -> None:
+    """Join the forces of every source (``modelcheck.loads.sources``) onto one model's members.
 
-    For a part of a model (``modelcheck.parallel``): ``analysis`` is the (forces, messages) of the
-    analysis route read over the whole model, ``prop_log`` collects the property route's messages
-    and ``shared_tags`` are the model's tags several members share; ``data.report`` keeps the
-    join's ForceReport for merging."""
-    from modelcheck.loads.analysis import forces_from_analysis
+    For a part of a model (``part``, ``modelcheck.parallel``): ``given`` are the reads of the
+    sources read over the whole model, and ``shared_tags`` the model's tags several members
+    share; ``data.report`` keeps the join's ForceReport and ``data.sources`` the sources' messages,
+    for merging."""
     from modelcheck.loads.join import join_forces
-    from modelcheck.loads.properties import forces_from_property
-
-    messages: list[str] = []
-    prop = ana = None
-    from modelcheck.loads.messages import MessageLog
+    from modelcheck.loads.sources import ranked, read_sources, rejected_by, source_messages
     from modelcheck.timing import stage
 
-    log = prop_log if prop_log is not None else MessageLog(idx.path)
-    if opts.property is not None:
-        with stage("forces from property"):
-            prop, _ = forces_from_property(idx, data.members, opts.property[0], opts.property[1], log=log)
-        if prop_log is None:   # a part's log is merged with the others' and read by the caller
-            messages += log.messages()
-    if analysis is not None:
-        ana, msgs = analysis
-        messages += list(msgs)
-    elif opts.analysis:
-        ana, msgs = forces_from_analysis(idx, data.members, frame=opts.analysis_frame)
-        messages += list(msgs)
-    with stage("join forces"):
-        forces, report = join_forces(data.members, list(opts.tables), prop, ana, messages=messages,
+    with stage("forces from sources"):
+        results = read_sources(idx, data.members, opts, given)
+    with stage("join forces"):   # a part's messages are merged with the others' and listed by the caller
+        forces, report = join_forces(data.members, ranked(results), messages=[] if part else source_messages(results),
                                      shared_tags=shared_tags)
     data.forces = forces
-    _reject_forces(data.members, forces, log)
+    _reject_forces(data.members, forces, rejected_by(results))
     unmatched_here = {u.source for u in report.unmatched}
-    data.matched_rows = {s for t in opts.tables for s in t["source"] if s not in unmatched_here}
+    data.matched_rows = {s for r in results if r.keyed for s in r.forces["source"] if s not in unmatched_here}
     data.force_report = report.to_dict(unmatched=False)  # unmatched: judged over all models
     data.force_messages = list(report.messages) + join_lines(report)
     data.no_force_message = no_force_line(report)
-    if prop_log is not None:
+    if part:
         data.report = report
+        data.sources = tuple(r.without_forces() for r in results if r.name not in (given or {}))
 
 
 def _reject_forces(members: pd.DataFrame, forces: pd.DataFrame, log: Any) -> None:
-    """A member left with no force although its model property gives one (no unit, not a
-    number): the property route's reason goes into its ``rejected`` pairs (as "P"), so that a
-    check needing P says why rather than that the model has none."""
+    """A member left with no force although a source gives one (a model property with no unit,
+    not a number): the reason that source logged goes into its ``rejected`` pairs (as "P"), so
+    that a check needing P says why rather than that the model has none."""
     idents = log.idents()
     if not idents or REJECTED not in members.columns:
         return

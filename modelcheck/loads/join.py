@@ -1,8 +1,10 @@
-"""Join the forces of all routes to the members: precedence, matching and a report of every gap.
+"""Join the forces of all sources to the members: precedence, matching and a report of every gap.
 
-Routes and precedence
----------------------
-For each member and load case exactly one force is kept, from the first route that gives one:
+Sources and precedence
+----------------------
+The sources (also "routes") are listed in ``modelcheck.loads.sources.FORCE_SOURCES``, each with
+its precedence. For each member and load case exactly one force is kept, from the first source
+that gives one; the shipped sources rank:
 
 1. **load tables** given on the command line (``--loads``), in the order given, row order within
    a file;
@@ -13,25 +15,26 @@ Why this order: a table passed on the command line is the most deliberate input 
 exported it for this check, now — so it overrides what the model happens to carry. Analysis
 results in the model come from a structural analysis and outrank a property, which is typically
 a value written by another trade (a hanger load) with no analysis behind it.
-``source`` of each kept row says where it came from; every force a higher route displaced is
-listed in the report (``overridden``). With ``precedence_by="member"`` the first route that gives
+``source`` of each kept row says where it came from; every force a higher source displaced is
+listed in the report (``overridden``). With ``precedence_by="member"`` the first source that gives
 a member *any* force supplies *all* of that member's load cases instead.
 
 Matching
 --------
-Matching is per model. A ``global_id`` row applies to the member with that GlobalId in every
-model that has it; a ``tag`` row applies in each model that has exactly one member with that
-tag. A tag shared by several members of one model is *ambiguous*: the row is applied to none of
-them (a force is never spread over members by guess) and the report lists it. A row that matches
-no member in any model is *unmatched*. Two rows for the same member and load case from the same
-route are *duplicates*: the first is used, the others are listed. Members left with no force at
-all are *missing*. Nothing is dropped silently: every one of these is counted and listed in the
-:class:`ForceReport`.
+Matching is per model. A keyed source (the load tables) names members by key: a ``global_id``
+row applies to the member with that GlobalId in every model that has it; a ``tag`` row applies in
+each model that has exactly one member with that tag. A tag shared by several members of one
+model is *ambiguous*: the row is applied to none of them (a force is never spread over members
+by guess) and the report lists it. A row that matches no member in any model is *unmatched*. The
+other sources give rows by model and GlobalId; one of a member not in the table is unmatched
+too. Two rows for the same member and load case from the same source are *duplicates*: the first
+is used, the others are listed. Members left with no force at all are *missing*. Nothing is
+dropped silently: every one of these is counted and listed in the :class:`ForceReport`.
 
 Example::
 
-    tables = [read_load_table(p) for p in args.loads]
-    forces, report = join_forces(members, tables, prop_forces, analysis_forces, messages=msgs)
+    results = read_sources(idx, members, ForceOptions(tables=(read_load_table(p),)))
+    forces, report = join_forces(members, ranked(results), messages=source_messages(results))
     report.to_dict()["counts"]   # {"unmatched": 2, "duplicates": 0, ...}
 """
 
@@ -45,9 +48,7 @@ import numpy as np
 import pandas as pd
 
 from modelcheck.common.table import FORCE_COLUMNS, empty_forces
-
-#: route names, in order of precedence (lower index wins)
-ROUTES: tuple[str, ...] = ("table", "analysis", "property")
+from modelcheck.loads.sources import KEYED_COLUMNS, SourceForces
 
 
 class UnmatchedRow(NamedTuple):
@@ -102,7 +103,8 @@ class ForceReport:
     missing: tuple[MissingForce, ...] = ()
     overridden: tuple[OverriddenForce, ...] = ()
     messages: tuple[str, ...] = ()
-    used_by_route: dict[str, int] = field(default_factory=dict)  # kept rows per route
+    used_by_route: dict[str, int] = field(default_factory=dict)  # kept rows per source
+    routes: tuple[str, ...] = ()   # the names of the sources joined, in order of precedence
 
     @property
     def counts(self) -> dict[str, int]:
@@ -116,7 +118,7 @@ class ForceReport:
         another: that is judged over all models)."""
         out: dict[str, Any] = {
             "counts": self.counts,
-            "used_by_route": {r: int(self.used_by_route.get(r, 0)) for r in ROUTES},
+            "used_by_route": {r: int(self.used_by_route.get(r, 0)) for r in self.routes},
         }
         if unmatched:
             out["unmatched"] = [x._asdict() for x in self.unmatched]
@@ -157,38 +159,39 @@ def _members_coded(ids: pd.DataFrame) -> tuple[list[tuple[Any, Any]], Any]:
     return pairs, any_models
 
 
-def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
-                property_forces: pd.DataFrame | None = None, analysis_forces: pd.DataFrame | None = None,
-                *, messages: Sequence[str] = (),
+def join_forces(members: pd.DataFrame, sources: Sequence[SourceForces] = (), *, messages: Sequence[str] = (),
                 precedence_by: Literal["case", "member"] = "case",
                 shared_tags: dict[str, tuple[str, ...]] | None = None) -> tuple[pd.DataFrame, ForceReport]:
     """The forces table (``FORCE_COLUMNS``) of ``members`` and the report of the join.
 
-    ``tables``: results of ``read_load_table`` in command-line order. ``property_forces`` /
-    ``analysis_forces``: forces tables of those routes (None when not used); ``messages``: the
-    routes' messages, copied into the report. See the module docstring for the rules.
-    ``shared_tags``: when ``members`` is a part of one model, the tags several members of the
-    whole model share (tag -> their GlobalIds): rows with those tags are ambiguous here too.
+    ``sources``: what each source read (``modelcheck.loads.sources``), in order of precedence
+    (the first wins; ``sources.ranked``); every one's name is a key of the report's
+    ``used_by_route``. ``messages``: the sources' messages, copied into the report. See the
+    module docstring for the rules. ``shared_tags``: when ``members`` is a part of one model, the
+    tags several members of the whole model share (tag -> their GlobalIds): rows with those tags
+    are ambiguous here too.
     """
     ids = members[["model", "global_id", "tag"]].copy()
     ids = ids[ids["global_id"].notna()]
     unmatched: list[UnmatchedRow] = []
     ambiguous: list[AmbiguousTag] = []
-    extra_messages: list[str] = []
+    routes = tuple(src.name for src in sources)
 
     # each member (model, GlobalId) as an integer, in sorted order: the rest of the join works on
     # integers (one hash or sort of text here instead of one per step)
     pairs, member_code = _members_coded(ids)
 
     parts: list[pd.DataFrame] = []
-    rows = _table_rows(tables, extra_messages)
-    if not rows.empty:
-        matched, um, amb = _match_table(rows, ids, shared_tags or {})
-        unmatched += um
-        ambiguous += amb
-        parts.append(matched.assign(_route=0))
-    for route, frame in ((1, analysis_forces), (2, property_forces)):
+    for route, src in enumerate(sources):
+        frame = src.forces
         if frame is None or frame.empty:
+            continue
+        if src.keyed:
+            rows = frame[list(KEYED_COLUMNS)].assign(_order=np.arange(len(frame)))
+            matched, um, amb = _match_table(rows, ids, shared_tags or {})
+            unmatched += um
+            ambiguous += amb
+            parts.append(matched.assign(_route=route))
             continue
         fr = frame[list(FORCE_COLUMNS)].reset_index(drop=True)
         hit = member_code(fr) >= 0
@@ -210,7 +213,7 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
     keys = ["model", "global_id", "load_case"]
 
     # duplicates: same member and case twice from one route -> first kept
-    per_route = pd.Series(case * len(ROUTES) + route)
+    per_route = pd.Series(case * max(1, len(routes)) + route)
     dup_mask = per_route.duplicated(keep=False).to_numpy()
     duplicates = _duplicates(allf[dup_mask], keys)
     once = ~per_route.duplicated(keep="first").to_numpy()
@@ -219,7 +222,7 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
     # precedence between routes: the rows are in route order, so a member's (or a member and
     # case's) first row is from its best route
     if precedence_by == "member":
-        best = np.full(len(pairs), len(ROUTES), dtype=np.int64)
+        best = np.full(len(pairs), len(routes), dtype=np.int64)
         np.minimum.at(best, member, route)
         displaced = route != best[member]
     else:
@@ -230,7 +233,7 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
     kept_member = member[~displaced]
     forces = kept.iloc[np.lexsort((kept["_order"].to_numpy(dtype=np.int64), route[~displaced], kept_member))]
     used = forces["_route"].value_counts()
-    used_by_route = {ROUTES[int(r)]: int(n) for r, n in used.items()}
+    used_by_route = {routes[int(r)]: int(n) for r, n in used.items()}
     forces = forces[list(FORCE_COLUMNS)].reset_index(drop=True)
     forces["axial_force"] = forces["axial_force"].astype(float)
 
@@ -239,22 +242,8 @@ def join_forces(members: pd.DataFrame, tables: Sequence[pd.DataFrame] = (),
 
     report = ForceReport(unmatched=tuple(unmatched), duplicates=tuple(duplicates), ambiguous=tuple(ambiguous),
                          missing=tuple(missing), overridden=tuple(overridden),
-                         messages=tuple(extra_messages) + tuple(messages), used_by_route=used_by_route)
+                         messages=tuple(messages), used_by_route=used_by_route, routes=routes)
     return forces, report
-
-
-def _table_rows(tables: Sequence[pd.DataFrame], notes: list[str]) -> pd.DataFrame:
-    frames = []
-    for t in tables:
-        if t.attrs.get("encoding") == "cp1252" and len(t):
-            name = str(t["source"].iloc[0]).rsplit(":row ", 1)[0]
-            notes.append(f"{name}: not UTF-8; read as Windows-1252 (cp1252) text")
-        frames.append(t[["key_kind", "key", "load_case", "axial_force", "source"]])
-    if not frames:
-        return pd.DataFrame(columns=["key_kind", "key", "load_case", "axial_force", "source", "_order"])
-    rows = pd.concat(frames, ignore_index=True)
-    rows["_order"] = np.arange(len(rows))
-    return rows
 
 
 def _match_table(rows: pd.DataFrame, ids: pd.DataFrame, shared: dict[str, tuple[str, ...]]

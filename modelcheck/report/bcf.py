@@ -38,6 +38,7 @@ from typing import Any
 
 from modelcheck.report.console import governing
 from modelcheck.report.csv_report import member_info
+from modelcheck.report.formats import WriteOptions
 from modelcheck.report.members import CAUTION
 from modelcheck.report.text import number, xml_clean, xml_text
 
@@ -234,3 +235,8 @@ def write_bcf(run: Any, path: str | Path, *, now: _dt.datetime | None = None,
             add(zf, f"{guid}/markup.bcf", _markup(t, run, guid, vp_guid, i, date))
             add(zf, f"{guid}/viewpoint.bcfv", _viewpoint(t, vp_guid))
     return len(topics)
+
+
+def write(run: Any, target: str | Path, options: WriteOptions) -> None:
+    """``write_bcf`` with the ``WriteOptions`` of ``modelcheck.report.formats``."""
+    write_bcf(run, target, now=options.now)

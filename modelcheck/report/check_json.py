@@ -15,6 +15,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from modelcheck.report.formats import WriteOptions
 from modelcheck.report.members import CAUTION
 
 
@@ -483,3 +484,22 @@ def check_document(run: Any, *, comparison: dict[str, Any] | None = None,
     doc["summary"] = summary_counts(run)
     doc["caution"] = CAUTION
     return doc
+
+
+def write(run: Any, target: Any, options: WriteOptions) -> None:
+    """The JSON report of ``run`` to ``target`` (a path, or a text stream: its binary buffer),
+    with the ``WriteOptions`` of ``modelcheck.report.formats``."""
+    doc = check_document(run, comparison=options.comparison, now=options.now, encoded=True)
+    if isinstance(target, (str, os.PathLike)):
+        with open(target, "wb") as fh:
+            write_json(doc, fh)
+        return
+    buffer = getattr(target, "buffer", None)
+    if buffer is not None:
+        write_json(doc, buffer)
+        return
+    import io
+
+    out = io.BytesIO()
+    write_json(doc, out)
+    target.write(out.getvalue().decode("utf-8"))

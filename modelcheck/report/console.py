@@ -28,6 +28,7 @@ from rich.table import Table
 from rich.text import Text
 
 from modelcheck.common.table import STATUS_RANK
+from modelcheck.report.formats import WriteOptions
 from modelcheck.report.members import CAUTION
 from modelcheck.report.text import number, shown
 
@@ -406,3 +407,14 @@ def render_check(run: Any, console: Console, comparison: Any = None, details: bo
         parts.append(ut)
     parts.append(Text(CAUTION, style="italic dim"))
     console.print(Group(*parts))
+
+
+def write(run: Any, target: Any, options: WriteOptions) -> None:
+    """The console report of ``run`` to the text stream ``target``, as wide as it is (``make_console``)."""
+    console = make_console(file=target)
+    comparison = None
+    if options.comparison is not None:
+        from modelcheck.report.compare import comparison_renderable
+
+        comparison = comparison_renderable(options.comparison, width=console.width)
+    render_check(run, console, comparison=comparison, details=options.details)

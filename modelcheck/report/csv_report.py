@@ -30,6 +30,8 @@ from typing import Any
 
 import pandas as pd
 
+from modelcheck.report.formats import WriteOptions
+
 #: result columns copied as they are, in output order (storey/section/material are inserted)
 _IDENTITY = ("model", "global_id", "ifc_class", "name", "tag")
 _MEMBER = ("storey", "section", "material")
@@ -91,3 +93,8 @@ def write_csv(run: Any, path: str | Path) -> None:
     df = csv_frame(results_frame(run))   # a text cell a spreadsheet would run as a formula is neutralised
     text = df.to_csv(index=False, float_format="%.6g", lineterminator="\n")
     Path(path).write_text(text, encoding="utf-8", newline="")
+
+
+def write(run: Any, target: str | Path, options: WriteOptions) -> None:
+    """``write_csv`` with the ``WriteOptions`` of ``modelcheck.report.formats`` (none used)."""
+    write_csv(run, target)

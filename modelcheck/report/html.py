@@ -30,6 +30,7 @@ import pandas as pd
 
 from modelcheck.report.console import governing, member_status
 from modelcheck.report.csv_report import member_info
+from modelcheck.report.formats import WriteOptions
 from modelcheck.report.members import CAUTION
 
 #: rows shown per table; the rest are counted (CSV and JSON carry them all)
@@ -335,3 +336,8 @@ def write_html(run: Any, path: str | Path, *, now: _dt.datetime | None = None,
                comparison: dict[str, Any] | None = None) -> None:
     """Write the self-contained HTML report of a check run."""
     Path(path).write_text(render_html(run, now=now, comparison=comparison), encoding="utf-8")
+
+
+def write(run: Any, target: str | Path, options: WriteOptions) -> None:
+    """``write_html`` with the ``WriteOptions`` of ``modelcheck.report.formats``."""
+    write_html(run, target, now=options.now, comparison=options.comparison)

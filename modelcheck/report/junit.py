@@ -47,6 +47,7 @@ import pandas as pd
 
 from modelcheck.report.console import governing, summary_line
 from modelcheck.report.csv_report import member_info
+from modelcheck.report.formats import WriteOptions
 from modelcheck.report.text import number, xml_clean, xml_text
 
 
@@ -226,3 +227,8 @@ def write_junit(run: Any, path: str | Path, *, strict: bool = False, only_new: d
     data = ET.tostring(root, encoding="utf-8", xml_declaration=True)
     Path(path).write_bytes(data + b"\n")
 
+
+def write(run: Any, target: str | Path, options: WriteOptions) -> None:
+    """``write_junit`` with the ``WriteOptions`` of ``modelcheck.report.formats``: with --fail-on new
+    only the problems new since the baseline fail."""
+    write_junit(run, target, strict=options.strict, only_new=options.comparison if options.only_new else None)
