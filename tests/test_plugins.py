@@ -198,7 +198,12 @@ def test_a_registered_source_in_a_model_shared_out(whole_model: bool, monkeypatc
     monkeypatch.setattr(parallel, "MIN_MEMBERS_PER_PART", 50)
     parts: list[int] = []
     real = parallel._run_parts
-    monkeypatch.setattr(parallel, "_run_parts", lambda n: parts.append(n) or real(n))
+
+    def counted(n: int) -> Any:
+        parts.append(n)
+        return real(n)
+
+    monkeypatch.setattr(parallel, "_run_parts", counted)
     monkeypatch.setattr(sources, "FORCE_SOURCES", sources.FORCE_SOURCES + (Survey(whole_model=whole_model),))
     docs = []
     for jobs in ("1", "2"):

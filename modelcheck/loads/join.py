@@ -182,7 +182,7 @@ def join_forces(members: pd.DataFrame, sources: Sequence[SourceForces] = (), *, 
     pairs, member_code = _members_coded(ids)
 
     parts: list[pd.DataFrame] = []
-    for route, src in enumerate(sources):
+    for rank, src in enumerate(sources):
         frame = src.forces
         if frame is None or frame.empty:
             continue
@@ -191,13 +191,13 @@ def join_forces(members: pd.DataFrame, sources: Sequence[SourceForces] = (), *, 
             matched, um, amb = _match_table(rows, ids, shared_tags or {})
             unmatched += um
             ambiguous += amb
-            parts.append(matched.assign(_route=route))
+            parts.append(matched.assign(_route=rank))
             continue
         fr = frame[list(FORCE_COLUMNS)].reset_index(drop=True)
         hit = member_code(fr) >= 0
         unmatched += [UnmatchedRow("global_id", g, c, s) for g, c, s in
                       fr.loc[~hit, ["global_id", "load_case", "source"]].itertuples(index=False)]
-        parts.append(fr[hit].assign(_order=np.arange(int(hit.sum())), _route=route))
+        parts.append(fr[hit].assign(_order=np.arange(int(hit.sum())), _route=rank))
 
     if parts:
         allf = pd.concat(parts, ignore_index=True)

@@ -72,9 +72,20 @@ class SourceForces:
 class ForceSource(Protocol):
     """One route by which members get axial forces."""
 
-    name: str
-    precedence: int     # lower wins
-    whole_model: bool   # read once over a whole model shared out among processes
+    @property
+    def name(self) -> str:
+        """Its key in the join's report (``used_by_route``)."""
+        ...
+
+    @property
+    def precedence(self) -> int:
+        """Its rank in the join: the lowest number wins."""
+        ...
+
+    @property
+    def whole_model(self) -> bool:
+        """Read once over a whole model shared out among processes (and not in each part)."""
+        ...
 
     def read(self, idx: Any, members: pd.DataFrame, options: ForceOptions) -> SourceForces:
         """The forces of ``members`` (the member table of the model opened as ``idx``; when
