@@ -40,7 +40,7 @@ KEYED_COLUMNS: tuple[str, ...] = ("key_kind", "key", "load_case", "axial_force",
 class ForceOptions:
     """What the command line says about the force sources."""
 
-    tables: Any = ()   # the load tables (tuple of read_load_table frames, or the helper reading them ahead)
+    tables: tuple[pd.DataFrame, ...] = ()   # the load tables (read_load_table), or the helper reading them ahead
     property: tuple[str, str] | None = None   # (pset, property)
     analysis: bool = True
     analysis_frame: str | None = None   # --analysis-frame: None tests each member's flag
