@@ -39,7 +39,6 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 from functools import lru_cache
-from pathlib import Path
 from typing import Any
 
 import numpy as np
@@ -48,6 +47,7 @@ import pint
 
 from modelcheck.common.data import data_path
 from modelcheck.common.errors import RuleSetError
+from modelcheck.common.problems import Problems, file_lines
 from modelcheck.common.units import Q_, QuantityTextError, parse_quantity, parse_unit
 from modelcheck.design.screw_threads import INCH, thread_series
 
@@ -157,7 +157,7 @@ def _shipped() -> dict[str, Any]:
     return data
 
 
-def _sizes(raw: Any, key: str, where: str) -> tuple[float, ...]:
+def _sizes(raw: Any, key: str) -> tuple[float, ...]:
     """A list of lengths and {from, to, step} ranges -> sorted unique metres."""
     if not isinstance(raw, list) or not raw:
         raise ValueError(f"{key} is a list of lengths (\"3/4 in\") and ranges {{ from, to, step }}")
@@ -196,18 +196,11 @@ def _sizes(raw: Any, key: str, where: str) -> tuple[float, ...]:
     return tuple(sorted(set(out)))
 
 
-def _line(path: str, key: tuple[str, ...]) -> str | None:
-    from modelcheck.rules.ruleset import line_map
-
-    try:
-        lines = line_map(Path(path).read_text(encoding="utf-8"))
-    except (OSError, UnicodeDecodeError):
-        return None
-    while key:
-        if key in lines:
-            return str(lines[key])
-        key = key[:-1]
-    return None
+def _problem(path: str, key: tuple[str, ...], message: str) -> RuleSetError:
+    """The error of a stock key (``("stock", "round")`` of a rule set, ``("US", "round")`` of
+    stock.toml), placed on its line of ``path`` (the file alone where it has no such line)."""
+    lines = file_lines(path, arrays=("check",))
+    return Problems(path, RuleSetError, lines=lines, unplaced=None).error(key, message)
 
 
 def stock_series(ruleset: Any) -> StockSeries:
@@ -219,22 +212,19 @@ def stock_series(ruleset: Any) -> StockSeries:
     rs_path = str(getattr(ruleset, "path", ""))
     unknown = sorted(set(own) - set(SERIES_KEYS) - {"series"})
     if unknown:
-        raise RuleSetError(f"[stock]: unknown key {unknown[0]!r} (keys: series, {', '.join(SERIES_KEYS)})",
-                           path=rs_path, where=_line(rs_path, ("stock", unknown[0])))
+        raise _problem(rs_path, ("stock", unknown[0]),
+                       f"[stock]: unknown key {unknown[0]!r} (keys: series, {', '.join(SERIES_KEYS)})")
     system = own.get("series", getattr(ruleset, "units", "SI"))
     shipped = _shipped()
     stock_path = str(data_path("stock.toml"))
     if system not in ("US", "SI") or system not in shipped:
-        raise RuleSetError(f"[stock]: series {system!r} is not one of US, SI", path=rs_path,
-                           where=_line(rs_path, ("stock", "series")))
+        raise _problem(rs_path, ("stock", "series"), f"[stock]: series {system!r} is not one of US, SI")
     base = shipped[system]
     origin = f"rulesets/stock.toml [{system}]" + (f" with [stock] of {ruleset.name}" if own else "")
     values: dict[str, Any] = {}
     for key in SERIES_KEYS:
         from_rs = key in own
         raw = own[key] if from_rs else base.get(key)
-        path, where = (rs_path, _line(rs_path, ("stock", key))) if from_rs else (
-            stock_path, _line(stock_path, (system, key)))
         try:
             if raw is None:
                 raise ValueError(f"{key} is missing")
@@ -247,10 +237,11 @@ def stock_series(ruleset: Any) -> StockSeries:
                     raise ValueError(f"shape table {raw!r} is not a shipped file")
                 values[key] = raw.strip()
             else:
-                values[key] = _sizes(raw, key, where or "")
+                values[key] = _sizes(raw, key)
         except ValueError as exc:
-            prefix = "[stock]" if from_rs else f"[{system}]"
-            raise RuleSetError(f"{prefix}: {exc}", path=path, where=where) from None
+            if from_rs:
+                raise _problem(rs_path, ("stock", key), f"[stock]: {exc}") from None
+            raise _problem(stock_path, (system, key), f"[{system}]: {exc}") from None
     return StockSeries(system=system, origin=origin, **values)
 
 
