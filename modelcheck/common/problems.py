@@ -3,8 +3,8 @@
 Every reader of a data file (rule sets, the material library, the material-name patterns, the
 stock series) reports a problem the same way: one :class:`Problems` per file gathers them, each
 an error of the project naming the file and the place, ``file:where: message``, on one line.
-A reader that lists every problem of a file (``modelcheck rules validate``) adds them and raises
-them together at the end; one that stops at the first raises it at once with :meth:`Problems.fail`.
+A reader that lists every problem of a file (``modelcheck rules validate``) adds them and reports
+them together at the end; one that stops at the first raises :meth:`Problems.error` at once.
 
 The place is given as the reader knows it:
 
@@ -28,7 +28,7 @@ import re
 import tomllib
 from collections.abc import Collection, Mapping
 from pathlib import Path
-from typing import Any, Generic, NoReturn, TypeVar
+from typing import Any, Generic, TypeVar
 
 from modelcheck.common.errors import ModelcheckError
 
@@ -80,10 +80,6 @@ class Problems(Generic[E]):
     def add(self, place: Where, message: str) -> None:
         """Gather one problem."""
         self._items.append(self.error(place, message))
-
-    def fail(self, place: Where, message: str) -> NoReturn:
-        """Raise one problem at once (for a reader that stops at the first)."""
-        raise self.error(place, message)
 
     def within(self, label: str) -> Problems[E]:
         """A view that puts ``label: `` in front of each message and gathers into this list."""

@@ -30,7 +30,6 @@ from __future__ import annotations
 
 import math
 import re
-import tomllib
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
@@ -40,6 +39,7 @@ import pint
 
 from modelcheck.common.data import data_path
 from modelcheck.common.errors import RuleSetError
+from modelcheck.common.problems import Problems, read_toml
 from modelcheck.common.units import QuantityTextError, parse_quantity
 
 #: material categories ("unknown" is the fallback of plausible_range: a name nothing recognises)
@@ -62,7 +62,6 @@ _REQUIRED_VALUES = ("E",)
 _MATERIAL_KEYS = frozenset({"category", "standard", "names", "note", *VALUE_KEYS})
 _VALUE_RE = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
 _NON_ALNUM = re.compile(r"[^0-9a-z]+")
-_TOML_POS = re.compile(r"line (\d+)")
 
 
 @dataclass(frozen=True)
@@ -188,125 +187,110 @@ def _stamp(p: Path) -> tuple[int, int]:
 def _load_cached(path: str, is_default: bool, _stamp: tuple[int, int]) -> MaterialLibrary:
     """Parse one file; ``_stamp`` (mtime, size) makes an edited file load anew."""
     label = f"rulesets/{Path(path).name}" if is_default else path
-    try:
-        raw = Path(path).read_bytes()
-    except OSError as exc:
-        raise RuleSetError(f"cannot read the material library: {exc.strerror or exc}", path=path) from exc
-    try:
-        doc = tomllib.loads(raw.decode("utf-8"))
-    except UnicodeDecodeError as exc:
-        raise RuleSetError("the material library is not UTF-8 text", path=path) from exc
-    except tomllib.TOMLDecodeError as exc:
-        m = _TOML_POS.search(str(exc))
-        raise RuleSetError(f"TOML syntax error: {exc}", path=path,
-                           where=f"line {m.group(1)}" if m else None) from exc
-    return _parse(doc, path, label)
+    problems = Problems(path, RuleSetError)
+    return _parse(read_toml(problems, "the material library"), problems, label)
 
 
-def _err(path: str, where: str, message: str) -> RuleSetError:
-    return RuleSetError(message, path=path, where=where)
-
-
-def _quantity(text: Any, path: str, where: str, key: str) -> float:
+def quantity_si(text: Any, key: str, problems: Problems[RuleSetError], where: str) -> float:
     """'36 ksi' -> 248211262.55 (SI) with the dimension of ``key``; RuleSetError otherwise."""
     si_unit, what = RANGE_KEYS[key]
     if not isinstance(text, str):
-        raise _err(path, where, f"value must be a string '<number> <unit>', got {text!r}")
+        raise problems.error(where, f"value must be a string '<number> <unit>', got {text!r}")
     m = _VALUE_RE.match(text)
     if m is None or not m.group(2):
-        raise _err(path, where, f"value {text!r} is not '<number> <unit>' (a unit is required)")
+        raise problems.error(where, f"value {text!r} is not '<number> <unit>' (a unit is required)")
     unit_text = m.group(2)
     try:   # the one reader of a number with a unit ("12e-6 / K": the number, then "per K")
         # pint reads a temperature in a denominator as a step ('1/degF' -> 1/delta_degF)
         q = parse_quantity(text, None, what="value")
         si = q.quantity.to(si_unit).magnitude
     except pint.DimensionalityError as exc:
-        raise _err(path, where, f"unit {unit_text!r} of {text!r} is not {what}") from exc
+        raise problems.error(where, f"unit {unit_text!r} of {text!r} is not {what}") from exc
     except QuantityTextError as exc:
-        raise _err(path, where, f"unit {unit_text!r} of {text!r} is not understood: {exc}") from None
+        raise problems.error(where, f"unit {unit_text!r} of {text!r} is not understood: {exc}") from None
     except (pint.PintError, AttributeError, TypeError, ValueError) as exc:
-        raise _err(path, where, f"unit {unit_text!r} of {text!r} is not understood: {exc}") from exc
+        raise problems.error(where, f"unit {unit_text!r} of {text!r} is not understood: {exc}") from exc
     if not math.isfinite(si):
-        raise _err(path, where, f"value {text!r} is not a finite number")
+        raise problems.error(where, f"value {text!r} is not a finite number")
     return float(si)
 
 
-def _parse(doc: dict[str, Any], path: str, label: str) -> MaterialLibrary:
+def _parse(doc: dict[str, Any], problems: Problems[RuleSetError], label: str) -> MaterialLibrary:
     unknown = set(doc) - {"library", "categories", "plausible", "material"}
     if unknown:
-        raise _err(path, sorted(unknown)[0], "unknown top-level table (expected library, categories, "
-                   "plausible, material)")
+        raise problems.error(sorted(unknown)[0], "unknown top-level table (expected library, categories, "
+                                                 "plausible, material)")
 
     words: list[tuple[str, str]] = []
     cats = doc.get("categories", {})
     if not isinstance(cats, dict):
-        raise _err(path, "categories", "must be a table of category = [words]")
+        raise problems.error("categories", "must be a table of category = [words]")
     for cat, ws in cats.items():
         if cat not in CATEGORIES:
-            raise _err(path, f"categories.{cat}", f"unknown category (expected one of {', '.join(CATEGORIES)})")
+            raise problems.error(f"categories.{cat}", f"unknown category (expected one of {', '.join(CATEGORIES)})")
         if not isinstance(ws, list) or not all(isinstance(w, str) for w in ws):
-            raise _err(path, f"categories.{cat}", "must be a list of strings")
+            raise problems.error(f"categories.{cat}", "must be a list of strings")
         words += [(normalise(w), cat) for w in ws]
 
     plausible: list[PlausibleRange] = []
     pl = doc.get("plausible", {})
     if not isinstance(pl, dict):
-        raise _err(path, "plausible", "must be a table of [plausible.<category>] tables")
+        raise problems.error("plausible", "must be a table of [plausible.<category>] tables")
     for cat, ranges in pl.items():
         where = f"plausible.{cat}"
         if cat not in (*CATEGORIES, UNKNOWN):
-            raise _err(path, where, f"unknown category (expected one of {', '.join(CATEGORIES)}, unknown)")
+            raise problems.error(where, f"unknown category (expected one of {', '.join(CATEGORIES)}, unknown)")
         if not isinstance(ranges, dict):
-            raise _err(path, where, "must be a table of key = [low, high]")
+            raise problems.error(where, "must be a table of key = [low, high]")
         for key, entry in ranges.items():
-            plausible.append(_plausible_entry(path, f"{where}.{key}", cat, key, entry))
+            plausible.append(_plausible_entry(problems, f"{where}.{key}", cat, key, entry))
     fallback = {r.key for r in plausible if r.category == UNKNOWN}
     if not fallback >= set(VALUE_KEYS):
         missing = ", ".join(k for k in VALUE_KEYS if k not in fallback)
-        raise _err(path, "plausible.unknown", f"missing {missing}: the fallback ranges need every key")
+        raise problems.error("plausible.unknown", f"missing {missing}: the fallback ranges need every key")
 
     mats = doc.get("material", {})
     if not isinstance(mats, dict) or not mats:
-        raise _err(path, "material", "no [material.\"<grade>\"] tables found")
+        raise problems.error("material", "no [material.\"<grade>\"] tables found")
     materials: list[LibraryMaterial] = []
     patterns: list[tuple[str, int]] = []
     owner: dict[str, str] = {}
     for grade, spec in mats.items():
         where = f"material.{grade!r}"
         if not isinstance(spec, dict):
-            raise _err(path, where, "must be a table")
+            raise problems.error(where, "must be a table")
         extra = set(spec) - _MATERIAL_KEYS
         if extra:
-            raise _err(path, f"{where}.{sorted(extra)[0]}",
-                       f"unknown key (expected {', '.join(sorted(_MATERIAL_KEYS))})")
+            raise problems.error(f"{where}.{sorted(extra)[0]}",
+                                 f"unknown key (expected {', '.join(sorted(_MATERIAL_KEYS))})")
         category = spec.get("category")
         if category not in CATEGORIES:
-            raise _err(path, f"{where}.category", f"must be one of {', '.join(CATEGORIES)}, got {category!r}")
+            raise problems.error(f"{where}.category", f"must be one of {', '.join(CATEGORIES)}, got {category!r}")
         names = spec.get("names")
         if not isinstance(names, list) or not names or not all(isinstance(n, str) and normalise(n)
                                                                 for n in names):
-            raise _err(path, f"{where}.names", "must be a non-empty list of non-empty name patterns")
+            raise problems.error(f"{where}.names", "must be a non-empty list of non-empty name patterns")
         standard = spec.get("standard")
         if not isinstance(standard, str) or not standard:
-            raise _err(path, f"{where}.standard", "must be a non-empty string")
+            raise problems.error(f"{where}.standard", "must be a non-empty string")
         note = spec.get("note")
         if note is not None and not isinstance(note, str):
-            raise _err(path, f"{where}.note", "must be a string")
+            raise problems.error(f"{where}.note", "must be a string")
         values: dict[str, Any] = {}
         for key in VALUE_KEYS:
             entry = spec.get(key)
             if entry is None:
                 if key in _REQUIRED_VALUES:
-                    raise _err(path, f"{where}.{key}", "missing (required)")
+                    raise problems.error(f"{where}.{key}", "missing (required)")
                 values.update({key: None, f"{key}_source": None, f"{key}_basis": None})
                 continue
             if not isinstance(entry, dict) or set(entry) != {"value", "source"}:
-                raise _err(path, f"{where}.{key}", "must be { value = \"<number> <unit>\", source = \"...\" }")
+                raise problems.error(f"{where}.{key}", "must be { value = \"<number> <unit>\", source = \"...\" }")
             if not isinstance(entry["source"], str) or not entry["source"].strip():
-                raise _err(path, f"{where}.{key}.source", "must name the published source of the value")
-            v = _quantity(entry["value"], path, f"{where}.{key}.value", key)
+                raise problems.error(f"{where}.{key}.source", "must name the published source of the value")
+            v = quantity_si(entry["value"], key, problems, f"{where}.{key}.value")
             if v <= 0:
-                raise _err(path, f"{where}.{key}.value", f"must be positive, got {entry['value']!r}")
+                raise problems.error(f"{where}.{key}.value", f"must be positive, got {entry['value']!r}")
             values.update({key: v, f"{key}_source": f"{label}: {grade}", f"{key}_basis": entry["source"]})
         index = len(materials)
         seen: set[str] = set()
@@ -316,34 +300,34 @@ def _parse(doc: dict[str, Any], path: str, label: str) -> MaterialLibrary:
                 continue
             seen.add(norm)
             if norm in owner:
-                raise _err(path, f"{where}.names",
-                           f"pattern {n!r} is also a pattern of grade {owner[norm]!r}")
+                raise problems.error(f"{where}.names",
+                                     f"pattern {n!r} is also a pattern of grade {owner[norm]!r}")
             owner[norm] = grade
             patterns.append((norm, index))
         materials.append(LibraryMaterial(grade=grade, category=category, standard=standard,
                                          patterns=tuple(names), note=note, **values))
-    return MaterialLibrary(path=path, label=label, materials=tuple(materials), patterns=tuple(patterns),
+    return MaterialLibrary(path=problems.path, label=label, materials=tuple(materials), patterns=tuple(patterns),
                            category_words=tuple(words), plausible=tuple(plausible))
 
 
-def _plausible_entry(path: str, where: str, cat: str, key: str, entry: Any) -> PlausibleRange:
+def _plausible_entry(problems: Problems[RuleSetError], where: str, cat: str, key: str, entry: Any) -> PlausibleRange:
     """``key = ["150 GPa", "230 GPa"]`` or ``key = { range = [...], source = "..." }``."""
     if key not in RANGE_KEYS:
-        raise _err(path, where, f"unknown key (expected {', '.join(RANGE_KEYS)})")
+        raise problems.error(where, f"unknown key (expected {', '.join(RANGE_KEYS)})")
     source = None
     if isinstance(entry, dict):
         if set(entry) - {"range", "source"} or "range" not in entry:
-            raise _err(path, where, "must be [low, high] or { range = [low, high], source = \"...\" }")
+            raise problems.error(where, "must be [low, high] or { range = [low, high], source = \"...\" }")
         source = entry.get("source")
         if source is not None and (not isinstance(source, str) or not source.strip()):
-            raise _err(path, f"{where}.source", "must name where the bounds come from")
+            raise problems.error(f"{where}.source", "must name where the bounds come from")
         entry = entry["range"]
     if not isinstance(entry, list) or len(entry) != 2:
-        raise _err(path, where, "must be a list [low, high] of two values with units")
-    lo = _quantity(entry[0], path, where, key)
-    hi = _quantity(entry[1], path, where, key)
+        raise problems.error(where, "must be a list [low, high] of two values with units")
+    lo = quantity_si(entry[0], key, problems, where)
+    hi = quantity_si(entry[1], key, problems, where)
     if not lo < hi:
-        raise _err(path, where, f"low {entry[0]!r} is not below high {entry[1]!r}")
+        raise problems.error(where, f"low {entry[0]!r} is not below high {entry[1]!r}")
     return PlausibleRange(cat, key, lo, hi, _range_text(str(entry[0]), str(entry[1])), source)
 
 

@@ -19,7 +19,6 @@ Example::
 from __future__ import annotations
 
 import re
-import tomllib
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
@@ -27,7 +26,8 @@ from typing import Any
 
 from modelcheck.common.data import data_path
 from modelcheck.common.errors import RuleSetError
-from modelcheck.materials.library import CATEGORIES, UNKNOWN, _quantity, load_library
+from modelcheck.common.problems import Problems, read_toml
+from modelcheck.materials.library import CATEGORIES, UNKNOWN, load_library, quantity_si
 
 _KEYS = frozenset({"name", "match", "category", "grade", "Fy", "applies_to", "about"})
 _LETTER = r"[^\W\d_]"
@@ -35,7 +35,6 @@ _LETTER = r"[^\W\d_]"
 _START = rf"(?:(?<!{_LETTER})(?={_LETTER})|(?<!\d)(?=\d)|(?=[\W_]))"
 _END = rf"(?:(?<={_LETTER})(?!{_LETTER})|(?<=\d)(?!\d)|(?<=[\W_]))"
 _FIELD = re.compile(r"\{(\d+)(?::(upper))?\}")
-_TOML_POS = re.compile(r"line (\d+)")
 
 
 @dataclass(frozen=True)
@@ -88,82 +87,70 @@ def _fill(template: str, m: re.Match[str]) -> str:
 
 @lru_cache(maxsize=4)
 def _load(path: str, label: str, _stamp: tuple[int, int]) -> tuple[NamePattern, ...]:
-    try:
-        doc = tomllib.loads(Path(path).read_bytes().decode("utf-8"))
-    except OSError as exc:
-        raise RuleSetError(f"cannot read the material-name patterns: {exc.strerror or exc}", path=path) from exc
-    except UnicodeDecodeError as exc:
-        raise RuleSetError("the material-name patterns are not UTF-8 text", path=path) from exc
-    except tomllib.TOMLDecodeError as exc:
-        m = _TOML_POS.search(str(exc))
-        raise RuleSetError(f"TOML syntax error: {exc}", path=path, where=f"line {m.group(1)}" if m else None) from exc
+    problems = Problems(path, RuleSetError)
+    doc = read_toml(problems, "the material-name patterns", plural=True)
     unknown = set(doc) - {"pattern"}
     if unknown:
-        raise RuleSetError("unknown top-level key (expected [[pattern]] tables)", path=path, where=sorted(unknown)[0])
+        raise problems.error(sorted(unknown)[0], "unknown top-level key (expected [[pattern]] tables)")
     items = doc.get("pattern")
     if not isinstance(items, list) or not items:
-        raise RuleSetError("no [[pattern]] tables found", path=path)
+        raise problems.error(None, "no [[pattern]] tables found")
     out: list[NamePattern] = []
     seen: set[str] = set()
     for i, spec in enumerate(items):
-        out.append(_pattern(spec, i, path, seen))
+        out.append(_pattern(spec, i, problems, seen))
     return tuple(out)
 
 
-def _pattern(spec: Any, i: int, path: str, seen: set[str]) -> NamePattern:
+def _pattern(spec: Any, i: int, problems: Problems[RuleSetError], seen: set[str]) -> NamePattern:
     where = f"pattern {i + 1}"
     if not isinstance(spec, dict):
-        raise RuleSetError("must be a table", path=path, where=where)
+        raise problems.error(where, "must be a table")
     name = spec.get("name")
     if not isinstance(name, str) or not name.strip():
-        raise RuleSetError("needs a name", path=path, where=where)
+        raise problems.error(where, "needs a name")
     where = f"pattern {name!r}"
     if name in seen:
-        raise RuleSetError("name used twice", path=path, where=where)
+        raise problems.error(where, "name used twice")
     seen.add(name)
     extra = set(spec) - _KEYS
     if extra:
-        raise RuleSetError(f"unknown key {sorted(extra)[0]!r} (expected {', '.join(sorted(_KEYS))})",
-                           path=path, where=where)
+        raise problems.error(where, f"unknown key {sorted(extra)[0]!r} (expected {', '.join(sorted(_KEYS))})")
     about = spec.get("about")
     if not isinstance(about, str) or not about.strip():
-        raise RuleSetError("needs an 'about' saying what it reads", path=path, where=where)
+        raise problems.error(where, "needs an 'about' saying what it reads")
     text = spec.get("match")
     if not isinstance(text, str) or not text:
-        raise RuleSetError("needs a 'match' regular expression", path=path, where=where)
+        raise problems.error(where, "needs a 'match' regular expression")
     try:
         regex = re.compile(f"{_START}(?:{text}){_END}", re.IGNORECASE)
     except re.error as exc:
-        raise RuleSetError(f"'match' is not a regular expression: {exc}", path=path, where=where) from exc
+        raise problems.error(where, f"'match' is not a regular expression: {exc}") from exc
     category = spec.get("category")
     if category is not None and category not in CATEGORIES:
-        raise RuleSetError(f"category must be one of {', '.join(CATEGORIES)}, got {category!r}",
-                           path=path, where=where)
+        raise problems.error(where, f"category must be one of {', '.join(CATEGORIES)}, got {category!r}")
     applies = spec.get("applies_to")
     if applies is not None:
         if not isinstance(applies, list) or not all(a in (*CATEGORIES, UNKNOWN) for a in applies):
-            raise RuleSetError(f"applies_to must list categories ({', '.join(CATEGORIES)}, unknown)",
-                               path=path, where=where)
+            raise problems.error(where, f"applies_to must list categories ({', '.join(CATEGORIES)}, unknown)")
         applies = frozenset(applies)
     for key in ("grade", "Fy"):
         t = spec.get(key)
         if t is None:
             continue
         if not isinstance(t, str) or not t.strip():
-            raise RuleSetError(f"{key} must be a text template", path=path, where=where)
+            raise problems.error(where, f"{key} must be a text template")
         for f in _FIELD.finditer(t):
             if int(f.group(1)) > regex.groups:
-                raise RuleSetError(f"{key} refers to group {f.group(1)}, which 'match' does not have",
-                                   path=path, where=where)
+                raise problems.error(where, f"{key} refers to group {f.group(1)}, which 'match' does not have")
         if key == "Fy":   # "<number> <unit>": a written unit must be a pressure
             number, _, unit = t.strip().partition(" ")
             if not _FIELD.fullmatch(number) or not unit:
-                raise RuleSetError("Fy must be '{n} <unit>' or '{n} {m}' (a group holding the unit)",
-                                   path=path, where=where)
+                raise problems.error(where, "Fy must be '{n} <unit>' or '{n} {m}' (a group holding the unit)")
             if not _FIELD.search(unit):
-                _quantity(f"1 {_unit_text(unit)}", path, f"{where}.Fy", "Fy")
+                quantity_si(f"1 {_unit_text(unit)}", "Fy", problems, f"{where}.Fy")
     if category is None and spec.get("grade") is None and spec.get("Fy") is None:
-        raise RuleSetError("gives nothing: needs a category, a grade or an Fy", path=path, where=where)
+        raise problems.error(where, "gives nothing: needs a category, a grade or an Fy")
     return NamePattern(name, regex, category, spec.get("grade"), spec.get("Fy"), applies, about)
 
 
@@ -227,7 +214,7 @@ def _read_cached(name: str, category: str, path: str | None, _stamp: tuple[int, 
     cat = cat or UNKNOWN
     grade = grade_pattern = fy_text = fy_pattern = None
     fy = None
-    where = path or str(default_names_path())
+    problems = Problems(path or str(default_names_path()), RuleSetError)
     for p, m in hits:
         if not p.applies(cat):
             continue
@@ -237,7 +224,7 @@ def _read_cached(name: str, category: str, path: str | None, _stamp: tuple[int, 
             # every place the pattern matches must state one strength: "345 MPa / 450 MPa" names
             # two, and which is the yield strength is a guess; the pattern then reads none
             stated = {_fy_text(p.Fy, each) for each in p.regex.finditer(name)}
-            values = {_quantity(t, where, f"pattern {p.name!r}", "Fy") for t in stated}
+            values = {quantity_si(t, "Fy", problems, f"pattern {p.name!r}") for t in stated}
             if len(values) == 1:
                 fy_text, fy_pattern, fy = _fy_text(p.Fy, m), p.name, values.pop()
     return NameReading(cat, cat_pattern, grade, grade_pattern, fy, fy_pattern, fy_text)
