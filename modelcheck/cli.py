@@ -109,8 +109,8 @@ def build_parser() -> argparse.ArgumentParser:
                     "  modelcheck rules show NAME|FILE   parameters, definitions and checks of one rule set\n"
                     "  modelcheck rules validate FILE    every error in a rule file, each with its line;\n"
                     "                                    exit 0 when it is valid, 2 when not\n\n"
-                    "Each shipped rule set (modelcheck/rulesets/*.toml) opens with the notes that explain\n"
-                    "how a rule set is written.")
+                    "How a rule set is written is described in SYNTAX.md, installed beside the shipped\n"
+                    "rule sets (modelcheck/rulesets/).")
     r.add_argument("action", nargs="?", choices=("list", "show", "validate"), default="list",
                    help="list (the default), show or validate")
     r.add_argument("target", nargs="?", metavar="NAME_OR_FILE",
