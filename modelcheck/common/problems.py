@@ -84,7 +84,7 @@ class Problems(Generic[E]):
     def within(self, label: str) -> Problems[E]:
         """A view that puts ``label: `` in front of each message and gathers into this list."""
         return Problems(self.path, self.error_type, lines=self.lines, unplaced=self.unplaced,
-                        label=label, _items=self._items)
+                        label=f"{self.label}: {label}" if self.label is not None else label, _items=self._items)
 
     @property
     def items(self) -> tuple[E, ...]:

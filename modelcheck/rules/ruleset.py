@@ -31,21 +31,13 @@ from modelcheck.rules.names import MEMBER_QUANTITIES
 from modelcheck.rules.parse import parse_ruleset
 from modelcheck.rules.parse.tables import NAME_RE
 from modelcheck.rules.scope import Scope, placeholder
-from modelcheck.rules.values import (
-    DEFAULT_DISPLAY,
-    DISPLAY_DIMENSIONS,
-    Check,
-    Definition,
-    MessagePart,
-    Parameter,
-    RuleSet,
-    display_unit_for,
-)
+from modelcheck.rules.values import Check, Definition, MessagePart, Parameter, RuleSet
 
+# the values of a rule set are named here too: a caller needs this module alone
 __all__ = [
-    "DEFAULT_DISPLAY", "DISPLAY_DIMENSIONS", "Check", "Definition", "MessagePart", "Parameter", "RuleSet",
-    "RuleSetErrors", "Scope", "display_unit_for", "list_rulesets", "load_ruleset", "parse_ruleset",
-    "resolve_ruleset", "ruleset_warnings", "shipped_names", "validate_ruleset_file",
+    "Check", "Definition", "MessagePart", "Parameter", "RuleSet", "RuleSetErrors", "Scope", "list_rulesets",
+    "load_ruleset", "parse_ruleset", "resolve_ruleset", "ruleset_warnings", "shipped_names",
+    "validate_ruleset_file",
 ]
 
 def _read(path: Path) -> str:
