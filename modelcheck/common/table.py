@@ -1,5 +1,8 @@
 """Column contracts of the three tables that flow through the pipeline.
 
+The member table's columns, their units and what each holds are rows of
+``modelcheck.common.vocabulary``; the tuples here are read from it.
+
 Numbers are floats in SI base units (m, m², N, Pa, 1/K); a value the model does not hold is
 NaN, and its ``*_source`` column is None. Every numeric column that comes from the model has a
 sibling ``<name>_source`` column saying where it came from.
@@ -19,41 +22,21 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from modelcheck.common import vocabulary
+
 #: identity columns of the member table (strings or None)
-IDENTITY_COLUMNS: tuple[str, ...] = (
-    "model", "global_id", "ifc_class", "predefined_type", "object_type", "name", "tag",
-    "storey", "type_name",
-)
+IDENTITY_COLUMNS: tuple[str, ...] = vocabulary.columns_of("identity")
 
-#: numeric columns with a provenance sibling ``<col>_source``
-QUANTITY_COLUMNS: dict[str, str] = {
-    # column: SI unit
-    "area": "m**2",       # gross cross-section area
-    "r_min": "m",         # least (principal) radius of gyration
-    "length": "m",        # member length (axis, extrusion depth, directrix, or quantity set)
-    "E": "Pa",            # modulus of elasticity
-    "Fy": "Pa",           # yield strength (0.2 % proof strength for non-ferrous)
-    "Fu": "Pa",           # ultimate tensile strength
-    "alpha": "1/K",       # linear thermal expansion coefficient
-    "net_area": "m**2",   # net area at holes or threads (property MC_NetSection.NetArea), rarely modelled
-    "shear_lag": "",      # shear lag factor U, Ae = U An (property MC_NetSection.ShearLagFactor), a ratio
-}
+#: numeric columns with a provenance sibling ``<col>_source``: column -> SI unit ('' for a ratio)
+QUANTITY_COLUMNS: dict[str, str] = {q.column: q.unit for q in vocabulary.quantities()
+                                    if q.column is not None and q.provenance}
 
-#: other section / material columns
-SECTION_COLUMNS: tuple[str, ...] = (
-    "section_name",   # profile name (IfcProfileDef.ProfileName) or None
-    "profile_type",   # IFC profile class, e.g. IfcIShapeProfileDef
-    "shape",          # shape family: round-bar, round-tube, square-bar, flat-bar, rect-tube,
-                      #   I, L, T, U, C, Z, ellipse, arbitrary, composite; None if unknown
-    "d",              # outside diameter of round shapes [m] (NaN otherwise)
-    "h", "b",         # overall depth / width [m]
-    "tf", "tw", "t",  # flange / web / wall thickness [m]
-)
-MATERIAL_COLUMNS: tuple[str, ...] = (
-    "material",           # material name as in the model
-    "material_category",  # IfcMaterial.Category or library category (steel, stainless, aluminium)
-    "material_grade",     # library grade matched, e.g. "ASTM A36", or None
-)
+#: other section columns: profile name (IfcProfileDef.ProfileName), IFC profile class, shape
+#: family (``vocabulary.SHAPES``; None if unknown), then the dimensions d h b tf tw t [m] (NaN
+#: where the shape has none)
+SECTION_COLUMNS: tuple[str, ...] = vocabulary.columns_of("section")
+#: material columns: name as in the model, category (steel, stainless, aluminium), library grade
+MATERIAL_COLUMNS: tuple[str, ...] = vocabulary.columns_of("material")
 
 #: warnings: a list[str] per member (object column)
 WARNINGS = "warnings"
@@ -66,7 +49,8 @@ WARNINGS = "warnings"
 REJECTED = "rejected"
 
 #: the member columns whose value comes from the member's section
-SECTION_VALUE_COLUMNS: frozenset[str] = frozenset(("area", "r_min", "d", "h", "b", "tf", "tw", "t"))
+SECTION_VALUE_COLUMNS: frozenset[str] = frozenset(q.column for q in vocabulary.quantities()
+                                                  if q.column is not None and q.of_section)
 
 
 #: the element's entity id (#n) in its model file: lets later stages skip a GlobalId look-up

@@ -8,10 +8,15 @@ from typing import Any
 import pandas as pd
 
 from modelcheck.common.table import REJECTED
+from modelcheck.common.vocabulary import quantities, quantity_object
 from modelcheck.report.quantities import DisplayUnits
 
 CAUTION = ("modelcheck screens models for data and axial-stress problems; it does not replace design "
            "and checking by a licensed engineer under the governing local code.")
+
+
+#: a quantity column's label in a table header ('r min')
+LABEL: dict[str, str] = {q.column: q.label for q in quantities() if q.column is not None}
 
 
 def _s(v: Any) -> Any:
@@ -25,9 +30,7 @@ def _s(v: Any) -> Any:
 
 def _ratio(value: Any, source: Any) -> dict[str, Any] | None:
     """A plain number (no unit) as a JSON quantity, or None where the model holds none."""
-    if value is None or not math.isfinite(float(value)):
-        return None
-    return {"value": float(f"{float(value):.6g}"), "unit": "", "source": str(source or "")}
+    return None if value is None else quantity_object(float(value), "", source)
 
 
 def member_dicts(members: pd.DataFrame, forces: pd.DataFrame | None, units: DisplayUnits,
@@ -39,8 +42,8 @@ def member_dicts(members: pd.DataFrame, forces: pd.DataFrame | None, units: Disp
         for gid, case, val, src in zip(forces["global_id"], forces["load_case"], forces["axial_force"],
                                        forces["source"], strict=True):
             # a force with no value (doubtful analysis end forces) is null: the reason is in the messages
-            force_map.setdefault(gid, {})[str(case)] = None if not math.isfinite(val) else {
-                "value": float(f"{val * ff:.6g}"), "unit": units.unit("force"), "source": src}
+            force_map.setdefault(gid, {})[str(case)] = None if not math.isfinite(val) else quantity_object(
+                val * ff, units.unit("force"), src)
     cap_map: dict[str, dict[str, Any]] = {}
     if capacity is not None and len(capacity):
         for rec in capacity.to_dict("records"):
@@ -91,15 +94,11 @@ def members_csv(members: pd.DataFrame, units: DisplayUnits, capacity: pd.DataFra
                 for q in cap[direction]]
             df[f"{direction}_check"] = [_s(v) for v in cap[f"{direction}_check"]]
             df[f"{direction}_note"] = [_s(v) for v in cap[f"{direction}_note"]]
-    for col in ("area", "r_min", "length", "E", "Fy", "Fu", "alpha", "net_area"):
-        if col not in df.columns:
+    for q in quantities():   # each quantity with a unit in its display unit, named in the header
+        if q.column is None or q.column not in df.columns or not q.display.si:
             continue
-        kind = "area" if col == "net_area" else col
-        df[col] = df[col] * units.convert(kind, 1.0)
-        df = df.rename(columns={col: f"{col} [{units.unit(kind)}]"})
-    for col in ("d", "h", "b", "tf", "tw", "t"):
-        df[col] = df[col] * units.convert("small_length", 1.0)
-        df = df.rename(columns={col: f"{col} [{units.unit('small_length')}]"})
+        df[q.column] = df[q.column] * units.convert(q.column, 1.0)
+        df = df.rename(columns={q.column: f"{q.column} [{units.unit(q.column)}]"})
     df["warnings"] = df["warnings"].map(lambda w: " | ".join(w or []))
     # what the reader did not use is in the warnings, in words; its (column, reason) pairs are not
     # a spreadsheet value
@@ -137,6 +136,9 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width:
     def header(name: str, kind: str) -> str:
         return _unit_header(f"{name} [{units.unit(kind)}]")
 
+    def labelled(column: str) -> str:   # a quantity's label with its display unit: 'r min [mm]'
+        return header(LABEL[column], column)
+
     recs = members.to_dict("records")
     cols: dict[str, list[str]] = {
         "Member": [member_label(r.get("name"), r.get("tag"), r["global_id"]) for r in recs],
@@ -146,13 +148,9 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width:
         "Storey": [text(r.get("storey")) or "—" for r in recs],
         "Section": [text(r.get("section_name")) or (text(r.get("profile_type")) or "").removeprefix("Ifc")
                     .removesuffix("ProfileDef") or "—" for r in recs],
-        header("A", "area"): nums("area", "area"),
-        header("r min", "r_min"): nums("r_min", "r_min"),
-        header("L", "length"): nums("length", "length"),
+        **{labelled(c): nums(c, c) for c in ("area", "r_min", "length")},
         "Material": [text(r.get("material")) or "—" for r in recs],
-        header("E", "E"): nums("E", "E"),
-        header("Fy", "Fy"): nums("Fy", "Fy"),
-        header("Fu", "Fu"): nums("Fu", "Fu"),
+        **{labelled(c): nums(c, c) for c in ("E", "Fy", "Fu")},
         "Notes": [f"{len(r['warnings'])} warning" + ("s" if len(r["warnings"]) > 1 else "") if r.get("warnings")
                   else "" for r in recs],
         "Sources": [_sources(r) for r in recs],
@@ -164,11 +162,11 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width:
             name = header(head, "force")
             rating_cols.append(name)
             cols[name] = [_rating(by_id.get(r["global_id"], {}).get(direction)) for r in recs]
-    order = (["Member", "Name", "GlobalId", "Class", "Storey", "Section", header("A", "area"), header("r min", "r_min"),
-              header("L", "length"), "Material", header("E", "E"), header("Fy", "Fy"), header("Fu", "Fu"),
-              *rating_cols, "Notes", "Sources"] if details
-             else ["Member", "Section", header("A", "area"), header("r min", "r_min"), header("L", "length"),
-                   "Material", header("Fy", "Fy"), *rating_cols, "Notes"])
+    order = (["Member", "Name", "GlobalId", "Class", "Storey", "Section", labelled("area"), labelled("r_min"),
+              labelled("length"), "Material", labelled("E"), labelled("Fy"), labelled("Fu"), *rating_cols,
+              "Notes", "Sources"] if details
+             else ["Member", "Section", labelled("area"), labelled("r_min"), labelled("length"), "Material",
+                   labelled("Fy"), *rating_cols, "Notes"])
     missing_style = {"Section", "Material"}
     columns = [(c, "right" if "[" in c else "left", cols[c]) for c in order]
     rows = [[Text(cols[c][i], style="red" if c in missing_style and cols[c][i] == "—"
@@ -196,7 +194,8 @@ def _sources(rec: dict[str, Any]) -> str:
     """Where each value of a member came from, values of one source together: 'A, r min: IfcCircleProfileDef #55;
     L: Axis; E, Fy, Fu: rulesets/materials.toml: EN 10025 S355'."""
     groups: dict[str, list[str]] = {}
-    for key, label in (("area", "A"), ("r_min", "r min"), ("length", "L"), ("E", "E"), ("Fy", "Fy"), ("Fu", "Fu")):
+    for key in ("area", "r_min", "length", "E", "Fy", "Fu"):
+        label = LABEL[key]
         src = _s(rec.get(f"{key}_source"))
         if src is not None and str(src).strip():
             groups.setdefault(str(src).strip(), []).append(label)

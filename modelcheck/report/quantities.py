@@ -1,5 +1,8 @@
 """Display units and the JSON quantity object ``Q = {"value", "unit", "source"}``.
 
+The display unit of each member quantity per system is a row of ``modelcheck.common.vocabulary``;
+the one builder of ``Q`` is ``vocabulary.quantity_object``.
+
 Tables hold SI floats; reporters convert each column once (one factor per column, no per-value
 pint arithmetic) into the display system chosen for the report.
 """
@@ -12,16 +15,13 @@ from functools import lru_cache
 from typing import Any
 
 from modelcheck.common.units import Q_
+from modelcheck.common.vocabulary import display_kinds, quantity_object
 
-#: display unit per member-table quantity, per system (pint-parsable strings)
+#: display unit per member-table quantity (and per extra kind: force, stress, small_length), per
+#: system (pint-parsable strings), read from ``modelcheck.common.vocabulary``
 DISPLAY: dict[str, dict[str, str]] = {
-    "SI": {"area": "mm**2", "r_min": "mm", "length": "m", "E": "MPa", "Fy": "MPa", "Fu": "MPa",
-           "alpha": "1/K", "force": "kN", "stress": "MPa", "small_length": "mm"},
-    "US": {"area": "in**2", "r_min": "in", "length": "ft", "E": "ksi", "Fy": "ksi", "Fu": "ksi",
-           "alpha": "1/delta_degF", "force": "kip", "stress": "ksi", "small_length": "in"},
-}
-SI_OF = {"area": "m**2", "r_min": "m", "length": "m", "E": "Pa", "Fy": "Pa", "Fu": "Pa", "alpha": "1/K",
-         "force": "N", "stress": "Pa", "small_length": "m"}
+    system: {kind: d.unit(system) for kind, d in display_kinds().items()} for system in ("SI", "US")}
+SI_OF: dict[str, str] = {kind: d.si for kind, d in display_kinds().items()}
 
 
 @lru_cache(maxsize=128)
@@ -44,15 +44,7 @@ class DisplayUnits:
         """The JSON ``Q`` object, or None for a missing value."""
         if si_value is None or not math.isfinite(si_value):
             return None
-        return {"value": _round(self.convert(quantity, si_value)), "unit": self.unit(quantity),
-                "source": source or ""}
-
-
-def _round(x: float, digits: int = 6) -> float:
-    """Round to ``digits`` significant figures: stable JSON across platforms, no false precision."""
-    if x == 0 or not math.isfinite(x):
-        return float(x)
-    return float(f"{x:.{digits}g}")
+        return quantity_object(self.convert(quantity, si_value), self.unit(quantity), source)
 
 
 def system_for_model(idx: Any) -> str:
