@@ -18,10 +18,11 @@ import sys
 from typing import Any
 
 from modelcheck.common.errors import UsageError
+from modelcheck.common.vocabulary import STOCK_KIND_NAMES
 
-#: the --shape choices (modelcheck.design.sizing.SHAPES; written here so that building the
-#: command line does not import the sizing machinery — start-up time counts)
-SHAPE_CHOICES: tuple[str, ...] = ("round", "square", "flat", "threaded", "catalog")
+#: the --shape choices (from the light vocabulary module: building the command line does not
+#: import the sizing machinery — start-up time counts)
+SHAPE_CHOICES: tuple[str, ...] = STOCK_KIND_NAMES
 
 
 

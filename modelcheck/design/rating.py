@@ -31,6 +31,8 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from modelcheck.common.vocabulary import quantity_object
+
 #: said after a check that fails at every force: why the direction has no rating
 NO_FORCE = " (no force satisfies it: no rating)"
 
@@ -234,7 +236,7 @@ def _rate(ruleset: Any, frame: pd.DataFrame, units: Any) -> pd.DataFrame:
             return None
         ch = check_map[check]
         clause = f" ({ch.clause})" if ch.clause else ""
-        return {"value": float(f"{p * factor:.6g}"), "unit": unit, "source": f"{ruleset.name}: {check}{clause}"}
+        return quantity_object(p * factor, unit, f"{ruleset.name}: {check}{clause}")
 
     def note(d: dict[str, np.ndarray], i: int, what: str) -> str | None:
         parts: list[str] = []

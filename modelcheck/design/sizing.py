@@ -40,9 +40,16 @@ import pandas as pd
 
 from modelcheck.common.errors import UsageError
 from modelcheck.common.units import Q_, ureg
+from modelcheck.common.vocabulary import (
+    STOCK_FAMILY,
+    STOCK_KIND_NAMES,
+    display_kinds,
+    quantity_object,
+    round_sig,
+)
 from modelcheck.design import stock
 
-SHAPES: tuple[str, ...] = ("round", "square", "flat", "threaded", "catalog")  # = cli_size.SHAPE_CHOICES
+SHAPES: tuple[str, ...] = STOCK_KIND_NAMES
 
 #: material used when none is named, by the rule set's units
 DEFAULT_MATERIAL: Mapping[str, str] = {"US": "ASTM A36", "SI": "S235"}
@@ -111,8 +118,7 @@ class SizeResult:
         if value is None or not math.isfinite(value):
             return None
         unit = self.display[kind]
-        si = {"force": "N", "stress": "Pa", "area": "m**2", "length": "m", "small_length": "m"}[kind]
-        return {"value": _round(float(Q_(value, si).m_as(unit))), "unit": unit, "source": source}
+        return quantity_object(float(Q_(value, display_kinds()[kind].si).m_as(unit)), unit, source)
 
     def to_dict(self) -> dict[str, Any]:
         """The JSON document of `modelcheck size --format json` (README: 'size JSON')."""
@@ -158,16 +164,11 @@ class SizeResult:
         }
 
 
-def _round(x: float, digits: int = 6) -> float:
-    if x == 0 or not math.isfinite(x):
-        return float(x)
-    return float(f"{x:.{digits}g}")
+_round = round_sig
 
 
 def _qd(value: float, unit: str) -> dict[str, Any] | None:
-    if not math.isfinite(value):
-        return None
-    return {"value": _round(value), "unit": unit, "source": ""}
+    return quantity_object(value, unit, "")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -307,8 +308,7 @@ def size(ruleset: Any, force_si: float, *, material: str | None = None, shape: s
 
 def _no_size_message(ruleset: Any, res: pd.DataFrame, na: pd.Series, per: pd.DataFrame, cands: pd.DataFrame,
                      shape: str, what: str, mat: Mapping[str, Any], length: float | None) -> str:
-    kind = {"round": "round bar", "square": "square bar", "flat": "flat bar", "threaded": "threaded rod",
-            "catalog": "catalog section"}[shape]
+    kind = STOCK_FAMILY[shape]
     applicable = res[~na]
     if not len(applicable):
         if na.any():

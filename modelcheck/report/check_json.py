@@ -15,6 +15,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from modelcheck.common.vocabulary import quantity_object
 from modelcheck.report.formats import WriteOptions
 from modelcheck.report.members import CAUTION
 
@@ -25,10 +26,7 @@ def _none(v: Any) -> Any:
     return v
 
 
-def _q(value: Any, unit: Any, source: Any) -> dict[str, Any] | None:
-    if value is None or not isinstance(value, int | float) or not math.isfinite(value):
-        return None  # a missing or infinite value is null in the contract
-    return {"value": float(f"{value:.6g}"), "unit": str(unit or ""), "source": str(source or "")}
+_q = quantity_object
 
 
 def result_dicts(results: pd.DataFrame) -> list[dict[str, Any]]:
