@@ -34,12 +34,17 @@ from typing import Any
 
 from modelcheck.common.data import data_path
 from modelcheck.common.errors import RuleSetError
+from modelcheck.common.vocabulary import Shape
 
 #: the shipped shape tables
 TABLES: tuple[str, ...] = ("shapes-aisc.csv", "shapes-en.csv")
 
-_HEADER_RE = re.compile(r"\s*([A-Za-z_][A-Za-z_0-9]*)\s*(?:\[(.+)\])?\s*\Z")
+#: a column header: a name, then its unit in brackets ('A [in2]'); stock.toml's tables read it too
+HEADER_RE = re.compile(r"\s*([A-Za-z_][A-Za-z_0-9]*)\s*(?:\[(.+)\])?\s*\Z")
 _DIMENSIONS = ("h", "b", "tf", "tw", "t", "d", "r", "r2")
+#: the shape families a row can have (a profile function each, in ``_profile``)
+TABLE_SHAPES: tuple[str, ...] = (Shape.I_SECTION, Shape.ANGLE, Shape.RECT_TUBE, Shape.ROUND_TUBE, Shape.ROUND_BAR,
+                                 Shape.SQUARE_BAR, Shape.FLAT_BAR)
 
 
 @dataclass(frozen=True)
@@ -82,7 +87,7 @@ def read_table(name: str) -> ShapeTable:
     names: list[str] = []
     units: dict[str, str] = {}
     for h in header:
-        m = _HEADER_RE.match(h)
+        m = HEADER_RE.match(h)
         if not m:
             raise RuleSetError(f"column {h!r}: write a name and an optional [unit]", path=str(path),
                                where=str(body[0][0]))
@@ -102,26 +107,25 @@ def _profile(f: Any, shape: str, dims: Mapping[str, float | None]) -> Any:
         return [float(dims[k]) for k in keys]   # type: ignore[arg-type]
 
     r, r2 = dims.get("r"), dims.get("r2")
-    if shape == "I":
+    if shape == Shape.I_SECTION:
         h, b, tf, tw = need("h", "b", "tf", "tw")
         return f.createIfcIShapeProfileDef("AREA", None, None, b, h, tw, tf, r)
-    if shape == "L":
+    if shape == Shape.ANGLE:
         h, b, t = need("h", "b", "t")
         return f.createIfcLShapeProfileDef("AREA", None, None, h, b, t, r, r2)
-    if shape == "rect-tube":
+    if shape == Shape.RECT_TUBE:
         h, b, t = need("h", "b", "t")
         return f.createIfcRectangleHollowProfileDef("AREA", None, None, b, h, t, r2, r)
-    if shape == "round-tube":
+    if shape == Shape.ROUND_TUBE:
         d, t = need("d", "t")
         return f.createIfcCircleHollowProfileDef("AREA", None, None, d / 2, t)
-    if shape == "round-bar":
+    if shape == Shape.ROUND_BAR:
         (d,) = need("d")
         return f.createIfcCircleProfileDef("AREA", None, None, d / 2)
-    if shape in ("square-bar", "flat-bar"):
+    if shape in (Shape.SQUARE_BAR, Shape.FLAT_BAR):
         h, b = need("h", "b")
         return f.createIfcRectangleProfileDef("AREA", None, None, b, h)
-    raise ValueError(f"shape {shape!r} has no profile function here "
-                     "(I, L, rect-tube, round-tube, round-bar, square-bar, flat-bar)")
+    raise ValueError(f"shape {shape!r} has no profile function here ({', '.join(TABLE_SHAPES)})")
 
 
 def row_properties(shape: str, dims: Mapping[str, float | None], f: Any = None) -> tuple[float, float]:
@@ -175,7 +179,7 @@ def refresh(name: str) -> str:
     props = computed_properties(name)
     table = read_table(name)
     lines = path.read_text(encoding="utf-8").splitlines()
-    names = [(_HEADER_RE.match(h) or re.match("(.*)", h)).group(1) for h in table.header]   # type: ignore[union-attr]
+    names = [(HEADER_RE.match(h) or re.match("(.*)", h)).group(1) for h in table.header]   # type: ignore[union-attr]
     ia, ir = names.index("A"), names.index("r_min")
     for row in table.rows:
         rec = next(csv.reader([lines[row.line - 1]]))

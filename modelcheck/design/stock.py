@@ -49,20 +49,25 @@ from modelcheck.common.data import data_path
 from modelcheck.common.errors import RuleSetError
 from modelcheck.common.problems import Problems, file_lines
 from modelcheck.common.units import Q_, QuantityTextError, parse_quantity, parse_unit
+from modelcheck.common.vocabulary import STOCK_KINDS, quantities
 from modelcheck.design.screw_threads import INCH, thread_series
+from modelcheck.design.shape_tables import HEADER_RE
 
 #: columns of a candidate table
 CANDIDATE_COLUMNS: tuple[str, ...] = (
     "designation", "family", "shape", "area", "r_min", "d", "h", "b", "tf", "tw", "t", "As",
     "label", "source",
 )
+#: the member-table columns of a section (``table.SECTION_VALUE_COLUMNS``, tested)
 GEOMETRY_COLUMNS: tuple[str, ...] = ("area", "r_min", "d", "h", "b", "tf", "tw", "t")
+
+_ROUND, _SQUARE, _FLAT, _THREADED = (next(k for k in STOCK_KINDS if k.name == n)
+                                     for n in ("round", "square", "flat", "threaded"))
 
 #: keys of a stock series (stock.toml and a rule set's [stock] table)
 SERIES_KEYS: tuple[str, ...] = ("about", "round", "square", "flat_thickness", "flat_width", "threads", "shapes")
 THREAD_SERIES = ("UNC", "ISO coarse")
 
-_HEADER_RE = re.compile(r"\s*([A-Za-z_][A-Za-z_0-9]*)\s*(?:\[(.+)\])?\s*\Z")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -269,8 +274,8 @@ def _frame(rows: dict[str, Any]) -> pd.DataFrame:
 def round_bars(series: StockSeries) -> pd.DataFrame:
     """Solid round bars: A = π d²/4, r = d/4."""
     d = np.asarray(series.round)
-    names = [f"round bar {length_label(x, series.system)}" for x in d]
-    return _frame({"designation": names, "family": ["round bar"] * len(d), "shape": ["round-bar"] * len(d),
+    names = [f"{_ROUND.family} {length_label(x, series.system)}" for x in d]
+    return _frame({"designation": names, "family": [_ROUND.family] * len(d), "shape": [_ROUND.shape] * len(d),
                    "area": math.pi * d**2 / 4, "r_min": d / 4, "d": d, "label": names,
                    "source": [series.origin] * len(d)})
 
@@ -278,8 +283,8 @@ def round_bars(series: StockSeries) -> pd.DataFrame:
 def square_bars(series: StockSeries) -> pd.DataFrame:
     """Solid square bars of side a: A = a², r = a/√12."""
     a = np.asarray(series.square)
-    names = [f"square bar {length_label(x, series.system)}" for x in a]
-    return _frame({"designation": names, "family": ["square bar"] * len(a), "shape": ["square-bar"] * len(a),
+    names = [f"{_SQUARE.family} {length_label(x, series.system)}" for x in a]
+    return _frame({"designation": names, "family": [_SQUARE.family] * len(a), "shape": [_SQUARE.shape] * len(a),
                    "area": a**2, "r_min": a / math.sqrt(12), "h": a, "b": a, "label": names,
                    "source": [series.origin] * len(a)})
 
@@ -288,8 +293,8 @@ def flat_label(width: float, thickness: float, system: str) -> str:
     w, t = length_label(width, system), length_label(thickness, system)
     wu, tu = w.rsplit(" ", 1), t.rsplit(" ", 1)
     if wu[1] == tu[1]:
-        return f"flat bar {wu[0]} x {tu[0]} {tu[1]}"
-    return f"flat bar {w} x {t}"
+        return f"{_FLAT.family} {wu[0]} x {tu[0]} {tu[1]}"
+    return f"{_FLAT.family} {w} x {t}"
 
 
 def flat_bars(series: StockSeries, thicknesses: tuple[float, ...] | None = None) -> pd.DataFrame:
@@ -308,7 +313,7 @@ def flat_bars(series: StockSeries, thicknesses: tuple[float, ...] | None = None)
         w_all += ws.tolist()
     t_arr, w_arr = np.asarray(t_all, dtype=float), np.asarray(w_all, dtype=float)
     names = [flat_label(w, t, series.system) for w, t in zip(w_arr.tolist(), t_arr.tolist(), strict=True)]
-    return _frame({"designation": names, "family": ["flat bar"] * len(names), "shape": ["flat-bar"] * len(names),
+    return _frame({"designation": names, "family": [_FLAT.family] * len(names), "shape": [_FLAT.shape] * len(names),
                    "area": w_arr * t_arr, "r_min": t_arr / math.sqrt(12), "h": t_arr, "b": w_arr, "t": t_arr,
                    "label": names, "source": [series.origin] * len(names)})
 
@@ -320,10 +325,10 @@ def threaded_rods(series: StockSeries | str) -> pd.DataFrame:
     sizes = thread_series(name)
     d = np.asarray([s.d_m for s in sizes])
     std = "ASME B1.1 UNC" if name == "UNC" else "ISO 261 coarse"
-    return _frame({"designation": [s.designation for s in sizes], "family": ["threaded rod"] * len(sizes),
-                   "shape": ["round-bar"] * len(sizes), "area": math.pi * d**2 / 4, "r_min": d / 4, "d": d,
+    return _frame({"designation": [s.designation for s in sizes], "family": [_THREADED.family] * len(sizes),
+                   "shape": [_THREADED.shape] * len(sizes), "area": math.pi * d**2 / 4, "r_min": d / 4, "d": d,
                    "As": np.asarray([s.As_m2 for s in sizes]),
-                   "label": [f"threaded rod {s.designation}" for s in sizes],
+                   "label": [f"{_THREADED.family} {s.designation}" for s in sizes],
                    "source": [f"{std} (rulesets/threads.toml)"] * len(sizes)})
 
 
@@ -347,7 +352,7 @@ def _load_shapes(name: str, _stamp: tuple[int, int]) -> pd.DataFrame:
     factors: dict[int, tuple[str, float]] = {}
     names: dict[int, str] = {}
     for i, h in enumerate(header):
-        m = _HEADER_RE.match(h)
+        m = HEADER_RE.match(h)
         if not m:
             raise RuleSetError(f"column {h!r}: write a name and an optional [unit]", path=str(path),
                                where=str(lines[0][0]))
@@ -473,13 +478,15 @@ def as_members(candidates: pd.DataFrame, *, base: Mapping[str, Any] | None = Non
     """
     from modelcheck.common.table import member_columns
 
+    numeric = {q.column for q in quantities() if q.column is not None}
+
     n = len(candidates)
     base = dict(base or {})
     cols: dict[str, Any] = {}
     for c in member_columns():
         if c in base:
             cols[c] = [base[c]] * n
-        elif c in ("area", "r_min", "length", "E", "Fy", "Fu", "alpha", "d", "h", "b", "tf", "tw", "t"):
+        elif c in numeric:
             cols[c] = np.full(n, np.nan)
         else:
             cols[c] = [None] * n

@@ -36,6 +36,7 @@ import numpy as np
 import pandas as pd
 
 from modelcheck.common.units import Q_
+from modelcheck.common.vocabulary import CATALOG_SHAPES, Shape, quantity_object
 from modelcheck.design import stock
 from modelcheck.rules.select import Selector
 
@@ -50,8 +51,6 @@ EVERY_SIZE_PAIRS = 20_000
 #: candidate families in which every check only gets better with the next size (a larger bar
 #: or thread has more area and a larger radius of gyration): searched by bisection
 MONOTONE = ("round", "square", "threaded")
-
-_CATALOG_SHAPES = ("I", "rect-tube", "round-tube", "L")
 
 #: a threaded rod, as the shipped rule sets' rod selectors name one ("rod" or "thread" in any name)
 _RODLIKE = Selector((("any_name", ("*rod*", "*thread*")),))
@@ -73,24 +72,24 @@ def _groups(members: pd.DataFrame, series: stock.StockSeries) -> tuple[list[Any]
     h = pd.to_numeric(members.get("h", pd.Series(np.nan, index=members.index)), errors="coerce").to_numpy(float)
     b = pd.to_numeric(members.get("b", pd.Series(np.nan, index=members.index)), errors="coerce").to_numpy(float)
     names = members["section_name"].to_numpy(dtype=object) if "section_name" in members.columns else np.full(n, None)
-    _, thread = thread_tensile_area(np.where(shape == "round-bar", d, np.nan))
+    _, thread = thread_tensile_area(np.where(shape == Shape.ROUND_BAR, d, np.nan))
     rod = _rodlike(members)
     for i in range(n):
         s = shape[i]
-        if s == "round-bar":
+        if s == Shape.ROUND_BAR:
             if thread[i] is not None and rod[i]:
                 keys[i] = ("threaded", "UNC" if str(thread[i]).endswith("UNC") else "ISO coarse")
             else:
                 keys[i] = ("round",)
-        elif s == "square-bar":
+        elif s == Shape.SQUARE_BAR:
             keys[i] = ("square",)
-        elif s == "flat-bar":
+        elif s == Shape.FLAT_BAR:
             t = np.nanmin([h[i], b[i]]) if np.isfinite([h[i], b[i]]).any() else math.nan
             if math.isfinite(t) and t > 0:
                 keys[i] = ("flat", float(t))
             else:
                 notes[i] = "no suggestion: the flat bar has no thickness"
-        elif s in _CATALOG_SHAPES:
+        elif s in CATALOG_SHAPES:
             fam = stock.catalog_family(names[i])
             if fam is not None:
                 keys[i] = ("catalog", fam[0], (fam[1],), s)
@@ -252,7 +251,7 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
         for rec in ok.to_dict("records"):
             chosen[int(rec["member"])] = {
                 "designation": rec["designation"],
-                "area": {"value": float(f"{rec['area'] * factor:.6g}"), "unit": area_unit, "source": rec["source"]},
+                "area": quantity_object(rec["area"] * factor, area_unit, rec["source"]),
                 "ratio": float(f"{rec['ratio']:.6g}"),
                 "family": rec["family"],
                 "check": rec["check"],

@@ -41,6 +41,7 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
 from typing import Any
 
+from modelcheck.common.vocabulary import Shape
 from modelcheck.ifc.curves import conic_sweep, line_trims, orient, trim_angle_problem, trim_choice
 from modelcheck.ifc.outline import (
     MAX_OUTLINE_POINTS,
@@ -67,8 +68,7 @@ class UnsupportedProfile(ValueError):
 class ProfileSection:
     area: float                 # gross area, file length unit squared
     r_min: float                # least principal radius of gyration, file length unit
-    shape: str                  # family: round-bar, round-tube, square-bar, flat-bar, rect-tube,
-                                #   I, L, T, U, C, Z, ellipse, arbitrary, composite
+    shape: str                  # shape family (``vocabulary.SHAPES``)
     source: str                 # e.g. "IfcIShapeProfileDef #19"
     name: str | None = None     # IfcProfileDef.ProfileName
     dims: dict[str, float] = field(default_factory=dict)  # d, h, b, tf, tw, t (file length unit)
@@ -260,7 +260,7 @@ def _disc(r: float) -> Moments:
 def circle(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
     """IfcCircleProfileDef: solid round bar. A = πR², I = πR⁴/4 (closed form)."""
     r = _length(p, "Radius")
-    return _section(p, _disc(r), "round-bar", {"d": 2 * r})
+    return _section(p, _disc(r), Shape.ROUND_BAR, {"d": 2 * r})
 
 
 def circle_hollow(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -269,11 +269,11 @@ def circle_hollow(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
     r = _length(p, "Radius")
     t = _length(p, "WallThickness")
     _need(p, t < r, f"WallThickness {t:g} is not less than Radius {r:g}")
-    return _section(p, _disc(r) - _disc(r - t), "round-tube", {"d": 2 * r, "t": t})
+    return _section(p, _disc(r) - _disc(r - t), Shape.ROUND_TUBE, {"d": 2 * r, "t": t})
 
 
 def _rect_family(b: float, h: float) -> str:
-    return "square-bar" if b == h else "flat-bar"
+    return Shape.SQUARE_BAR if b == h else Shape.FLAT_BAR
 
 
 def rectangle(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -311,7 +311,7 @@ def rectangle_hollow(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
           "the wall would break through at the corners")
     outer = _outline(p, [(-b / 2, -h / 2, ro), (b / 2, -h / 2, ro), (b / 2, h / 2, ro), (-b / 2, h / 2, ro)])
     inner = _outline(p, [(-bi / 2, -hi / 2, ri), (bi / 2, -hi / 2, ri), (bi / 2, hi / 2, ri), (-bi / 2, hi / 2, ri)])
-    return _section(p, outer - inner, "rect-tube", {"b": b, "h": h, "t": t})
+    return _section(p, outer - inner, Shape.RECT_TUBE, {"b": b, "h": h, "t": t})
 
 
 def ellipse(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -319,7 +319,7 @@ def ellipse(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
     A = π a c, ∫x² = π a³ c / 4, ∫y² = π a c³ / 4 (closed form)."""
     a, c = _length(p, "SemiAxis1"), _length(p, "SemiAxis2")
     m = Moments(math.pi * a * c, 0.0, 0.0, math.pi * a**3 * c / 4, math.pi * a * c**3 / 4, 0.0)
-    return _section(p, m, "ellipse", {"b": 2 * a, "h": 2 * c})
+    return _section(p, m, Shape.ELLIPSE, {"b": 2 * a, "h": 2 * c})
 
 
 def trapezium(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -331,7 +331,7 @@ def trapezium(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
     x0 = -(min(off, 0.0) + max(off + bt, bb)) / 2  # left end of the bottom edge
     m = _outline(p, [(x0, -h / 2, 0), (x0 + bb, -h / 2, 0), (x0 + off + bt, h / 2, 0), (x0 + off, h / 2, 0)])
     width = max(off + bt, bb) - min(off, 0.0)
-    return _section(p, m, "arbitrary", {"b": width, "h": h})
+    return _section(p, m, Shape.ARBITRARY, {"b": width, "h": h})
 
 
 # ---------------------------------------------------------------------------------------------
@@ -384,7 +384,7 @@ def i_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
     fl = _Flange(b, tf, _radius(p, "FilletRadius"), _radius(p, "FlangeEdgeRadius"),
                  _slope(p, "FlangeSlope", angle_factor))
     m = _outline(p, _i_corners(p, h, tw, fl, fl))
-    return _section(p, m, "I", {"h": h, "b": b, "tw": tw, "tf": tf})
+    return _section(p, m, Shape.I_SECTION, {"h": h, "b": b, "tw": tw, "tf": tf})
 
 
 def asymmetric_i_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -406,7 +406,7 @@ def asymmetric_i_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
     top = _Flange(bt, tft, _radius(p, "TopFlangeFilletRadius"), _radius(p, "TopFlangeEdgeRadius"),
                   _slope(p, "TopFlangeSlope", angle_factor))
     m = _outline(p, _i_corners(p, h, tw, bot, top))
-    return _section(p, m, "I", {"h": h, "b": max(bb, bt), "tw": tw, "tf": min(tfb, tft)})
+    return _section(p, m, Shape.I_SECTION, {"h": h, "b": max(bb, bt), "tw": tw, "tf": min(tfb, tft)})
 
 
 def l_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -428,7 +428,7 @@ def l_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
         (-b / 2, -h / 2, 0), (b / 2, -h / 2, 0), (b / 2, -h / 2 + t - b / 2 * k, r2), (xi, yi, r1),
         (-b / 2 + t - h / 2 * k, h / 2, r2), (-b / 2, h / 2, 0),
     ])
-    return _section(p, m, "L", {"h": h, "b": b, "t": t})
+    return _section(p, m, Shape.ANGLE, {"h": h, "b": b, "t": t})
 
 
 def t_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -455,7 +455,7 @@ def t_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
         (toe, -h / 2, r3), (xi, yi, r1), (b / 2, h / 2 - tip, r2), (b / 2, h / 2, 0),
         (-b / 2, h / 2, 0), (-b / 2, h / 2 - tip, r2), (-xi, yi, r1), (-toe, -h / 2, r3),
     ])
-    return _section(p, m, "T", {"h": h, "b": b, "tw": tw, "tf": tf})
+    return _section(p, m, Shape.TEE, {"h": h, "b": b, "tw": tw, "tf": tf})
 
 
 def u_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -476,7 +476,7 @@ def u_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
         (x0, y0, 0), (b / 2, y0, 0), (b / 2, y0 + tip, r2), (x0 + tw, y0 + web, r1),
         (x0 + tw, -y0 - web, r1), (b / 2, -y0 - tip, r2), (b / 2, -y0, 0), (x0, -y0, 0),
     ])
-    return _section(p, m, "U", {"h": h, "b": b, "tw": tw, "tf": tf})
+    return _section(p, m, Shape.CHANNEL_U, {"h": h, "b": b, "tw": tw, "tf": tf})
 
 
 def c_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -495,7 +495,7 @@ def c_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
         (x0 + t, y0 + t, ri), (x0 + t, y1 - t, ri), (x1 - t, y1 - t, ri), (x1 - t, y1 - c, 0),
         (x1, y1 - c, 0), (x1, y1, ro), (x0, y1, ro),
     ])
-    return _section(p, m, "C", {"h": h, "b": b, "t": t})
+    return _section(p, m, Shape.CHANNEL_C, {"h": h, "b": b, "t": t})
 
 
 def z_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -514,7 +514,7 @@ def z_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
         (-w, -y, 0), (b, -y, 0), (b, -y + tf, r2), (w, -y + tf, r1),
         (w, y, 0), (-b, y, 0), (-b, y - tf, r2), (-w, y - tf, r1),
     ])
-    return _section(p, m, "Z", {"h": h, "b": b, "tw": tw, "tf": tf})
+    return _section(p, m, Shape.ZED, {"h": h, "b": b, "tw": tw, "tf": tf})
 
 
 # ---------------------------------------------------------------------------------------------
@@ -736,7 +736,7 @@ def arbitrary_closed(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
     whole IfcCircle / IfcEllipse), integrated exactly with Green's theorem."""
     ctx = _Ctx(p, angle_factor)
     m = _loop_moments(p.OuterCurve, ctx)
-    return _section(p, m, "arbitrary", {}, placed=False)
+    return _section(p, m, Shape.ARBITRARY, {}, placed=False)
 
 
 def arbitrary_with_voids(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -746,7 +746,7 @@ def arbitrary_with_voids(p: Any, *, angle_factor: float = 1.0) -> ProfileSection
     for inner in p.InnerCurves or ():
         m = m - _loop_moments(inner, ctx)
     _need(p, m.a > 0, "the voids are as large as the outer outline")
-    return _section(p, m, "arbitrary", {}, placed=False)
+    return _section(p, m, Shape.ARBITRARY, {}, placed=False)
 
 
 def center_line(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -827,7 +827,7 @@ def center_line(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
             inner = Arc(s.center, _mul(s.u, k_in), _mul(s.v, k_in), s.t0 + s.sweep, -s.sweep)
             band = [outer, Line(outer.end, inner.start), inner, Line(inner.end, outer.start)]
             total = total + loop_moments(band).positive()
-    return _section(p, total, "arbitrary", {"t": t}, placed=False)
+    return _section(p, total, Shape.ARBITRARY, {"t": t}, placed=False)
 
 
 def _unit_vec(x: float, y: float) -> Point:
@@ -893,7 +893,7 @@ def derived(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
     if math.isclose(s1, s2, rel_tol=1e-12):
         shape, dims = parent.shape, {k: v * s1 for k, v in parent.dims.items()}
     else:
-        shape, dims = "arbitrary", {}
+        shape, dims = Shape.ARBITRARY, {}
     sec = _section(p, moments, shape, dims, placed=False)
     return sec if sec.name is not None else replace(sec, name=parent.name)
 
@@ -919,7 +919,7 @@ def composite(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
         sec = _dispatch(part, angle_factor)
         assert sec.moments is not None
         total = total + sec.moments
-    return _section(p, total, "composite", {}, placed=False)
+    return _section(p, total, Shape.COMPOSITE, {}, placed=False)
 
 
 PROFILE_FUNCTIONS: dict[str, ProfileFunction] = {

@@ -50,6 +50,7 @@ import pandas as pd
 
 from modelcheck.common.table import frame_of, member_columns
 from modelcheck.common.units import UNITLESS_MEASURES, MissingUnit, UnusableOwnUnit, UnusableUnit
+from modelcheck.common.vocabulary import Shape
 from modelcheck.ifc.curves import CurveError, curve_length, edge_curve_length
 from modelcheck.ifc.index import (
     ModelIndex,
@@ -234,7 +235,8 @@ class _Reader:
                 area = math.pi * (r * r - ri * ri)
                 rg = math.sqrt(r * r + ri * ri) / 2.0  # circle / annulus, I = π(R⁴−r⁴)/4
                 dims = {"d": 2 * r} | ({"t": r - ri} if ri > 0 else {})
-                sec = Section(area, rg, src, None, "IfcSweptDiskSolid", "round-tube" if ri > 0 else "round-bar", dims)
+                sec = Section(area, rg, src, None, "IfcSweptDiskSolid", Shape.ROUND_TUBE if ri > 0 else Shape.ROUND_BAR,
+                              dims)
             clen = self.curve_length(item.Directrix) if item.Directrix is not None else None
             length = (clen * lf * scale, "IfcSweptDiskSolid.Directrix") if isinstance(clen, float) else None
             return sec, length
@@ -786,11 +788,11 @@ class _Reader:
                 v = measure_si(self.idx, "IfcAreaMeasure", float(a))
                 dims = {"d": measure_si(self.idx, "IfcLengthMeasure", float(d)).value} if d is not None else {}
                 return Section(v.value, math.nan, f"IfcTendon.CrossSectionArea [{v.unit}]", None, None,
-                               "round-bar" if dims else None, dims, stated_unit=True)
+                               Shape.ROUND_BAR if dims else None, dims, stated_unit=True)
             if d is not None:
                 dv = measure_si(self.idx, "IfcLengthMeasure", float(d)).value
                 return Section(math.pi * dv * dv / 4, dv / 4, "IfcTendon.NominalDiameter", None, None,
-                               "round-bar", {"d": dv})
+                               Shape.ROUND_BAR, {"d": dv})
         except MissingUnit:
             return None
         return None
@@ -1013,7 +1015,7 @@ def _extent(sec: Section) -> tuple[float, float] | None:
         return d["d"], d["d"]
     if "h" in d and "b" in d:
         # a Z section's flanges point both ways from the web: up to twice FlangeWidth across
-        return (2 * d["b"] if sec.shape == "Z" else d["b"]), d["h"]
+        return (2 * d["b"] if sec.shape == Shape.ZED else d["b"]), d["h"]
     return None
 
 

@@ -26,6 +26,7 @@ import pint
 from modelcheck.common.errors import RuleSetError
 from modelcheck.common.table import REJECTED, RESULT_COLUMNS, SECTION_VALUE_COLUMNS, STATUS_RANK, frame_of
 from modelcheck.common.units import Q_, ureg
+from modelcheck.common.vocabulary import Shape
 from modelcheck.design.screw_threads import thread_tensile_area
 from modelcheck.rules.expr import Cond, Expression, ExpressionError, Text, Value, parse_expression
 from modelcheck.rules.names import MEMBER_QUANTITIES, TEXT_NAMES
@@ -94,7 +95,7 @@ class MemberData:
 
     def _thread(self) -> None:
         d = self.number("d")
-        round_bar = self.text("shape") == "round-bar"
+        round_bar = self.text("shape") == Shape.ROUND_BAR
         area, designation = thread_tensile_area(np.where(round_bar, d, np.nan))
         self._numbers["As"] = area
         self._texts["thread"] = designation
@@ -334,7 +335,7 @@ def _missing_text(name: str, ruleset: RuleSet, data: MemberData, m: int, case: A
     if name == "As":
         shape = data.text("shape")[m]
         d = data.number("d")[m]
-        if shape != "round-bar":
+        if shape != Shape.ROUND_BAR:
             return f"As: {'a ' + shape if shape else 'a section of unknown shape'} has no thread (round bars only)"
         if np.isnan(d):
             return "As: no rod diameter d to find the thread size"
