@@ -15,39 +15,19 @@ from typing import Any
 import pint
 
 from modelcheck.common.units import Q_, ureg
+from modelcheck.common.vocabulary import RULESET_DISPLAY
 from modelcheck.rules.expr import Expression
 from modelcheck.rules.select import Selector
 
 # ---------------------------------------------------------------------------------------------
 # display units
 
-#: [display] key -> an SI unit of that dimension
-DISPLAY_DIMENSIONS: Mapping[str, str] = MappingProxyType({
-    "force": "N",
-    "stress": "Pa",
-    "length": "m",
-    "area": "m**2",
-    "volume": "m**3",
-    "second_moment": "m**4",
-    "force_per_length": "N/m",
-    "moment": "N*m",
-    "expansion": "1/K",
-    "temperature_change": "K",
-    "number": "",
-})
+#: [display] key -> an SI unit of that dimension (``vocabulary.RULESET_DISPLAY``)
+DISPLAY_DIMENSIONS: Mapping[str, str] = MappingProxyType({k.key: k.display.si for k in RULESET_DISPLAY})
 
+#: system -> [display] key -> its default unit
 DEFAULT_DISPLAY: Mapping[str, Mapping[str, str]] = MappingProxyType({
-    "US": MappingProxyType({
-        "force": "kip", "stress": "ksi", "length": "in", "area": "in**2", "volume": "in**3",
-        "second_moment": "in**4", "force_per_length": "kip/ft", "moment": "kip*ft",
-        "expansion": "1/delta_degF", "temperature_change": "delta_degF", "number": "",
-    }),
-    "SI": MappingProxyType({
-        "force": "kN", "stress": "MPa", "length": "mm", "area": "mm**2", "volume": "mm**3",
-        "second_moment": "mm**4", "force_per_length": "kN/m", "moment": "kN*m",
-        "expansion": "1/K", "temperature_change": "K", "number": "",
-    }),
-})
+    system: MappingProxyType({k.key: k.display.unit(system) for k in RULESET_DISPLAY}) for system in ("US", "SI")})
 
 #: [display] key -> the dimensionality of its units
 DISPLAY_DIMENSIONALITY: Mapping[str, Any] = MappingProxyType(

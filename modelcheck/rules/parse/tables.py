@@ -16,6 +16,7 @@ from typing import Any
 
 import pint
 
+from modelcheck.common import vocabulary
 from modelcheck.common.errors import RuleSetError
 from modelcheck.common.problems import Key, Problems
 from modelcheck.common.units import QuantityTextError, normalise_unit, parse_unit, split_quantity, ureg
@@ -43,8 +44,7 @@ DEFINE_KEYS = ("expr", "about")
 #: the selector that leaves out members, in [select] and [check.select]
 EXCLUDE = "exclude"
 #: the shape families a ``shape`` selector names
-SHAPES = frozenset({"round-bar", "round-tube", "square-bar", "flat-bar", "rect-tube", "I", "L", "T",
-                    "U", "C", "Z", "ellipse", "arbitrary", "composite"})
+SHAPES = frozenset(vocabulary.SHAPES)
 #: words a parameter may not be named by
 KEYWORDS = ("pi", "True", "False", "and", "or", "not", "if", "else", "in")
 
