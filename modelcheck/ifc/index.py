@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import os
 import re
+from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -300,11 +301,34 @@ def property_si(idx: ModelIndex, prop: Any) -> SIValue | None:
     return measure_si(idx, nv.is_a(), float(raw), unit)
 
 
-def find_property(psets: list[Any], pset_name: str, prop_name: str) -> Any:
-    """The named property in the named set among ``psets`` (case-sensitive names), or None."""
+def find_property(psets: Iterable[Any], pset_name: str, prop_name: str, *, named: bool = False) -> Any:
+    """The property ``prop_name`` of the first property set called ``pset_name`` among ``psets``
+    that holds one (case-sensitive names), or None: the one look-up of a property by set and
+    property name (the reader's net section, the force route's property).
+
+    ``named``: every set of ``psets`` is already known to be called ``pset_name``
+    (``ModelIndex.psets_named``)."""
+    return property_with(psets, pset_name, prop_name, named=named)[0]
+
+
+def property_with(psets: Iterable[Any], pset_name: str, prop_name: str, beside: str | None = None, *,
+                  named: bool = False) -> tuple[Any, list[Any]]:
+    """``find_property``, and the properties called ``beside`` in the set it was found in
+    (empty where there is none, or no property was found).
+
+    Attributes are read by position (IfcPropertySet: Name 2, HasProperties 4; IfcProperty: Name
+    0, the same in every schema): several times faster than by name."""
     for ps in psets:
-        if ps.is_a("IfcPropertySet") and ps.Name == pset_name:
-            for p in ps.HasProperties or ():
-                if p.Name == prop_name:
-                    return p
-    return None
+        if ps.is_a("IfcPropertySet") and (named or ps.get_argument(2) == pset_name):
+            found = None
+            near: list[Any] = []
+            for p in ps.get_argument(4) or ():
+                pname = p.get_argument(0)
+                if pname == prop_name:
+                    if found is None:
+                        found = p
+                elif beside is not None and pname == beside:
+                    near.append(p)
+            if found is not None:
+                return found, near
+    return None, []

@@ -43,7 +43,7 @@ from modelcheck.common.units import (
     unit_quantity,
     ureg,
 )
-from modelcheck.ifc.index import ModelIndex
+from modelcheck.ifc.index import ModelIndex, property_with
 from modelcheck.loads.messages import MessageLog
 from modelcheck.loads.tables import DEFAULT_LOAD_CASE, VALUE_RE, ForceUnitError, force_unit_factor
 
@@ -108,23 +108,16 @@ def forces_from_property(idx: ModelIndex, members: pd.DataFrame, pset_name: str,
     prop_cases: dict[int, str] = {}
 
     def _find(psets: Any, pset: str, name: str, named: bool = False) -> Any:
-        # attributes by position (IfcPropertySet: Name 2, HasProperties 4; IfcProperty: Name 0;
-        # IfcPropertySingleValue: NominalValue 2, in every schema): several times faster than by name.
         # ``named``: the sets are already those called ``pset``
-        for ps in psets:
-            if ps.is_a("IfcPropertySet") and (named or ps.get_argument(2) == pset):
-                found = label = None
-                for p in ps.get_argument(4) or ():
-                    pname = p.get_argument(0)
-                    if pname == name:
-                        found = p
-                    elif pname == "LoadCase" and p.is_a("IfcPropertySingleValue") and p.get_argument(2) is not None:
-                        label = str(p.get_argument(2).wrappedValue).strip() or None
-                if found is not None:
-                    if label:
-                        prop_cases[found.id()] = label
-                    return found
-        return None
+        found, near = property_with(psets, pset, name, "LoadCase", named=named)
+        if found is not None:
+            label = None
+            for p in near:   # IfcPropertySingleValue: NominalValue 2, in every schema
+                if p.is_a("IfcPropertySingleValue") and p.get_argument(2) is not None:
+                    label = str(p.get_argument(2).wrappedValue).strip() or None
+            if label:
+                prop_cases[found.id()] = label
+        return found
 
     source_of: dict[str, str] = {}   # one source text per origin, shared by its rows
     for gid in mine.dropna().unique():

@@ -40,7 +40,7 @@ import pint
 from modelcheck.common.data import data_path
 from modelcheck.common.errors import RuleSetError
 from modelcheck.common.problems import Problems, read_toml
-from modelcheck.common.units import QuantityTextError, parse_quantity
+from modelcheck.common.units import VALUE_PATTERN, QuantityTextError, parse_quantity
 
 #: material categories ("unknown" is the fallback of plausible_range: a name nothing recognises)
 CATEGORIES: tuple[str, ...] = ("steel", "stainless", "aluminium", "concrete", "timber", "masonry", "other")
@@ -60,7 +60,7 @@ RANGE_KEYS: dict[str, tuple[str, str]] = VALUE_KEYS | {
 }
 _REQUIRED_VALUES = ("E",)
 _MATERIAL_KEYS = frozenset({"category", "standard", "names", "note", *VALUE_KEYS})
-_VALUE_RE = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+_VALUE_RE = re.compile(VALUE_PATTERN)   # the number and unit parts of a value, as parse_quantity reads them
 _NON_ALNUM = re.compile(r"[^0-9a-z]+")
 
 
@@ -197,9 +197,9 @@ def quantity_si(text: Any, key: str, problems: Problems[RuleSetError], where: st
     if not isinstance(text, str):
         raise problems.error(where, f"value must be a string '<number> <unit>', got {text!r}")
     m = _VALUE_RE.match(text)
-    if m is None or not m.group(2):
+    if m is None or not m.group("unit"):
         raise problems.error(where, f"value {text!r} is not '<number> <unit>' (a unit is required)")
-    unit_text = m.group(2)
+    unit_text = m.group("unit")
     try:   # the one reader of a number with a unit ("12e-6 / K": the number, then "per K")
         # pint reads a temperature in a denominator as a step ('1/degF' -> 1/delta_degF)
         q = parse_quantity(text, None, what="value")
@@ -334,8 +334,8 @@ def _plausible_entry(problems: Problems[RuleSetError], where: str, cat: str, key
 def _range_text(low: str, high: str) -> str:
     """'150 GPa', '230 GPa' -> '150–230 GPa'; '8 GPa', '1 TPa' -> '8 GPa–1 TPa'."""
     lo, hi = _VALUE_RE.match(low), _VALUE_RE.match(high)
-    if lo is not None and hi is not None and lo.group(2) == hi.group(2):
-        return f"{lo.group(1)}–{hi.group(1)} {hi.group(2)}".strip()
+    if lo is not None and hi is not None and lo.group("unit") == hi.group("unit"):
+        return f"{lo.group('num')}–{hi.group('num')} {hi.group('unit') or ''}".strip()
     return f"{low.strip()}–{high.strip()}"
 
 
