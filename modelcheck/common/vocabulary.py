@@ -61,20 +61,23 @@ CATALOG_SHAPES: tuple[str, ...] = (Shape.I_SECTION, Shape.RECT_TUBE, Shape.ROUND
 
 @dataclass(frozen=True)
 class StockKind:
-    """A kind of candidate size (``size --shape``): its family as the reports name it and the
-    shape family its sizes have (None: each catalog row names its own)."""
+    """A kind of candidate size (``size --shape``): its family as the reports name it, the
+    shape family its sizes have (None: each catalog row names its own) and whether every check
+    only gets better with the next size (a larger bar or thread has more area and a larger
+    radius of gyration), so that its sizes can be searched by bisection."""
 
     name: str
     family: str
     shape: str | None
+    monotone: bool = False
 
 
 #: the kinds of candidate size, in the order the command line lists them
 STOCK_KINDS: tuple[StockKind, ...] = (
-    StockKind("round", "round bar", Shape.ROUND_BAR),
-    StockKind("square", "square bar", Shape.SQUARE_BAR),
+    StockKind("round", "round bar", Shape.ROUND_BAR, monotone=True),
+    StockKind("square", "square bar", Shape.SQUARE_BAR, monotone=True),
     StockKind("flat", "flat bar", Shape.FLAT_BAR),
-    StockKind("threaded", "threaded rod", Shape.ROUND_BAR),
+    StockKind("threaded", "threaded rod", Shape.ROUND_BAR, monotone=True),
     StockKind("catalog", "catalog section", None),
 )
 STOCK_KIND_NAMES: tuple[str, ...] = tuple(k.name for k in STOCK_KINDS)

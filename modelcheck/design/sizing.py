@@ -146,7 +146,7 @@ class SizeResult:
                 "family": sel.family,
                 "area": self.q("area", sel.area, sel.area_source),
                 "stress": self.q("stress", sel.stress, sel.stress_source),
-                "ratio": _round(sel.ratio),
+                "ratio": round_sig(sel.ratio),
                 "governing_check": sel.governing_check,
                 "elongation": self.q("small_length", sel.elongation, "P L / (A E)"),
                 "tensile_stress_area": self.q("area", sel.tensile_stress_area,
@@ -155,16 +155,13 @@ class SizeResult:
             },
             "checks": [{"check": c.id, "title": c.title, "clause": c.clause, "status": c.status,
                         "demand": _qd(c.demand, c.unit), "capacity": _qd(c.capacity, c.unit),
-                        "ratio": None if not math.isfinite(c.ratio) else _round(c.ratio),
+                        "ratio": None if not math.isfinite(c.ratio) else round_sig(c.ratio),
                         "message": c.message} for c in self.checks],
             "not_applicable": [{"check": cid, "reason": why} for cid, why in self.not_applicable],
             "stock": self.stock,
             "candidates": self.candidates,
             "caution": CAUTION,
         }
-
-
-_round = round_sig
 
 
 def _qd(value: float, unit: str) -> dict[str, Any] | None:

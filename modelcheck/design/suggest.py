@@ -36,7 +36,7 @@ import numpy as np
 import pandas as pd
 
 from modelcheck.common.units import Q_
-from modelcheck.common.vocabulary import CATALOG_SHAPES, Shape, quantity_object
+from modelcheck.common.vocabulary import CATALOG_SHAPES, STOCK_KINDS, Shape, quantity_object
 from modelcheck.design import stock
 from modelcheck.rules.select import Selector
 
@@ -48,9 +48,8 @@ CHUNK = 200_000
 #: (the smallest size that passes is the same either way)
 EVERY_SIZE_PAIRS = 20_000
 
-#: candidate families in which every check only gets better with the next size (a larger bar
-#: or thread has more area and a larger radius of gyration): searched by bisection
-MONOTONE = ("round", "square", "threaded")
+#: candidate families in which every check only gets better with the next size: searched by bisection
+MONOTONE: tuple[str, ...] = tuple(k.name for k in STOCK_KINDS if k.monotone)
 
 #: a threaded rod, as the shipped rule sets' rod selectors name one ("rod" or "thread" in any name)
 _RODLIKE = Selector((("any_name", ("*rod*", "*thread*")),))
