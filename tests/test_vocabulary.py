@@ -129,7 +129,7 @@ def test_every_display_unit_has_its_dimension():
 
 
 def test_rule_set_display_keys_are_the_vocabulary():
-    from modelcheck.rules.ruleset import DEFAULT_DISPLAY, DISPLAY_DIMENSIONS
+    from modelcheck.rules.values import DEFAULT_DISPLAY, DISPLAY_DIMENSIONS
 
     assert list(DISPLAY_DIMENSIONS) == [k.key for k in vocabulary.RULESET_DISPLAY]
     assert list(DEFAULT_DISPLAY) == ["US", "SI"]
@@ -140,7 +140,7 @@ def test_rule_set_display_keys_are_the_vocabulary():
 
 def test_shape_families_are_one_list():
     from modelcheck.design.shape_tables import TABLE_SHAPES, read_table
-    from modelcheck.rules.ruleset import SHAPES as RULESET_SHAPES
+    from modelcheck.rules.parse.tables import SHAPES as RULESET_SHAPES
 
     assert len(set(SHAPES)) == len(SHAPES)
     assert RULESET_SHAPES == frozenset(SHAPES)
