@@ -229,3 +229,19 @@ def test_material_values_are_split_by_the_units_pattern(text):
     m = _VALUE_RE.match(text)
     assert m is not None and m.re.pattern == re.compile(VALUE_PATTERN).pattern
     assert parse_quantity(text).number == parse_quantity(f"{m.group('num')} {m.group('unit')}").number
+
+
+def test_the_rule_syntax_lists_every_shape_family_and_text_name():
+    """The documented list of text values (rulesets/SYNTAX.md) is the vocabulary's."""
+    import re
+
+    from modelcheck.common.data import data_path
+
+    text = data_path("SYNTAX.md").read_text(encoding="utf-8")
+    section = text[text.index("### Text values"):]
+    section = section[:section.index("\n\n", section.index("For conditions"))]
+    shapes = re.search(r"`shape` \(([^)]*)\)", section)
+    assert shapes is not None
+    assert re.findall(r"`([^`]+)`", shapes.group(1)) == list(SHAPES)
+    names = set(re.findall(r"`([^`]+)`", section.replace(shapes.group(0), "`shape`")))
+    assert names == {t.name for t in texts()}
