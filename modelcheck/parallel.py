@@ -32,7 +32,7 @@ import os
 import signal
 import sys
 from dataclasses import dataclass, field, replace
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
@@ -42,6 +42,9 @@ from modelcheck.common.errors import ModelcheckError
 from modelcheck.common.table import concat_rows
 from modelcheck.pipeline import REPORT_MEMBER_COLUMNS, CheckedModel, ForceOptions, ModelData, describe_model
 from modelcheck.timing import stage
+
+if TYPE_CHECKING:
+    from modelcheck.loads.tables import LoadTable
 
 #: below this many members a model is checked in one process (forking costs more than it saves)
 MIN_MEMBERS_PER_PART = 2_000
@@ -72,7 +75,7 @@ class _Shared:
     log_start: int                 # parse-log entries before the fork
     parent_pid: int
     offsets: dict[int, int]        # file offsets of the parser's descriptors at the fork
-    tables: tuple[pd.DataFrame, ...]   # the load tables, whole: each part takes its rows
+    tables: tuple[LoadTable, ...]   # the load tables, whole: each part takes its rows
     part_starts: np.ndarray        # the first GlobalId of each part but the first (in sorted order)
     row_files: dict[int, int]      # part -> descriptor of the memory file its JSON rows go to
 
@@ -97,13 +100,14 @@ class _PartResult:
     member_warnings: dict[str, list[str]] = field(default_factory=dict)   # GlobalId -> the member's own
 
 
-def _table_part(table: pd.DataFrame, part_starts: np.ndarray, k: int) -> pd.DataFrame:
+def _table_part(load_table: LoadTable, part_starts: np.ndarray, k: int) -> LoadTable:
     """A load table's rows for part ``k``: the GlobalId rows in its run of GlobalIds and every tag
     row. Cut in each part, at the same time. A GlobalId of no member goes to the part whose run it
     falls in, where it matches nothing: unmatched, as in any other part."""
+    table = load_table.frame
     keys = table["key"].fillna("").to_numpy(dtype=object)
     part = np.searchsorted(part_starts, keys, side="right")
-    return table[(part == k) | (table["key_kind"] != "global_id").to_numpy()]
+    return replace(load_table, frame=table[(part == k) | (table["key_kind"] != "global_id").to_numpy()])
 
 
 def _bounds(gids: list[str], parts: int) -> list[tuple[int, int]]:
@@ -180,7 +184,7 @@ def _run_part(k: int) -> _PartResult:
     new_log = list(idx.parse_log[st.log_start:])
     if data.error is not None or data.members is None:
         return _PartResult(data.error, None, None, None, None, (), new_log, [], set(), 0)
-    n_parse = data.members.attrs.get("parse_problem_count", 0)
+    n_parse = data.parse_problem_count
     # what the model-wide parts of the warnings were is rebuilt by the caller from the merged log
     warnings = [w for w in data.warnings[n_parse:]]
     ruleset = load_ruleset(st.ruleset_ref).in_system(st.units)
@@ -298,7 +302,7 @@ class _Forked:
             os.waitpid(self._pid, 0)
 
 
-def _read_tables(paths: list[str]) -> tuple[pd.DataFrame, ...]:
+def _read_tables(paths: list[str]) -> tuple[LoadTable, ...]:
     from modelcheck.loads.tables import read_load_table
 
     return tuple(read_load_table(p) for p in paths)

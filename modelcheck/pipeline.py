@@ -10,9 +10,10 @@ from __future__ import annotations
 
 import glob
 import os
+from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
@@ -20,6 +21,9 @@ import pandas as pd
 from modelcheck.common.errors import ModelcheckError, UsageError
 from modelcheck.common.table import REJECTED, concat_rows, empty_forces
 from modelcheck.loads.sources import ForceOptions
+
+if TYPE_CHECKING:
+    from modelcheck.loads.tables import LoadTable
 
 IFC_SUFFIXES = (".ifc", ".ifczip")
 
@@ -43,6 +47,7 @@ class ModelData:
     force_messages: list[str] = field(default_factory=list)
     force_report: dict[str, Any] = field(default_factory=dict)   # ForceReport.to_dict() less 'unmatched'
     warnings: list[str] = field(default_factory=list)      # model-level warnings
+    parse_problem_count: int = 0   # how many of the warnings the reader gave were the parser's problems
     validation: list[str] = field(default_factory=list)    # schema validation findings (--validate)
     #: GlobalId -> the member's own warnings (plausibility, consistency between sources, values
     #: not used), for the members that have any; kept when the member table is let go
@@ -119,13 +124,15 @@ def read_into(data: ModelData, idx: Any, forces: ForceOptions | None, entities: 
 
     try:
         with stage("read members"):
-            data.members = read_members(idx, entities=entities)
-        data.member_count = len(data.members)
-        data.warnings = list(data.members.attrs.get("model_warnings", []))
+            table = read_members(idx, entities=entities)
+        data.members = table.frame
+        data.member_count = len(table.frame)
+        data.warnings = list(table.model_warnings)
+        data.parse_problem_count = table.parse_problem_count
         if forces is not None:
             attach_forces(data, idx, forces, **join)
             if idx.drain_log():  # entities the force routes read were parsed (lazily) just now
-                n = data.members.attrs.get("parse_problem_count", 0)
+                n = data.parse_problem_count
                 data.warnings = list(idx.parse_problems) + data.warnings[n:]
     except ModelcheckError as exc:  # a syntax error met while reading an entity (lazy parsing)
         data.error = str(exc)
@@ -655,10 +662,10 @@ def unmatched_lines(rows: list[dict[str, str]]) -> list[str]:
             + (f" … (+{len(keys) - 10})" if len(keys) > 10 else "") for f, keys in by_file.items()]
 
 
-def unmatched_rows(tables: Any, used: set[str]) -> list[dict[str, str]]:
+def unmatched_rows(tables: Iterable[LoadTable], used: set[str]) -> list[dict[str, str]]:
     """The rows of the load tables that no member used (``used``: their sources), each with its key."""
     rows = []
     for t in tables:
-        left = t.loc[~t["source"].isin(used), ["key", "source"]]   # one hashed look-up over the column
+        left = t.frame.loc[~t.frame["source"].isin(used), ["key", "source"]]   # one hashed look-up over the column
         rows += [{"key": str(key), "source": src} for key, src in zip(left["key"], left["source"], strict=True)]
     return rows

@@ -68,7 +68,7 @@ def export(tmp_path: Path) -> tuple[Path, dict[str, Any]]:
 
 def _forces(path: Path, frame: str | None) -> tuple[dict[str, float], dict[str, str], list[str]]:
     idx = build_index(str(path))
-    members = read_members(idx)
+    members = read_members(idx).frame
     forces, msgs = forces_from_analysis(idx, members, frame=frame)
     return (dict(zip(forces["global_id"], forces["axial_force"], strict=True)),
             dict(zip(forces["global_id"], forces["source"], strict=True)), msgs)
@@ -131,7 +131,7 @@ def test_supports_and_footings_are_not_member_forces(export: tuple[Path, dict[st
     assert not any(ids["support"] in m for m in msgs)     # no warning per support ...
     assert any("on supports" in m and m.split(": ", 1)[1].startswith("1 structural result") for m in msgs)
     idx = build_index(str(path))
-    warnings = read_members(idx).attrs["model_warnings"]
+    warnings = read_members(idx).model_warnings
     line = next(w for w in warnings if ids["footing_member"] in w)   # ... and the footing's member is listed
     assert "IfcFooting" in line and "not checked" in line
 

@@ -248,7 +248,7 @@ def test_a_curved_axis_gets_its_exact_length(tmp_path, name):
     assert hand == pytest.approx(kernel_length(curve), rel=1e-4)   # ifcopenshell.geom: chords of its arcs
     path = tmp_path / "axes.ifc"
     mb.write(str(path))
-    m = read_members(build_index(str(path))).set_index("name").loc[name]
+    m = read_members(build_index(str(path))).frame.set_index("name").loc[name]
     assert m["length"] == pytest.approx(hand / 1000, rel=1e-10)
     assert m["length_source"] == "Axis"
     assert not any("Axis" in w for w in m["warnings"])
@@ -260,7 +260,7 @@ def test_curved_axes_in_other_schemas(tmp_path, schema):
     axis_member(mb, "bend", bend_composite(mb.f))
     path = tmp_path / "axes.ifc"
     mb.write(str(path))
-    m = read_members(build_index(str(path))).set_index("name").loc["bend"]
+    m = read_members(build_index(str(path))).frame.set_index("name").loc["bend"]
     assert m["length"] == pytest.approx((3000 + 1000 * math.pi / 2 + 2000) / 1000, rel=1e-10)  # as above
 
 
@@ -269,7 +269,7 @@ def test_radian_trims_in_a_radian_file(tmp_path):
     axis_member(mb, "arc", quarter_circle(mb.f, True, 0, math.pi / 2))
     path = tmp_path / "rad.ifc"
     mb.write(str(path))
-    m = read_members(build_index(str(path))).set_index("name").loc["arc"]
+    m = read_members(build_index(str(path))).frame.set_index("name").loc["arc"]
     assert m["length"] == pytest.approx(5.0 * math.pi / 2, rel=1e-12)   # R·θ (common practice)
 
 
@@ -283,7 +283,7 @@ def test_an_axis_that_cannot_be_measured_says_so(tmp_path):
         2, ctrl, "UNSPECIFIED", False, False, (3, 3), (0.0, 1.0), "UNSPECIFIED"), body_length=2400.0)
     path = tmp_path / "spline.ifc"
     mb.write(str(path))
-    ms = read_members(build_index(str(path))).set_index("name")
+    ms = read_members(build_index(str(path))).frame.set_index("name")
     bare, bodied = ms.loc["spline"], ms.loc["spline-with-body"]
     assert math.isnan(bare["length"]) and bare["length_source"] is None
     assert any("Axis not measured" in w and "IfcBSplineCurveWithKnots" in w for w in bare["warnings"])
@@ -313,7 +313,7 @@ def test_a_profile_swept_along_a_curved_directrix(tmp_path):
         f.createIfcShapeRepresentation(mb.body_ctx, "Body", "AdvancedSweptSolid", [sweep])])
     path = tmp_path / "curved.ifc"
     mb.write(str(path))
-    m = read_members(build_index(str(path))).set_index("name").loc["curved"]
+    m = read_members(build_index(str(path))).frame.set_index("name").loc["curved"]
     hand = 5000 * math.pi / 2    # R·θ (common practice)
     assert m["length"] == pytest.approx(hand / 1000, rel=1e-10)
     assert m["length_source"] == "IfcFixedReferenceSweptAreaSolid.Directrix"
@@ -344,7 +344,7 @@ def test_an_analysis_member_along_a_circular_edge(tmp_path, same_sense, quarters
     an.finish()
     path = tmp_path / "arch.ifc"
     mb.write(str(path))
-    m = read_members(build_index(str(path))).set_index("name").loc["arch"]
+    m = read_members(build_index(str(path))).frame.set_index("name").loc["arch"]
     assert m["length"] == pytest.approx(5.0 * quarters * math.pi / 2, rel=1e-12)   # R·θ (common practice)
     assert m["length_source"].startswith("IfcEdgeCurve #")
 
@@ -360,7 +360,7 @@ def test_a_trim_angle_beyond_any_turn_of_the_conic_is_not_read(tmp_path, turns):
     axis_member(mb, "quarter", quarter_circle(f, True, 0.0, math.pi / 2))
     path = tmp_path / "turns.ifc"
     mb.write(str(path))
-    ms = read_members(build_index(str(path))).set_index("name")
+    ms = read_members(build_index(str(path))).frame.set_index("name")
     assert math.isnan(ms.loc["far", "length"])
     assert any("beyond ±1,000 turns" in w for w in ms.loc["far", "warnings"]), ms.loc["far", "warnings"]
     assert ms.loc["quarter", "length"] == pytest.approx(5.0 * math.pi / 2, rel=1e-12)  # arc length R·θ, R = 5 m, θ = π/2 (hand value)

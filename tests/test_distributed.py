@@ -12,13 +12,14 @@ import pytest
 
 from modelcheck.common.errors import UsageError
 from modelcheck.distributed import run_on_cluster
+from modelcheck.loads.tables import LoadTable
 from modelcheck.pipeline import ForceOptions, check_model
 from modelcheck.testing.author import ModelBuilder
 
 
 def echo_task(path, ruleset_ref, forces, validate, units="model"):
     """Stand-in for check_model: what arrived on the worker, and a fresh token per run."""
-    rows = int(sum(len(t) for t in forces.tables))
+    rows = int(sum(len(t.frame) for t in forces.tables))
     return {"path": path, "ruleset": ruleset_ref, "rows": rows, "validate": validate, "units": units,
             "pid": os.getpid(),
             "token": uuid.uuid4().hex}
@@ -32,7 +33,7 @@ def cluster():
 
 
 def test_results_come_back_in_input_order_from_another_process(cluster):
-    table = pd.DataFrame({"key": ["H1"], "source": ["loads.csv:2"]})
+    table = LoadTable(pd.DataFrame({"key": ["H1"], "source": ["loads.csv:2"]}), "utf-8")
     ticks = []
     out = run_on_cluster(cluster.scheduler_address, ["b.ifc", "a.ifc", "b.ifc"], "steel-asd-us",
                          ForceOptions(tables=(table,)), True, progress=lambda: ticks.append(1),

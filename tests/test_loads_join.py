@@ -17,7 +17,7 @@ from modelcheck.loads.analysis import forces_from_analysis
 from modelcheck.loads.join import ForceReport, join_forces
 from modelcheck.loads.properties import forces_from_property
 from modelcheck.loads.sources import ForceOptions, LoadTables, SourceForces, ranked, source_messages
-from modelcheck.loads.tables import read_load_table
+from modelcheck.loads.tables import LoadTable, read_load_table
 from modelcheck.testing.author import ModelBuilder
 from modelcheck.testing.author_analysis import AnalysisWriter
 
@@ -30,16 +30,16 @@ def members(rows: list[tuple[str, str, str | None]]) -> pd.DataFrame:
                          "tag": [r[2] for r in rows], "ifc_class": "IfcMember", "name": None})
 
 
-def loads(rows: list[tuple[str, str, str, float, str]]) -> pd.DataFrame:
+def loads(rows: list[tuple[str, str, str, float, str]]) -> LoadTable:
     """A load table as read_load_table returns it: (key_kind, key, load_case, N, source)."""
-    return pd.DataFrame(rows, columns=["key_kind", "key", "load_case", "axial_force", "source"])
+    return LoadTable(pd.DataFrame(rows, columns=["key_kind", "key", "load_case", "axial_force", "source"]), "utf-8")
 
 
 def forces(rows: list[tuple[str, str, str, float, str]]) -> pd.DataFrame:
     return pd.DataFrame(rows, columns=list(FORCE_COLUMNS))
 
 
-def join(mem: pd.DataFrame, tables: list[pd.DataFrame] | None = None, prop: pd.DataFrame | None = None,
+def join(mem: pd.DataFrame, tables: list[LoadTable] | None = None, prop: pd.DataFrame | None = None,
          analysis: pd.DataFrame | None = None, messages: list[str] | None = None,
          **kw: Any) -> tuple[pd.DataFrame, ForceReport]:
     """join_forces over the shipped sources, as the pipeline hands them over: the load tables

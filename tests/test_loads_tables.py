@@ -58,7 +58,7 @@ def test_force_unit_factor_refuses_non_forces(unit: str, fragment: str) -> None:
 # ------------------------------------------------------------------ unit forms
 def test_header_unit_kn(tmp_path: Path) -> None:
     p = write(tmp_path, "global_id,load_case,axial_force [kN]\nG1,LC1,12.5\nG1,LC2,-3\n")
-    df = read_load_table(p)
+    df = read_load_table(p).frame
     assert list(df.columns) == list(LOAD_TABLE_COLUMNS)
     # 12.5 kN = 12 500 N, -3 kN = -3000 N (SI prefix kilo)
     assert df["axial_force"].tolist() == pytest.approx([12500.0, -3000.0], rel=1e-12)
@@ -69,7 +69,7 @@ def test_header_unit_kn(tmp_path: Path) -> None:
 
 def test_header_unit_in_parentheses_kip(tmp_path: Path) -> None:
     p = write(tmp_path, "tag,axial_force (kip)\nH1,2.5\n")
-    df = read_load_table(p)
+    df = read_load_table(p).frame
     assert df["axial_force"].iloc[0] == pytest.approx(2.5 * KIP_NIST, rel=1e-12)  # NIST SP 811
     assert df["load_case"].iloc[0] == "default"
     assert df["key_kind"].iloc[0] == "tag"
@@ -77,7 +77,7 @@ def test_header_unit_in_parentheses_kip(tmp_path: Path) -> None:
 
 def test_units_in_each_value_mixed(tmp_path: Path) -> None:
     p = write(tmp_path, "tag,axial_force\nH1,12.5 kip\nH2,-3 kN\nH3,850 lbf\nH4,4.2e3 N\nH5,7kN\n")
-    df = read_load_table(p)
+    df = read_load_table(p).frame
     expected = [12.5 * KIP_NIST,      # NIST SP 811
                 -3000.0,              # SI prefix kilo
                 850 * LBF_NIST,       # NIST SP 811
@@ -98,20 +98,20 @@ def test_each_distinct_unit_parsed_once(tmp_path: Path, monkeypatch: pytest.Monk
 
     monkeypatch.setattr(tables, "force_unit_factor", counting)
     body = "".join(f"H{i},{i} {('kN', 'kip', 'lbf')[i % 3]}\n" for i in range(300))
-    df = read_load_table(write(tmp_path, "tag,axial_force\n" + body))
+    df = read_load_table(write(tmp_path, "tag,axial_force\n" + body)).frame
     assert len(df) == 300
     assert sorted(calls) == ["kN", "kip", "lbf"]
 
 
 def test_both_keys_global_id_wins_and_tag_fills_in(tmp_path: Path) -> None:
     p = write(tmp_path, "global_id,tag,axial_force [N]\nG1,H1,1\n,H2,2\n")
-    df = read_load_table(p)
+    df = read_load_table(p).frame
     assert df[["key_kind", "key"]].values.tolist() == [["global_id", "G1"], ["tag", "H2"]]
 
 
 def test_header_names_are_flexible_and_other_columns_ignored(tmp_path: Path) -> None:
     p = write(tmp_path, "Member,Global ID,Load-Case,Axial Force [kN],Comment\nM1,G1,ULS,1,ok\n")
-    df = read_load_table(p)
+    df = read_load_table(p).frame
     assert df[["key", "load_case"]].values.tolist() == [["G1", "ULS"]]
     assert df["axial_force"].iloc[0] == pytest.approx(1000.0)  # SI prefix kilo
 
@@ -123,28 +123,29 @@ def test_title_lines_blank_rows_and_row_numbers(tmp_path: Path) -> None:
             "H1;LC1;1.5\n"                     # row 4
             "\n"                               # row 5: blank, skipped
             "H2;LC1;-2\n")                     # row 6
-    df = read_load_table(write(tmp_path, text))
+    df = read_load_table(write(tmp_path, text)).frame
     assert df["source"].str.rsplit(":", n=1).str[1].tolist() == ["row 4", "row 6"]
     assert df["axial_force"].tolist() == pytest.approx([1500.0, -2000.0])  # SI prefix kilo
 
 
 def test_quoted_fields_tab_separated_crlf(tmp_path: Path) -> None:
-    df = read_load_table(write(tmp_path, 'tag\taxial_force\r\n"H 1"\t"5 kN"\r\n'))
+    df = read_load_table(write(tmp_path, 'tag\taxial_force\r\n"H 1"\t"5 kN"\r\n')).frame
     assert df["key"].tolist() == ["H 1"]
     assert df["axial_force"].tolist() == pytest.approx([5000.0])  # SI prefix kilo
 
 
 def test_utf8_bom_and_utf16(tmp_path: Path) -> None:
     a = read_load_table(write(tmp_path, "\ufefftag,axial_force [kN]\nHä1,1\n", "bom.csv"))
-    assert a["key"].tolist() == ["Hä1"] and a.attrs["encoding"] == "utf-8"
+    assert a.frame["key"].tolist() == ["Hä1"] and a.encoding == "utf-8"
     b = read_load_table(write(tmp_path, "tag,axial_force [kN]\nHä1,1\n", "u16.csv", encoding="utf-16"))
-    assert b["key"].tolist() == ["Hä1"] and b.attrs["encoding"] == "utf-16"
+    assert b.frame["key"].tolist() == ["Hä1"] and b.encoding == "utf-16"
 
 
-def test_cp1252_fallback_is_reported_in_attrs(tmp_path: Path) -> None:
-    df = read_load_table(write(tmp_path, "tag,axial_force [kN]\nHé1,1\n", encoding="cp1252"))
+def test_cp1252_fallback_is_reported_as_the_encoding(tmp_path: Path) -> None:
+    table = read_load_table(write(tmp_path, "tag,axial_force [kN]\nHé1,1\n", encoding="cp1252"))
+    df = table.frame
     assert df["key"].tolist() == ["Hé1"]
-    assert df.attrs["encoding"] == "cp1252"
+    assert table.encoding == "cp1252" and not df.attrs   # a field of the table, not the frame's attrs
 
 
 # ------------------------------------------------------------------ errors
@@ -227,18 +228,19 @@ def test_xlsx_header_unit_numeric_cells(tmp_path: Path) -> None:
     p = _xlsx(tmp_path / "f.xlsx", {"Forces": [
         ["Analysis export"], [], ["tag", "load_case", "axial_force [kip]"],
         ["H1", 1, 2.5], [101, "LC2", -1]]})
-    df = read_load_table(p)
+    table = read_load_table(p)
+    df = table.frame
     assert df["key"].tolist() == ["H1", "101"]           # a mark typed as a number stays "101"
     assert df["load_case"].tolist() == ["1", "LC2"]
     assert df["axial_force"].tolist() == pytest.approx([2.5 * KIP_NIST, -KIP_NIST], rel=1e-12)  # NIST SP 811
     assert df["source"].tolist() == [f"{p}:Forces:row 4", f"{p}:Forces:row 5"]
-    assert df.attrs["encoding"] is None
+    assert table.encoding is None
 
 
 def test_xlsx_units_in_cells_and_sheet_search(tmp_path: Path) -> None:
     p = _xlsx(tmp_path / "f.xlsx", {"Notes": [["nothing here"]],
                                      "Data": [["global_id", "axial_force"], ["G1", "3 kN"], ["G2", "10 lbf"]]})
-    df = read_load_table(p)
+    df = read_load_table(p).frame
     assert df["axial_force"].tolist() == pytest.approx([3000.0, 10 * LBF_NIST], rel=1e-12)  # SI; NIST SP 811
     assert df["source"].iloc[1] == f"{p}:Data:row 3"
 
@@ -265,7 +267,7 @@ def test_hundred_thousand_rows_with_header_unit_parse_fast(tmp_path: Path) -> No
     body = "\n".join(f"G{i:08d},LC{i % 4},{v:.4f}" for i, v in enumerate(values))
     p = write(tmp_path, "global_id,load_case,axial_force [kN]\n" + body + "\n")
     t0 = time.perf_counter()
-    df = read_load_table(p)
+    df = read_load_table(p).frame
     elapsed = time.perf_counter() - t0
     assert len(df) == n
     assert df["axial_force"].to_numpy() == pytest.approx(np.round(values, 4) * 1000.0, rel=1e-12)  # SI kilo
@@ -291,6 +293,6 @@ def test_cells_with_spaces_around_them_are_read_stripped(tmp_path: Path) -> None
     # common practice: spreadsheet exports pad cells; the key, case and force are read without it
     p = tmp_path / "padded.csv"
     p.write_text("global_id , load_case, axial_force [kN]\n G1 ,  LC1 , 12.5 \nG2,LC2,3\n", encoding="utf-8")
-    t = read_load_table(p)
+    t = read_load_table(p).frame
     assert list(t["key"]) == ["G1", "G2"] and list(t["load_case"]) == ["LC1", "LC2"]
     assert list(t["axial_force"]) == [12500.0, 3000.0]   # kN -> N (pint: 1 kN = 1000 N)

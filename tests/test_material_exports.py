@@ -33,7 +33,7 @@ def rod(mb: ModelBuilder, d: float) -> Any:
 
 def read(path: Path) -> dict[str, dict[str, Any]]:
     """The member table's rows by member name (None stays None: the table's text columns hold it)."""
-    return {r["name"]: r for r in read_members(build_index(str(path))).to_dict("records")}
+    return {r["name"]: r for r in read_members(build_index(str(path))).frame.to_dict("records")}
 
 
 def without_unit(mb: ModelBuilder, unit_type: str) -> None:

@@ -45,7 +45,7 @@ def lacking_path(tmp_path_factory):
 
 
 def test_member_table_of_members_lacking_values(lacking_path):
-    table = read_members(build_index(str(lacking_path)))
+    table = read_members(build_index(str(lacking_path))).frame
     assert text_nans(table) == {}
     members = table.set_index("name")
     assert members.loc["rod without material", "material"] is None
@@ -58,7 +58,7 @@ def test_member_table_of_members_lacking_values(lacking_path):
 def test_every_table_of_a_batch_run(lacking_path):
     tables = tuple(read_load_table(str(p)) for p in sorted(SAMPLES.glob("*-forces.csv")))
     for t in tables:
-        assert text_nans(t) == {}
+        assert text_nans(t.frame) == {}
     data = read_model(str(lacking_path), ForceOptions(tables=tables))
     assert text_nans(data.forces) == {}
     models = [str(p) for p in sorted(SAMPLES.glob("*.ifc"))] + [str(lacking_path)]

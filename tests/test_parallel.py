@@ -181,7 +181,7 @@ def test_the_tables_read_while_the_model_opens_are_the_tables(shared_model):
     here = (read_load_table(str(table)), read_load_table(str(tags)))
     assert len(ahead) == 2
     for got, want in zip(ahead, here, strict=True):
-        assert got.equals(want) and got.attrs == want.attrs
+        assert got.frame.equals(want.frame) and got.encoding == want.encoding
 
 
 def test_a_table_helper_that_dies_is_one_clear_line(tmp_path, capsys, monkeypatch, shared_model):

@@ -37,7 +37,7 @@ def with_faceted_body(mb: ModelBuilder, el: Any, b: float, h: float, length: flo
 def members(mb: ModelBuilder, tmp_path: Path) -> Any:
     path = tmp_path / "model.ifc"
     mb.write(str(path))
-    return read_members(build_index(str(path))).set_index("name")
+    return read_members(build_index(str(path))).frame.set_index("name")
 
 
 def hea360_column_ifc2x3(mb: ModelBuilder, name: str) -> Any:
@@ -158,7 +158,7 @@ def test_a_quantity_with_a_unit_of_its_own_is_read_in_it_or_says_why_not(tmp_pat
         qset.Quantities[0].Unit = unit
     path = tmp_path / "own-units.ifc"
     mb.write(str(path))
-    ms = read_members(build_index(str(path))).set_index("name")
+    ms = read_members(build_index(str(path))).frame.set_index("name")
     assert ms.loc["FT", "length"] == pytest.approx(8 * 0.3048, rel=1e-12)   # 1 ft = 0.3048 m (exact)
     assert math.isnan(ms.loc["KG", "length"])
     warning = next(w for w in ms.loc["KG", "warnings"] if "Length not used" in w)

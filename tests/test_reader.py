@@ -13,7 +13,7 @@ from modelcheck.testing.author import ModelBuilder
 
 
 def members_of(path):
-    return read_members(build_index(str(path))).set_index("name")
+    return read_members(build_index(str(path))).frame.set_index("name")
 
 
 def _rod_model(units: str, schema: str = "IFC4"):

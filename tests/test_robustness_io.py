@@ -312,7 +312,7 @@ def test_rows_beyond_the_size_a_sheet_declares_are_read(tmp_path):
     sheet = _sheet(path).replace("</sheetData>", '<row r="7"><c r="A7" t="inlineStr"><is><t>H9</t></is></c>'
                                                  '<c r="B7"><v>7</v></c></row></sheetData>')
     path = _workbook(tmp_path, "short.xlsx", {SHEET: sheet.encode()})
-    df = tables.read_load_table(path)
+    df = tables.read_load_table(path).frame
     assert df["key"].tolist() == ["H1", "H2", "H9"] and df["source"].iloc[-1] == f"{path}:Sheet:row 7"
     assert df["axial_force"].iloc[-1] == pytest.approx(7000.0)   # 7 kN = 7000 N (SI, by definition)
 

@@ -190,14 +190,15 @@ ENCODED = {
 def test_encodings_are_read_and_a_guess_is_said(capsys, model, tmp_path, encoding):
     model_path, _ = model
     table = _table(tmp_path, f"{encoding}.csv", ENCODED[encoding])
-    df = read_load_table(table)
+    read = read_load_table(table)
+    df = read.frame
     assert df["key"].tolist() == ["Hé1"]
     _, doc, members = _members(capsys, model_path, table)
     force = members["Hé1"]["axial_force"]["default"]
     assert force["value"] == pytest.approx(7.5) and force["source"] == f"{table}:row 2"  # the input's value
     guessed = [w for w in doc["models"][0]["warnings"] if "Windows-1252" in w]
     if encoding in ("cp1252", "latin-1"):   # not UTF-8: read as Windows-1252, and the report says so
-        assert df.attrs["encoding"] == "cp1252" and guessed and str(table) in guessed[0]
+        assert read.encoding == "cp1252" and guessed and str(table) in guessed[0]
     else:
         assert not guessed
 
@@ -257,5 +258,5 @@ def test_formulas_whose_results_were_never_stored_are_one_line(capsys, model, tm
                 assert "<v>H2</v>" in text and "<v>60</v>" in text, text
                 data = text.encode("utf-8")
             dst.writestr(info, data)
-    df = read_load_table(stored)
+    df = read_load_table(stored).frame
     assert df.set_index("key")["axial_force"].to_dict() == {"H1": 12_000.0, "H2": 60_000.0}   # kN → N

@@ -25,7 +25,7 @@ IPE200_AREA = 2 * 100 * 8.5 + (200 - 2 * 8.5) * 5.6 + (4 - math.pi) * 12**2
 def members(mb: ModelBuilder, tmp_path: Path) -> Any:
     path = tmp_path / "model.ifc"
     mb.write(str(path))
-    return read_members(build_index(str(path))).set_index("name")
+    return read_members(build_index(str(path))).frame.set_index("name")
 
 
 def origin2(f: Any) -> Any:
@@ -151,7 +151,7 @@ def test_the_canopy_strut_reads_the_profile_its_properties_name() -> None:
     """Sample model: ST-14 states its section only through IfcStructuralProfileProperties."""
     from tests.conftest import SAMPLES
 
-    ms = read_members(build_index(str(SAMPLES / "nettlebrook-canopy.ifc"))).set_index("tag")
+    ms = read_members(build_index(str(SAMPLES / "nettlebrook-canopy.ifc"))).frame.set_index("tag")
     st = ms.loc["ST-14"]
     assert st["profile_type"] == "IfcRectangleHollowProfileDef" and st["section_name"] == "HSS4X4X1/4"
     # AISC Manual Table 1-12, HSS4X4X1/4: A = 3.37 in², r = 1.52 in (from memory)

@@ -4,7 +4,7 @@ Example::
 
     from modelcheck.ifc.index import build_index
     from modelcheck.ifc.reader import read_members
-    members = read_members(build_index("sample_models/nettlebrook-hall.ifc"))
+    members = read_members(build_index("sample_models/nettlebrook-hall.ifc")).frame
     members[["global_id", "area", "area_source", "length", "Fy"]]
 
 What is read, in the order each source ranks (the first one present is used; every other one
@@ -43,7 +43,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field, replace
 from operator import itemgetter
-from typing import Any
+from typing import Any, NamedTuple
 
 import numpy as np
 import pandas as pd
@@ -72,8 +72,6 @@ SWEEP_CLASSES = ("IfcBuildingElementProxy", "IfcDiscreteAccessory", "IfcFastener
 NET_AREA_PROPERTY = ("MC_NetSection", "NetArea")
 #: in the same set, the optional shear lag factor U (Ae = U An), a ratio 0 < U <= 1
 SHEAR_LAG_PROPERTY = ("MC_NetSection", "ShearLagFactor")
-#: (net area, its source, shear lag factor, its source) where the model holds none
-_NO_NET: tuple[float, str | None, float, str | None] = (math.nan, None, math.nan, None)
 _NET_SET = NET_AREA_PROPERTY[0]
 
 #: bodies that sweep a profile along a directrix curve (the whole curve where no parameters trim it)
@@ -133,6 +131,68 @@ class MaterialInfo:
     rejected: tuple[tuple[str, str], ...] = ()
 
 
+class NetSection(NamedTuple):
+    """A member's net area (at holes or threads) and shear lag factor U, each with where it was
+    read; NaN and None for a value the model does not give (or gives unusably)."""
+
+    area: float
+    area_source: str | None
+    shear_lag: float
+    shear_lag_source: str | None
+
+
+#: the net section of a member whose model holds none
+_NO_NET = NetSection(math.nan, None, math.nan, None)
+
+
+class MemberRow(NamedTuple):
+    """One member as the reader found it: the member table's row before the section and material
+    (objects shared by many members) are spread into their columns by ``_assemble``."""
+
+    global_id: str                 # '#<entity id>' for a member without one
+    ifc_class: str
+    predefined_type: str | None
+    object_type: str | None
+    name: str | None
+    tag: str | None
+    storey: str | None
+    type_name: str | None
+    section: Section | None        # the chosen section (None: none usable)
+    material: MaterialInfo | None
+    length: float                  # m; NaN where none is usable
+    length_source: str | None
+    warnings: list[str]            # the member's own (its material's are added when assembled)
+    entity_id: int
+    net: NetSection
+    rejected: tuple[tuple[str, str], ...]   # (column, what was found and why it was not used)
+
+
+class TypeFacts(NamedTuple):
+    """What every member of one element type shares, worked out once per type."""
+
+    typ: Any                       # the type entity (the cache entry keeps it alive: its id stays its own)
+    name: str | None
+    material_select: Any           # the type's IfcMaterialSelect, or None
+    material: MaterialInfo | None
+    section: Section | None        # the section its profile set gives, or None
+    problem: str | None            # why its profile set gives no section, or None
+    net: NetSection                # used when the occurrence states no net section of its own
+    net_warnings: tuple[str, ...]
+    net_rejected: tuple[tuple[str, str], ...]
+
+
+@dataclass(frozen=True)
+class MemberTable:
+    """The member table of one model (``modelcheck.common.table``) with the model-level warnings
+    met while reading it."""
+
+    frame: pd.DataFrame
+    #: the parser's problems first (``parse_problem_count`` of them), then the reader's, the
+    #: analysis members not checked, and the unit assignments that could not be used
+    model_warnings: tuple[str, ...]
+    parse_problem_count: int
+
+
 class _Reader:
     """One pass over one model; caches shared entities by id."""
 
@@ -156,7 +216,7 @@ class _Reader:
         self._named_profile_cache: dict[int, Section | str] = {}   # profile-properties id -> its profile
         self._material_cache: dict[int, MaterialInfo] = {}
         self._body_cache: dict[int, tuple[Section | str | None, tuple[float, str] | None]] = {}
-        self._type_facts_cache: dict[int, tuple[Any, ...]] = {}
+        self._type_facts_cache: dict[int, TypeFacts] = {}
         self._same: dict[tuple[int, int], tuple[Section, Section, bool]] = {}
         self._select_objects: dict[int, tuple[Any, tuple[MaterialInfo | None, Section | str | None]]] = {}
         self._doubts: dict[int, tuple[Section, str | None]] = {}   # sections are shared: judged once
@@ -440,10 +500,8 @@ class _Reader:
         self._select_objects[id(sel)] = (sel, hit)
         return hit
 
-    def _type_facts(self, typ: Any) -> tuple[Any, ...]:
-        """What every member of type ``typ`` shares, worked out once per type: (typ, name, material
-        select, material, section candidate or None, problem text or None, the net area and the
-        warnings it gives when the occurrence has none of its own)."""
+    def _type_facts(self, typ: Any) -> TypeFacts:
+        """What every member of type ``typ`` shares, worked out once per type (cached)."""
         type_name, type_sel, type_sets = self.type_info(typ)
         tinfo, type_sec = self.selection(type_sel) if type_sel is not None else (None, None)
         cand = problem = None
@@ -454,11 +512,11 @@ class _Reader:
         net_warnings: list[str] = []
         net_rejected: list[tuple[str, str]] = []
         net = self._net_from(type_sets, "type", net_warnings, net_rejected) if type_sets else None
-        hit = self._type_facts_cache[id(typ)] = (typ, type_name, type_sel, tinfo, cand, problem,
-                                                 net or _NO_NET, tuple(net_warnings), tuple(net_rejected))
+        hit = self._type_facts_cache[id(typ)] = TypeFacts(typ, type_name, type_sel, tinfo, cand, problem,
+                                                          net or _NO_NET, tuple(net_warnings), tuple(net_rejected))
         return hit
 
-    def member(self, el: Any, analysis: bool = False) -> tuple[Any, ...]:
+    def member(self, el: Any, analysis: bool = False) -> MemberRow:
         """One member: identity values, the chosen Section, MaterialInfo, length and warnings."""
         idx = self.idx
         eid = el.id()
@@ -469,11 +527,13 @@ class _Reader:
         rejected: list[tuple[str, str]] = []   # (column, what was found and why it was not used)
         typ = idx.type_of.get(eid)
         type_name = type_sel = tinfo = type_cand = type_problem = None
+        facts: TypeFacts | None = None
         if typ is not None:
             facts = self._type_facts_cache.get(id(typ))
-            if facts is None or facts[0] is not typ:   # the entry keeps typ alive: its id stays its own
+            if facts is None or facts.typ is not typ:   # the entry keeps typ alive: its id stays its own
                 facts = self._type_facts(typ)
-            type_name, type_sel, tinfo, type_cand, type_problem = facts[1:6]
+            type_name, type_sel, tinfo, type_cand, type_problem = (facts.name, facts.material_select, facts.material,
+                                                                   facts.section, facts.problem)
         predefined = ga(pos[1]) if pos[1] is not None else None
         object_type = ga(4)
         if predefined is None and typ is not None:
@@ -514,7 +574,7 @@ class _Reader:
         qsets: list[Any] = []        # quantity sets, ranked: Qto_*, then BaseQuantities, then any other
         base_sets: list[Any] = []
         other_sets: list[Any] = []
-        net: tuple[float, str | None, float, str | None] | None = None
+        net: NetSection | None = None
         if psets:   # the occurrence's own sets, each looked at once
             net_sets = []
             for ent, n in idx.named_sets(eid):
@@ -534,11 +594,11 @@ class _Reader:
             if net_sets:
                 net = self._net_from(net_sets, "occurrence", warnings, rejected)
         if net is None:
-            if typ is not None:
-                net = facts[6]
-                if facts[7]:
-                    warnings.extend(facts[7])
-                    rejected.extend(facts[8])
+            if facts is not None:
+                net = facts.net
+                if facts.net_warnings:
+                    warnings.extend(facts.net_warnings)
+                    rejected.extend(facts.net_rejected)
             else:
                 net = _NO_NET
         if idx.profile_props or mech_sets or idx.object_profile_props:
@@ -621,8 +681,8 @@ class _Reader:
                          f"{MIN_LENGTH * 1e3:g} mm – {MAX_LENGTH:g} m); not used")
                 warnings.append(f"length {doubt}")
                 doubted_lengths.append(doubt)
-        if section is not None and net[1] is not None and net[0] > section.area * (1 + AREA_TOLERANCE):
-            too_large = (f"net area {net[0] * 1e6:.6g} mm² from {net[1]} is more than the gross area "
+        if section is not None and net.area_source is not None and net.area > section.area * (1 + AREA_TOLERANCE):
+            too_large = (f"net area {net.area * 1e6:.6g} mm² from {net.area_source} is more than the gross area "
                          f"{section.area * 1e6:.6g} mm² from {section.source}; not used")
             warnings.append(too_large)
             rejected.append(("net_area", too_large))
@@ -646,8 +706,8 @@ class _Reader:
         if not isinstance(gid, str):  # the schema requires one; name the member by its entity instead
             warnings.append(f"has no GlobalId (IFC requires one): named #{eid} here")
             gid = f"#{eid}"
-        return (gid, cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name, type_name,
-                section, minfo, length, length_src, warnings, eid, net, tuple(rejected))
+        return MemberRow(gid, cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name,
+                         type_name, section, minfo, length, length_src, warnings, eid, net, tuple(rejected))
 
     def _unit_contradictions(self, candidates: list[Section], warnings: list[str]) -> list[Section]:
         """The candidates without those whose area, read in a stated area unit, contradicts the
@@ -681,7 +741,7 @@ class _Reader:
         return hit[2]
 
     def _net_from(self, sets: list[Any], where: str, warnings: list[str],
-                  rejected: list[tuple[str, str]]) -> tuple[float, str | None, float, str | None] | None:
+                  rejected: list[tuple[str, str]]) -> NetSection | None:
         """The net area and shear lag factor from ``sets`` (of the occurrence or its type):
         (An, source, U, source), NaN and None for a value not given or not usable; None where
         the sets hold neither. A net area given but not usable goes into ``rejected`` with why."""
@@ -718,7 +778,7 @@ class _Reader:
                 warnings.append(f"{label} is not a ratio between 0 and 1 (an IfcPositiveRatioMeasure); not used")
             else:
                 u = (w.value, f"{label} ({where})")
-        return net + u
+        return NetSection(net[0], net[1], u[0], u[1])
 
     def _positions(self, cls: str) -> tuple[bool, int | None]:
         """(has Tag at index 7, index of PredefinedType) for an entity class; cached."""
@@ -1232,11 +1292,11 @@ def member_keys(idx: ModelIndex, entities: list[tuple[Any, bool]]) -> tuple[list
 
 
 def read_members(idx: ModelIndex, *, use_library: bool = True,
-                 entities: list[tuple[Any, bool]] | None = None) -> pd.DataFrame:
-    """The member table of one model (see ``modelcheck.common.table``); of ``entities`` only (as
-    ``member_entities`` gives them) when given."""
+                 entities: list[tuple[Any, bool]] | None = None) -> MemberTable:
+    """The member table of one model (see ``modelcheck.common.table``) and its model-level
+    warnings; of ``entities`` only (as ``member_entities`` gives them) when given."""
     reader = _Reader(idx, use_library)
-    rows: list[tuple[Any, ...]] = []
+    rows: list[MemberRow] = []
     for el, analysis in (member_entities(idx) if entities is None else entities):
         try:
             rows.append(reader.member(el, analysis))
@@ -1259,13 +1319,12 @@ def read_members(idx: ModelIndex, *, use_library: bool = True,
     df = _assemble(idx.path, rows)
     idx.drain_log()  # what parsing the members' entities logged (the file is parsed lazily)
     problems = idx.parse_problems
-    df.attrs["model_warnings"] = (list(problems) + reader.model_warnings + analysis_members_not_checked(idx)
-                                  + list(idx.units.problems))
-    df.attrs["parse_problem_count"] = len(problems)
-    return df
+    warnings = (tuple(problems) + tuple(reader.model_warnings) + tuple(analysis_members_not_checked(idx))
+                + tuple(idx.units.problems))
+    return MemberTable(df, warnings, len(problems))
 
 
-def _unreadable_member(el: Any, warning: str) -> tuple[Any, ...]:
+def _unreadable_member(el: Any, warning: str) -> MemberRow:
     """The row of a member whose data could not be read: identity only, unchecked, the reason."""
     try:
         gid = el.GlobalId
@@ -1274,8 +1333,8 @@ def _unreadable_member(el: Any, warning: str) -> tuple[Any, ...]:
     if not isinstance(gid, str):
         gid = f"#{el.id()}"
     name, tag = (_text_attribute(el, "Name"), _text_attribute(el, "Tag"))
-    return (gid, el.is_a(), None, None, name, tag, None, None, None, None, math.nan, None, [warning], el.id(),
-            _NO_NET, (("*", warning),))
+    return MemberRow(gid, el.is_a(), None, None, name, tag, None, None, None, None, math.nan, None, [warning],
+                     el.id(), _NO_NET, (("*", warning),))
 
 
 def _text_attribute(el: Any, attr: str) -> str | None:
@@ -1305,21 +1364,19 @@ _NO_SECTION = Section(math.nan, math.nan, "")
 _NO_MATERIAL = MaterialInfo(None, None, None, {})
 
 
-def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
-    """Columns from the per-member tuples; section and material columns come from shared objects."""
+def _assemble(path: str, rows: list[MemberRow]) -> pd.DataFrame:
+    """Columns from the member rows; section and material columns come from shared objects."""
     n = len(rows)
     cols: dict[str, Any] = {"model": [path] * n}
-    if n:
-        (gid, cls, pre, otype, name, tag, storey, tname, secs, mats, length, length_src, warns,
-         eids, nets, rejects) = zip(*rows, strict=True)
-    else:
-        gid = cls = pre = otype = name = tag = storey = tname = secs = mats = length = length_src = warns = eids = ()
-        nets = rejects = ()
-    cols.update(global_id=list(gid), ifc_class=list(cls), predefined_type=list(pre), object_type=list(otype),
-                name=list(name), tag=list(tag), storey=list(storey), type_name=list(tname))
+    # the rows turned into one sequence per field of MemberRow
+    fields: dict[str, tuple[Any, ...]] = (dict(zip(MemberRow._fields, zip(*rows, strict=True), strict=True)) if n
+                                          else dict.fromkeys(MemberRow._fields, ()))
+    for column in ("global_id", "ifc_class", "predefined_type", "object_type", "name", "tag", "storey", "type_name"):
+        cols[column] = list(fields[column])
     # members share a few section and material objects: each column is made per distinct object
-    sec_code, secs = _distinct([s if s is not None else _NO_SECTION for s in secs])
-    mat_code, mats = _distinct([m if m is not None else _NO_MATERIAL for m in mats])
+    sec_code, secs = _distinct([s if s is not None else _NO_SECTION for s in fields["section"]])
+    mat_code, mats = _distinct([m if m is not None else _NO_MATERIAL for m in fields["material"]])
+    warns, rejects, nets = fields["warnings"], fields["rejected"], fields["net"]
 
     def per(objects: list[Any], codes: np.ndarray, value: Any, dtype: Any = object) -> np.ndarray:
         out = np.empty(len(objects), dtype=dtype)
@@ -1338,8 +1395,8 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
     cols["area_source"] = per(secs, sec_code, lambda s: s.source or None)
     cols["r_min"] = per(secs, sec_code, lambda s: s.r_min, float)
     cols["r_min_source"] = per(secs, sec_code, lambda s: None if math.isnan(s.r_min) else (s.r_source or s.source))
-    cols["length"] = np.array(length, dtype=float)
-    cols["length_source"] = list(length_src)
+    cols["length"] = np.array(fields["length"], dtype=float)
+    cols["length_source"] = list(fields["length_source"])
     nan_pair = (math.nan, None)
     for q in ("E", "Fy", "Fu", "alpha"):
         cols[q] = per(mats, mat_code, lambda m, q=q: m.values.get(q, nan_pair)[0], float)
@@ -1351,11 +1408,11 @@ def _assemble(path: str, rows: list[tuple[Any, ...]]) -> pd.DataFrame:
     cols["rejected"] = _objects([mat_rejected[c] + r if mat_rejected[c] else r
                                  for c, r in zip(mat_code.tolist(), rejects, strict=True)])
     cols["warnings"] = _objects(cols["warnings"])
-    cols["entity_id"] = np.array(eids, dtype=np.int64)
-    cols["net_area"] = np.array([x[0] for x in nets], dtype=float)
-    cols["net_area_source"] = [x[1] for x in nets]
-    cols["shear_lag"] = np.array([x[2] for x in nets], dtype=float)
-    cols["shear_lag_source"] = [x[3] for x in nets]
+    cols["entity_id"] = np.array(fields["entity_id"], dtype=np.int64)
+    cols["net_area"] = np.array([x.area for x in nets], dtype=float)
+    cols["net_area_source"] = [x.area_source for x in nets]
+    cols["shear_lag"] = np.array([x.shear_lag for x in nets], dtype=float)
+    cols["shear_lag_source"] = [x.shear_lag_source for x in nets]
     # numbers as floats; texts as objects with None for missing (frame_of), never NaN
     return frame_of({k: cols[k] for k in member_columns()})
 

@@ -26,11 +26,14 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
-from typing import Any, Protocol
+from typing import TYPE_CHECKING, Any, Protocol
 
 import pandas as pd
 
 from modelcheck.loads.messages import MessageLog
+
+if TYPE_CHECKING:
+    from modelcheck.loads.tables import LoadTable
 
 #: the columns of a keyed source's rows (a load table's, as ``read_load_table`` gives them)
 KEYED_COLUMNS: tuple[str, ...] = ("key_kind", "key", "load_case", "axial_force", "source")
@@ -40,7 +43,7 @@ KEYED_COLUMNS: tuple[str, ...] = ("key_kind", "key", "load_case", "axial_force",
 class ForceOptions:
     """What the command line says about the force sources."""
 
-    tables: tuple[pd.DataFrame, ...] = ()   # the load tables (read_load_table), or the helper reading them ahead
+    tables: Sequence[LoadTable] = ()   # the load tables (read_load_table), or the helper reading them ahead
     property: tuple[str, str] | None = None   # (pset, property)
     analysis: bool = True
     analysis_frame: str | None = None   # --analysis-frame: None tests each member's flag
@@ -105,10 +108,10 @@ class LoadTables:
         notes: list[str] = []
         frames = []
         for t in options.tables:
-            if t.attrs.get("encoding") == "cp1252" and len(t):
-                name = str(t["source"].iloc[0]).rsplit(":row ", 1)[0]
+            if t.encoding == "cp1252" and len(t.frame):
+                name = str(t.frame["source"].iloc[0]).rsplit(":row ", 1)[0]
                 notes.append(f"{name}: not UTF-8; read as Windows-1252 (cp1252) text")
-            frames.append(t[list(KEYED_COLUMNS)])
+            frames.append(t.frame[list(KEYED_COLUMNS)])
         rows = (pd.concat(frames, ignore_index=True) if frames
                 else pd.DataFrame(columns=list(KEYED_COLUMNS)))
         return SourceForces(self.name, rows, keyed=True, messages=tuple(notes))

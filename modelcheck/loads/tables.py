@@ -30,12 +30,12 @@ without a key, an empty file, a binary file, an undecodable text file, a missing
 
 Text encodings: UTF-8 (with or without a byte-order mark) and UTF-16 with a byte-order mark are
 read as such; a file that is not valid UTF-8 is read as Windows-1252 (what spreadsheet programs
-on Windows save as "CSV"), and ``DataFrame.attrs["encoding"]`` says so. A file that is neither
+on Windows save as "CSV"), and the table's ``encoding`` says so. A file that is neither
 raises an error naming the line with the first bad byte.
 
 Example::
 
-    forces = read_load_table("exports/hangers.csv")
+    forces = read_load_table("exports/hangers.csv").frame
     forces.columns  # key_kind, key, load_case, axial_force [N], source ("exports/hangers.csv:row 2")
 """
 
@@ -109,6 +109,18 @@ def force_unit_factor(text: str) -> float:
 
 
 @dataclass(frozen=True)
+class LoadTable:
+    """One load table read into SI: its rows and the text encoding they were read in."""
+
+    #: columns ``key_kind`` ('global_id' | 'tag'), ``key``, ``load_case``, ``axial_force``
+    #: (newtons, tension positive) and ``source`` ('<path>:row N', for XLSX '<path>:<sheet>:row N'),
+    #: in file order
+    frame: pd.DataFrame
+    #: "utf-8", "utf-16" or "cp1252" (a file that is not UTF-8, read as Windows-1252); None for XLSX
+    encoding: str | None = None
+
+
+@dataclass(frozen=True)
 class _Header:
     row: int                      # 0-based index of the header record
     cols: dict[str, int]          # canonical name -> column index
@@ -116,14 +128,8 @@ class _Header:
     force_label: str              # the force column's header as written
 
 
-def read_load_table(path: str | os.PathLike[str]) -> pd.DataFrame:
-    """Read one CSV or XLSX load table (see the module docstring) into SI.
-
-    Returns a DataFrame with columns ``key_kind`` ('global_id' | 'tag'), ``key``, ``load_case``,
-    ``axial_force`` (newtons, tension positive) and ``source`` ('<path>:row N', for XLSX
-    '<path>:<sheet>:row N'), in file order. ``attrs["encoding"]`` names the text encoding read
-    (None for XLSX).
-    """
+def read_load_table(path: str | os.PathLike[str]) -> LoadTable:
+    """Read one CSV or XLSX load table (see the module docstring) into SI (:class:`LoadTable`)."""
     name = str(path)
     p = input_file(path, LoadTableError, "a load table")
     size = p.stat().st_size
@@ -154,9 +160,7 @@ def read_load_table(path: str | os.PathLike[str]) -> pd.DataFrame:
     if len(records) > MAX_TABLE_ROWS:
         raise LoadTableError(f"has more than {MAX_TABLE_ROWS:,} rows; split it into several tables", path=name,
                              where=f"row {MAX_TABLE_ROWS + 1}")
-    df = _parse(records, name, None, all_text=True)
-    df.attrs["encoding"] = encoding
-    return df
+    return LoadTable(_parse(records, name, None, all_text=True), encoding)
 
 
 def _decode(data: bytes, name: str) -> tuple[str, str]:
@@ -291,7 +295,7 @@ def _workbook_error(exc: BaseException, name: str) -> LoadTableError:
     return LoadTableError(f"cannot be read as an Excel workbook: {why}", path=name)
 
 
-def _read_xlsx(p: Path, name: str) -> pd.DataFrame:
+def _read_xlsx(p: Path, name: str) -> LoadTable:
     import zipfile
     import zlib
     from xml.etree.ElementTree import ParseError
@@ -322,9 +326,7 @@ def _read_xlsx(p: Path, name: str) -> pd.DataFrame:
                 missing.append(sheet)
                 continue
             _refuse_formulas_without_values(p, getattr(ws, "_worksheet_path", None), name, sheet)
-            df = _parse(records, name, sheet)
-            df.attrs["encoding"] = None
-            return df
+            return LoadTable(_parse(records, name, sheet))
     finally:
         wb.close()
     raise LoadTableError(
