@@ -44,6 +44,8 @@ from modelcheck.pipeline import REPORT_MEMBER_COLUMNS, CheckedModel, ForceOption
 from modelcheck.timing import stage
 
 if TYPE_CHECKING:
+    from modelcheck.ifc.index import ModelIndex
+    from modelcheck.loads.sources import SourceForces
     from modelcheck.loads.tables import LoadTable
 
 #: below this many members a model is checked in one process (forking costs more than it saves)
@@ -61,7 +63,7 @@ def can_split() -> bool:
 class _Shared:
     """What the forked processes inherit (set just before the fork, cleared after)."""
 
-    idx: Any
+    idx: ModelIndex
     entities: list[Any]            # member entities in file order
     parts: list[list[int]]         # each part's members: positions in ``entities``, in file order
     gids: list[str]                # GlobalId of each entity (as the member table holds it)
@@ -69,7 +71,7 @@ class _Shared:
     units: str                     # the system the results are shown in ("SI" or "US")
     forces: ForceOptions
     shared_tags: dict[str, tuple[str, ...]]
-    whole: dict[str, Any]          # the whole_model force sources' reads, by name
+    whole: dict[str, SourceForces]   # the whole_model force sources' reads, by name
     encode_json: bool
     slim: bool                     # only the status column of the results comes back
     log_start: int                 # parse-log entries before the fork
@@ -465,7 +467,7 @@ def _run_parts(n: int) -> list[_PartResult]:
             f.close()
 
 
-def _in_one_process(data: ModelData, idx: Any, ruleset_ref: str, forces: ForceOptions, validate: bool,
+def _in_one_process(data: ModelData, idx: ModelIndex, ruleset_ref: str, forces: ForceOptions, validate: bool,
                     encode_json: bool, slim: bool, units: str) -> CheckedModel:
     from modelcheck.pipeline import finish_check, read_into
 
@@ -474,7 +476,7 @@ def _in_one_process(data: ModelData, idx: Any, ruleset_ref: str, forces: ForceOp
     return finish_check(data, ruleset_ref, encode_json, slim, units=units)
 
 
-def _merge(data: ModelData, idx: Any, outs: list[_PartResult], whole: dict[str, Any],
+def _merge(data: ModelData, idx: ModelIndex, outs: list[_PartResult], whole: dict[str, SourceForces],
            ruleset_ref: str) -> CheckedModel:
     """The parts' members, results, JSON rows and messages as one model's."""
     from modelcheck.loads.join import ForceReport

@@ -23,7 +23,11 @@ from modelcheck.common.table import REJECTED, concat_rows, empty_forces
 from modelcheck.loads.sources import ForceOptions
 
 if TYPE_CHECKING:
+    from modelcheck.ifc.index import ModelIndex
+    from modelcheck.loads.join import ForceReport
+    from modelcheck.loads.sources import SourceForces
     from modelcheck.loads.tables import LoadTable
+    from modelcheck.rules.ruleset import RuleSet
 
 IFC_SUFFIXES = (".ifc", ".ifczip")
 
@@ -52,8 +56,8 @@ class ModelData:
     #: GlobalId -> the member's own warnings (plausibility, consistency between sources, values
     #: not used), for the members that have any; kept when the member table is let go
     member_warnings: dict[str, list[str]] = field(default_factory=dict)
-    report: Any = None   # the join's ForceReport, kept only for a part of a model (modelcheck.parallel)
-    sources: tuple[Any, ...] = ()   # a part of a model: what each source read there, less its forces
+    report: ForceReport | None = None   # the join's ForceReport, kept only for a part of a model (modelcheck.parallel)
+    sources: tuple[SourceForces, ...] = ()   # a part of a model: what each source read there, less its forces
 
 
 def expand_paths(items: list[str]) -> list[str]:
@@ -102,7 +106,7 @@ def read_model(path: str, forces: ForceOptions | None = None, *, validate: bool 
     return data
 
 
-def describe_model(data: ModelData, idx: Any, validate: bool) -> None:
+def describe_model(data: ModelData, idx: ModelIndex, validate: bool) -> None:
     """Schema, display system and (``validate``) the schema-validation findings of an opened model."""
     from modelcheck.report.quantities import system_for_model
 
@@ -112,7 +116,7 @@ def describe_model(data: ModelData, idx: Any, validate: bool) -> None:
         data.validation = validate_model(idx)
 
 
-def read_into(data: ModelData, idx: Any, forces: ForceOptions | None, entities: list[Any] | None = None,
+def read_into(data: ModelData, idx: ModelIndex, forces: ForceOptions | None, entities: list[Any] | None = None,
               **join: Any) -> None:
     """Members (of ``entities`` only, when given) and their forces into ``data``; whatever the
     file holds that the schema forbids makes the model's error, not a traceback. ``join``: the
@@ -147,7 +151,7 @@ def read_into(data: ModelData, idx: Any, forces: ForceOptions | None, entities: 
         data.members, data.member_count, data.forces = None, 0, empty_forces()
 
 
-def attach_forces(data: ModelData, idx: Any, opts: ForceOptions, *, given: dict[str, Any] | None = None,
+def attach_forces(data: ModelData, idx: ModelIndex, opts: ForceOptions, *, given: dict[str, SourceForces] | None = None,
                   part: bool = False, shared_tags: dict[str, tuple[str, ...]] | None = None) -> None:
     """Join the forces of every source (``modelcheck.loads.sources``) onto one model's members.
 
@@ -194,7 +198,7 @@ def _reject_forces(members: pd.DataFrame, forces: pd.DataFrame, log: Any) -> Non
     members[REJECTED] = pd.Series(column, index=members.index, dtype=object)
 
 
-def join_lines(report: Any) -> list[str]:
+def join_lines(report: ForceReport) -> list[str]:
     """One line per kind of join problem, naming up to ten ids."""
     out = []
 
@@ -216,7 +220,7 @@ def join_lines(report: Any) -> list[str]:
     return out
 
 
-def no_force_line(report: Any) -> str | None:
+def no_force_line(report: ForceReport) -> str | None:
     """The line of :func:`join_lines` naming the members with no force from any route (None: none).
     The console leaves it out: those members are in its unchecked list, with the reason."""
     if not report.missing:
@@ -226,7 +230,7 @@ def no_force_line(report: Any) -> str | None:
             + ", ".join(vals[:10]) + (f" … (+{len(vals) - 10})" if len(vals) > 10 else ""))
 
 
-def validate_model(idx: Any) -> list[str]:
+def validate_model(idx: ModelIndex) -> list[str]:
     """Schema-validation findings of ifcopenshell's own validator, one line each:
     ``file:line: #id IfcClass 'GlobalId': attribute: what is wrong`` (no line number in a zip)."""
     import ifcopenshell.validate
@@ -316,7 +320,7 @@ def display_system(units: str, model_system: str) -> str:
     return model_system if units == "model" else units
 
 
-def ruleset_for(ruleset_ref: str, units: str, model_system: str) -> Any:
+def ruleset_for(ruleset_ref: str, units: str, model_system: str) -> RuleSet:
     """The rule set at ``ruleset_ref`` showing its results in the system ``units`` picks for a
     model whose own system is ``model_system`` (:meth:`RuleSet.in_system`)."""
     from modelcheck.rules.ruleset import load_ruleset
@@ -382,7 +386,7 @@ def merge_member_warnings(parts: list[dict[str, list[str]]]) -> dict[str, list[s
 EVALUATE_CHUNK = 65536
 
 
-def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, *, encode_json: bool = False,
+def evaluate_members(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame, *, encode_json: bool = False,
                      slim: bool = False, sink: Any = None) -> tuple[pd.DataFrame, Any]:
     """Results (with suggestions) of ``members`` and, with ``encode_json``, their JSON rows.
 
@@ -436,7 +440,7 @@ def evaluate_members(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame, 
     return results, (ROW_SEPARATOR.join(encoded) if sink is None else None)
 
 
-def _slim_rows(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame,
+def _slim_rows(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame,
                sink: Any = None) -> tuple[pd.Categorical, np.ndarray, bytes]:
     """(statuses, positions of their members in ``members``, JSON rows) of ``members``: what a
     JSON-only report needs. The suggestions are
@@ -530,7 +534,7 @@ class Coverage:
                         tuple(sorted(excluded.items(), key=lambda kv: (-kv[1], kv[0]))))
 
 
-def coverage_of(ruleset: Any, members: pd.DataFrame, results: pd.DataFrame) -> Coverage:
+def coverage_of(ruleset: RuleSet, members: pd.DataFrame, results: pd.DataFrame) -> Coverage:
     """The Coverage of ``members`` (one model, or a part of one) by their ``results``; the
     results' member positions and status codes (:data:`MEMBER_CODE`, :data:`STATUS_CODE`) are
     read and dropped here."""
@@ -566,7 +570,7 @@ def coverage_of(ruleset: Any, members: pd.DataFrame, results: pd.DataFrame) -> C
 
 @dataclass
 class CheckRun:
-    ruleset: Any
+    ruleset: RuleSet
     models: list[ModelData]
     results: pd.DataFrame
     members: pd.DataFrame            # REPORT_MEMBER_COLUMNS of every readable model
@@ -575,7 +579,7 @@ class CheckRun:
     # when encoded in the workers
 
 
-def run_check(paths: list[str], ruleset: Any, forces: ForceOptions, *, jobs: int = 1,
+def run_check(paths: list[str], ruleset: RuleSet, forces: ForceOptions, *, jobs: int = 1,
               validate: bool = False, progress: Any = None, scheduler: str | None = None,
               encode_json: bool = False, slim: bool = False, units: str = "model") -> CheckRun:
     """Check every model; unreadable ones are recorded with their error, the rest go on.

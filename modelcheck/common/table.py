@@ -17,7 +17,7 @@ stacked with ``concat_rows`` (a column some of them lack is None there, not NaN)
 from __future__ import annotations
 
 from collections.abc import Iterable, Sequence
-from typing import Any
+from typing import Any, cast
 
 import numpy as np
 import pandas as pd
@@ -87,13 +87,18 @@ def empty_forces() -> pd.DataFrame:
 STATUS_RANK: dict[str, int] = {"fail": 0, "unchecked": 1, "pass": 2}
 
 
+def records(frame: pd.DataFrame) -> list[dict[str, Any]]:
+    """The rows of a table (its column names are texts) as dicts: ``frame.to_dict("records")``."""
+    return cast(list[dict[str, Any]], frame.to_dict("records"))
+
+
 def text_column(values: Iterable[Any] | np.ndarray | pd.Series, index: Any = None) -> pd.Series:
     """An object Series of ``values`` with None wherever a value is missing (None, NaN, pd.NA).
 
     The one way text enters a table: pandas would otherwise infer its string dtype, whose
     missing value is NaN."""
     if isinstance(values, pd.Series):
-        arr = values.to_numpy(dtype=object, na_value=None)
+        arr = values.to_numpy(dtype=object, na_value=None)   # type: ignore[call-overload]  # pandas-stubs leave out na_value=None, which pandas takes
         index = values.index if index is None else index
     else:
         # one object per row, whatever it is (np.asarray would make a list of tuples 2-D)

@@ -26,12 +26,16 @@ allowable force.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
 
 from modelcheck.common.vocabulary import quantity_object
+
+if TYPE_CHECKING:
+    from modelcheck.report.quantities import DisplayUnits
+    from modelcheck.rules.ruleset import RuleSet
 
 #: said after a check that fails at every force: why the direction has no rating
 NO_FORCE = " (no force satisfies it: no rating)"
@@ -125,13 +129,13 @@ def _direction(res: pd.DataFrame, sign: str, n: int) -> dict[str, np.ndarray]:
         reason[mm] = [f"{ch}: demand is not linear in the force; not rated" for ch in bent["check"].tolist()]
     # unchecked rows win over everything: the rating would rest on missing data
     if len(unchecked):
-        first = unchecked.drop_duplicates("m")
-        mm = first["m"].to_numpy()
+        firsts = unchecked.drop_duplicates("m")
+        mm = firsts["m"].to_numpy()
         allow[mm] = np.nan
         gov[mm] = None
         reason[mm] = [f"{ch}: " + ("; ".join(miss) if miss else str(msg))
-                      for ch, miss, msg in zip(first["check"].tolist(), first["missing"].tolist(),
-                                               first["message"].tolist(), strict=True)]
+                      for ch, miss, msg in zip(firsts["check"].tolist(), firsts["missing"].tolist(),
+                                               firsts["message"].tolist(), strict=True)]
     return {"allow": allow, "gov": gov, "reason": reason}
 
 
@@ -142,7 +146,7 @@ def _obj(lists: list[Any]) -> np.ndarray:
     return out
 
 
-def rating_key(ruleset: Any, members: pd.DataFrame) -> pd.DataFrame:
+def rating_key(ruleset: RuleSet, members: pd.DataFrame) -> pd.DataFrame:
     """What the rule set can see of each member: the columns its expressions read, and one
     column per selector (the selector's mask). Members equal in all of them get equal results,
     whatever their GlobalId, tag or name."""
@@ -168,7 +172,7 @@ def rating_key(ruleset: Any, members: pd.DataFrame) -> pd.DataFrame:
     return key
 
 
-def rate_members(ruleset: Any, members: pd.DataFrame, units: Any) -> pd.DataFrame:
+def rate_members(ruleset: RuleSet, members: pd.DataFrame, units: DisplayUnits) -> pd.DataFrame:
     """Allowable axial forces of every member under ``ruleset``: one row per member.
 
     Columns: ``global_id``; ``tension`` and ``compression`` (JSON quantity dicts
@@ -199,7 +203,7 @@ def rate_members(ruleset: Any, members: pd.DataFrame, units: Any) -> pd.DataFram
     return pd.DataFrame(out)
 
 
-def _rate(ruleset: Any, frame: pd.DataFrame, units: Any) -> pd.DataFrame:
+def _rate(ruleset: RuleSet, frame: pd.DataFrame, units: DisplayUnits) -> pd.DataFrame:
     """rate_members over distinct members."""
     from modelcheck.rules.engine import run_checks
 

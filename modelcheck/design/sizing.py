@@ -33,7 +33,7 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
@@ -48,6 +48,9 @@ from modelcheck.common.vocabulary import (
     round_sig,
 )
 from modelcheck.design import stock
+
+if TYPE_CHECKING:
+    from modelcheck.rules.ruleset import RuleSet
 
 SHAPES: tuple[str, ...] = STOCK_KIND_NAMES
 
@@ -172,7 +175,7 @@ def _qd(value: float, unit: str) -> dict[str, Any] | None:
 # inputs
 
 
-def resolve_material(name: str | None, ruleset: Any) -> dict[str, Any]:
+def resolve_material(name: str | None, ruleset: RuleSet) -> dict[str, Any]:
     """Library values of a material name (default by the rule set's units) as member-table values."""
     from modelcheck.materials.library import match_candidates, match_material
 
@@ -196,7 +199,7 @@ def resolve_material(name: str | None, ruleset: Any) -> dict[str, Any]:
     return values
 
 
-def _display(ruleset: Any, units: Any) -> dict[str, str]:
+def _display(ruleset: RuleSet, units: Any) -> dict[str, str]:
     """Display units: the rule set's, or those of a DisplayUnits system when one is given."""
     if units is not None and getattr(units, "system", None) in ("US", "SI"):
         return {"force": units.unit("force"), "stress": units.unit("stress"), "area": units.unit("area"),
@@ -206,7 +209,7 @@ def _display(ruleset: Any, units: Any) -> dict[str, str]:
             "small_length": disp["length"], "length": "ft" if ruleset.units == "US" else "m"}
 
 
-def candidates_for(ruleset: Any, shape: str, *, families: tuple[str, ...] | None = None,
+def candidates_for(ruleset: RuleSet, shape: str, *, families: tuple[str, ...] | None = None,
                    thickness: float | None = None) -> tuple[pd.DataFrame, str]:
     """The candidate table of one kind for a rule set, and a line naming the series used."""
     series = stock.stock_series(ruleset)
@@ -246,7 +249,7 @@ def _length_only(missing: Any) -> bool:
     return bool(items) and all(str(m).startswith("L:") for m in items)
 
 
-def size(ruleset: Any, force_si: float, *, material: str | None = None, shape: str | None = None,
+def size(ruleset: RuleSet, force_si: float, *, material: str | None = None, shape: str | None = None,
          thickness: float | None = None, length: float | None = None, units: Any = None,
          family: str | tuple[str, ...] | None = None) -> SizeResult:
     """The smallest stock size of ``shape`` that carries ``force_si`` newtons (tension positive).
@@ -295,7 +298,8 @@ def size(ruleset: Any, force_si: float, *, material: str | None = None, shape: s
     eligible = per[(per["n"] > 0) & (per["fails"] == 0) & (per["other"] == 0)]
     what = "tension" if force_si > 0 else "compression"
     if not len(eligible):
-        raise UsageError(_no_size_message(ruleset, res, na, per, cands, shape, what, mat, length))
+        # pandas-stubs type a named aggregation of a grouped column as a Series; it is a DataFrame
+        raise UsageError(_no_size_message(ruleset, res, na, per, cands, shape, what, mat, length))   # type: ignore[arg-type]
     best = int(eligible.index.min())   # candidates are sorted by area, then series order
     rows = res[res["_c"] == best]
     cand = cands.iloc[best]
@@ -303,7 +307,7 @@ def size(ruleset: Any, force_si: float, *, material: str | None = None, shape: s
                    series_text, len(cands), _display(ruleset, units))
 
 
-def _no_size_message(ruleset: Any, res: pd.DataFrame, na: pd.Series, per: pd.DataFrame, cands: pd.DataFrame,
+def _no_size_message(ruleset: RuleSet, res: pd.DataFrame, na: pd.Series, per: pd.DataFrame, cands: pd.DataFrame,
                      shape: str, what: str, mat: Mapping[str, Any], length: float | None) -> str:
     kind = STOCK_FAMILY[shape]
     applicable = res[~na]
@@ -321,13 +325,13 @@ def _no_size_message(ruleset: Any, res: pd.DataFrame, na: pd.Series, per: pd.Dat
                 f"is not checked for any size ({missing})")
     last = int(per.index.max())
     rows = applicable[applicable["_c"] == last]
-    worst = rows.loc[rows["ratio"].fillna(np.inf).idxmax()]
+    worst = rows.loc[rows["ratio"].fillna(np.inf).idxmax()]   # type: ignore[call-overload]  # pandas-stubs: a label is Hashable
     ratio = worst["ratio"]
     return (f"no {kind} in the series passes {ruleset.name}; the largest, {cands.iloc[last]['designation']}, "
             f"fails {worst['check']}" + (f" (ratio {ratio:.3g})" if math.isfinite(ratio) else ""))
 
 
-def _result(ruleset: Any, force_si: float, mat: Mapping[str, Any], shape: str, families: tuple[str, ...],
+def _result(ruleset: RuleSet, force_si: float, mat: Mapping[str, Any], shape: str, families: tuple[str, ...],
             thickness: float | None, length: float | None, rows: pd.DataFrame, na: pd.Series, cand: pd.Series,
             series_text: str, n_candidates: int, display: dict[str, str]) -> SizeResult:
     rows_na = rows[na.loc[rows.index]]

@@ -39,7 +39,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from fractions import Fraction
 from functools import lru_cache
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
@@ -52,6 +52,9 @@ from modelcheck.common.units import Q_, QuantityTextError, parse_quantity, parse
 from modelcheck.common.vocabulary import STOCK_KINDS, quantities
 from modelcheck.design.screw_threads import INCH, thread_series
 from modelcheck.design.shape_tables import HEADER_RE
+
+if TYPE_CHECKING:
+    from modelcheck.rules.ruleset import RuleSet
 
 #: columns of a candidate table
 CANDIDATE_COLUMNS: tuple[str, ...] = (
@@ -208,7 +211,7 @@ def _problem(path: str, key: tuple[str, ...], message: str) -> RuleSetError:
     return Problems(path, RuleSetError, lines=lines, unplaced=None).error(key, message)
 
 
-def stock_series(ruleset: Any) -> StockSeries:
+def stock_series(ruleset: RuleSet) -> StockSeries:
     """The stock series of a rule set: stock.toml's series of its units, with its [stock] keys.
 
     Raises :class:`RuleSetError` (file and line) for a bad key or size in either file.

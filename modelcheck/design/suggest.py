@@ -30,7 +30,7 @@ member without one gets a ``suggestion_note`` saying why.
 from __future__ import annotations
 
 import math
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
@@ -39,6 +39,9 @@ from modelcheck.common.units import Q_
 from modelcheck.common.vocabulary import CATALOG_SHAPES, STOCK_KINDS, Shape, quantity_object
 from modelcheck.design import stock
 from modelcheck.rules.select import Selector
+
+if TYPE_CHECKING:
+    from modelcheck.rules.ruleset import RuleSet
 
 #: pairs per run_checks call (a memory bound for very large failing sets)
 CHUNK = 200_000
@@ -118,7 +121,7 @@ def _candidates(key: Any, series: stock.StockSeries) -> tuple[pd.DataFrame, str]
     return stock.catalog_shapes(table, families, shape), fam
 
 
-def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, results: pd.DataFrame) -> pd.DataFrame:
+def suggest(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | None, results: pd.DataFrame) -> pd.DataFrame:
     """``results`` with a ``suggestion`` column (dict or None) and a ``suggestion_note`` column.
 
     ``suggestion`` = ``{"designation", "area": Q, "ratio", "family", "check", "unchecked"}``:
@@ -147,8 +150,9 @@ def suggest(ruleset: Any, members: pd.DataFrame, forces: pd.DataFrame | None, re
         pos = np.array([-1 if k in shared else first.get(k, -1) for k in failing], dtype=np.int64)
         rows = np.flatnonzero(fail_rows.to_numpy() & pd.Series(member_key(out["model"], out["global_id"])).isin(shared)
                               .to_numpy())
-        out.iloc[rows, out.columns.get_loc("suggestion_note")] = \
-            "no suggestion: its GlobalId is shared by several members, so its results are theirs too"
+        # pandas-stubs take no array of positions with a column position here; pandas does
+        note = "no suggestion: its GlobalId is shared by several members, so its results are theirs too"
+        out.iloc[rows, out.columns.get_loc("suggestion_note")] = note   # type: ignore[index]
     pos = pos[pos >= 0]
     if not len(pos):
         return out
@@ -339,7 +343,7 @@ def _verdicts(res: pd.DataFrame, cinfo: pd.DataFrame, sub_keys: np.ndarray, allo
     for i in range(n):
         unchecked[i] = []
     for p, lst in exc.items():
-        unchecked[int(p)] = lst
+        unchecked[int(p)] = lst   # type: ignore[call-overload]  # pandas-stubs type index labels as Hashable
     v["qualifies"] = ~bad_arr & (npass > 0)
     v["ratio"] = ratio
     v["check"] = check

@@ -34,7 +34,7 @@ from typing import Any
 import pandas as pd
 
 from modelcheck.common.errors import ModelcheckError, UsageError
-from modelcheck.common.table import STATUS_RANK
+from modelcheck.common.table import STATUS_RANK, records
 
 PSET_NAME = "MC_CheckResult"
 _NAMESPACE = uuid.UUID("b7d2e4f0-3c5a-4e61-8f2d-9a0c1e7b5d34")
@@ -138,7 +138,7 @@ def _annotate_copy(src: Path, dst: Path, rows: pd.DataFrame) -> int:
     f = open_model(src)
 
     elements: list[tuple[Any, dict[str, Any]]] = []
-    for rec in rows.to_dict("records"):
+    for rec in records(rows):
         try:
             el = f.by_guid(rec["global_id"])
         except RuntimeError:

@@ -34,13 +34,17 @@ import uuid
 import xml.etree.ElementTree as ET
 import zipfile
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
+from modelcheck.common.table import records
 from modelcheck.report.console import governing
 from modelcheck.report.csv_report import member_info
 from modelcheck.report.formats import WriteOptions
 from modelcheck.report.members import CAUTION
 from modelcheck.report.text import number, xml_clean, xml_text
+
+if TYPE_CHECKING:
+    from modelcheck.pipeline import CheckRun
 
 #: namespace of every UUID this module derives (a fixed random UUID of our own)
 BCF_NAMESPACE = uuid.UUID("5e0f3c1a-8b27-4d6e-9a41-2f7c6b90d3e8")
@@ -86,7 +90,7 @@ def _member_label(rec: dict[str, Any], info: dict[str, Any] | None) -> str:
     return text
 
 
-def _topics(run: Any, include_unchecked: bool) -> list[dict[str, Any]]:
+def _topics(run: CheckRun, include_unchecked: bool) -> list[dict[str, Any]]:
     """One dict per topic: governing record, the member's other records, kind."""
     if not len(run.results):
         return []
@@ -96,9 +100,9 @@ def _topics(run: Any, include_unchecked: bool) -> list[dict[str, Any]]:
             zip(info_df["model"], info_df["global_id"], info_df["storey"], info_df["section"],
                 info_df["material"], strict=True)}
     by_member: dict[tuple[str, str], list[dict[str, Any]]] = {}
-    for rec in gov.to_dict("records"):
+    for rec in records(gov):
         by_member.setdefault((rec["model"], rec["global_id"]), []).append(rec)
-    topics = []
+    topics: list[dict[str, Any]] = []
     for key, recs in by_member.items():
         fails = sorted((r for r in recs if r["status"] == "fail"), key=lambda r: -float(r["ratio"]))
         if fails:
@@ -117,7 +121,7 @@ def _case(rec: dict[str, Any]) -> str:
     return rec["load_case"] if isinstance(rec["load_case"], str) and rec["load_case"] else "—"
 
 
-def _title_and_description(t: dict[str, Any], run: Any) -> tuple[str, str]:
+def _title_and_description(t: dict[str, Any], run: CheckRun) -> tuple[str, str]:
     rec, info = t["rec"], t["info"]
     who = rec["name"] if _str(rec.get("name")) else (rec["tag"] if _str(rec.get("tag")) else rec["global_id"])
     unit = f" {rec['unit']}" if _str(rec.get("unit")) else ""
@@ -143,7 +147,7 @@ def _title_and_description(t: dict[str, Any], run: Any) -> tuple[str, str]:
     return title[:128], "\n".join(lines)
 
 
-def _markup(t: dict[str, Any], run: Any, guid: str, vp_guid: str, index: int, date: str) -> bytes:
+def _markup(t: dict[str, Any], run: CheckRun, guid: str, vp_guid: str, index: int, date: str) -> bytes:
     rec = t["rec"]
     title, description = _title_and_description(t, run)
     root = ET.Element("Markup")
@@ -191,7 +195,7 @@ def _version() -> bytes:
     return _xml(root)
 
 
-def _project(run: Any) -> bytes:
+def _project(run: CheckRun) -> bytes:
     names = "\n".join(sorted(os.path.basename(m.path) for m in run.models))
     pid = str(uuid.uuid5(BCF_NAMESPACE, f"project\n{run.ruleset.name}\n{names}"))
     root = ET.Element("ProjectExtension")
@@ -201,7 +205,7 @@ def _project(run: Any) -> bytes:
     return _xml(root)
 
 
-def write_bcf(run: Any, path: str | Path, *, now: _dt.datetime | None = None,
+def write_bcf(run: CheckRun, path: str | Path, *, now: _dt.datetime | None = None,
               include_unchecked: bool = False) -> int:
     """Write the BCF 2.1 zip of a check run; return the number of topics written."""
     stamp = (now or _dt.datetime.now(_dt.UTC)).replace(microsecond=0)
@@ -237,6 +241,6 @@ def write_bcf(run: Any, path: str | Path, *, now: _dt.datetime | None = None,
     return len(topics)
 
 
-def write(run: Any, target: str | Path, options: WriteOptions) -> None:
+def write(run: CheckRun, target: str | Path, options: WriteOptions) -> None:
     """``write_bcf`` with the ``WriteOptions`` of ``modelcheck.report.formats``."""
     write_bcf(run, target, now=options.now)

@@ -10,7 +10,7 @@ import datetime as _dt
 import math
 import os
 from json.encoder import encode_basestring as _escape  # noqa: E402  (C escaper: "…" with \" \\ \n \u00XX)
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
@@ -18,6 +18,10 @@ import pandas as pd
 from modelcheck.common.vocabulary import quantity_object
 from modelcheck.report.formats import WriteOptions
 from modelcheck.report.members import CAUTION
+
+if TYPE_CHECKING:
+    from modelcheck.pipeline import CheckRun
+    from modelcheck.rules.engine import CheckRows
 
 
 def _none(v: Any) -> Any:
@@ -306,7 +310,7 @@ def _join_rows(prefix: np.ndarray, mid: np.ndarray, demand: Any, demand_tail: np
     return b"".join([b"".join(row) for row in zip(*(p.tolist() for p in pieces), strict=True)])[:-len(_ROW_SEP)]
 
 
-def encode_check_rows(rows: Any, suggestions: dict[int, dict[str, Any]] | None = None, sink: Any = None) -> bytes:
+def encode_check_rows(rows: CheckRows, suggestions: dict[int, dict[str, Any]] | None = None, sink: Any = None) -> bytes:
     """The JSON rows of ``rows`` (``modelcheck.rules.engine.CheckRows``), with ``suggestions``
     (row index -> suggestion) on their rows: the same bytes as ``encode_results`` on the results
     table with those suggestions, without making that table (tested). With ``sink`` (a binary
@@ -451,14 +455,14 @@ def write_members_json(doc: dict[str, Any], fh: Any) -> None:
     fh.write(b"\n}\n")
 
 
-def summary_counts(run: Any) -> dict[str, int]:
+def summary_counts(run: CheckRun) -> dict[str, int]:
     """Counts by status over results, and the number of models that could not be read."""
-    st = run.results["status"].value_counts() if len(run.results) else {}
+    st: pd.Series | dict[str, int] = run.results["status"].value_counts() if len(run.results) else {}
     return {"pass": int(st.get("pass", 0)), "fail": int(st.get("fail", 0)),
             "unchecked": int(st.get("unchecked", 0)), "errors": sum(1 for m in run.models if m.error)}
 
 
-def check_document(run: Any, *, comparison: dict[str, Any] | None = None,
+def check_document(run: CheckRun, *, comparison: dict[str, Any] | None = None,
                    now: _dt.datetime | None = None, encoded: bool = False) -> dict[str, Any]:
     """The JSON document of a check run; ``encoded=True`` gives the result rows encoded (for
     ``write_json``): as the workers encoded them, or encoded here, instead of as dicts."""
@@ -472,7 +476,7 @@ def check_document(run: Any, *, comparison: dict[str, Any] | None = None,
                     "warnings": list(m.warnings) + list(m.force_messages) + list(m.validation),
                     "member_warnings": {g: list(w) for g, w in m.member_warnings.items()}}
                    for m in run.models],
-        "results": ((EncodedRows(run.json_rows) if getattr(run, "json_rows", None) is not None
+        "results": ((EncodedRows(rows) if (rows := getattr(run, "json_rows", None)) is not None
                      else EncodedRows([encode_results(run.results)])) if encoded
                     else result_dicts(run.results)),
         "unmatched_force_rows": run.unmatched_rows,
@@ -484,7 +488,7 @@ def check_document(run: Any, *, comparison: dict[str, Any] | None = None,
     return doc
 
 
-def write(run: Any, target: Any, options: WriteOptions) -> None:
+def write(run: CheckRun, target: Any, options: WriteOptions) -> None:
     """The JSON report of ``run`` to ``target`` (a path, or a text stream: its binary buffer),
     with the ``WriteOptions`` of ``modelcheck.report.formats``."""
     doc = check_document(run, comparison=options.comparison, now=options.now, encoded=True)

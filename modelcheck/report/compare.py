@@ -110,14 +110,14 @@ def compare(current_doc: dict[str, Any], baseline_doc: dict[str, Any]) -> dict[s
     for key, b in base.items():
         if b["status"] != "fail" or key[0] not in compared:
             continue
-        r = cur.get(key)
-        if r is None:
+        now = cur.get(key)
+        if now is None:
             # the member is gone (reported in members_removed) or this key no longer exists
             if (key[0], key[1]) in cur_members:
                 resolved.append(_entry(key, ratio=None, baseline_ratio=_ratio(b), status=None))
             continue
-        if r["status"] != "fail":
-            resolved.append(_entry(key, ratio=r.get("ratio"), baseline_ratio=_ratio(b), status=r["status"]))
+        if now["status"] != "fail":
+            resolved.append(_entry(key, ratio=now.get("ratio"), baseline_ratio=_ratio(b), status=now["status"]))
 
     added = [m for k, m in cur_members.items() if k not in base_members and k[0] not in unreadable]
     removed = [m for k, m in base_members.items() if k not in cur_members and k[0] in compared]

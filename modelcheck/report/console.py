@@ -19,7 +19,7 @@ from __future__ import annotations
 
 import os
 import sys
-from typing import Any
+from typing import TYPE_CHECKING, Any, cast
 
 import pandas as pd
 from rich import box
@@ -27,10 +27,13 @@ from rich.console import Console, Group
 from rich.table import Table
 from rich.text import Text
 
-from modelcheck.common.table import STATUS_RANK
+from modelcheck.common.table import STATUS_RANK, records
 from modelcheck.report.formats import WriteOptions
 from modelcheck.report.members import CAUTION
 from modelcheck.report.text import number, shown
+
+if TYPE_CHECKING:
+    from modelcheck.pipeline import CheckRun, Coverage, ModelData
 
 #: console width from which the failing and unchecked lists show every detail
 DETAILS_WIDTH = 160
@@ -104,12 +107,14 @@ def member_label(name: Any, tag: Any, global_id: Any) -> str:
 
 
 # ------------------------------------------------------------------------------ summary
-def summary_line(model: Any, results: pd.DataFrame | None = None) -> Text:
+def summary_line(model: ModelData, results: pd.DataFrame | None = None) -> Text:
     """One line per model: what was found and checked; the headline says when nothing was."""
     path = Text(shown(model.path, None), style="bold")
     if model.error:
         return Text.assemble(path, ": ", ("cannot be read", "bold red"), " — ", shown(model.error, None))
-    cov = model.coverage if getattr(model, "coverage", None) is not None else _coverage_from(model, results)
+    cov = getattr(model, "coverage", None)
+    if cov is None:
+        cov = _coverage_from(model, results)
     units = getattr(model, "units", None)
     head = Text.assemble(path, f" ({shown(model.schema)}" + (f", {units} units" if units else "") + "): ")
     counts = Text.assemble(f"{cov.found} members found, {cov.checked} checked — ",
@@ -129,7 +134,7 @@ def summary_line(model: Any, results: pd.DataFrame | None = None) -> Text:
     return head
 
 
-def _coverage_from(model: Any, results: pd.DataFrame | None) -> Any:
+def _coverage_from(model: ModelData, results: pd.DataFrame | None) -> Coverage:
     """A Coverage from the results table, for a model checked without one."""
     from modelcheck.pipeline import Coverage
 
@@ -154,7 +159,7 @@ def _warning_grid(items: list[tuple[str, str]], style: str = "yellow") -> Table:
 MAX_MEMBER_WARNINGS = 3
 
 
-def member_warning_block(model: Any, members: pd.DataFrame | None) -> list[Any]:
+def member_warning_block(model: ModelData, members: pd.DataFrame | None) -> list[Any]:
     """'N member warnings on K members, first:' and the first few, each with the member's tag
     (else name, else GlobalId): the members' own warnings (values not used, sources that disagree)."""
     warns = getattr(model, "member_warnings", None) or {}
@@ -175,7 +180,7 @@ def member_warning_block(model: Any, members: pd.DataFrame | None) -> list[Any]:
     return [Text(head, style="yellow"), _warning_grid([(f"    {names.get(gid, gid)}:", w) for gid, w in shown])]
 
 
-def model_warnings(model: Any, details: bool = False) -> list[str]:
+def model_warnings(model: ModelData, details: bool = False) -> list[str]:
     """The warnings the console lists for a model. Left out: the force join's list of members with
     no force (they are in the unchecked list, with the reason) and, but for the wide layout, the
     lists of members the rule set's selection leaves out (the summary line counts them, with
@@ -263,7 +268,7 @@ def failing_table(results: pd.DataFrame, members: pd.DataFrame, details: bool = 
     cols: dict[str, list[str]] = {k: [] for k in (
         "Member", "GlobalId", "Class / type", "Storey", "Section", "Material", "Check", "Demand", "Capacity",
         "Ratio", "Load case", "Replacement")}
-    for rec in worst.to_dict("records"):
+    for rec in records(worst):
         cols["Member"].append(member_label(rec["name"], rec["tag"], rec["global_id"]))
         extra = int(rec["_more"])
         cols["Check"].append(shown(rec["check"]) + (f" (+{extra})" if extra else ""))
@@ -352,12 +357,13 @@ def unchecked_table(results: pd.DataFrame, details: bool = False, width: int = D
     un = g[g["status"] == "unchecked"]
     if not len(un):
         return None
-    lack = un.groupby(["model", "global_id"], sort=False)["missing"].agg(
+    lack = un.groupby(["model", "global_id"], sort=False)["missing"].agg(   # type: ignore[type-var]  # pandas-stubs: an aggregate may be any object
         lambda s: tuple(sorted({m for lst in s for m in (lst or [])})))
     labels = un.drop_duplicates(["model", "global_id"]).set_index(["model", "global_id"])
     groups: dict[tuple[str, ...], list[str]] = {}
-    for key, missing in lack.items():
-        rec = labels.loc[key]
+    for index_key, missing in lack.items():
+        key = cast(tuple[str, str], index_key)   # (model, GlobalId)
+        rec = cast(pd.Series, labels.loc[key])   # the one row of that (model, GlobalId)
         name = member_label(rec["name"], rec["tag"], key[1])
         groups.setdefault(missing, []).append(f"{name} ({shown(key[1])})" if details and name != shown(key[1])
                                               else name)
@@ -377,7 +383,7 @@ def unchecked_table(results: pd.DataFrame, details: bool = False, width: int = D
 
 
 # ------------------------------------------------------------------------------ screen
-def render_check(run: Any, console: Console, comparison: Any = None, details: bool | None = None) -> None:
+def render_check(run: CheckRun, console: Console, comparison: Any = None, details: bool | None = None) -> None:
     """The whole console report. ``details`` None: the wide layout from :data:`DETAILS_WIDTH` on."""
     wide = details if details is not None else console.width >= DETAILS_WIDTH
     basis = getattr(run.ruleset, "basis", "") or ""
@@ -409,7 +415,7 @@ def render_check(run: Any, console: Console, comparison: Any = None, details: bo
     console.print(Group(*parts))
 
 
-def write(run: Any, target: Any, options: WriteOptions) -> None:
+def write(run: CheckRun, target: Any, options: WriteOptions) -> None:
     """The console report of ``run`` to the text stream ``target``, as wide as it is (``make_console``)."""
     console = make_console(file=target)
     comparison = None

@@ -26,11 +26,14 @@ from __future__ import annotations
 
 import math
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING
 
 import pandas as pd
 
 from modelcheck.report.formats import WriteOptions
+
+if TYPE_CHECKING:
+    from modelcheck.pipeline import CheckRun
 
 #: result columns copied as they are, in output order (storey/section/material are inserted)
 _IDENTITY = ("model", "global_id", "ifc_class", "name", "tag")
@@ -52,7 +55,7 @@ def member_info(members: pd.DataFrame) -> pd.DataFrame:
     return info.drop_duplicates(["model", "global_id"], keep="first")
 
 
-def results_frame(run: Any) -> pd.DataFrame:
+def results_frame(run: CheckRun) -> pd.DataFrame:
     """The flat table written to CSV (also what other reporters can reuse)."""
     res = run.results
     # columns some rule engines add (clause, title, …) follow in the results' own order
@@ -78,7 +81,7 @@ def results_frame(run: Any) -> pd.DataFrame:
     return df.loc[:, out_cols]   # None and NaN alike are written as empty cells
 
 
-def _member_warning_texts(run: Any, df: pd.DataFrame) -> list[str]:
+def _member_warning_texts(run: CheckRun, df: pd.DataFrame) -> list[str]:
     """The warnings of each row's member, joined with " | " (empty where it has none)."""
     joined = {(m.path, gid): " | ".join(ws) for m in run.models for gid, ws in m.member_warnings.items()}
     if not joined:
@@ -86,7 +89,7 @@ def _member_warning_texts(run: Any, df: pd.DataFrame) -> list[str]:
     return [joined.get(key, "") for key in zip(df["model"].tolist(), df["global_id"].tolist(), strict=True)]
 
 
-def write_csv(run: Any, path: str | Path) -> None:
+def write_csv(run: CheckRun, path: str | Path) -> None:
     """Write the results of a check run as CSV (UTF-8, comma-separated, header row)."""
     from modelcheck.report.text import csv_frame
 
@@ -95,6 +98,6 @@ def write_csv(run: Any, path: str | Path) -> None:
     Path(path).write_text(text, encoding="utf-8", newline="")
 
 
-def write(run: Any, target: str | Path, options: WriteOptions) -> None:
+def write(run: CheckRun, target: str | Path, options: WriteOptions) -> None:
     """``write_csv`` with the ``WriteOptions`` of ``modelcheck.report.formats`` (none used)."""
     write_csv(run, target)

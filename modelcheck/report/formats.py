@@ -22,10 +22,13 @@ import datetime as _dt
 import sys
 from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    from modelcheck.pipeline import CheckRun
 
 #: ``write(run, target, options)``: ``target`` a path, or a text stream
-Writer = Callable[[Any, Any, "WriteOptions"], None]
+Writer = Callable[["CheckRun", Any, "WriteOptions"], None]
 
 
 @dataclass(frozen=True)
@@ -61,7 +64,7 @@ class OutputFormat:
 
 def _writer(module: str) -> Writer:
     """The ``write`` of ``module``, imported when first called."""
-    def write(run: Any, target: Any, options: WriteOptions) -> None:
+    def write(run: CheckRun, target: Any, options: WriteOptions) -> None:
         from importlib import import_module
 
         import_module(module).write(run, target, options)
@@ -96,7 +99,7 @@ def default_file_name(fmt: OutputFormat) -> str:
     return f"modelcheck-report.{fmt.extension}"
 
 
-def write_report(fmt: OutputFormat, run: Any, target: str | None, options: WriteOptions) -> None:
+def write_report(fmt: OutputFormat, run: CheckRun, target: str | None, options: WriteOptions) -> None:
     """Write ``run`` in ``fmt`` to the file ``target``, or to standard output when None."""
     if target is not None:
         fmt.write(run, target, options)

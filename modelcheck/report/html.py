@@ -23,15 +23,19 @@ import datetime as _dt
 import math
 from html import escape
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any, cast
 
 import numpy as np
 import pandas as pd
 
+from modelcheck.common.table import records
 from modelcheck.report.console import governing, member_status
 from modelcheck.report.csv_report import member_info
 from modelcheck.report.formats import WriteOptions
 from modelcheck.report.members import CAUTION
+
+if TYPE_CHECKING:
+    from modelcheck.pipeline import CheckRun
 
 #: rows shown per table; the rest are counted (CSV and JSON carry them all)
 MAX_ROWS = 2000
@@ -84,7 +88,7 @@ def _table(headers: list[str], rows: list[list[str]], numeric: set[int] | None =
     return f"<table><thead><tr>{head}</tr></thead><tbody>{''.join(body)}</tbody></table>{more}"
 
 
-def _summary(run: Any) -> str:
+def _summary(run: CheckRun) -> str:
     rows = []
     status = member_status(run.results) if len(run.results) else pd.Series(dtype=object)
     for m in run.models:
@@ -127,7 +131,7 @@ def checked_worst_ratios(results: pd.DataFrame) -> np.ndarray:
     return worst[status.to_numpy() != "unchecked"].to_numpy(dtype=float)
 
 
-def _chart(run: Any) -> str:
+def _chart(run: CheckRun) -> str:
     res = run.results
     if not len(res):
         return '<p class="muted">No results.</p>'
@@ -191,7 +195,7 @@ def _suggestion(s: Any) -> str:
     return _e(s["designation"]) + (f" (ratio {_n(ratio, '{:.2f}')})" if isinstance(ratio, int | float) else "")
 
 
-def _failing(run: Any) -> str:
+def _failing(run: CheckRun) -> str:
     g = governing(run.results) if len(run.results) else run.results
     fails = g[g["status"] == "fail"] if len(g) else g
     if not len(fails):
@@ -203,7 +207,7 @@ def _failing(run: Any) -> str:
     info = {(m, gid): (s, sec, mat) for m, gid, s, sec, mat in member_info(run.members).itertuples(index=False)}
     warns = _member_warnings(run.members)
     rows = []
-    for rec in fails.to_dict("records"):
+    for rec in records(fails):
         key = (rec["model"], rec["global_id"])
         s, sec, mat = info.get(key, (None, None, None))
         unit = f" {_e(rec['unit'])}" if isinstance(rec["unit"], str) and rec["unit"] else ""
@@ -222,7 +226,7 @@ def _failing(run: Any) -> str:
                   rows, numeric={7, 8, 9}, total=total)
 
 
-def _unchecked(run: Any) -> str:
+def _unchecked(run: CheckRun) -> str:
     g = governing(run.results) if len(run.results) else run.results
     un = g[g["status"] == "unchecked"] if len(g) else g
     if not len(un):
@@ -239,7 +243,7 @@ def _unchecked(run: Any) -> str:
         st = status.get((model, gid), "unchecked")
         rows.append([f"<code>{_e(gid)}</code>", _e(first["ifc_class"]), _e(_label(first["name"], first["tag"])),
                      _e(", ".join(grp["check"])), _lines(missing), _e(model), f'<span class="{st}">{st}</span>',
-                     _lines(warns.get((model, gid), []))])
+                     _lines(warns.get(cast(tuple[str, str], (model, gid)), []))])
     note = ('<p class="muted">Every member with a check that could not run. Such a member is counted as '
             "unchecked, or as failing when another of its checks fails; it is never counted or drawn as "
             "passing.</p>")
@@ -247,7 +251,7 @@ def _unchecked(run: Any) -> str:
                           "Member status", "Member warnings"], rows, total=total)
 
 
-def _comparison(cmp: dict[str, Any], run: Any) -> str:
+def _comparison(cmp: dict[str, Any], run: CheckRun) -> str:
     c = cmp.get("counts", {})
     head = (f"<p>{int(c.get('new_failures', 0))} new failure(s), {int(c.get('resolved', 0))} resolved, "
             f"{int(c.get('still_failing', 0))} still failing, {int(c.get('new_unchecked', 0))} newly unchecked, "
@@ -256,7 +260,7 @@ def _comparison(cmp: dict[str, Any], run: Any) -> str:
 
     # name and tag of each member of this run, by the name the comparison gives its model
     res = run.results
-    labels: dict[tuple[str, str], str | None] = {}
+    labels: dict[tuple[Any, Any], str | None] = {}
     if len(res):
         names = comparison_names([m.path for m in run.models] + res["model"].unique().tolist())
         ident = res[["model", "global_id", "name", "tag"]].drop_duplicates(["model", "global_id"])
@@ -291,7 +295,7 @@ def _comparison(cmp: dict[str, Any], run: Any) -> str:
     return "".join(parts)
 
 
-def _warnings(run: Any) -> str:
+def _warnings(run: CheckRun) -> str:
     items = []
     for m in run.models:
         for w in list(m.warnings) + list(m.force_messages) + list(m.validation):
@@ -305,7 +309,7 @@ def _warnings(run: Any) -> str:
     return f"<h2>Warnings</h2><details><summary>{len(items)} warning(s)</summary><ul>{''.join(shown)}{more}</ul></details>"
 
 
-def render_html(run: Any, *, now: _dt.datetime | None = None, comparison: dict[str, Any] | None = None) -> str:
+def render_html(run: CheckRun, *, now: _dt.datetime | None = None, comparison: dict[str, Any] | None = None) -> str:
     """The whole HTML document as text."""
     stamp = (now or _dt.datetime.now(_dt.UTC)).replace(microsecond=0).isoformat()
     rs = run.ruleset
@@ -332,12 +336,12 @@ def render_html(run: Any, *, now: _dt.datetime | None = None, comparison: dict[s
     return "\n".join(p for p in parts if p) + "\n"
 
 
-def write_html(run: Any, path: str | Path, *, now: _dt.datetime | None = None,
+def write_html(run: CheckRun, path: str | Path, *, now: _dt.datetime | None = None,
                comparison: dict[str, Any] | None = None) -> None:
     """Write the self-contained HTML report of a check run."""
     Path(path).write_text(render_html(run, now=now, comparison=comparison), encoding="utf-8")
 
 
-def write(run: Any, target: str | Path, options: WriteOptions) -> None:
+def write(run: CheckRun, target: str | Path, options: WriteOptions) -> None:
     """``write_html`` with the ``WriteOptions`` of ``modelcheck.report.formats``."""
     write_html(run, target, now=options.now, comparison=options.comparison)

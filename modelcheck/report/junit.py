@@ -41,14 +41,18 @@ from __future__ import annotations
 import os
 import xml.etree.ElementTree as ET
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import pandas as pd
 
+from modelcheck.common.table import records
 from modelcheck.report.console import governing, summary_line
 from modelcheck.report.csv_report import member_info
 from modelcheck.report.formats import WriteOptions
 from modelcheck.report.text import number, xml_clean, xml_text
+
+if TYPE_CHECKING:
+    from modelcheck.pipeline import CheckRun
 
 
 def _stem(model: str) -> str:
@@ -104,7 +108,7 @@ def _case_name(rec: dict[str, Any]) -> str:
     return f"{rec['global_id']} ({who}) {rec['check']}" if who else f"{rec['global_id']} {rec['check']}"
 
 
-def _counted_mask(run: Any, comparison: dict[str, Any], strict: bool) -> pd.Series:
+def _counted_mask(run: CheckRun, comparison: dict[str, Any], strict: bool) -> pd.Series:
     """Which result rows the exit code counts under ``--fail-on new`` (``compare.new_problems``)."""
     from modelcheck.report.compare import comparison_names, counted_keys
 
@@ -118,7 +122,7 @@ def _counted_mask(run: Any, comparison: dict[str, Any], strict: bool) -> pd.Seri
     return pd.Series(idx.isin(list(keys)), index=res.index)
 
 
-def junit_tree(run: Any, *, strict: bool = False, only_new: dict[str, Any] | None = None) -> ET.Element:
+def junit_tree(run: CheckRun, *, strict: bool = False, only_new: dict[str, Any] | None = None) -> ET.Element:
     """The <testsuites> element of a check run.
 
     ``only_new``: the comparison with a baseline when only new problems fail the run (``--fail-on
@@ -135,14 +139,14 @@ def junit_tree(run: Any, *, strict: bool = False, only_new: dict[str, Any] | Non
         new_rows = {}
         counted = _counted_mask(run, only_new, strict)
         if counted.any():
-            for r in governing(res[counted]).to_dict("records"):
+            for r in records(governing(res[counted])):
                 new_rows[(r["model"], r["global_id"], r["check"])] = r
     info_df = member_info(run.members)
     info = {(m, g): {"storey": s, "section": sec, "material": mat} for m, g, s, sec, mat in
             zip(info_df["model"], info_df["global_id"], info_df["storey"], info_df["section"],
                 info_df["material"], strict=True)}
     by_model: dict[str, list[dict[str, Any]]] = {}
-    for rec in (gov.to_dict("records") if len(gov) else []):
+    for rec in (records(gov) if len(gov) else []):
         by_model.setdefault(rec["model"], []).append(rec)
     rs = run.ruleset
     root = ET.Element("testsuites", {"name": "modelcheck"})
@@ -220,7 +224,7 @@ def junit_tree(run: Any, *, strict: bool = False, only_new: dict[str, Any] | Non
     return root
 
 
-def write_junit(run: Any, path: str | Path, *, strict: bool = False, only_new: dict[str, Any] | None = None) -> None:
+def write_junit(run: CheckRun, path: str | Path, *, strict: bool = False, only_new: dict[str, Any] | None = None) -> None:
     """Write the JUnit XML report of a check run (UTF-8); ``only_new`` as in :func:`junit_tree`."""
     root = xml_clean(junit_tree(run, strict=strict, only_new=only_new))   # no character XML 1.0 forbids, anywhere
     ET.indent(root, space="  ")
@@ -228,7 +232,7 @@ def write_junit(run: Any, path: str | Path, *, strict: bool = False, only_new: d
     Path(path).write_bytes(data + b"\n")
 
 
-def write(run: Any, target: str | Path, options: WriteOptions) -> None:
+def write(run: CheckRun, target: str | Path, options: WriteOptions) -> None:
     """``write_junit`` with the ``WriteOptions`` of ``modelcheck.report.formats``: with --fail-on new
     only the problems new since the baseline fail."""
     write_junit(run, target, strict=options.strict, only_new=options.comparison if options.only_new else None)

@@ -7,7 +7,7 @@ from typing import Any
 
 import pandas as pd
 
-from modelcheck.common.table import REJECTED
+from modelcheck.common.table import REJECTED, records
 from modelcheck.common.vocabulary import quantities, quantity_object
 from modelcheck.report.quantities import DisplayUnits
 
@@ -46,11 +46,11 @@ def member_dicts(members: pd.DataFrame, forces: pd.DataFrame | None, units: Disp
                 val * ff, units.unit("force"), src)
     cap_map: dict[str, dict[str, Any]] = {}
     if capacity is not None and len(capacity):
-        for rec in capacity.to_dict("records"):
+        for rec in records(capacity):
             cap_map[rec["global_id"]] = {k: v for k, v in rec.items() if k != "global_id"}
     out = []
     q = units.q
-    for rec in members.to_dict("records"):
+    for rec in records(members):
         material = None
         if rec["material"] is not None or any(_s(rec[k]) is not None for k in ("E", "Fy", "Fu")):
             material = {"name": rec["material"], "category": rec["material_category"],
@@ -139,7 +139,7 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width:
     def labelled(column: str) -> str:   # a quantity's label with its display unit: 'r min [mm]'
         return header(LABEL[column], column)
 
-    recs = members.to_dict("records")
+    recs = records(members)
     cols: dict[str, list[str]] = {
         "Member": [member_label(r.get("name"), r.get("tag"), r["global_id"]) for r in recs],
         "Name": [text(r.get("name")) or "—" for r in recs],
@@ -157,7 +157,7 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width:
     }
     rating_cols: list[str] = []
     if capacity is not None:
-        by_id = {rec["global_id"]: rec for rec in capacity.to_dict("records")}
+        by_id = {rec["global_id"]: rec for rec in records(capacity)}
         for direction, head in (("tension", "T"), ("compression", "C")):
             name = header(head, "force")
             rating_cols.append(name)
@@ -221,9 +221,9 @@ def member_notes(members: pd.DataFrame, capacity: pd.DataFrame | None = None) ->
 
     notes: dict[str, dict[str, Any]] = {}
     if capacity is not None and len(capacity):
-        notes = {rec["global_id"]: rec for rec in capacity.to_dict("records")}
+        notes = {rec["global_id"]: rec for rec in records(capacity)}
     out: list[tuple[str, str]] = []
-    for rec in members.to_dict("records"):
+    for rec in records(members):
         gid = str(rec["global_id"])
         label = member_label(rec.get("name"), rec.get("tag"), gid)
         who = label if label == gid else f"{label} ({gid})"

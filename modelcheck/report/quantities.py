@@ -12,10 +12,13 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from functools import lru_cache
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from modelcheck.common.units import Q_
 from modelcheck.common.vocabulary import display_kinds, quantity_object
+
+if TYPE_CHECKING:
+    from modelcheck.ifc.index import ModelIndex
 
 #: display unit per member-table quantity (and per extra kind: force, stress, small_length), per
 #: system (pint-parsable strings), read from ``modelcheck.common.vocabulary``
@@ -47,7 +50,7 @@ class DisplayUnits:
         return quantity_object(self.convert(quantity, si_value), self.unit(quantity), source)
 
 
-def system_for_model(idx: Any) -> str:
+def system_for_model(idx: ModelIndex) -> str:
     """US customary when the model's length unit is the inch or foot, else SI."""
     try:
         lf = idx.units.factor("LENGTHUNIT")
