@@ -20,7 +20,7 @@ import re
 import sys
 from dataclasses import dataclass, field
 from fractions import Fraction
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 
 def _import_pint() -> Any:
@@ -39,7 +39,10 @@ def _import_pint() -> Any:
     return pint
 
 
-pint = _import_pint()
+if TYPE_CHECKING:
+    import pint
+else:
+    pint = _import_pint()
 
 
 def _registry() -> pint.UnitRegistry:
@@ -197,7 +200,7 @@ def si_unit_quantity(prefix: str | None, name: str) -> pint.Quantity:
         except KeyError as exc:
             raise UnitDefinitionError(f"unknown IfcSIPrefix {prefix!r}") from exc
         factor = p ** (power or 1)
-    return Q_(factor, unit).to_base_units() if name != "GRAM" else Q_(factor * 1e-3, "kg")
+    return Q_(factor, unit).to_base_units() if name != "GRAM" else Q_(factor * 1e-3, "kg")   # type: ignore[return-value]  # pint types a registry's quantities as its plain class
 
 
 #: conversion-based and derived units defined through one another, at most (a real model nests
@@ -235,7 +238,7 @@ def unit_quantity(unit: Any, _within: tuple[int, ...] = ()) -> pint.Quantity:
         result = Q_(1.0, "")
         for el in unit.Elements or ():
             result = result * unit_quantity(el.Unit, _within) ** int(el.Exponent)
-        return result.to_base_units()
+        return result.to_base_units()   # type: ignore[return-value]  # pint types a registry's quantities as its plain class
     if cls == "IfcContextDependentUnit":
         raise UnitDefinitionError(
             f"context-dependent unit #{unit.id()} {unit.Name!r} has no defined size"

@@ -127,7 +127,7 @@ def build_index(path: str | os.PathLike[str], model: Any = None, *, property_set
 
     ``property_sets=False`` leaves ``psets_of`` empty: the caller walks those relationships
     elsewhere (``property_sets_in``, in a forked process at the same time)."""
-    log, fds = "", ()
+    log, fds = "", tuple[int, ...]()
     if model is None:
         model, log, fds = _open(path)
     schema = _schema_of(model)

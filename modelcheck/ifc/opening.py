@@ -10,7 +10,7 @@ import tempfile
 import zipfile
 import zlib
 from pathlib import Path
-from typing import Any
+from typing import IO, Any
 
 import ifcopenshell
 
@@ -107,7 +107,8 @@ def _open(path: str | os.PathLike[str]) -> tuple[Any, str, tuple[int, ...]]:
     ifcopenshell.get_log()  # drop what earlier opens in this process left in the parser's log
     copy = _copy_without_bom(p, member if zipped else None) if bom else None
     try:
-        model = ifcopenshell.open(str(copy or p), lazy=True)
+        # ifcopenshell's type hints lack the lazy keyword that its open() takes
+        model = ifcopenshell.open(str(copy or p), lazy=True)   # type: ignore[call-overload]
         fds = _fds_on(copy or p)
     except (ifcopenshell.Error, RuntimeError, OSError, ValueError, UnicodeDecodeError, LookupError) as exc:
         text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
@@ -150,6 +151,7 @@ def _copy_without_bom(p: Path, member: str | None = None) -> Path:
     try:
         with contextlib.ExitStack() as stack:
             dst = stack.enter_context(os.fdopen(fd, "wb"))
+            src: IO[bytes]
             if member is None:
                 src = stack.enter_context(open(p, "rb"))
             else:

@@ -441,7 +441,8 @@ def _crossing_pairs(p: Any) -> tuple[Any, Any]:
     side_a = d[:, None, 0] * rel_a[..., 1] - d[:, None, 1] * rel_a[..., 0]
     side_b = d[:, None, 0] * rel_b[..., 1] - d[:, None, 1] * rel_b[..., 0]
     straddles = side_a * side_b < 0
-    return np.nonzero(straddles & straddles.T)
+    i, j = np.nonzero(straddles & straddles.T)
+    return i, j
 
 
 def rounded_polygon(corners: Sequence[tuple[float, float, float]]) -> list[Segment]:

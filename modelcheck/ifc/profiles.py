@@ -825,7 +825,7 @@ def center_line(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
             k_out, k_in = (r + w) / r, (r - w) / r
             outer = Arc(s.center, _mul(s.u, k_out), _mul(s.v, k_out), s.t0, s.sweep)
             inner = Arc(s.center, _mul(s.u, k_in), _mul(s.v, k_in), s.t0 + s.sweep, -s.sweep)
-            band = [outer, Line(outer.end, inner.start), inner, Line(inner.end, outer.start)]
+            band: list[Line | Arc] = [outer, Line(outer.end, inner.start), inner, Line(inner.end, outer.start)]
             total = total + loop_moments(band).positive()
     return _section(p, total, Shape.ARBITRARY, {"t": t}, placed=False)
 

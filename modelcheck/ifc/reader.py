@@ -277,7 +277,7 @@ class _Reader:
         lf = self.lf
         if cls in ("IfcExtrudedAreaSolid", "IfcExtrudedAreaSolidTapered"):
             swept, depth_value = item.get_argument(0), item.get_argument(3)  # SweptArea, Depth
-            sec = (self.profile(swept, scale) if swept is not None
+            sec: Section | str = (self.profile(swept, scale) if swept is not None
                    else f"{cls} #{item.id()} has no SweptArea (a null or dangling reference)")
             length = None
             if lf is not None and depth_value is not None:
@@ -290,7 +290,7 @@ class _Reader:
             ri = float(item.InnerRadius or 0.0) * lf * scale
             src = f"IfcSweptDiskSolid #{item.id()}"
             if not (r > 0 and 0 <= ri < r):
-                sec: Section | str = f"{src}: radius {item.Radius} / inner radius {item.InnerRadius} is not a section"
+                sec = f"{src}: radius {item.Radius} / inner radius {item.InnerRadius} is not a section"
             else:
                 area = math.pi * (r * r - ri * ri)
                 rg = math.sqrt(r * r + ri * ri) / 2.0  # circle / annulus, I = π(R⁴−r⁴)/4
@@ -428,6 +428,8 @@ class _Reader:
         higher-ranked set) is kept. A value given without a usable unit goes into ``rejected``
         (what was found and why it is not used); ``found`` keeps each value as the file writes it."""
         cls = mp.is_a()
+        q: str | None
+        v: SIValue | None
         if cls in ("IfcMechanicalMaterialProperties", "IfcMechanicalSteelMaterialProperties",
                    "IfcGeneralMaterialProperties"):
             for attr, (q, measure) in self._IFC2X3_ATTRS.items():
@@ -551,7 +553,10 @@ class _Reader:
         candidates: list[Section] = []
         problems: list[str] = []
         if own_sec is not None:
-            (candidates if isinstance(own_sec, Section) else problems).append(own_sec)
+            if isinstance(own_sec, Section):
+                candidates.append(own_sec)
+            else:
+                problems.append(own_sec)
         elif type_cand is not None:
             candidates.append(type_cand)
         elif type_problem is not None:
@@ -787,7 +792,8 @@ class _Reader:
             import ifcopenshell.ifcopenshell_wrapper as w
 
             decl = w.schema_by_name(self.idx.file.schema_identifier).declaration_by_name(cls)
-            names = [a.name() for a in decl.all_attributes()]
+            # an entity class's declaration is an entity (ifcopenshell's hints name only its base class)
+            names = [a.name() for a in decl.all_attributes()]   # type: ignore[attr-defined]
             hit = self._pos_cache[cls] = (len(names) > 7 and names[7] == "Tag",
                                           names.index("PredefinedType") if "PredefinedType" in names else None)
         return hit

@@ -249,14 +249,15 @@ class _Context:
             return
         for item in items:
             keys = self._keys(item)
-            axis: tuple[float, float, float] | None = _NO_AXIS
+            axis: tuple[float, float, float] = _NO_AXIS
             how = ""
             if is_global:
-                axis, how = self._global_axis(item)
-                if axis is None:
+                found, how = self._global_axis(item)
+                if found is None:
                     self.log.add(f"GLOBAL_COORDS result on {item.is_a()} #{item.id()}, whose axis cannot be "
                                  f"found ({how}): not projected, not used", rid, _RESULTS)
                     continue
+                axis = found
             elif any(kind == 1 for kind, *_ in entries):
                 # end forces flagged local: the axis lets them be read in global axes too, to test the flag
                 axis = self._global_axis(item)[0] or _NO_AXIS

@@ -456,12 +456,17 @@ def _repeated_column(rec: Sequence[Any]) -> tuple[str, str, str] | None:
     return None
 
 
+def _header_name(cell: str) -> str:
+    """The name part of a header cell (without its unit), or the whole cell."""
+    m = _HEADER_RE.match(cell)
+    return m.group("name") if m is not None else cell
+
+
 def _header_problem(records: Sequence[Sequence[Any]], name: str) -> LoadTableError:
     for i, rec in enumerate(records[:_HEADER_SEARCH_ROWS]):
         cells = [_cell_text(c) for c in rec if _cell_text(c)]
         if cells:
-            names = {re.sub(r"[\s_\-.]", "", (_HEADER_RE.match(c) or re.match(r"(?P<name>.*)", c))
-                            .group("name").lower()) for c in cells}
+            names = {re.sub(r"[\s_\-.]", "", _header_name(c).lower()) for c in cells}
             wanted = []
             if not names & {"globalid", "tag"}:
                 wanted.append("a key column 'global_id' or 'tag'")

@@ -74,7 +74,7 @@ class MemberData:
             if column == "thread":
                 self._thread()
             elif column in self.members.columns:
-                self._texts[column] = self.members[column].to_numpy(dtype=object, na_value=None)
+                self._texts[column] = self.members[column].to_numpy(dtype=object, na_value=None)   # type: ignore[call-overload]  # pandas-stubs leave out na_value=None, which pandas takes
             else:
                 self._texts[column] = np.full(self.n, None, dtype=object)
         return self._texts[column]
@@ -187,7 +187,7 @@ def _case_ranks(cases: np.ndarray) -> np.ndarray:
 def _objects(frame: pd.DataFrame, column: str) -> np.ndarray:
     if column not in frame.columns:
         return np.full(len(frame), None, dtype=object)
-    return frame[column].to_numpy(dtype=object, na_value=None)
+    return frame[column].to_numpy(dtype=object, na_value=None)   # type: ignore[call-overload]  # pandas-stubs leave out na_value=None, which pandas takes
 
 
 def member_key(models: Any, gids: Any) -> np.ndarray:
@@ -602,8 +602,8 @@ def check_rows(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame | N
     member = cat["member"]
     model_code = pd.factorize(pd.Series(data.text("model"), dtype=object).fillna(""), sort=True)[0]
     gid_code = pd.factorize(pd.Series(data.text("global_id"), dtype=object).fillna(""), sort=True)[0]
-    order = np.lexsort((cat["rank"], cat["check_order"], gid_code[member], model_code[member]))
-    return CheckRows(data, tuple(ruleset.checks), **{k: v[order] for k, v in cat.items()})
+    ranked = np.lexsort((cat["rank"], cat["check_order"], gid_code[member], model_code[member]))
+    return CheckRows(data, tuple(ruleset.checks), **{k: v[ranked] for k, v in cat.items()})
 
 
 def evaluate_expression(ruleset: RuleSet, expression: str | Expression, members: pd.DataFrame,

@@ -37,7 +37,7 @@ import warnings
 from collections.abc import Callable, Collection, Mapping
 from dataclasses import dataclass, field
 from types import MappingProxyType
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
@@ -45,6 +45,9 @@ import pint
 
 from modelcheck.common.errors import RuleSetError
 from modelcheck.common.units import Q_, QuantityTextError, parse_unit, ureg
+
+if TYPE_CHECKING:
+    from pint.facets.plain import PlainUnit
 
 MAX_LENGTH = 2000          # characters of one expression
 MAX_DEPTH = 32             # nesting depth of the syntax tree
@@ -198,7 +201,8 @@ def checked_quantity(magnitude: float, unit: pint.Unit, text: str) -> pint.Quant
     """A finite scalar quantity with a multiplicative unit of small powers, or ExpressionError."""
     if not math.isfinite(magnitude):
         raise ExpressionError(f"{text!r} is not a finite number")
-    if any(abs(p) > MAX_EXPONENT for p in dict(unit._units).values()):
+    # pint types a unit's powers as objects: they are numbers
+    if any(abs(p) > MAX_EXPONENT for p in dict(unit._units).values()):   # type: ignore[operator]
         raise ExpressionError(f"{text!r}: unit powers are limited to ±{MAX_EXPONENT:g}")
     q = Q_(np.float64(magnitude), unit)
     if not q._is_multiplicative:
@@ -269,7 +273,7 @@ def _literal_number(node: ast.AST) -> float | None:
     while isinstance(node, ast.UnaryOp) and isinstance(node.op, (ast.USub, ast.UAdd)):
         sign = -sign if isinstance(node.op, ast.USub) else sign
         node = node.operand
-    if isinstance(node, ast.Constant) and type(node.value) in (int, float):
+    if isinstance(node, ast.Constant) and isinstance(node.value, int | float) and not isinstance(node.value, bool):
         return sign * float(node.value)
     return None
 
@@ -292,7 +296,7 @@ def _check_tree(tree: ast.Expression) -> tuple[set[str], set[str]]:
             v = node.value
             if type(v) is bool:
                 pass
-            elif type(v) in (int, float):
+            elif isinstance(v, int | float):
                 if not math.isfinite(float(v)):
                     raise ExpressionError(f"{v!r} is not a finite number")
             elif type(v) is str:
@@ -513,7 +517,7 @@ def _is_zero_constant(q: pint.Quantity) -> bool:
     return q.dimensionless and np.ndim(q.magnitude) == 0 and float(q.magnitude) == 0.0
 
 
-def _same_dimension(a: pint.Quantity, b: pint.Quantity, what: str) -> tuple[Any, Any, pint.Unit]:
+def _same_dimension(a: pint.Quantity, b: pint.Quantity, what: str) -> tuple[Any, Any, PlainUnit]:
     """Magnitudes of a and b in a's unit; a plain constant 0 takes the other's unit."""
     if _is_zero_constant(a) and not b.dimensionless:
         return np.zeros_like(b.magnitude, dtype=float) if np.ndim(b.magnitude) else 0.0, b.magnitude, b.units
@@ -555,7 +559,7 @@ def _where(c: Cond, a: Value, b: Value, what: str) -> Value:
         return Cond(value=value & known, known=known)
     if isinstance(a, Text) and isinstance(b, Text):
         picked = np.where(c.value, np.asarray(a.values, dtype=object), np.asarray(b.values, dtype=object))
-        picked = np.where(c.known, picked, None)
+        picked = np.where(c.known, picked, None)   # type: ignore[call-overload]  # numpy's hints take no None; numpy does
         return Text(picked if np.ndim(picked) else picked.item())
     raise ExpressionError(f"{what}: both values must be of one kind, not {describe(a)} and {describe(b)}")
 
@@ -575,7 +579,7 @@ class _Evaluator:
         v = node.value
         if type(v) is bool:
             return Cond(np.bool_(v), np.bool_(True))
-        if type(v) in (int, float):
+        if isinstance(v, int | float):
             return Q_(np.float64(v), "")
         if type(v) is str:
             return Text(v)
@@ -594,7 +598,7 @@ class _Evaluator:
             c = _cond(v, "'not'")
             return Cond(value=~c.value & c.known, known=c.known)
         q = _number(v, "a sign")
-        return -q if isinstance(node.op, ast.USub) else q
+        return -q if isinstance(node.op, ast.USub) else q   # type: ignore[return-value]  # pint types a registry's quantities as its plain class
 
     def _BinOp(self, node: ast.BinOp) -> Value:
         symbol = {ast.Add: "+", ast.Sub: "-", ast.Mult: "*", ast.Div: "/", ast.Pow: "**"}[type(node.op)]
@@ -654,6 +658,7 @@ class _Evaluator:
         if not isinstance(left, Text):
             raise ExpressionError(f"'in' tests text against a list of texts, not {describe(left)}")
         vals = left.values
+        hit: np.ndarray | np.bool_
         if np.ndim(vals):
             hit = np.isin(np.asarray(vals, dtype=object), np.asarray(items, dtype=object))
         else:
@@ -667,9 +672,8 @@ class _Evaluator:
         if isinstance(a, Text) and isinstance(b, Text):
             if sym not in ("==", "!="):
                 raise ExpressionError(f"texts can be compared with == and != only, not {sym}")
-            eq = np.asarray(np.asarray(a.values, dtype=object) == np.asarray(b.values, dtype=object),
-                            dtype=bool)
-            eq = eq if eq.ndim else np.bool_(eq[()])
+            same = np.asarray(np.asarray(a.values, dtype=object) == np.asarray(b.values, dtype=object), dtype=bool)
+            eq: np.ndarray | np.bool_ = same if same.ndim else np.bool_(same[()])
             value = eq if sym == "==" else ~eq
             return Cond(value=value, known=np.ones_like(value, dtype=bool) if np.ndim(value) else np.bool_(True))
         if not (isinstance(a, pint.Quantity) and isinstance(b, pint.Quantity)):
@@ -686,7 +690,7 @@ class _Evaluator:
         return _where(c, self.eval(node.body), self.eval(node.orelse), "'if ... else'")
 
     def _Call(self, node: ast.Call) -> Value:
-        name = node.func.id  # type: ignore[attr-defined]  (checked at parse time)
+        name = node.func.id  # type: ignore[attr-defined]  # checked at parse time
         if name == "known":
             v = self.eval(node.args[0])
             if isinstance(v, pint.Quantity):
@@ -739,8 +743,8 @@ def glob_match(values: Any, patterns: tuple[str, ...]) -> Cond:
 
     regex = re.compile("|".join(f"(?:{fnmatch.translate(p)})" for p in patterns), re.IGNORECASE | re.DOTALL)
     if not np.ndim(values):
-        hit = np.bool_(values is not None and regex.match(str(values)) is not None)
-        return Cond(value=hit, known=np.bool_(True))
+        one = np.bool_(values is not None and regex.match(str(values)) is not None)
+        return Cond(value=one, known=np.bool_(True))
     arr = np.asarray(values, dtype=object)
     # each distinct value matched once; a missing one (code -1) takes the False appended last
     codes, uniq = pd.factorize(arr.ravel(), use_na_sentinel=True)

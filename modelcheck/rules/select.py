@@ -86,7 +86,7 @@ def is_ifc_subclass(cls: str, ancestor: str) -> bool:
 def _column(members: pd.DataFrame, column: str) -> np.ndarray:
     if column not in members.columns:
         return np.full(len(members), None, dtype=object)
-    return members[column].to_numpy(dtype=object, na_value=None)
+    return members[column].to_numpy(dtype=object, na_value=None)   # type: ignore[call-overload]  # pandas-stubs leave out na_value=None, which pandas takes
 
 
 def _label(key: str) -> str:
@@ -171,10 +171,10 @@ class Selector:
                 for column in SELECTOR_KEYS[key]:
                     found = cache.get((column, patterns))
                     if found is None:
-                        values = cache.get(column)
-                        if values is None:
-                            values = cache[column] = _column(members, column)
-                        found = cache[(column, patterns)] = np.asarray(glob_match(values, patterns).value, dtype=bool)
+                        column_values = cache.get(column)
+                        if column_values is None:
+                            column_values = cache[column] = _column(members, column)
+                        found = cache[(column, patterns)] = np.asarray(glob_match(column_values, patterns).value, dtype=bool)
                     hit |= found
             result &= hit
         if self.exclude is not None and self.exclude.keys:
