@@ -24,7 +24,10 @@ import sys
 from collections import deque
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any, cast
+
+if TYPE_CHECKING:
+    from multiprocessing.connection import Connection
 
 
 class Terminated(BaseException):
@@ -139,7 +142,8 @@ def run_each(fn: Callable[..., Any], items: Sequence[Sequence[Any]], jobs: int,
         for _ in range(min(max(1, jobs), len(items))):
             start()
         while busy:
-            for conn in wait(list(busy)):
+            for ready in wait(list(busy)):
+                conn = cast("Connection", ready)   # wait gives back the connections it was given
                 proc, i = busy.pop(conn)
                 try:
                     kind, value = conn.recv()
