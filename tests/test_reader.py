@@ -8,7 +8,7 @@ import pytest
 
 from modelcheck.common.units import Q_
 from modelcheck.ifc.index import build_index
-from modelcheck.ifc.reader import read_members
+from modelcheck.ifc.reader import MemberTable, read_members
 from modelcheck.testing.author import ModelBuilder
 
 
@@ -104,6 +104,15 @@ def test_implausible_modulus_is_doubted_not_used(tmp_model):
     assert math.isnan(m["E"])
     assert m["E_source"].startswith("doubted")
     assert any("plausible" in w for w in m["warnings"])
+
+
+def test_the_member_table_and_its_warnings_are_one_named_value(tmp_model):
+    """The model-level warnings travel beside the table as fields, not in ``DataFrame.attrs``
+    (which pandas does not keep through every operation; common practice: no metadata there)."""
+    table = read_members(build_index(str(tmp_model(_rod_model("mm")))))
+    assert isinstance(table, MemberTable)
+    assert table.frame["name"].tolist() == ["rod"] and table.frame.attrs == {}
+    assert isinstance(table.model_warnings, tuple) and table.parse_problem_count == 0
 
 
 def test_missing_material_and_section_are_missing_not_guessed(tmp_model):
