@@ -31,6 +31,7 @@ from __future__ import annotations
 import os
 import signal
 import sys
+from collections.abc import Sequence
 from dataclasses import dataclass, field, replace
 from typing import TYPE_CHECKING, Any
 
@@ -45,8 +46,10 @@ from modelcheck.timing import stage
 
 if TYPE_CHECKING:
     from modelcheck.ifc.index import ModelIndex
+    from modelcheck.loads.join import ForceReport
     from modelcheck.loads.sources import SourceForces
     from modelcheck.loads.tables import LoadTable
+    from modelcheck.pipeline import Coverage
 
 #: below this many members a model is checked in one process (forking costs more than it saves)
 MIN_MEMBERS_PER_PART = 2_000
@@ -91,14 +94,14 @@ class _PartResult:
     members: pd.DataFrame | None
     results: pd.DataFrame | None
     json_rows: bytes | int | None   # a part's rows: the descriptor of its memory file
-    report: Any
-    sources: tuple[Any, ...]       # what each force source read in the part, less its forces
+    report: ForceReport | None
+    sources: tuple[SourceForces, ...]   # what each force source read in the part, less its forces
     new_log: list[str]
     warnings: list[str]            # reader and unit warnings (parse problems are merged from new_log)
     matched_rows: set[str]
     member_count: int
     excluded: dict[str, list[str]] = field(default_factory=dict)   # left out by the rule set, by reason
-    coverage: Any = None           # the part's Coverage
+    coverage: Coverage | None = None   # the part's
     member_warnings: dict[str, list[str]] = field(default_factory=dict)   # GlobalId -> the member's own
 
 
@@ -355,7 +358,7 @@ def memory_file(name: str) -> int:
         return os.dup(fh.fileno())
 
 
-def release_rows(chunks: list[bytes | int] | None) -> None:
+def release_rows(chunks: Sequence[bytes | int | None] | None) -> None:
     """Close the row files among encoded row chunks (once the report is written): their memory
     is given back."""
     for chunk in chunks or ():
@@ -446,7 +449,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
         _SHARED = None
     with stage("merge parts"):
         checked = _merge(data, idx, outs, whole, ruleset_ref)
-    kept = checked.json_rows or []
+    kept = checked.json_rows if isinstance(checked.json_rows, list) else []
     release_rows([fd for fd in row_files.values() if fd not in kept])   # a part that stopped early
     return checked
 
@@ -490,9 +493,9 @@ def _merge(data: ModelData, idx: ModelIndex, outs: list[_PartResult], whole: dic
         release_rows([o.json_rows for o in outs if isinstance(o.json_rows, int)])
         data.error = errors[0]
         return CheckedModel(data)
-    members = concat_rows([o.members for o in outs])
+    members = concat_rows([o.members for o in outs if o.members is not None])   # every part's (no error)
     members = members.sort_values("_pos", kind="stable").drop(columns="_pos").reset_index(drop=True)
-    results = concat_rows([o.results for o in outs])
+    results = concat_rows([o.results for o in outs if o.results is not None])
     data.members = members
     data.member_count = sum(o.member_count for o in outs)
     data.member_warnings = merge_member_warnings([o.member_warnings for o in outs])
@@ -508,7 +511,8 @@ def _merge(data: ModelData, idx: ModelIndex, outs: list[_PartResult], whole: dic
                                               load_ruleset(ruleset_ref).select)
     data.warnings += data.exclusion_messages
     data.matched_rows = set().union(*(o.matched_rows for o in outs))
-    data.coverage = sum((o.coverage for o in outs[1:]), outs[0].coverage)
+    coverages = [o.coverage for o in outs if o.coverage is not None]   # every part's (no error)
+    data.coverage = sum(coverages[1:], coverages[0])
     reports = [o.report for o in outs if o.report is not None]
     if reports:
         ambiguous = list(dict.fromkeys(a for r in reports for a in r.ambiguous))

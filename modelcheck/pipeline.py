@@ -87,8 +87,7 @@ def expand_paths(items: list[str]) -> list[str]:
         if not utf8_name(p):
             raise UsageError(f"{p}: the file name is not UTF-8 text (reports are UTF-8 and name every model); "
                              "rename the file")
-    seen: set[str] = set()
-    return [p for p in out if not (p in seen or seen.add(p))]
+    return list(dict.fromkeys(out))   # the first of each, in order
 
 
 def read_model(path: str, forces: ForceOptions | None = None, *, validate: bool = False) -> ModelData:
@@ -163,13 +162,15 @@ def attach_forces(data: ModelData, idx: ModelIndex, opts: ForceOptions, *, given
     from modelcheck.loads.sources import ranked, read_sources, rejected_by, source_messages
     from modelcheck.timing import stage
 
+    members = data.members
+    assert members is not None, "attach_forces: the members are read first"
     with stage("forces from sources"):
-        results = read_sources(idx, data.members, opts, given)
+        results = read_sources(idx, members, opts, given)
     with stage("join forces"):   # a part's messages are merged with the others' and listed by the caller
-        forces, report = join_forces(data.members, ranked(results), messages=[] if part else source_messages(results),
+        forces, report = join_forces(members, ranked(results), messages=[] if part else source_messages(results),
                                      shared_tags=shared_tags)
     data.forces = forces
-    _reject_forces(data.members, forces, rejected_by(results))
+    _reject_forces(members, forces, rejected_by(results))
     unmatched_here = {u.source for u in report.unmatched}
     data.matched_rows = {s for r in results if r.keyed for s in r.forces["source"] if s not in unmatched_here}
     data.force_report = report.to_dict(unmatched=False)  # unmatched: judged over all models
@@ -237,8 +238,8 @@ def validate_model(idx: ModelIndex) -> list[str]:
 
     log = ifcopenshell.validate.json_logger()
     ifcopenshell.validate.validate(idx.file, log)
-    found = [(st.get("instance"), st.get("attribute"), " ".join(str(st.get("message", "")).split()))
-             for st in log.statements]
+    found: list[tuple[Any, Any, str]] = [(st.get("instance"), st.get("attribute"),
+                                          " ".join(str(st.get("message", "")).split())) for st in log.statements]
     lines = _entity_lines(idx.path, {inst.id() for inst, _, _ in found if hasattr(inst, "id")})
     out = []
     for inst, attr, msg in found:
@@ -460,7 +461,9 @@ def _slim_rows(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame,
         sel = np.flatnonzero(np.isin(rows.member, rows.member[failing]))   # every row of a failing member
         found = suggest(ruleset, members, forces, rows.frame(sel))["suggestion"].to_numpy(dtype=object)
         suggestions = {int(sel[j]): found[j] for j in np.flatnonzero(pd.notna(found)).tolist()}
-    return (pd.Categorical.from_codes(rows.status, categories=list(STATUS_RANK)), rows.member.astype(np.int64),
+    # pandas-stubs want the codes as a sequence of ints; an int8 array is what pandas takes best
+    return (pd.Categorical.from_codes(rows.status, categories=list(STATUS_RANK)),   # type: ignore[call-overload]
+            rows.member.astype(np.int64),
             encode_check_rows(rows, suggestions, sink))
 
 
@@ -614,8 +617,8 @@ def run_check(paths: list[str], ruleset: RuleSet, forces: ForceOptions, *, jobs:
                                                f"without a result ({a.why}); the model was not checked"))
                         if isinstance(a, Died) else a for p, a in zip(paths, answers, strict=True)]
         finally:
-            used = {c.json_rows for c in checked if isinstance(c.json_rows, int)}
-            release_rows([f for f in files if f is not None and f not in used])
+            in_use = {c.json_rows for c in checked if isinstance(c.json_rows, int)}
+            release_rows([f for f in files if f is not None and f not in in_use])
     else:
         # one model and several processes: the model is shared out among them
         from modelcheck.parallel import release_rows, row_file
@@ -648,7 +651,7 @@ def run_check(paths: list[str], ruleset: RuleSet, forces: ForceOptions, *, jobs:
     for c in checked:  # the heavy member table is not needed past this point
         if c.data.members is not None:
             c.data.members = c.data.members.iloc[0:0]
-    used = set().union(*(c.data.matched_rows for c in checked)) if checked else set()
+    used: set[str] = set().union(*(c.data.matched_rows for c in checked))
     unmatched = unmatched_rows(forces.tables, used)
     rows = None
     if encode_json and all(c.json_rows is not None or c.results is None for c in checked):

@@ -26,13 +26,14 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Any, Protocol
+from typing import TYPE_CHECKING, Protocol
 
 import pandas as pd
 
 from modelcheck.loads.messages import MessageLog
 
 if TYPE_CHECKING:
+    from modelcheck.ifc.index import ModelIndex
     from modelcheck.loads.tables import LoadTable
 
 #: the columns of a keyed source's rows (a load table's, as ``read_load_table`` gives them)
@@ -90,7 +91,7 @@ class ForceSource(Protocol):
         """Read once over a whole model shared out among processes (and not in each part)."""
         ...
 
-    def read(self, idx: Any, members: pd.DataFrame, options: ForceOptions) -> SourceForces:
+    def read(self, idx: ModelIndex, members: pd.DataFrame, options: ForceOptions) -> SourceForces:
         """The forces of ``members`` (the member table of the model opened as ``idx``; when
         ``whole_model``, possibly only its ``model`` and ``global_id`` columns)."""
         ...
@@ -104,7 +105,7 @@ class LoadTables:
     precedence: int = 10
     whole_model: bool = False
 
-    def read(self, idx: Any, members: pd.DataFrame, options: ForceOptions) -> SourceForces:
+    def read(self, idx: ModelIndex, members: pd.DataFrame, options: ForceOptions) -> SourceForces:
         notes: list[str] = []
         frames = []
         for t in options.tables:
@@ -125,7 +126,7 @@ class AnalysisResults:
     precedence: int = 20
     whole_model: bool = True
 
-    def read(self, idx: Any, members: pd.DataFrame, options: ForceOptions) -> SourceForces:
+    def read(self, idx: ModelIndex, members: pd.DataFrame, options: ForceOptions) -> SourceForces:
         from modelcheck.common.table import empty_forces
 
         if not options.analysis:
@@ -144,7 +145,7 @@ class ModelProperty:
     precedence: int = 30
     whole_model: bool = False
 
-    def read(self, idx: Any, members: pd.DataFrame, options: ForceOptions) -> SourceForces:
+    def read(self, idx: ModelIndex, members: pd.DataFrame, options: ForceOptions) -> SourceForces:
         from modelcheck.common.table import empty_forces
 
         log = MessageLog(idx.path)
@@ -164,7 +165,7 @@ FORCE_SOURCES: tuple[ForceSource, ...] = (
 )
 
 
-def read_sources(idx: Any, members: pd.DataFrame, options: ForceOptions,
+def read_sources(idx: ModelIndex, members: pd.DataFrame, options: ForceOptions,
                  given: Mapping[str, SourceForces] | None = None) -> list[SourceForces]:
     """What every source gives ``members``, in the order of :data:`FORCE_SOURCES`; a source
     named in ``given`` (read before, over the whole model) is not read again."""
@@ -172,7 +173,7 @@ def read_sources(idx: Any, members: pd.DataFrame, options: ForceOptions,
     return [given[s.name] if s.name in given else s.read(idx, members, options) for s in FORCE_SOURCES]
 
 
-def read_whole_model(idx: Any, members: pd.DataFrame, options: ForceOptions) -> dict[str, SourceForces]:
+def read_whole_model(idx: ModelIndex, members: pd.DataFrame, options: ForceOptions) -> dict[str, SourceForces]:
     """What every ``whole_model`` source gives the model opened as ``idx`` (``members``: at
     least the ``model`` and ``global_id`` of each of its members), by name."""
     return {s.name: s.read(idx, members, options) for s in FORCE_SOURCES if s.whole_model}
