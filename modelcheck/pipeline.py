@@ -571,8 +571,10 @@ def coverage_of(ruleset: RuleSet, members: pd.DataFrame, results: pd.DataFrame) 
     return Coverage(len(members), int(by["pass"]), int(by["fail"]), int(by["unchecked"]), excluded)
 
 
-@dataclass
+@dataclass(frozen=True)
 class CheckRun:
+    """The whole run: what every reporter takes."""
+
     ruleset: RuleSet
     models: list[ModelData]
     results: pd.DataFrame

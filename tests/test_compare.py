@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import json
 import math
+from dataclasses import replace
 
 import pytest
 from rich.console import Console
@@ -20,9 +21,8 @@ def doc(run) -> dict:
 
 
 def drop_member(run, gid):
-    run.results = run.results[run.results["global_id"] != gid].reset_index(drop=True)
-    run.members = run.members[run.members["global_id"] != gid].reset_index(drop=True)
-    return run
+    return replace(run, results=run.results[run.results["global_id"] != gid].reset_index(drop=True),
+                   members=run.members[run.members["global_id"] != gid].reset_index(drop=True))
 
 
 def keys(items):
@@ -86,8 +86,7 @@ def test_unreadable_model_now_is_not_read_as_all_members_removed():
     base = doc(make_run(broken=None))
     run = make_run(broken=None)
     run.models[0].error = "models/tower_A.ifc: cannot be parsed as IFC"
-    run.results = run.results.iloc[0:0]
-    run.members = run.members.iloc[0:0]
+    run = replace(run, results=run.results.iloc[0:0], members=run.members.iloc[0:0])
     cmp = compare(doc(run), base)
     assert cmp["models_unreadable"] == ["tower_A.ifc"]
     assert cmp["members_removed"] == [] and cmp["resolved"] == []

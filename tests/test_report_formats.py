@@ -12,6 +12,7 @@ import math
 import uuid
 import xml.etree.ElementTree as ET
 import zipfile
+from dataclasses import replace
 from html.parser import HTMLParser
 from pathlib import Path
 
@@ -64,7 +65,7 @@ def test_csv_is_byte_identical_for_the_same_run(tmp_path):
 
 def test_csv_of_a_run_without_results_has_the_header_only(tmp_path):
     run = make_run()
-    run.results = run.results.iloc[0:0]
+    run = replace(run, results=run.results.iloc[0:0])
     p = tmp_path / "r.csv"
     write_csv(run, p)
     df = pd.read_csv(p)
@@ -158,7 +159,7 @@ def test_junit_under_fail_on_new_fails_only_what_the_exit_code_counts(tmp_path):
     lc1 = (res["global_id"] == GID_B) & (res["load_case"] == "LC1")
     # ratio = demand / capacity (definition): 126/120 = 1.05 fails, below LC2's 1.25
     res.loc[lc1, ["demand", "ratio", "status"]] = [126.0, 126.0 / 120.0, "fail"]
-    now_run.results = res
+    now_run = replace(now_run, results=res)
     cmp = compare(check_document(now_run), check_document(base_run))
     assert new_problems(cmp) == 2
     root = _junit(tmp_path, now_run, only_new=cmp)
@@ -192,7 +193,7 @@ def test_junit_under_strict_fails_a_newly_unchecked_member(tmp_path):
     a = (res["global_id"] == GID_A) & (res["check"] == "slenderness")
     res.loc[a, ["demand", "capacity", "ratio", "status"]] = [math.nan, math.nan, math.nan, "unchecked"]
     res.loc[a, "missing"] = pd.Series([["r_min (profile)"]] * int(a.sum()), index=res.index[a])
-    now_run.results = res
+    now_run = replace(now_run, results=res)
     cmp = compare(check_document(now_run), check_document(base_run))
     for strict in (False, True):
         cases = _cases(_junit(tmp_path, now_run, only_new=cmp, strict=strict))
@@ -416,7 +417,7 @@ def test_the_html_tables_show_the_first_rows_and_count_the_rest(tmp_path, monkey
                         missing=["area (profile)"]) for i in range(5)]
     members = pd.DataFrame([member_row("m.ifc", g) for g in gids], columns=list(REPORT_MEMBER_COLUMNS))
     run = make_run()
-    run.results, run.members = results_frame(rows), members
+    run = replace(run, results=results_frame(rows), members=members)
     out = tmp_path / "r.html"
     write_html(run, out, now=NOW)
     text = out.read_text(encoding="utf-8")
@@ -435,7 +436,7 @@ def test_html_chart_draws_only_checked_members_and_counts_as_the_summary(tmp_pat
     extra = [result_row("models/tower_A.ifc", "0eeeeeeeeeeeeeeeeeeeeE", "axial_stress", "LC1", 12.0, 120.0),
              result_row("models/tower_A.ifc", "0eeeeeeeeeeeeeeeeeeeeE", "slenderness", None, None, None, unit="",
                         missing=["r_min (profile)"])]
-    run.results = results_frame(run.results.to_dict("records") + extra)
+    run = replace(run, results=results_frame(run.results.to_dict("records") + extra))
     _, parsed = _html(tmp_path, run)
     bars = [int(t.rsplit(": ", 1)[1]) for t in parsed.text if "–" in t and ": " in t and t.rsplit(": ", 1)[1].isdigit()]
     summary = next(r for r in parsed.cells if r and r[0] == "models/tower_A.ifc")
@@ -452,11 +453,11 @@ def test_html_failing_table_lists_clause_message_replacement_and_member_warnings
     b = (res["global_id"] == GID_B) & (res["load_case"] == "LC2")
     res["clause"] = "D2(a)"
     res["suggestion"] = [{"designation": "RD24", "ratio": 0.87} if x else None for x in b]
-    run.results = res
+    run = replace(run, results=res)
     members = run.members.copy()
     members["warnings"] = [[], ["inconsistent area: profile 314 mm², quantity 300 mm²", "second <warning>"],
                            [], []]
-    run.members = members
+    run = replace(run, members=members)
     _, parsed = _html(tmp_path, run)
     row = next(r for r in parsed.cells if r and r[0] == GID_B)
     assert row[6] == "axial_stressD2(a)" and row[9] == "1.25" and row[10] == "LC2"
