@@ -47,7 +47,7 @@ def test_the_reader_gives_exactly_the_vocabulary_columns(tmp_model):
               material=steel, length=2000.0)
     mb.member("IfcMember", name="brace", material=steel, length=2000.0,
               profile=mb.f.createIfcIShapeProfileDef("AREA", "I200", None, 100.0, 200.0, 5.6, 8.5, None))
-    members = read_members(build_index(str(tmp_model(mb))))
+    members = read_members(build_index(str(tmp_model(mb)))).frame
     assert list(members.columns) == table.member_columns()
     for q in quantities():
         if q.column is not None:
