@@ -12,7 +12,7 @@ from dataclasses import dataclass
 import pandas as pd
 
 from modelcheck.common.table import RESULT_COLUMNS
-from modelcheck.pipeline import REPORT_MEMBER_COLUMNS, CheckRun, ModelData
+from modelcheck.core.model import REPORT_MEMBER_COLUMNS, CheckRun, ModelData
 
 # IFC GlobalIds are 22 characters of the base-64 alphabet 0-9 A-Z a-z _ $ (IFC standard)
 GID_A = "0aaaaaaaaaaaaaaaaaaaaA"

@@ -12,10 +12,11 @@ from typing import Any
 import pytest
 
 from modelcheck.cli import main
+from modelcheck.core.check import check_model
+from modelcheck.core.model import ForceOptions
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
 from modelcheck.loads.analysis import forces_from_analysis
-from modelcheck.pipeline import ForceOptions, check_model
 from modelcheck.testing.author import ModelBuilder
 from modelcheck.testing.author_analysis import AnalysisWriter
 

@@ -89,7 +89,7 @@ def test_what_is_not_step_is_still_refused(capsys, tmp_path, data, fragment):
 
 def test_a_model_with_a_byte_order_mark_shared_out_gives_the_report_of_one_process(capsys, monkeypatch, tmp_path):
     """The copy the parser reads is deleted once opened; forked parts re-open it by its descriptor."""
-    import modelcheck.parallel as parallel
+    import modelcheck.run.split as parallel
     from benchmarks.make_model import build
 
     if not parallel.can_split():

@@ -297,7 +297,8 @@ def test_shear_lag_factor_from_the_model_and_a_bad_one_refused(tmp_path):
 
 
 def test_results_encoded_in_chunks_are_the_rows_encoded_at_once():
-    from modelcheck.pipeline import ForceOptions, check_model
+    from modelcheck.core.check import check_model
+    from modelcheck.core.model import ForceOptions
     from modelcheck.report.check_json import encode_results, encode_rows, result_dicts
 
     c = check_model(str(SAMPLES / "nettlebrook-hall.ifc"), "steel-asd-us",
@@ -308,7 +309,9 @@ def test_results_encoded_in_chunks_are_the_rows_encoded_at_once():
 def test_rows_written_to_a_file_in_blocks_are_the_rows_joined_at_once(tmp_path: Path, monkeypatch):
     """The JSON rows a part writes into its file, a few rows at a time (after rows already there),
     are the bytes joined in memory at once (the comparison: orjson's rows, via encode_rows)."""
-    from modelcheck.pipeline import ForceOptions, check_model, read_model
+    from modelcheck.core.check import check_model
+    from modelcheck.core.model import ForceOptions
+    from modelcheck.core.read import read_model
     from modelcheck.report import check_json
     from modelcheck.report.check_json import ROW_SEPARATOR, encode_rows, result_dicts
     from modelcheck.rules.engine import check_rows

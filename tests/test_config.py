@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import pytest
 
+from modelcheck.cli.config import KEYS, config_path, load_config
 from modelcheck.common.errors import UsageError
-from modelcheck.config import KEYS, config_path, load_config
 
 FULL = """
 models = ["models/", "extra/*.ifc"]

@@ -22,10 +22,11 @@ from rich.cells import cell_len
 from rich.console import Console
 
 from modelcheck.common.units import Q_
-from modelcheck.pipeline import ForceOptions, run_check
+from modelcheck.core.model import ForceOptions
 from modelcheck.report.console import DEFAULT_WIDTH, console_width, governing, render_check
 from modelcheck.rules.ruleset import load_ruleset
 from modelcheck.rules.select import Selector
+from modelcheck.run.runner import run_check
 from modelcheck.testing.author import ModelBuilder
 from tests.conftest import REPO
 

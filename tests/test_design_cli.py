@@ -15,9 +15,9 @@ from pathlib import Path
 
 import pytest
 
+from modelcheck.cli.size import add_size_parser, cmd_size, parse_force
 from modelcheck.common.errors import ModelcheckError, UsageError
 from modelcheck.common.units import Q_
-from modelcheck.design.cli_size import add_size_parser, cmd_size, parse_force
 from modelcheck.report.members import CAUTION
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -115,7 +115,7 @@ def test_bare_number_raises_usage_error() -> None:
 
 
 def test_shape_choices_of_the_command_line_are_the_sizing_shapes():
-    from modelcheck.design.cli_size import SHAPE_CHOICES
+    from modelcheck.cli.size import SHAPE_CHOICES
     from modelcheck.design.sizing import SHAPES
 
     assert SHAPE_CHOICES == SHAPES

@@ -158,7 +158,7 @@ def test_members_alike_are_rated_once_but_each_gets_its_own_row() -> None:
 def test_sample_models_are_all_rated_and_json_ready() -> None:
     from pathlib import Path
 
-    from modelcheck.pipeline import read_model
+    from modelcheck.core.read import read_model
 
     root = Path(__file__).resolve().parents[1] / "sample_models"
     for name, rules, units in (("canopy", "steel-asd-us", US), ("hall", "steel-ec3", SI),

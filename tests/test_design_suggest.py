@@ -154,8 +154,9 @@ def _replace(m: pd.DataFrame, gid: str, designation: str, family: str, ruleset: 
     ("canopy", "steel-asd-us"), ("hall", "steel-ec3"), ("hall", "hanger-rods"), ("pipebridge", "steel-ec3"),
 ])
 def test_every_suggestion_on_the_samples_passes_all_its_checks(name: str, rules: str, search: str) -> None:
+    from modelcheck.core.model import ForceOptions
+    from modelcheck.core.read import read_model
     from modelcheck.loads.tables import read_load_table
-    from modelcheck.pipeline import ForceOptions, read_model
 
     opts = ForceOptions(tables=(read_load_table(str(ROOT / "sample_models" / f"nettlebrook-{name}-forces.csv")),),
                         property=("MC_MemberForces", "AxialForce"))
@@ -200,9 +201,10 @@ def test_bisection_and_every_size_suggest_the_same(name: str, monkeypatch: pytes
     """In a family whose every check improves with size, the first size that passes (bisection) is
     the smallest that passes (every size tried): the same suggestion either way (common practice:
     area and radius of gyration grow along a bar or rod series)."""
+    from modelcheck.core.model import ForceOptions
+    from modelcheck.core.read import read_model
     from modelcheck.design import suggest as module
     from modelcheck.loads.tables import read_load_table
-    from modelcheck.pipeline import ForceOptions, read_model
 
     opts = ForceOptions(tables=(read_load_table(str(ROOT / "sample_models" / f"nettlebrook-{name}-forces.csv")),),
                         property=("MC_MemberForces", "AxialForce"))

@@ -11,9 +11,10 @@ import pandas as pd
 import pytest
 
 from modelcheck.common.errors import UsageError
-from modelcheck.distributed import run_on_cluster
+from modelcheck.core.check import check_model
+from modelcheck.core.model import ForceOptions
 from modelcheck.loads.tables import LoadTable
-from modelcheck.pipeline import ForceOptions, check_model
+from modelcheck.run.cluster import run_on_cluster
 from modelcheck.testing.author import ModelBuilder
 
 

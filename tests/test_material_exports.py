@@ -11,9 +11,10 @@ from typing import Any
 import pint
 import pytest
 
+from modelcheck.core.check import check_model
+from modelcheck.core.model import ForceOptions
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
-from modelcheck.pipeline import ForceOptions, check_model
 from modelcheck.testing.author import ModelBuilder
 
 UREG = pint.UnitRegistry()   # an independent registry as the conversion reference
@@ -259,7 +260,7 @@ def test_exclusions_read_the_same_when_the_model_is_shared_out(mixed_ifc2x3: Pat
                                                               monkeypatch: Any) -> None:
     import json
 
-    import modelcheck.parallel as parallel
+    import modelcheck.run.split as parallel
     from tests.corpus import run_inprocess
 
     monkeypatch.setattr(parallel, "MIN_MEMBERS_PER_PART", 2)

@@ -14,11 +14,13 @@ import pandas as pd
 import pytest
 
 from modelcheck.common.table import concat_rows, frame_of, text_column
+from modelcheck.core.model import ForceOptions
+from modelcheck.core.read import read_model
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
 from modelcheck.loads.tables import read_load_table
-from modelcheck.pipeline import ForceOptions, read_model, run_check
 from modelcheck.rules.ruleset import load_ruleset
+from modelcheck.run.runner import run_check
 from tests.conftest import SAMPLES
 from tests.test_command_matrix import lacking_model
 

@@ -1,4 +1,4 @@
-"""One model shared out to several processes (``modelcheck.parallel``) gives the report one process
+"""One model shared out to several processes (``modelcheck.run.split``) gives the report one process
 gives, byte for byte apart from the time stamp: a check's result must not depend on how many
 cores ran it (common practice for a batch tool; the contract in the README says so).
 
@@ -20,7 +20,7 @@ from typing import Any
 import ifcopenshell
 import pytest
 
-import modelcheck.parallel as parallel
+import modelcheck.run.split as parallel
 from benchmarks.make_model import build
 from tests.corpus import run_inprocess
 
@@ -198,7 +198,8 @@ def test_a_table_helper_that_dies_is_one_clear_line(tmp_path, capsys, monkeypatc
 
 def test_a_check_stopped_before_its_tables_are_used_leaves_no_helper_behind(capsys, monkeypatch, shared_model):
     """The helper would otherwise wait on its full pipe for as long as the caller lives."""
-    import modelcheck.pipeline as pipeline
+    import modelcheck.run.runner as runner
+    from modelcheck.common.errors import ModelcheckError
 
     model, table, _ = shared_model
     helpers: list[parallel.TablesReadAhead] = []
@@ -209,10 +210,10 @@ def test_a_check_stopped_before_its_tables_are_used_leaves_no_helper_behind(caps
         helpers.append(self)
 
     def stopped(*args: Any, **kwargs: Any) -> Any:
-        raise pipeline.ModelcheckError("stopped before the tables were used")
+        raise ModelcheckError("stopped before the tables were used")
 
     monkeypatch.setattr(parallel.TablesReadAhead, "__init__", record)
-    monkeypatch.setattr(pipeline, "check_model", stopped)
+    monkeypatch.setattr(runner, "check_one", stopped)
     out = run_inprocess(capsys, ["check", str(model), "--loads", str(table), "--format", "json", "--jobs", "2",
                                  "--no-config"], [model, table])
     assert out.code == 2 and out.lines == ["modelcheck: error: stopped before the tables were used"]
@@ -272,11 +273,11 @@ def test_members_evaluated_in_runs_give_the_report_of_one_run(capsys, monkeypatc
     """Beyond EVALUATE_CHUNK members the rules, suggestions and JSON rows go run by run of
     GlobalIds (a memory bound); the rows must be those of one run over all members (common
     practice: how the work is cut never shows in the result)."""
-    import modelcheck.pipeline as pipeline
+    import modelcheck.core.check as check
 
     model, table, tags = shared_model
     args = ["check", str(model), "--loads", str(table), "--loads", str(tags), "--format", "json", "--no-config"]
     whole = _report(capsys, [*args, "--jobs", "1"], [model, table, tags])
-    monkeypatch.setattr(pipeline, "EVALUATE_CHUNK", 37)       # several runs, none aligned with anything
+    monkeypatch.setattr(check, "EVALUATE_CHUNK", 37)       # several runs, none aligned with anything
     monkeypatch.setattr(parallel, "MIN_MEMBERS_PER_PART", 50)
     assert _report(capsys, [*args, "--jobs", "2"], [model, table, tags]) == whole

@@ -184,13 +184,13 @@ def test_a_registered_source_is_checked_against(monkeypatch: pytest.MonkeyPatch,
             (Q_(SURVEY_KN, "kN") / area).to("MPa").magnitude, rel=1e-5)
 
 
-@pytest.mark.skipif(not __import__("modelcheck.parallel").parallel.can_split(), reason="sharing out needs fork")
+@pytest.mark.skipif(not __import__("modelcheck.run.split").run.split.can_split(), reason="sharing out needs fork")
 @pytest.mark.parametrize("whole_model", [False, True])
 def test_a_registered_source_in_a_model_shared_out(whole_model: bool, monkeypatch: pytest.MonkeyPatch,
                                                    tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     """Read in each part, or once over the whole model before it is shared out: the report is the
     one of a single process, the source's message listed once."""
-    import modelcheck.parallel as parallel
+    import modelcheck.run.split as parallel
     from benchmarks.make_model import build
 
     path = tmp_path / "m.ifc"

@@ -19,7 +19,7 @@ import pandas as pd
 import pytest
 
 from modelcheck.cli import main
-from modelcheck.pipeline import member_warnings, merge_member_warnings
+from modelcheck.core.check import member_warnings, merge_member_warnings
 from modelcheck.testing.author import ModelBuilder
 from tests.conftest import REPO
 

@@ -20,7 +20,7 @@ import junitparser
 import numpy as np
 import pandas as pd
 
-from modelcheck.pipeline import REPORT_MEMBER_COLUMNS
+from modelcheck.core.model import REPORT_MEMBER_COLUMNS
 from modelcheck.report.bcf import write_bcf
 from modelcheck.report.csv_report import write_csv
 from modelcheck.report.html import ratio_histogram, write_html

@@ -488,17 +488,17 @@ def _batch(tmp_path: Path) -> tuple[list[Path], dict[str, str]]:
 
 @pytest.mark.skipif(not hasattr(os, "fork"), reason="the killed process is forked from the test")
 def test_a_batch_process_that_dies_makes_its_model_an_error_and_the_others_report(capsys, tmp_path, monkeypatch):
-    import modelcheck.pipeline as pipeline
+    import modelcheck.run.runner as runner
 
     paths, _ = _batch(tmp_path)
-    real = pipeline.check_model
+    real = runner.check_one
 
     def dies_on_b(path: str, *args: Any) -> Any:   # runs in the batch's process for that model
         if path.endswith("b.ifc"):
             os.kill(os.getpid(), signal.SIGKILL)
         return real(path, *args)
 
-    monkeypatch.setattr(pipeline, "check_model", dies_on_b)
+    monkeypatch.setattr(runner, "check_one", dies_on_b)
     out = run_inprocess(capsys, ["check", *map(str, paths), "--format", "json", "--no-config", "--jobs", "2"], paths)
     line = _one_line(out, str(paths[1]), "SIGKILL", "not checked")
     assert "BrokenProcessPool" not in line
@@ -510,14 +510,14 @@ def test_a_batch_process_that_dies_makes_its_model_an_error_and_the_others_repor
 
 _SLOW = textwrap.dedent("""
     import os, sys, time
-    import modelcheck.pipeline as pipeline
+    import modelcheck.run.runner as runner
 
     def slow(path, *args):
         with open(os.path.join(os.environ["PIDS"], str(os.getpid())), "w"):
             pass
         time.sleep(300)
 
-    pipeline.check_model = slow
+    runner.check_one = slow
     sys.argv = ["modelcheck", *sys.argv[1:]]
     from modelcheck.cli import run
     run()

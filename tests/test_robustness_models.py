@@ -17,7 +17,8 @@ from typing import Any
 
 import pytest
 
-from modelcheck.pipeline import ForceOptions, read_model
+from modelcheck.core.model import ForceOptions
+from modelcheck.core.read import read_model
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import load_ruleset
 from modelcheck.testing.author import ModelBuilder

@@ -85,7 +85,7 @@ def test_several_formats_go_into_a_new_folder(capsys, project):
 
 
 def test_a_pattern_naming_folders_searches_them_like_folders(project):
-    from modelcheck.pipeline import expand_paths
+    from modelcheck.core.read import expand_paths
 
     (project / "proj" / "a").mkdir(parents=True)
     (project / "proj" / "b").mkdir()
@@ -111,7 +111,8 @@ def test_a_force_property_not_written_as_pset_dot_property_is_one_line(capsys, p
 def test_the_command_line_splits_a_force_property_where_the_rule_set_does():
     # a property-set name may hold dots (IFC names are free text): the split is at the last dot,
     # on the command line as in a rule set's force_property (common practice)
-    from modelcheck.cli import build_parser, force_options
+    from modelcheck.cli.common import force_options
+    from modelcheck.cli.main import build_parser
 
     args = build_parser().parse_args(["check", "m.ifc", "--force-property", " My.Set . Force "])
     assert force_options(args).property == ("My.Set", "Force")

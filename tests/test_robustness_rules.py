@@ -21,7 +21,8 @@ from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
 from modelcheck.common.errors import RuleSetError
-from modelcheck.pipeline import ForceOptions, read_model
+from modelcheck.core.model import ForceOptions
+from modelcheck.core.read import read_model
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import load_ruleset, validate_ruleset_file
 from tests.corpus import good_builder, rich_builder, run_inprocess, run_process, write_model

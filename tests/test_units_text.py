@@ -8,9 +8,9 @@ from pathlib import Path
 
 import pytest
 
+from modelcheck.cli.size import parse_force, parse_length_arg
 from modelcheck.common.errors import UsageError
 from modelcheck.common.units import Q_, QuantityTextError, normalise_unit, parse_quantity, parse_unit
-from modelcheck.design.cli_size import parse_force, parse_length_arg
 from modelcheck.design.stock import parse_length
 from modelcheck.loads.tables import ForceUnitError, force_unit_factor
 from modelcheck.rules.ruleset import load_ruleset

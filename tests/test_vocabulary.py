@@ -154,8 +154,8 @@ def test_shape_families_are_one_list():
 
 
 def test_stock_kinds_are_one_list():
+    from modelcheck.cli.size import SHAPE_CHOICES
     from modelcheck.design import stock
-    from modelcheck.design.cli_size import SHAPE_CHOICES
     from modelcheck.design.sizing import SHAPES as SIZING_SHAPES
     from modelcheck.design.stock import StockSeries
 

@@ -10,7 +10,7 @@ Sources are read, and their messages listed, in the order of :data:`FORCE_SOURCE
 forces rank by ``precedence``. A source that the options turn off (``--no-analysis-results``,
 no ``--loads``) still answers, with no forces: its name stays in the report with a count of 0.
 
-When one large model is shared out among processes (``modelcheck.parallel``), a ``whole_model``
+When one large model is shared out among processes (``modelcheck.run.split``), a ``whole_model``
 source is read once over the whole model before the fork (its result may depend on elements
 that are not members, and its messages are the model's) and each part takes the rows of its own
 members; any other source is read in each part, over the part's members, and its messages are

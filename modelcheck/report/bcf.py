@@ -44,7 +44,7 @@ from modelcheck.report.members import CAUTION
 from modelcheck.report.text import number, xml_clean, xml_text
 
 if TYPE_CHECKING:
-    from modelcheck.pipeline import CheckRun
+    from modelcheck.core.model import CheckRun
 
 #: namespace of every UUID this module derives (a fixed random UUID of our own)
 BCF_NAMESPACE = uuid.UUID("5e0f3c1a-8b27-4d6e-9a41-2f7c6b90d3e8")

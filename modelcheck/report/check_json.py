@@ -20,7 +20,7 @@ from modelcheck.report.formats import WriteOptions
 from modelcheck.report.members import CAUTION
 
 if TYPE_CHECKING:
-    from modelcheck.pipeline import CheckRun
+    from modelcheck.core.model import CheckRun
     from modelcheck.rules.engine import CheckRows
 
 

@@ -33,7 +33,7 @@ from modelcheck.report.members import CAUTION
 from modelcheck.report.text import number, shown
 
 if TYPE_CHECKING:
-    from modelcheck.pipeline import CheckRun, Coverage, ModelData
+    from modelcheck.core.model import CheckRun, Coverage, ModelData
 
 #: console width from which the failing and unchecked lists show every detail
 DETAILS_WIDTH = 160
@@ -136,7 +136,7 @@ def summary_line(model: ModelData, results: pd.DataFrame | None = None) -> Text:
 
 def _coverage_from(model: ModelData, results: pd.DataFrame | None) -> Coverage:
     """A Coverage from the results table, for a model checked without one."""
-    from modelcheck.pipeline import Coverage
+    from modelcheck.core.model import Coverage
 
     if results is None or not len(results) or "global_id" not in results.columns:
         return Coverage(found=int(model.member_count))
@@ -399,7 +399,7 @@ def render_check(run: CheckRun, console: Console, comparison: Any = None, detail
             parts.append(_warning_grid(items))
         if not m.error:
             parts += member_warning_block(m, run.members)
-    from modelcheck.pipeline import unmatched_lines
+    from modelcheck.core.forces import unmatched_lines
 
     lines = unmatched_lines(run.unmatched_rows)
     if lines:

@@ -33,7 +33,7 @@ import pandas as pd
 from modelcheck.report.formats import WriteOptions
 
 if TYPE_CHECKING:
-    from modelcheck.pipeline import CheckRun
+    from modelcheck.core.model import CheckRun
 
 #: result columns copied as they are, in output order (storey/section/material are inserted)
 _IDENTITY = ("model", "global_id", "ifc_class", "name", "tag")

@@ -25,7 +25,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:
-    from modelcheck.pipeline import CheckRun
+    from modelcheck.core.model import CheckRun
 
 #: ``write(run, target, options)``: ``target`` a path, or a text stream
 Writer = Callable[["CheckRun", Any, "WriteOptions"], None]

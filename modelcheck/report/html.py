@@ -35,7 +35,7 @@ from modelcheck.report.formats import WriteOptions
 from modelcheck.report.members import CAUTION
 
 if TYPE_CHECKING:
-    from modelcheck.pipeline import CheckRun
+    from modelcheck.core.model import CheckRun
 
 #: rows shown per table; the rest are counted (CSV and JSON carry them all)
 MAX_ROWS = 2000

@@ -52,7 +52,7 @@ from modelcheck.report.formats import WriteOptions
 from modelcheck.report.text import number, xml_clean, xml_text
 
 if TYPE_CHECKING:
-    from modelcheck.pipeline import CheckRun
+    from modelcheck.core.model import CheckRun
 
 
 def _stem(model: str) -> str:

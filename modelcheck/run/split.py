@@ -23,7 +23,7 @@ in one process.
 
 Example::
 
-    checked = check_model_split("big.ifc", "steel-asd-us", ForceOptions(), parts=2)
+    checked = check_model_split("big.ifc", Job("steel-asd-us", ForceOptions()), parts=2)
 """
 
 from __future__ import annotations
@@ -31,25 +31,28 @@ from __future__ import annotations
 import os
 import signal
 import sys
-from collections.abc import Sequence
 from dataclasses import dataclass, field, replace
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import pandas as pd
 
-from modelcheck import lifetime
 from modelcheck.common.errors import ModelcheckError
 from modelcheck.common.table import concat_rows
-from modelcheck.pipeline import REPORT_MEMBER_COLUMNS, CheckedModel, ForceOptions, ModelData, describe_model
-from modelcheck.timing import stage
+from modelcheck.common.timing import stage
+from modelcheck.core.model import REPORT_MEMBER_COLUMNS, EncodedRows, ForceOptions, ModelData, ModelResult
+from modelcheck.core.read import describe_model
+from modelcheck.run import lifetime
+from modelcheck.run.job import Job, Rows
+from modelcheck.run.sinks import memory_file, release_rows, row_file, sink_for
+from modelcheck.run.tricks import without
 
 if TYPE_CHECKING:
+    from modelcheck.core.model import Coverage
     from modelcheck.ifc.index import ModelIndex
     from modelcheck.loads.join import ForceReport
     from modelcheck.loads.sources import SourceForces
     from modelcheck.loads.tables import LoadTable
-    from modelcheck.pipeline import Coverage
 
 #: below this many members a model is checked in one process (forking costs more than it saves)
 MIN_MEMBERS_PER_PART = 2_000
@@ -75,14 +78,13 @@ class _Shared:
     forces: ForceOptions
     shared_tags: dict[str, tuple[str, ...]]
     whole: dict[str, SourceForces]   # the whole_model force sources' reads, by name
-    encode_json: bool
-    slim: bool                     # only the status column of the results comes back
+    rows: Rows                     # what the reports need of the results (JSON rows, statuses only)
     log_start: int                 # parse-log entries before the fork
     parent_pid: int
     offsets: dict[int, int]        # file offsets of the parser's descriptors at the fork
     tables: tuple[LoadTable, ...]   # the load tables, whole: each part takes its rows
     part_starts: np.ndarray        # the first GlobalId of each part but the first (in sorted order)
-    row_files: dict[int, int]      # part -> descriptor of the memory file its JSON rows go to
+    row_files: dict[int, int]      # part -> descriptor of the memory file its JSON rows go to (none: bytes)
 
 
 _SHARED: _Shared | None = None
@@ -93,7 +95,7 @@ class _PartResult:
     error: str | None
     members: pd.DataFrame | None
     results: pd.DataFrame | None
-    json_rows: bytes | int | None   # a part's rows: the descriptor of its memory file
+    json_rows: EncodedRows | None   # a part's rows: the descriptor of its memory file (or the bytes)
     report: ForceReport | None
     sources: tuple[SourceForces, ...]   # what each force source read in the part, less its forces
     new_log: list[str]
@@ -166,8 +168,8 @@ def _own_file_offset(offsets: dict[int, int]) -> None:
 
 def _run_part(k: int) -> _PartResult:
     """Check part ``k`` of the shared model (in a forked process, or in this one)."""
+    from modelcheck.core.read import read_into
     from modelcheck.loads.sources import part_of
-    from modelcheck.pipeline import read_into
     from modelcheck.rules.ruleset import load_ruleset
 
     st = _SHARED
@@ -193,29 +195,24 @@ def _run_part(k: int) -> _PartResult:
     # what the model-wide parts of the warnings were is rebuilt by the caller from the merged log
     warnings = [w for w in data.warnings[n_parse:]]
     ruleset = load_ruleset(st.ruleset_ref).in_system(st.units)
-    from modelcheck.pipeline import coverage_of, evaluate_members
+    from modelcheck.core.check import coverage_of, evaluate_members
     from modelcheck.rules.select import excluded_members
 
     excluded = excluded_members(ruleset.select, data.members)
 
-    rows = None
+    # each part's rows go to a memory file made before the fork, as they are joined: never
+    # whole in memory as text, never pickled back; the report streams them in
+    sink = sink_for(st.rows, st.row_files.get(k))
     with stage(f"part {k}: rules, suggestions, JSON"):
-        if st.encode_json:
-            # each part's rows go to a memory file made before the fork, as they are joined: never
-            # whole in memory as text, never pickled back; the report streams them in
-            rows = st.row_files[k]
-            with os.fdopen(os.dup(rows), "wb") as sink:
-                results, _ = evaluate_members(ruleset, data.members, data.forces, encode_json=True, slim=st.slim,
-                                              sink=sink)
-        else:
-            results, _ = evaluate_members(ruleset, data.members, data.forces)
+        results = evaluate_members(ruleset, data.members, data.forces, sink)
+    rows = sink.rows() if sink is not None else None
     coverage = coverage_of(ruleset, data.members, results)
-    from modelcheck.pipeline import member_warnings
+    from modelcheck.core.check import member_warnings
 
     own_warnings = member_warnings(data.members)
     members = data.members.loc[:, list(REPORT_MEMBER_COLUMNS)]
     members["_pos"] = positions
-    if st.slim:  # no report reads them
+    if st.rows is Rows.JSON_ONLY:  # no report reads them
         members = members.iloc[0:0]
     report = data.report
     if report is not None and os.getpid() != st.parent_pid:
@@ -246,7 +243,7 @@ class _Forked:
         pid = os.fork()
         if pid == 0:   # the helper: work, send, end without the parent's exit handlers
             try:
-                from modelcheck.batch import die_with_parent
+                from modelcheck.run.pool import die_with_parent
 
                 die_with_parent()   # never left running once the command has ended
                 try:
@@ -307,6 +304,32 @@ class _Forked:
             os.waitpid(self._pid, 0)
 
 
+class _PropertySetWalker:
+    """The property-set relationships of a model (most of a large model's walk), walked by a
+    forked helper that opens the model too, while this process opens it, walks the rest and
+    reads the members' keys. ``elsewhere``: whether the helper walks them (False with
+    ``MODELCHECK_WITHOUT=walker``: ``build_index`` then walks them here)."""
+
+    def __init__(self, path: str) -> None:
+        from modelcheck.ifc.index import property_sets_in
+
+        self.elsewhere = not without("walker")
+        self._helper = (_Forked("walking the model's property sets", property_sets_in, path)
+                        if self.elsewhere else None)
+
+    def into(self, idx: ModelIndex) -> None:
+        """The helper's property sets into ``idx`` (and what the parser logged meanwhile)."""
+        if self._helper is None:
+            return
+        idx.psets_of, log = self._helper.result()
+        if log:
+            idx.parse_log.append(log)
+
+    def close(self) -> None:
+        if self._helper is not None:
+            self._helper.close()
+
+
 def _read_tables(paths: list[str]) -> tuple[LoadTable, ...]:
     from modelcheck.loads.tables import read_load_table
 
@@ -341,40 +364,12 @@ class TablesReadAhead:
         return bool(self._helper.result())
 
 
-def row_file(k: int) -> int:
-    """A descriptor of a new, empty file for the JSON rows of part (or batch model) ``k``
-    (``memory_file``)."""
-    return memory_file(f"modelcheck-rows-{k}")
-
-
-def memory_file(name: str) -> int:
-    """A descriptor of a new, empty file: in memory where the system has memory files (nothing
-    goes to disk, and nothing is left when the command ends), else an unnamed temporary file."""
-    if hasattr(os, "memfd_create"):
-        return os.memfd_create(name)
-    import tempfile
-
-    with tempfile.TemporaryFile(prefix=f"{name}-") as fh:
-        return os.dup(fh.fileno())
-
-
-def release_rows(chunks: Sequence[bytes | int | None] | None) -> None:
-    """Close the row files among encoded row chunks (once the report is written): their memory
-    is given back."""
-    for chunk in chunks or ():
-        if isinstance(chunk, int):
-            try:
-                os.close(chunk)
-            except OSError:
-                pass
-
-
-def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, parts: int, validate: bool = False,
-                      encode_json: bool = False, slim: bool = False, units: str = "model") -> CheckedModel | None:
-    """Check one model in ``parts`` processes; None when it is too small to share out (or this
-    system cannot fork): the caller then checks it in one process as usual."""
+def check_model_split(path: str, job: Job, *, parts: int) -> ModelResult | None:
+    """Check one model for ``job`` in ``parts`` processes; None when this system cannot fork: the
+    caller then checks it in one process as usual (as this does a model too small to share out)."""
     global _SHARED
-    from modelcheck.ifc.index import build_index, property_sets_in
+    ruleset_ref, forces, validate, units = job.ruleset_ref, job.forces, job.validate, job.units
+    from modelcheck.ifc.index import build_index
     from modelcheck.ifc.reader import member_entities, member_keys
 
     if parts < 2 or not can_split():
@@ -382,11 +377,11 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
     data = ModelData(path=path)
     # the property-set relationships (most of a large model's walk) are walked by a helper that
     # opens the model too, while this process opens it, walks the rest and reads the members' keys
-    walker = _Forked("walking the model's property sets", property_sets_in, path)
+    walker = _PropertySetWalker(path)
     try:
         try:
             with stage("open + walk"):
-                idx = build_index(path, property_sets=False)
+                idx = build_index(path, property_sets=not walker.elsewhere)
             with stage("member entities"):
                 entities = member_entities(idx)
             large = len(entities) >= 2 * MIN_MEMBERS_PER_PART
@@ -394,16 +389,14 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
                 with stage("member keys"):
                     gids, tags = member_keys(idx, entities)
             with stage("property sets (helper)"):
-                idx.psets_of, log = walker.result()
+                walker.into(idx)
         finally:
             walker.close()
-        if log:
-            idx.parse_log.append(log)
         if not large:
-            return _in_one_process(data, idx, ruleset_ref, forces, validate, encode_json, slim, units)
+            return _in_one_process(data, idx, job)
     except ModelcheckError as exc:
         data.error = str(exc)
-        return CheckedModel(data)
+        return ModelResult(data)
     with stage("describe model"):
         describe_model(data, idx, validate)
     parts = min(parts, len(entities) // MIN_MEMBERS_PER_PART)
@@ -423,7 +416,7 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
         from modelcheck.ifc.index import unreadable_model
 
         data.error = unreadable_model(path, exc)
-        return CheckedModel(data)
+        return ModelResult(data)
     idx.drain_log()
     with stage("share out"):
         bounds = _bounds(sorted_gids, parts)
@@ -431,12 +424,13 @@ def check_model_split(path: str, ruleset_ref: str, forces: ForceOptions, *, part
         part_starts = np.array([sorted_gids[a] for a, _ in bounds[1:]], dtype=object)
     with stage("load tables (helper)"):
         tables = tuple(forces.tables)   # read meanwhile by a helper (TablesReadAhead): received here
-    row_files = {k: row_file(k) for k in range(len(bounds))} if encode_json else {}
-    from modelcheck.pipeline import display_system
+    files = {k: row_file(k) for k in range(len(bounds))} if job.rows is not Rows.TABLE else {}
+    row_files = {k: fd for k, fd in files.items() if fd is not None}
+    from modelcheck.core.check import display_system
 
     data.units = display_system(units, data.system)
     _SHARED = _Shared(idx, entities, runs, gids, ruleset_ref, data.units,
-                      forces, shared_tags, whole, encode_json, slim, len(idx.parse_log),
+                      forces, shared_tags, whole, job.rows, len(idx.parse_log),
                       os.getpid(), _file_offsets(idx.file_fds), tables, part_starts, row_files)
     try:
         with stage("parts"):
@@ -470,21 +464,23 @@ def _run_parts(n: int) -> list[_PartResult]:
             f.close()
 
 
-def _in_one_process(data: ModelData, idx: ModelIndex, ruleset_ref: str, forces: ForceOptions, validate: bool,
-                    encode_json: bool, slim: bool, units: str) -> CheckedModel:
-    from modelcheck.pipeline import finish_check, read_into
+def _in_one_process(data: ModelData, idx: ModelIndex, job: Job) -> ModelResult:
+    """A model too small to share out, checked here (its rows as bytes)."""
+    from modelcheck.core.check import check_read
+    from modelcheck.core.read import read_into
 
-    describe_model(data, idx, validate)
-    read_into(data, idx, forces)
-    return finish_check(data, ruleset_ref, encode_json, slim, units=units)
+    describe_model(data, idx, job.validate)
+    read_into(data, idx, job.forces)
+    return check_read(data, job.ruleset_ref, units=job.units, sink=sink_for(job.rows))
 
 
 def _merge(data: ModelData, idx: ModelIndex, outs: list[_PartResult], whole: dict[str, SourceForces],
-           ruleset_ref: str) -> CheckedModel:
+           ruleset_ref: str) -> ModelResult:
     """The parts' members, results, JSON rows and messages as one model's."""
+    from modelcheck.core.check import merge_member_warnings
+    from modelcheck.core.forces import join_lines, no_force_line
     from modelcheck.loads.join import ForceReport
     from modelcheck.loads.sources import merged_messages
-    from modelcheck.pipeline import join_lines, merge_member_warnings, no_force_line
 
     for out in outs:
         idx.parse_log.extend(out.new_log)
@@ -492,7 +488,7 @@ def _merge(data: ModelData, idx: ModelIndex, outs: list[_PartResult], whole: dic
     if errors:
         release_rows([o.json_rows for o in outs if isinstance(o.json_rows, int)])
         data.error = errors[0]
-        return CheckedModel(data)
+        return ModelResult(data)
     members = concat_rows([o.members for o in outs if o.members is not None])   # every part's (no error)
     members = members.sort_values("_pos", kind="stable").drop(columns="_pos").reset_index(drop=True)
     results = concat_rows([o.results for o in outs if o.results is not None])
@@ -532,4 +528,4 @@ def _merge(data: ModelData, idx: ModelIndex, outs: list[_PartResult], whole: dic
     rows = None
     if all(o.json_rows is not None for o in outs):
         rows = [o.json_rows for o in outs if o.json_rows is not None]
-    return CheckedModel(data, results, rows)
+    return ModelResult(data, results, rows)

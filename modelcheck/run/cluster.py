@@ -1,6 +1,6 @@
 """Check models on an existing Dask cluster (``--scheduler ADDRESS``) instead of local processes.
 
-Each model is one task running ``modelcheck.pipeline.check_model`` on a worker; results come
+Each model is one task running ``modelcheck.core.check.check_model`` on a worker; results come
 back in the order of the input paths. The workers need modelcheck installed and must see the
 model files, load tables and rule-set file under the same paths as this machine (a shared or
 synchronised file system). Start a cluster with ``dask scheduler`` and ``dask worker ADDRESS``.
@@ -22,7 +22,7 @@ def run_on_cluster(address: str, paths: Sequence[str], ruleset_ref: str, forces:
                    *, timeout: float = 10.0, progress: Callable[[], None] | None = None,
                    task: Callable[..., Any] | None = None, units: str = "model") -> list[Any]:
     """Run ``check_model(path, ruleset_ref, forces, validate, units=units)`` for every path on the cluster at
-    ``address``; return the CheckedModel list in input order.
+    ``address``; return the ModelResult list in input order.
 
     A scheduler that cannot be reached within ``timeout`` seconds is a UsageError naming the
     address. ``progress`` is called once per model gathered (in input order); ``task`` replaces check_model (tests).
@@ -32,7 +32,7 @@ def run_on_cluster(address: str, paths: Sequence[str], ruleset_ref: str, forces:
     except ImportError:
         raise UsageError("--scheduler needs dask.distributed: pip install 'dask[distributed]'") from None
     if task is None:
-        from modelcheck.pipeline import check_model
+        from modelcheck.core.check import check_model
 
         task = check_model
     try:

@@ -7,12 +7,12 @@ user's ``kill -9``, or by a crash in a library) and does not say which model it 
 model a worker was on when it died is known: that model becomes an error naming it, a new worker
 takes the models left, and the others are checked and reported as usual.
 
-Every process started here ends with the command: the command's own SIGTERM (``cli.run`` turns
-it into :class:`Terminated`) and any other way out of ``run_each`` stop the processes still
+Every process started here ends with the command: the command's own SIGTERM (turned into
+``modelcheck.run.process.Terminated``) and any other way out of ``run_each`` stop the processes still
 running, and each process asks the system to end it when the command's process ends, however
 that happens (``die_with_parent``; Linux).
 
-    results = run_each(check_model, [(path, ref, ...) for path in paths], jobs=2)
+    results = run_each(check_one, [(path, job, 1, None) for path in paths], jobs=2)
     # a result, or a Died naming why the worker ended without one
 """
 
@@ -28,17 +28,6 @@ from typing import TYPE_CHECKING, Any, cast
 
 if TYPE_CHECKING:
     from multiprocessing.connection import Connection
-
-
-class Terminated(BaseException):
-    """The command was asked to stop (SIGTERM): raised in the main process so that every
-    ``finally`` runs (processes started for the work are stopped, memory files closed).
-    A BaseException, like KeyboardInterrupt, so that no ``except Exception`` stops it."""
-
-
-def raise_terminated(signum: int, frame: Any) -> None:
-    """SIGTERM handler of the command (``cli.run``)."""
-    raise Terminated()
 
 
 @dataclass(frozen=True)
@@ -94,7 +83,7 @@ def _worker(conn: Any, fn: Callable[..., Any], items: Sequence[Sequence[Any]]) -
         if i is None:
             return
         try:
-            with np.errstate(all="ignore"):   # as in the command itself (``cli._dispatch``)
+            with np.errstate(all="ignore"):   # as in the command itself (``cli.main._dispatch``)
                 answer: tuple[str, Any] = ("ok", fn(*items[i]))
         except Exception as exc:   # noqa: BLE001  (sent back and raised again in the command, as a pool does)
             answer = ("raise", exc)

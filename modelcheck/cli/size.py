@@ -5,7 +5,7 @@
 
 The cli registers it with two lines::
 
-    from modelcheck.design.cli_size import add_size_parser, cmd_size
+    from modelcheck.cli.size import add_size_parser, cmd_size
     add_size_parser(sub)            # in build_parser(); main() dispatches "size" to cmd_size
 """
 
@@ -96,7 +96,7 @@ def cmd_size(args: argparse.Namespace) -> int:
         if args.format == "json":
             sys.stdout.write(json.dumps(result.to_dict(), indent=2, ensure_ascii=False) + "\n")
         else:
-            from modelcheck.cli import report_console
+            from modelcheck.cli.common import report_console
 
             render_size(result, report_console())
         sys.stdout.flush()

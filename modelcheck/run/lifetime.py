@@ -2,7 +2,7 @@
 
 Freeing an opened model and its maps (millions of small objects) takes a noticeable part of a
 second; when the process is about to end without its interpreter's teardown anyway (the
-``modelcheck`` command, see ``cli.run``), that work is skipped by keeping them referenced here.
+``modelcheck`` command, see ``run.process``), that work is skipped by keeping them referenced here.
 Anywhere else (the tests, a library caller) ``keep`` does nothing and they are freed as usual.
 
     lifetime.keep(idx)      # in a function whose locals would otherwise be freed on return
@@ -12,7 +12,7 @@ from __future__ import annotations
 
 from typing import Any
 
-#: set by ``cli.run``: the process ends with os._exit, so nothing kept here needs freeing
+#: set by ``run.process.prepare_process``: the process ends with os._exit, so nothing kept here needs freeing
 ENDS_WITH_EXIT = False
 
 _KEPT: list[Any] = []

@@ -1,0 +1,125 @@
+"""The tuning of the ``modelcheck`` command's own process, called from its entry point
+(``modelcheck.cli.main.run`` and ``main``) only: a library caller or a test gets none of it.
+Each piece can be turned off for measuring (``modelcheck.run.tricks``).
+
+    prepare_process()            # before the work: allocator, huge pages, SIGTERM, lifetime
+    with paused_gc(): ...        # the command's work
+    give_back_freed_memory()     # before the reports are written
+    end_process(code)            # flush, then os._exit
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+from collections.abc import Iterator
+from contextlib import contextmanager
+from typing import Any, NoReturn
+
+from modelcheck.run import lifetime
+from modelcheck.run.tricks import without
+
+
+class Terminated(BaseException):
+    """The command was asked to stop (SIGTERM): raised in the main process so that every
+    ``finally`` runs (processes started for the work are stopped, memory files closed).
+    A BaseException, like KeyboardInterrupt, so that no ``except Exception`` stops it."""
+
+
+def raise_terminated(signum: int, frame: Any) -> None:
+    """SIGTERM handler of the command (``prepare_process``)."""
+    raise Terminated()
+
+
+def prepare_process() -> None:
+    """Set up the command's process before any work: huge pages off for numpy, the allocator
+    keeping freed memory, the objects ``lifetime.keep`` holds until ``os._exit``, and SIGTERM
+    stopping the command as Ctrl-C does (every ``finally`` runs, so the processes it started
+    are stopped too: none is left running on its own)."""
+    # numpy asks for transparent huge pages for arrays of 4 MiB and more; where the system backs
+    # them lazily (virtual machines), faulting them in costs more than the check's arithmetic
+    if "numpy" not in sys.modules and not without("madvise"):
+        os.environ.setdefault("NUMPY_MADVISE_HUGEPAGE", "0")
+    keep_freed_memory()
+    if not without("exit"):
+        lifetime.ENDS_WITH_EXIT = True
+    import signal
+
+    signal.signal(signal.SIGTERM, raise_terminated)
+
+
+@contextmanager
+def paused_gc() -> Iterator[None]:
+    """The cyclic garbage collector off for the block. A run builds millions of small objects and
+    few reference cycles: the collector would rescan them over and over (it doubles the time of a
+    large model). Reference counting frees almost everything, and the command ends without the
+    interpreter's teardown (``end_process``)."""
+    import gc
+
+    if without("gc"):
+        yield
+        return
+    gc.disable()
+    try:
+        yield
+    finally:
+        gc.enable()
+
+
+def end_process(code: int, say: Any) -> NoReturn:
+    """Flush the standard streams and end the process with ``code`` at once.
+
+    A large check leaves millions of objects behind; freeing them one by one at interpreter exit
+    takes a noticeable part of a second. Every file is closed and every stream flushed by then,
+    so the process ends without that teardown. ``say`` writes one line on standard error (the
+    report on standard output could not be written: exit 2)."""
+    try:
+        sys.stdout.flush()
+    except BrokenPipeError:
+        pass
+    except OSError as exc:   # the report on standard output could not be written (a full disk)
+        say(f"modelcheck: error: standard output: cannot be written: {exc.strerror or exc}")
+        code = 2
+    try:
+        sys.stderr.flush()
+    except OSError:
+        pass
+    if without("exit"):
+        sys.exit(code)
+    os._exit(code)
+
+
+def keep_freed_memory() -> None:
+    """glibc: serve large blocks from the heap and keep freed memory for reuse.
+
+    A check allocates and frees arrays and texts of tens of megabytes over and over. By default
+    each comes from a fresh mapping that is returned to the system when freed, so every one is
+    faulted in page by page again; kept, the next one reuses the same pages (a fifth of the
+    system time of a large check). The process lives for one command, so nothing is held for
+    long. Elsewhere (other C libraries, other systems) nothing changes."""
+    if not sys.platform.startswith("linux") or without("malloc"):
+        return
+    try:
+        import ctypes
+
+        mallopt = ctypes.CDLL(None).mallopt
+    except (OSError, AttributeError):
+        return
+    m_trim_threshold, m_mmap_threshold = -1, -3
+    mallopt(m_mmap_threshold, 1 << 30)
+    mallopt(m_trim_threshold, (1 << 31) - 1)
+
+
+def give_back_freed_memory() -> None:
+    """glibc: return the memory freed during the check to the system before the reports are
+    written. The kernel hands out what was freed last first: a large report's page cache then
+    reuses pages this process has just used, instead of pages a virtual machine may have given
+    back to its host (slow to fault in again; docs/performance.md gives the figures)."""
+    if not sys.platform.startswith("linux") or without("malloc"):
+        return
+    try:
+        import ctypes
+
+        ctypes.CDLL(None).malloc_trim(0)
+    except (OSError, AttributeError):
+        return
