@@ -314,7 +314,7 @@ def comparison_renderable(cmp: dict[str, Any], *, max_rows: int = 30, width: int
         parts.append(Text(f"  note: {safe(note, MAX_LINE)}", style="yellow"))
 
     def table(title: str, rows: list[dict[str, Any]], style: str, extra: str) -> Table:
-        from modelcheck.report.console import fitted_table
+        from modelcheck.report.fitting import fitted_table
 
         shown = rows[:max_rows]
         cells = {"Model": [safe(e["model"]) for e in shown], "GlobalId": [safe(e["global_id"]) for e in shown],

@@ -10,10 +10,7 @@ import pandas as pd
 from modelcheck.common.table import REJECTED, records
 from modelcheck.common.vocabulary import quantities, quantity_object
 from modelcheck.report.quantities import DisplayUnits
-
-CAUTION = ("modelcheck screens models for data and axial-stress problems; it does not replace design "
-           "and checking by a licensed engineer under the governing local code.")
-
+from modelcheck.report.text import CAUTION  # noqa: F401  (every report's closing caution; read from here too)
 
 #: a quantity column's label in a table header ('r min')
 LABEL: dict[str, str] = {q.column: q.label for q in quantities() if q.column is not None}
@@ -119,7 +116,8 @@ def members_table(members: pd.DataFrame, units: DisplayUnits, title: str, width:
     from rich.table import Table
     from rich.text import Text
 
-    from modelcheck.report.console import _fit, _limits, fitted_table, member_label
+    from modelcheck.report.console import member_label
+    from modelcheck.report.fitting import _fit, _limits, fitted_table
     from modelcheck.report.text import MAX_LINE, plain, shown
 
     def text(v: Any) -> str | None:   # the model's text: control characters escaped, long texts cut

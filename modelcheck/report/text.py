@@ -18,6 +18,10 @@ import math
 import re
 from typing import Any
 
+#: the caution every report ends with
+CAUTION = ("modelcheck screens models for data and axial-stress problems; it does not replace design "
+           "and checking by a licensed engineer under the governing local code.")
+
 #: characters of one text in a console table cell or a warning line; longer texts end in "…"
 MAX_SHOWN = 200
 #: characters of one line on standard error (an error naming a file, row and GlobalId)
