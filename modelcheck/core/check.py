@@ -8,7 +8,7 @@ the JSON report encoded as they are made.
 from __future__ import annotations
 
 from collections.abc import Iterable, Iterator
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, BinaryIO
 
 import numpy as np
 import pandas as pd
@@ -156,7 +156,7 @@ def evaluate_members(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFra
 
 
 def _slim_rows(ruleset: RuleSet, members: pd.DataFrame, forces: pd.DataFrame,
-               sink: Any = None) -> tuple[pd.Categorical, np.ndarray, bytes]:
+               sink: BinaryIO | None = None) -> tuple[pd.Categorical, np.ndarray, bytes]:
     """(statuses, positions of their members in ``members``, JSON rows) of ``members``: what a
     JSON-only report needs. The suggestions are
     worked out on a results table of the failing members' rows only. With ``sink`` the rows are

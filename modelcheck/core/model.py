@@ -127,7 +127,8 @@ class RowSink(Protocol):
     ``statuses_only``: the JSON rows are the only report wanted, so of the results table only
     the statuses are kept (what the summary and the exit code read)."""
 
-    statuses_only: bool
+    @property
+    def statuses_only(self) -> bool: ...
 
     def open(self) -> AbstractContextManager[BinaryIO]: ...
 
