@@ -23,14 +23,14 @@ from modelcheck.cli.common import (
     report_console,
     say,
 )
+from modelcheck.common.errors import UsageError
+from modelcheck.report.formats import format_names
 
 if TYPE_CHECKING:
     from modelcheck.core.model import CheckRun, ForceOptions
     from modelcheck.rules.ruleset import RuleSet
     from modelcheck.run.job import Rows
 
-from modelcheck.common.errors import UsageError
-from modelcheck.report.formats import format_names
 
 
 def merge_config(args: argparse.Namespace) -> argparse.Namespace:

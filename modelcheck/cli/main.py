@@ -169,7 +169,7 @@ def main(argv: list[str] | None = None) -> int:
         if os.environ.get("MODELCHECK_DEBUG"):
             raise
         say(f"modelcheck: internal error: {type(exc).__name__}: {exc} "
-             "(set MODELCHECK_DEBUG=1 for details and please report it)")
+            "(set MODELCHECK_DEBUG=1 for details and please report it)")
         return EXIT_INPUT
     parser.error(f"unknown command {args.command}")
     return EXIT_INPUT

@@ -20,7 +20,6 @@ from modelcheck.cli.common import (
 )
 
 
-# ---------------------------------------------------------------------------- members
 def cmd_members(args: argparse.Namespace) -> int:
     from rich.markup import escape as markup_escape
 

@@ -14,7 +14,6 @@ from modelcheck.cli.common import (
 from modelcheck.common.errors import UsageError
 
 
-# ---------------------------------------------------------------------------- rules
 def cmd_rules(args: argparse.Namespace) -> int:
     from modelcheck.common.files import writing
     from modelcheck.rules import ruleset as rs
