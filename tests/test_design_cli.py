@@ -1,6 +1,6 @@
 """`modelcheck size` on the command line: output formats, unit handling, errors.
 
-Until the command is registered in modelcheck/cli.py the tests drive ``cmd_size`` through their
+Until the command is registered in modelcheck/cli/main.py the tests drive ``cmd_size`` through their
 own argparse parser (the same arguments); once it is, they run ``python -m modelcheck size``.
 """
 
