@@ -37,14 +37,14 @@ multiplied by ``angle_factor`` (radians per file unit). A curve that cannot be m
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from typing import Any, Protocol, TypeVar
 
 from modelcheck.ifc.outline import Arc
 
-__all__ = ["MAX_TRIM_ANGLE", "CurveError", "conic_sweep", "curve_length", "edge_curve_length", "line_trims", "orient",
-           "trim_angle_problem", "trim_choice"]
+__all__ = ["MAX_TRIM_ANGLE", "CurveError", "SegmentIndexError", "conic_sweep", "curve_length", "edge_curve_length",
+           "indexed_segments", "line_trims", "orient", "trim_angle_problem", "trim_choice"]
 
 _TWO_PI = 2.0 * math.pi
 #: a gap between consecutive segments of a composite curve larger than this share of the
@@ -64,6 +64,8 @@ class _Oriented(Protocol):
 
 
 _S = TypeVar("_S", bound=_Oriented)
+_P = TypeVar("_P")
+_T = TypeVar("_T")
 
 
 class CurveError(ValueError):
@@ -140,6 +142,52 @@ def trim_choice(trim: Any, master: str | None) -> tuple[Any, float | None]:
     if point is not None and param is not None:
         return (None, param) if master == "PARAMETER" else (point, None)
     return point, param
+
+
+class SegmentIndexError(CurveError):
+    """A segment of an IfcIndexedPolyCurve that cannot be read. The message leaves the curve to
+    the caller (``curve_length`` names the outermost curve); ``named`` says the same naming the
+    IfcIndexedPolyCurve itself."""
+
+    def __init__(self, message: str, named: str) -> None:
+        super().__init__(message)
+        self.named = named
+
+
+def indexed_segments(curve: Any, coords: Sequence[_P], line: Callable[[list[_P]], list[_T]],
+                     arc: Callable[[_P, _P, _P], list[_T]]) -> list[_T]:
+    """The pieces of an IfcIndexedPolyCurve whose points are ``coords`` (its CoordList, read by the
+    caller: 3D axes here, 2D outlines in ``modelcheck.ifc.profiles``): the whole point list as
+    one ``line`` where there are no Segments, else per segment in order, ``line`` of an
+    IfcLineIndex's points and ``arc`` of an IfcArcIndex's three (start, middle, end). Indices
+    count from 1; one outside the point list, an IfcArcIndex without three points or another
+    segment class raise ``SegmentIndexError``."""
+    segments = getattr(curve, "Segments", None)
+    if not segments:
+        return line(list(coords))
+    ref = f"#{curve.id()}"
+
+    def pt(i: int) -> _P:
+        if not 1 <= i <= len(coords):
+            raise SegmentIndexError(f"refers to point {i} of {len(coords)}",
+                                    f"IfcIndexedPolyCurve {ref} refers to point {i} of {len(coords)}")
+        return coords[i - 1]
+
+    out: list[_T] = []
+    for seg in segments:
+        idx = [int(i) for i in seg.wrappedValue]
+        if seg.is_a("IfcLineIndex"):
+            out.extend(line([pt(i) for i in idx]))
+        elif seg.is_a("IfcArcIndex"):
+            if len(idx) != 3:
+                raise SegmentIndexError(f"IfcArcIndex {tuple(idx)} does not have three points",
+                                        f"IfcArcIndex {tuple(idx)} of {ref} does not have three points")
+            a, m, b = (pt(i) for i in idx)
+            out.extend(arc(a, m, b))
+        else:
+            raise SegmentIndexError(f"{seg.is_a()} segments are not supported",
+                                    f"{seg.is_a()} in IfcIndexedPolyCurve {ref} is not supported")
+    return out
 
 
 # ----------------------------------------------------------------------------- vectors
@@ -275,29 +323,10 @@ def _arc3(a: Vec, m: Vec, b: Vec) -> float:
 
 
 def _indexed(curve: Any) -> list[_Piece]:
-    coords = [_v(c) for c in curve.Points.CoordList]
+    def arc(a: Vec, m: Vec, b: Vec) -> list[_Piece]:
+        return [_Piece(a, b, _arc3(a, m, b))]
 
-    def pt(i: int) -> Vec:
-        if not 1 <= i <= len(coords):
-            raise CurveError(f"refers to point {i} of {len(coords)}")
-        return coords[i - 1]
-
-    segments = getattr(curve, "Segments", None)
-    if not segments:
-        return _polyline(coords)
-    out: list[_Piece] = []
-    for seg in segments:
-        idx = [int(i) for i in seg.wrappedValue]
-        if seg.is_a("IfcLineIndex"):
-            out.extend(_polyline([pt(i) for i in idx]))
-        elif seg.is_a("IfcArcIndex"):
-            if len(idx) != 3:
-                raise CurveError(f"IfcArcIndex {tuple(idx)} does not have three points")
-            a, m, b = (pt(i) for i in idx)
-            out.append(_Piece(a, b, _arc3(a, m, b)))
-        else:
-            raise CurveError(f"{seg.is_a()} segments are not supported")
-    return out
+    return indexed_segments(curve, [_v(c) for c in curve.Points.CoordList], _polyline, arc)
 
 
 def _composite(curve: Any, af: float, depth: int) -> list[_Piece]:

@@ -42,7 +42,15 @@ from dataclasses import dataclass, field, replace
 from typing import Any
 
 from modelcheck.common.vocabulary import Shape
-from modelcheck.ifc.curves import conic_sweep, line_trims, orient, trim_angle_problem, trim_choice
+from modelcheck.ifc.curves import (
+    SegmentIndexError,
+    conic_sweep,
+    indexed_segments,
+    line_trims,
+    orient,
+    trim_angle_problem,
+    trim_choice,
+)
 from modelcheck.ifc.outline import (
     MAX_OUTLINE_POINTS,
     Arc,
@@ -590,29 +598,15 @@ def _indexed_poly_curve(curve: Any, ctx: _Ctx) -> list[Segment]:
     coord_list = curve.Points.CoordList
     _within_limit(ctx, curve, len(coord_list))
     coords = [_xy(ctx.profile, c) for c in coord_list]
-    segments = getattr(curve, "Segments", None)
-    if not segments:
-        return _polyline(coords)
 
-    def pt(i: int) -> Point:
-        if not 1 <= i <= len(coords):
-            raise ctx.fail(f"IfcIndexedPolyCurve #{curve.id()} refers to point {i} of {len(coords)}")
-        return coords[i - 1]
+    def arc(a: Point, m: Point, b: Point) -> list[Segment]:
+        through = circle_through(a, m, b)
+        return _polyline([a, m, b]) if through is None else [through]
 
-    out: list[Segment] = []
-    for seg in segments:
-        idx = [int(i) for i in seg.wrappedValue]
-        if seg.is_a("IfcLineIndex"):
-            out.extend(_polyline([pt(i) for i in idx]))
-        elif seg.is_a("IfcArcIndex"):
-            if len(idx) != 3:
-                raise ctx.fail(f"IfcArcIndex {tuple(idx)} of #{curve.id()} does not have three points")
-            a, m, b = (pt(i) for i in idx)
-            arc = circle_through(a, m, b)
-            out.extend(_polyline([a, m, b]) if arc is None else [arc])
-        else:
-            raise ctx.fail(f"{seg.is_a()} in IfcIndexedPolyCurve #{curve.id()} is not supported")
-    return out
+    try:
+        return indexed_segments(curve, coords, _polyline, arc)
+    except SegmentIndexError as exc:
+        raise ctx.fail(exc.named) from None
 
 
 def _conic_axes(curve: Any, ctx: _Ctx) -> tuple[Point, Point, Point]:
