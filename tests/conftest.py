@@ -1,18 +1,11 @@
-"""Shared fixtures: small models built in code with modelcheck.testing.author."""
+"""Shared fixtures: small models built in code with modelcheck.testing.author. Shared helpers that
+are not fixtures are in tests/helpers.py."""
 
 from __future__ import annotations
 
-import hashlib
 from pathlib import Path
 
 import pytest
-
-REPO = Path(__file__).resolve().parents[1]
-SAMPLES = REPO / "sample_models"
-
-
-def digest(path: Path) -> str:
-    return hashlib.sha256(Path(path).read_bytes()).hexdigest()
 
 
 @pytest.fixture

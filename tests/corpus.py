@@ -14,11 +14,8 @@ changed input file.
 
 from __future__ import annotations
 
-import hashlib
 import json
 import re
-import subprocess
-import sys
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -26,20 +23,13 @@ from typing import Any
 
 from modelcheck.cli import main
 from modelcheck.testing.author import ModelBuilder
+from tests.helpers import REPO, axial_force, digests, run_modelcheck
 
 #: the summary line of a model (one line, printed whatever the formats)
 SUMMARY_RE = re.compile(r"\): (nothing could be checked — )?\d+ members found, \d+ checked — ")
 
 #: a member's GlobalId as ifcopenshell.guid writes it (22 characters of the IFC base-64 alphabet)
 GUID_RE = re.compile(r"[0-9A-Za-z_$]{22}")
-
-
-def digest(path: str | Path) -> str:
-    return hashlib.sha256(Path(path).read_bytes()).hexdigest()
-
-
-def digests(paths: Iterable[str | Path]) -> dict[str, str]:
-    return {str(p): digest(p) for p in paths}
 
 
 @dataclass(frozen=True)
@@ -89,15 +79,30 @@ def run_inprocess(capsys: Any, args: Sequence[str], inputs: Iterable[str | Path]
 
 
 def run_process(args: Sequence[str], inputs: Iterable[str | Path] = (), timeout: float = 120,
-                cwd: str | Path | None = None) -> Outcome:
-    """``python -m modelcheck args`` in a fresh process with a timeout (a hang fails the test)."""
+                cwd: str | Path = REPO, **options: Any) -> Outcome:
+    """``python -m modelcheck args`` in a fresh process with a timeout (a hang fails the test);
+    ``options`` go to ``helpers.run_modelcheck`` (``preexec_fn``: limits on the process)."""
     before = digests(inputs)
-    r = subprocess.run([sys.executable, "-m", "modelcheck", *args], capture_output=True, text=True,
-                       timeout=timeout, cwd=cwd)
+    r = run_modelcheck(*args, timeout=timeout, cwd=cwd, **options)
     out = Outcome(r.returncode, r.stdout, r.stderr)
     assert digests(before) == before, "an input file was changed"
     assert_clean(out)
     return out
+
+
+def run_check_json(capsys: Any, *paths: str | Path, extra: Sequence[str] = (),
+                   inputs: Iterable[str | Path] = ()) -> Outcome:
+    """``modelcheck check PATHS --jobs 1 --no-config --format json EXTRA`` in this process
+    (``run_inprocess``: the models and ``inputs`` hashed around it)."""
+    return run_inprocess(capsys, ["check", *map(str, paths), "--jobs", "1", "--no-config", "--format", "json",
+                                  *extra], inputs=(*paths, *inputs))
+
+
+def members_by_name(capsys: Any, path: str | Path) -> dict[str, dict[str, Any]]:
+    """Name -> member entry of ``modelcheck members PATH --format json`` (in this process; exit 0)."""
+    out = run_inprocess(capsys, ["members", str(path), "--format", "json"], inputs=[path])
+    assert out.code == 0, out.stderr
+    return {m["name"]: m for m in out.json()["models"][0]["members"]}
 
 
 # ------------------------------------------------------------------------------- models
@@ -108,7 +113,7 @@ def good_builder(schema: str = "IFC4", *, force_unit: bool = True, with_units: b
     steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
     rod = mb.f.createIfcCircleProfileDef("AREA", "RD20", profile_position(mb), 10.0)
     flat = mb.f.createIfcRectangleProfileDef("AREA", "FL40x10", profile_position(mb), 40.0, 10.0)
-    force = {"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 20000.0)}}
+    force = axial_force(20000.0)
     mb.member("IfcMember", name="H1", tag="H1", profile=rod, material=steel, length=2400.0,
               predefined_type="MEMBER", psets=force)
     mb.member("IfcMember", name="H2", tag="H2", profile=flat, material=steel, length=2400.0,
@@ -163,10 +168,10 @@ def rich_builder(schema: str = "IFC4") -> ModelBuilder:
     ipe = f.createIfcIShapeProfileDef("AREA", "IPE200", profile_position(mb), 100.0, 200.0, 5.6, 8.5, 12.0)
     typ = mb.member_type(name="POST-T", profile=ipe, material=steel, body_length=3000.0)
     mb.member("IfcMember", name="P1", tag="P1", material=None, length=3000.0, member_type=typ, body="mapped",
-              material_via="none", psets={"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", -50000.0)}})
+              material_via="none", psets=axial_force(-50000.0))
     mb.member("IfcMember", name="R1", tag="R1", material=steel, length=2000.0, body="swept_disk", disk=(8.0, None),
               material_via="direct", qto={"Length": 2000.0, "CrossSectionArea": 201.06},
-              psets={"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 10000.0)}})
+              psets=axial_force(10000.0))
     return mb
 
 

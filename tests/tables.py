@@ -1,4 +1,4 @@
-"""Member tables built by hand for the engine, rating and suggestion tests."""
+"""Member and force tables built by hand for the engine, rating, suggestion and rule-set tests."""
 
 from __future__ import annotations
 
@@ -26,3 +26,19 @@ def member_table(*rows: dict[str, Any], defaults: dict[str, Any] | None = None) 
         full["warnings"] = []
         data.append(full)
     return pd.DataFrame(data, columns=list(dict.fromkeys(member_columns() + [k for r in data for k in r])))
+
+
+def force_table(*rows: tuple[str, str, float], model: str | None = "m.ifc") -> pd.DataFrame:
+    """A forces table as the join hands it to the engine: one row per (GlobalId, load case, axial
+    force in N), every row of ``model`` and from the source "test"."""
+    return pd.DataFrame({"model": [model] * len(rows), "global_id": [r[0] for r in rows],
+                         "load_case": [r[1] for r in rows], "axial_force": [float(r[2]) for r in rows],
+                         "source": ["test"] * len(rows)})
+
+
+def members_of(path: str, *elements: Any) -> pd.DataFrame:
+    """The identifying columns of the member table the reader would give for these written
+    elements of the model at ``path`` (model, global_id, tag, ifc_class, name), built by hand."""
+    return pd.DataFrame({"model": [path] * len(elements), "global_id": [e.GlobalId for e in elements],
+                         "tag": [getattr(e, "Tag", None) for e in elements],
+                         "ifc_class": [e.is_a() for e in elements], "name": [e.Name for e in elements]})

@@ -19,8 +19,7 @@ from modelcheck.ifc.reader import read_members
 from modelcheck.loads.analysis import forces_from_analysis
 from modelcheck.testing.author import ModelBuilder
 from modelcheck.testing.author_analysis import AnalysisWriter
-
-KN = 1000.0   # SI prefix kilo: the file's force unit (kN) in newtons
+from tests.helpers import KN, rectangle
 
 # A column 3 m high carrying 500 kN of compression and a wind load of 4 kN/m across it (12 kN in
 # all). Its end forces in member axes (forces on the member at its ends, the convention the reader
@@ -33,8 +32,16 @@ COLUMN_START = (500.0, 0.0, 20.0)
 COLUMN_END = (-500.0, 0.0, -8.0)
 
 
-def rect(mb: ModelBuilder, b: float, h: float) -> Any:
-    return mb.f.createIfcRectangleProfileDef("AREA", f"{b:g}x{h:g}", None, b, h)
+def _column() -> tuple[ModelBuilder, Any, AnalysisWriter, Any, Any, Any]:
+    """A metre model with S355 steel, load case LC1's result group, and column C1 (200 × 200,
+    3 m) with its analysis member from (0, 0, 0) to (0, 0, 3): (builder, steel, analysis writer,
+    result group, column, analysis member)."""
+    mb = ModelBuilder(schema="IFC4", units="m")
+    steel = mb.material("S355", category="steel")
+    an = AnalysisWriter(mb)
+    lc = an.result_group("LC1", an.load_group("LC1"))
+    column = mb.member("IfcColumn", name="C1", profile=rectangle(mb, 0.2, 0.2), material=steel, length=3.0)
+    return mb, steel, an, lc, column, an.curve_member((0, 0, 0), (0, 0, 3.0), physical=column)
 
 
 @pytest.fixture
@@ -42,14 +49,9 @@ def export(tmp_path: Path) -> tuple[Path, dict[str, Any]]:
     """The column with its end forces flagged GLOBAL_COORDS (as the export wrote them), a brace
     whose local end forces are right, a support with its reaction, and an analysis member standing
     for a footing."""
-    mb = ModelBuilder(schema="IFC4", units="m")
-    steel = mb.material("S355", category="steel")
-    an = AnalysisWriter(mb)
-    lc = an.result_group("LC1", an.load_group("LC1"))
-    column = mb.member("IfcColumn", name="C1", profile=rect(mb, 0.2, 0.2), material=steel, length=3.0)
-    cm = an.curve_member((0, 0, 0), (0, 0, 3.0), physical=column)
+    mb, steel, an, lc, column, cm = _column()
     an.curve_reaction(cm, an.end_forces(COLUMN_START, COLUMN_END, 3.0), lc, global_or_local="GLOBAL_COORDS")
-    brace = mb.member("IfcMember", name="B1", profile=rect(mb, 0.1, 0.1), material=steel, length=3.0,
+    brace = mb.member("IfcMember", name="B1", profile=rectangle(mb, 0.1, 0.1), material=steel, length=3.0,
                       start=(5.0, 0.0, 0.0))
     bm = an.curve_member((5, 0, 0), (5, 0, 3.0), physical=brace)
     # 80 kN tension, no span load: balanced in both readings (not doubted)
@@ -167,12 +169,7 @@ def test_a_right_flag_unbalanced_by_self_weight_is_left_alone(tmp_path: Path) ->
     end shears of 20 kN from its end moments. Read in global axes, the shears (20, -20) balance, but
     they are far smaller than the axial force: the flag is not doubted (common practice: an axial
     member's load runs along its axis)."""
-    mb = ModelBuilder(schema="IFC4", units="m")
-    steel = mb.material("S355", category="steel")
-    an = AnalysisWriter(mb)
-    lc = an.result_group("LC1", an.load_group("LC1"))
-    column = mb.member("IfcColumn", name="C1", profile=rect(mb, 0.2, 0.2), material=steel, length=3.0)
-    cm = an.curve_member((0, 0, 0), (0, 0, 3.0), physical=column)
+    _mb, _steel, an, lc, column, cm = _column()
     an.curve_reaction(cm, an.end_forces((490.0, 0.0, 20.0), (-500.0, 0.0, -20.0), 3.0), lc)
     path = tmp_path / "selfweight.ifc"
     an.write(str(path))

@@ -13,7 +13,7 @@ import pytest
 from modelcheck.common.errors import ModelcheckError, UsageError
 from modelcheck.report.annotate import PSET_NAME, annotate_model
 from modelcheck.testing.author import ModelBuilder
-from tests.conftest import digest
+from tests.helpers import digest
 from tests.report_runs import result_row, results_frame
 
 

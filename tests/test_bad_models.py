@@ -3,21 +3,19 @@
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 import zipfile
+from functools import partial
 
 import pytest
 
 from modelcheck.testing.author import ModelBuilder
-from tests.conftest import digest
+from tests.helpers import digest, run_modelcheck
 
 GOOD_HEADER = "ISO-10303-21;\nHEADER;\nFILE_DESCRIPTION(('ViewDefinition [CoordinationView]'),'2;1');\n" \
     "FILE_NAME('x.ifc','2026-01-01T00:00:00',(''),(''),'','','');\n"
 
 
-def _run(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "modelcheck", *args], capture_output=True, text=True, timeout=120)
+_run = partial(run_modelcheck, timeout=120)
 
 
 def _make_bad(tmp_path, kind: str):

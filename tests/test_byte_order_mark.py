@@ -7,20 +7,14 @@ from __future__ import annotations
 import tempfile
 import zipfile
 from pathlib import Path
-from typing import Any
 
 import pytest
 
 from tests.corpus import data_lines, good_builder, run_inprocess, with_line, write_model
+from tests.corpus import members_by_name as members
 
 #: the UTF-8 encoding of U+FEFF (The Unicode Standard, ch. 23.8 "Specials": byte order mark EF BB BF)
 BOM = b"\xef\xbb\xbf"
-
-
-def members(capsys: Any, path: Path) -> dict[str, dict[str, Any]]:
-    out = run_inprocess(capsys, ["members", str(path), "--format", "json"], inputs=[path])
-    assert out.code == 0, out.stderr
-    return {m["name"]: m for m in out.json()["models"][0]["members"]}
 
 
 def leftovers() -> set[str]:

@@ -8,8 +8,6 @@ from __future__ import annotations
 import json
 import math
 import shutil
-import subprocess
-import sys
 from pathlib import Path
 
 import jsonschema
@@ -17,15 +15,11 @@ import pytest
 
 from modelcheck.common.units import Q_
 from modelcheck.testing.author import ModelBuilder
-from tests.conftest import REPO, SAMPLES, digest
+from tests.helpers import REPO, SAMPLES, axial_force, digest
+from tests.helpers import run_modelcheck as run
 
 SCHEMAS = REPO / "modelcheck" / "schemas"
 LOADS = [str(p) for p in sorted(SAMPLES.glob("*-forces.csv"))]
-
-
-def run(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "modelcheck", *args], capture_output=True, text=True,
-                          timeout=300, cwd=cwd or REPO)
 
 
 def schema(name: str) -> dict:
@@ -114,7 +108,7 @@ def test_exit_codes_pass_fail_strict_and_input_error(tmp_path):
     mb = ModelBuilder(schema="IFC4", units="mm")
     steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
     rod = mb.f.createIfcCircleProfileDef("AREA", "RD20", None, 10.0)
-    light = {"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 10000.0)}}   # 10 kN
+    light = axial_force(10000.0)   # 10 kN
     mb.member("IfcMember", name="ok", tag="A1", profile=rod, material=steel, length=1000.0, psets=light)
     ok = tmp_path / "ok.ifc"
     mb.write(str(ok))
@@ -125,7 +119,7 @@ def test_exit_codes_pass_fail_strict_and_input_error(tmp_path):
     steel2 = mb2.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
     rod2 = mb2.f.createIfcCircleProfileDef("AREA", "RD20", None, 10.0)
     mb2.member("IfcMember", name="bad", profile=rod2, material=steel2, length=1000.0,
-               psets={"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 200000.0)}})
+               psets=axial_force(200000.0))
     mb2.member("IfcMember", name="noforce", profile=rod2, material=steel2, length=1000.0)
     bad = tmp_path / "bad.ifc"
     mb2.write(str(bad))
@@ -168,7 +162,7 @@ def test_user_rule_file_with_a_new_check_needs_no_code(tmp_path):
     rod = mb.f.createIfcCircleProfileDef("AREA", "RD20", None, 10.0)
     # 40 kN / 314.16 mm² = 127.3 MPa > 100 MPa: fails this company rule though S355 would pass
     mb.member("IfcMember", name="m", profile=rod, material=steel, length=1000.0,
-              psets={"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 40000.0)}})
+              psets=axial_force(40000.0))
     p = tmp_path / "m.ifc"
     mb.write(str(p))
     out = tmp_path / "r.json"
@@ -258,7 +252,7 @@ def test_net_area_from_the_model_brings_in_the_rupture_check(tmp_path):
     # 2.0 in² gross, 1.5 in² net; U = 1.0: a plate bolted through (AISC 360-16 Table D3.1 case 1)
     net = {"MC_NetSection": {"NetArea": ("IfcAreaMeasure", 1.5), "ShearLagFactor": ("IfcPositiveRatioMeasure", 1.0)}}
     mb.member("IfcMember", name="tie", tag="T1", profile=flat, material=steel, length=60.0,
-              psets={**net, "MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 40.0)}})  # 40 kip
+              psets={**net, **axial_force(40.0)})  # 40 kip
     p = tmp_path / "tie.ifc"
     mb.write(str(p))
     out = tmp_path / "r.json"
@@ -278,7 +272,7 @@ def test_shear_lag_factor_from_the_model_and_a_bad_one_refused(tmp_path):
     for tag, u in (("T1", 0.8), ("T2", 1.5)):
         net = {"MC_NetSection": {"NetArea": ("IfcAreaMeasure", 1.5), "ShearLagFactor": ("IfcPositiveRatioMeasure", u)}}
         mb.member("IfcMember", name="tie", tag=tag, profile=flat, material=steel, length=60.0,
-                  psets={**net, "MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 30.0)}})
+                  psets={**net, **axial_force(30.0)})
     p = tmp_path / "ties.ifc"
     mb.write(str(p))
     out = tmp_path / "r.json"

@@ -12,8 +12,6 @@ shows (the default worker count, the command's own exit).
 from __future__ import annotations
 
 import re
-import subprocess
-import sys
 import zipfile
 from pathlib import Path
 
@@ -22,7 +20,7 @@ import pytest
 from modelcheck.cli import main
 from modelcheck.rules.ruleset import list_rulesets
 from modelcheck.testing.author import ModelBuilder
-from tests.conftest import REPO, SAMPLES
+from tests.helpers import KN, SAMPLES, axial_force, run_modelcheck
 
 #: words a missing or non-finite value turns into when it leaks into text
 LEAK = re.compile(r"\b(?:[Nn][Aa][Nn]|None|[Ii]nf(?:inity)?|INF)\b")
@@ -31,16 +29,11 @@ GLOBAL_ID = re.compile(r"(?<![0-9A-Za-z_$])[0-9A-Za-z_$]{22}(?![0-9A-Za-z_$])")
 CRASH = re.compile(r"internal error|Traceback", re.IGNORECASE)
 
 SAMPLE_MODELS = sorted(SAMPLES.glob("*.ifc"))
-FORCE = "MC_MemberForces"
 
 
 def leaks(text: str) -> list[str]:
     """The leak words in ``text``, GlobalIds left out."""
     return LEAK.findall(GLOBAL_ID.sub("GID", text))
-
-
-def _force(kn: float) -> dict[str, dict[str, tuple[str, float]]]:
-    return {FORCE: {"AxialForce": ("IfcForceMeasure", kn * 1000.0)}}   # the model's force unit is N
 
 
 def lacking_model() -> ModelBuilder:
@@ -51,15 +44,15 @@ def lacking_model() -> ModelBuilder:
     def rod(name: str | None = "RD20") -> object:
         return mb.f.createIfcCircleProfileDef("AREA", name, None, 10.0)
 
-    mb.member(name="complete rod", tag="C-1", profile=rod(), material=steel, length=2000.0, psets=_force(20.0))
-    mb.member(name="rod without material", tag="C-2", profile=rod(), length=2000.0, psets=_force(20.0))
+    mb.member(name="complete rod", tag="C-1", profile=rod(), material=steel, length=2000.0, psets=axial_force(20.0 * KN))
+    mb.member(name="rod without material", tag="C-2", profile=rod(), length=2000.0, psets=axial_force(20.0 * KN))
     mb.member(name="rod without section name", tag="C-3", profile=rod(None), material=steel, length=2000.0,
-              psets=_force(20.0))
+              psets=axial_force(20.0 * KN))
     mb.member(name="member without profile", tag="C-4", material=steel, material_via="direct", length=2000.0,
-              body=None, psets=_force(20.0))
+              body=None, psets=axial_force(20.0 * KN))
     typ = mb.member_type(name="Rod type RD20", profile=rod(), material=steel)
     mb.member(name="rod without length", tag="C-5", member_type=typ, length=None, body=None, axis=False,
-              psets=_force(20.0))
+              psets=axial_force(20.0 * KN))
     mb.member(name="rod without force", tag="C-6", profile=rod(), material=steel, length=2000.0)
     return mb
 
@@ -71,7 +64,7 @@ def doubtful_model() -> ModelBuilder:
     psi_slip = mb.material("Steel, modulus in psi", category="steel", E=29.0e6, Fy=36.0, Fu=58.0)
     a36 = mb.material("ASTM A36", Fy=36.0, Fu=58.0)
     rod = mb.f.createIfcCircleProfileDef("AREA", "RD 3/4", None, 0.375)
-    kip = {FORCE: {"AxialForce": ("IfcForceMeasure", 5.0)}}   # the model's force unit is the kip
+    kip = axial_force(5.0)   # the model's force unit is the kip
     mb.member(name="rod with a psi modulus", tag="D-1", profile=rod, material=psi_slip, length=120.0, psets=kip)
     mb.member(name="rod whose quantity disagrees", tag="D-2", profile=rod, material=a36, length=120.0, psets=kip,
               qto={"CrossSectionArea": 0.6})
@@ -172,18 +165,15 @@ def test_check_of_all_models_at_once_in_worker_processes(tmp_path, built_models)
     """Every sample and built model in one run, with the default worker count, as a user runs it."""
     folder = tmp_path / "reports"
     folder.mkdir()
-    r = subprocess.run([sys.executable, "-m", "modelcheck", "check", str(SAMPLES), *map(str, built_models),
-                        "--no-config", "--loads", str(SAMPLES / "*-forces.csv"), "--format",
-                        ",".join(CHECK_FORMATS), "--output", str(folder)],
-                       capture_output=True, text=True, timeout=300, cwd=REPO)
+    r = run_modelcheck("check", str(SAMPLES), *map(str, built_models), "--no-config", "--loads",
+                       str(SAMPLES / "*-forces.csv"), "--format", ",".join(CHECK_FORMATS), "--output", str(folder))
     written = "".join(_file_text(p) for p in sorted(folder.iterdir()))
     _assert_clean(r.returncode, r.stdout + r.stderr + written, "check of every model")
 
 
 def test_members_command_runs_as_a_process_on_the_samples():
     """The README's own `modelcheck members sample_models/...`, default format, as a process."""
-    r = subprocess.run([sys.executable, "-m", "modelcheck", "members", str(SAMPLES)],
-                       capture_output=True, text=True, timeout=300, cwd=REPO)
+    r = run_modelcheck("members", str(SAMPLES))
     _assert_clean(r.returncode, r.stdout + r.stderr, "members sample_models/", codes=(0,))
     flowing = " ".join(r.stdout.split())   # a title wraps at the console's width
     for model in SAMPLE_MODELS:   # each table's title: "<path> (<schema>, N members)"

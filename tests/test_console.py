@@ -12,8 +12,6 @@ import csv
 import io
 import json
 import math
-import subprocess
-import sys
 from pathlib import Path
 
 import pandas as pd
@@ -28,24 +26,13 @@ from modelcheck.rules.ruleset import load_ruleset
 from modelcheck.rules.select import Selector
 from modelcheck.run.runner import run_check
 from modelcheck.testing.author import ModelBuilder
-from tests.conftest import REPO
+from tests.helpers import KN, REPO, axial_force
+from tests.helpers import run_modelcheck as run
 
 
 def flat(text: str) -> str:
     """The text with every run of white space one space (lines wrapped at any width read as one)."""
     return " ".join(text.split())
-
-
-def run(*args: str, cwd: Path | None = None, env: dict[str, str] | None = None) -> subprocess.CompletedProcess:
-    import os
-
-    environ = {k: v for k, v in os.environ.items() if k != "COLUMNS"} | (env or {})
-    return subprocess.run([sys.executable, "-m", "modelcheck", *args], capture_output=True, text=True,
-                          timeout=300, cwd=cwd or REPO, env=environ)
-
-
-def force(kn: float) -> dict[str, dict[str, tuple[str, float]]]:
-    return {"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", kn * 1000.0)}}   # N in a mm model
 
 
 # ------------------------------------------------------------------------------ models
@@ -60,15 +47,15 @@ def mixed_model(path: Path) -> Path:
     ub = mb.f.createIfcIShapeProfileDef("AREA", "UB 203x133x25", None, 133.2, 203.2, 5.7, 7.8, None)
     for i, kn in enumerate((60.0, 140.0, 95.0, 20.0)):
         mb.member("IfcMember", name=f"Hanger rod over platform bay {i + 1}", tag=f"HR-{i + 1:02d}",
-                  profile=rod(16.0, "RD16 (M16 hanger rod)"), material=s355, length=3400.0, psets=force(kn))
+                  profile=rod(16.0, "RD16 (M16 hanger rod)"), material=s355, length=3400.0, psets=axial_force(kn * KN))
     mb.member("IfcMember", name="Roof tie [bold]north[/] side", profile=ub, material=s355, length=6000.0,
-              psets=force(1400.0))
+              psets=axial_force(1400.0 * KN))
     mb.member("IfcMember", name="Strut without strengths", tag="ST-09", profile=rod(30.0, "RD30"), material=unknown,
-              length=2500.0, psets=force(10.0))
+              length=2500.0, psets=axial_force(10.0 * KN))
     mb.member("IfcMember", name="Rod with no force", tag="TR-04", profile=rod(20.0, "RD20"), material=s355,
               length=2000.0)
     mb.member("IfcColumn", name="Concrete post", tag="CP-1", profile=rod(300.0, "D300"), material=concrete,
-              length=3000.0, psets=force(200.0))
+              length=3000.0, psets=axial_force(200.0 * KN))
     p = path / "mixed.ifc"
     mb.write(str(p))
     return p
@@ -185,7 +172,7 @@ def test_nothing_checked_is_the_headline_and_exit_1(tmp_path):
     bare = mb.material("Product 7")
     for i in range(3):
         mb.member("IfcMember", name=f"Bare {i}", profile=mb.f.createIfcCircleProfileDef("AREA", "RD20", None, 10.0),
-                  material=bare, length=1000.0, psets=force(5.0))
+                  material=bare, length=1000.0, psets=axial_force(5.0 * KN))
     p = tmp_path / "bare.ifc"
     mb.write(str(p))
     r = run("check", str(p), "--jobs", "1", env={"COLUMNS": "300"})
@@ -210,7 +197,7 @@ def test_every_member_excluded_is_nothing_checked_with_the_reason(tmp_path):
     concrete = mb.material("C30/37", category="concrete", E=33000.0)
     for i in range(5):
         mb.member("IfcColumn", name=f"Post {i}", profile=mb.f.createIfcCircleProfileDef("AREA", "D300", None, 150.0),
-                  material=concrete, length=3000.0, psets=force(200.0))
+                  material=concrete, length=3000.0, psets=axial_force(200.0 * KN))
     p = tmp_path / "posts.ifc"
     mb.write(str(p))
     r = run("check", str(p), "--jobs", "1", env={"COLUMNS": "300"})
@@ -292,7 +279,7 @@ def test_an_inch_model_is_reported_in_us_units(tmp_path):
     a36 = mb.material("ASTM A36", category="steel")
     rod = mb.f.createIfcCircleProfileDef("AREA", "ROD 3/4", None, 0.375)
     mb.member("IfcMember", name="Hanger rod", tag="H1", profile=rod, material=a36, length=120.0,
-              psets={"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 15.0)}})   # 15 kip
+              psets=axial_force(15.0))   # 15 kip
     p = tmp_path / "inch.ifc"
     mb.write(str(p))
     r = run("check", str(p), "--rules", "steel-ec3", "--format", "json", "--jobs", "1")

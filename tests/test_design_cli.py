@@ -9,9 +9,7 @@ from __future__ import annotations
 import argparse
 import json
 import math
-import subprocess
 import sys
-from pathlib import Path
 
 import pytest
 
@@ -19,8 +17,7 @@ from modelcheck.cli.size import add_size_parser, cmd_size, parse_force
 from modelcheck.common.errors import ModelcheckError, UsageError
 from modelcheck.common.units import Q_
 from modelcheck.report.members import CAUTION
-
-ROOT = Path(__file__).resolve().parents[1]
+from tests.helpers import run_modelcheck
 
 
 def _registered() -> bool:
@@ -39,8 +36,7 @@ REGISTERED = _registered()
 def run(argv: list[str], capsys: pytest.CaptureFixture[str]) -> tuple[int, str, str]:
     """Exit code, stdout, stderr of `modelcheck size ARGV`."""
     if REGISTERED:
-        p = subprocess.run([sys.executable, "-m", "modelcheck", "size", *argv], capture_output=True, text=True,
-                           cwd=ROOT, timeout=120)
+        p = run_modelcheck("size", *argv, timeout=120)
         return p.returncode, p.stdout, p.stderr
     parser = argparse.ArgumentParser(prog="modelcheck")
     add_size_parser(parser.add_subparsers(dest="command"))

@@ -10,22 +10,15 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from modelcheck.common.units import Q_
 from modelcheck.design.rating import rate_members
 from modelcheck.report.quantities import DisplayUnits
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import load_ruleset
-from tests.tables import member_table
+from tests.helpers import FT, IN, IN2, KIP, KSI, SAMPLES
+from tests.tables import member_table as members
 
 NAN = np.nan
-IN, IN2 = 0.0254, 0.0254**2
-KSI = Q_(1, "ksi").m_as("Pa")          # pint
-KIP = Q_(1, "kip").m_as("N")           # pint
 US, SI = DisplayUnits("US"), DisplayUnits("SI")
-
-
-def members(*rows: dict[str, Any]) -> pd.DataFrame:
-    return member_table(*rows)
 
 
 def w8x31_a992(length_ft: float) -> dict[str, Any]:
@@ -33,7 +26,7 @@ def w8x31_a992(length_ft: float) -> dict[str, Any]:
     # Fu 65 ksi; E = 29,000 ksi (AISC 360-16 B3 user note); all from memory
     return {"shape": "I", "section_name": "W8X31", "area": 9.13 * IN2, "r_min": 2.02 * IN,
             "h": 8.0 * IN, "b": 8.0 * IN, "tf": 0.435 * IN, "tw": 0.285 * IN,
-            "length": length_ft * 0.3048, "E": 29000 * KSI, "Fy": 50 * KSI, "Fu": 65 * KSI}
+            "length": length_ft * FT, "E": 29000 * KSI, "Fy": 50 * KSI, "Fu": 65 * KSI}
 
 
 def value(q: dict[str, Any] | None) -> float:
@@ -156,14 +149,11 @@ def test_members_alike_are_rated_once_but_each_gets_its_own_row() -> None:
 
 
 def test_sample_models_are_all_rated_and_json_ready() -> None:
-    from pathlib import Path
-
     from modelcheck.core.read import read_model
 
-    root = Path(__file__).resolve().parents[1] / "sample_models"
     for name, rules, units in (("canopy", "steel-asd-us", US), ("hall", "steel-ec3", SI),
                                ("pipebridge", "steel-ec3", SI)):
-        d = read_model(str(root / f"nettlebrook-{name}.ifc"))
+        d = read_model(str(SAMPLES / f"nettlebrook-{name}.ifc"))
         r = rate_members(load_ruleset(rules), d.members, units)
         assert list(r.global_id) == list(d.members.global_id)
         rated = r.tension.notna() | r.compression.notna()
@@ -187,7 +177,7 @@ def test_a_limit_no_force_satisfies_gives_no_rating() -> None:
            "length": 850 * d / 4, "E": 29000 * KSI, "Fy": 36 * KSI, "Fu": 58 * KSI}
     # an L4X4X1/4 angle 40 ft long: L/r = 480 in / 0.791 in = 607 > 300 (AISC 360-16 D1 user note;
     # rz = 0.791 in, AISC Shapes Database v15.0, from memory)
-    angle = {"shape": "L", "area": 1.93 * IN2, "r_min": 0.791 * IN, "length": 40 * 0.3048,
+    angle = {"shape": "L", "area": 1.93 * IN2, "r_min": 0.791 * IN, "length": 40 * FT,
              "E": 29000 * KSI, "Fy": 36 * KSI, "Fu": 58 * KSI}
     r = rate_members(rs, members(rod, angle), US)
     assert r.compression[0] is None and r.compression_check[0] is None

@@ -11,11 +11,8 @@ from modelcheck.common.units import Q_
 from modelcheck.design.sizing import size
 from modelcheck.design.stock import load_shapes
 from modelcheck.rules.ruleset import load_ruleset
+from tests.helpers import FT, IN, KIP, KSI
 
-IN = 0.0254
-KSI = Q_(1, "ksi").m_as("Pa")       # pint
-KIP = Q_(1, "kip").m_as("N")        # pint
-FT = Q_(1, "ft").m_as("m")          # pint
 E_US = 29000.0                      # ksi, AISC 360-16 symbols (from memory)
 FY_A36, FU_A36 = 36.0, 58.0         # ksi, ASTM A36 (from memory)
 FY_A992 = 50.0                      # ksi, ASTM A992 (from memory)

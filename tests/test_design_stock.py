@@ -21,9 +21,7 @@ from modelcheck.common.errors import RuleSetError
 from modelcheck.common.units import Q_
 from modelcheck.design import stock
 from modelcheck.rules.ruleset import load_ruleset
-
-IN = 0.0254          # m, exact (pint agrees: test_units)
-IN2 = IN**2
+from tests.helpers import IN, IN2
 
 
 def us() -> stock.StockSeries:

@@ -4,34 +4,21 @@ from __future__ import annotations
 
 import json
 import math
-from pathlib import Path
 from typing import Any
 
 import numpy as np
 import pandas as pd
 import pytest
 
-from modelcheck.common.units import Q_
 from modelcheck.design import stock
 from modelcheck.design.suggest import suggest
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import load_ruleset
-from tests.tables import member_table
+from tests.helpers import IN, KIP, KSI, REPO, SAMPLES
+from tests.tables import force_table as forces
+from tests.tables import member_table as members
 
 NAN = np.nan
-IN = 0.0254
-KSI = Q_(1, "ksi").m_as("Pa")          # pint
-KIP = Q_(1, "kip").m_as("N")           # pint
-ROOT = Path(__file__).resolve().parents[1]
-
-
-def members(*rows: dict[str, Any]) -> pd.DataFrame:
-    return member_table(*rows)
-
-
-def forces(*rows: tuple[str, str, float]) -> pd.DataFrame:
-    return pd.DataFrame({"model": "m.ifc", "global_id": [r[0] for r in rows], "load_case": [r[1] for r in rows],
-                         "axial_force": [float(r[2]) for r in rows], "source": "test"})
 
 
 def a36(**kw: Any) -> dict[str, Any]:
@@ -158,9 +145,9 @@ def test_every_suggestion_on_the_samples_passes_all_its_checks(name: str, rules:
     from modelcheck.core.read import read_model
     from modelcheck.loads.tables import read_load_table
 
-    opts = ForceOptions(tables=(read_load_table(str(ROOT / "sample_models" / f"nettlebrook-{name}-forces.csv")),),
+    opts = ForceOptions(tables=(read_load_table(str(SAMPLES / f"nettlebrook-{name}-forces.csv")),),
                         property=("MC_MemberForces", "AxialForce"))
-    d = read_model(str(ROOT / "sample_models" / f"nettlebrook-{name}.ifc"), opts)
+    d = read_model(str(SAMPLES / f"nettlebrook-{name}.ifc"), opts)
     rs = load_ruleset(rules)
     res = run_checks(rs, d.members, d.forces)
     out = suggest(rs, d.members, d.forces, res)
@@ -184,7 +171,7 @@ def test_every_suggestion_on_the_samples_passes_all_its_checks(name: str, rules:
 def test_suggestion_matches_the_report_schema() -> None:
     import jsonschema
 
-    schema = json.loads((ROOT / "modelcheck" / "schemas" / "check.schema.json").read_text(encoding="utf-8"))
+    schema = json.loads((REPO / "modelcheck" / "schemas" / "check.schema.json").read_text(encoding="utf-8"))
     rs = load_ruleset("steel-asd-us")
     d = 0.75 * IN
     m = members(a36(shape="round-bar", name="ROD", d=d, area=math.pi / 4 * d * d, r_min=d / 4, length=2.0))
@@ -206,9 +193,9 @@ def test_bisection_and_every_size_suggest_the_same(name: str, monkeypatch: pytes
     from modelcheck.design import suggest as module
     from modelcheck.loads.tables import read_load_table
 
-    opts = ForceOptions(tables=(read_load_table(str(ROOT / "sample_models" / f"nettlebrook-{name}-forces.csv")),),
+    opts = ForceOptions(tables=(read_load_table(str(SAMPLES / f"nettlebrook-{name}-forces.csv")),),
                         property=("MC_MemberForces", "AxialForce"))
-    d = read_model(str(ROOT / "sample_models" / f"nettlebrook-{name}.ifc"), opts)
+    d = read_model(str(SAMPLES / f"nettlebrook-{name}.ifc"), opts)
     rs = load_ruleset("steel-asd-us")
     res = run_checks(rs, d.members, d.forces)
     every = by_member(suggest(rs, d.members, d.forces, res))

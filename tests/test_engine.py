@@ -15,7 +15,7 @@ from modelcheck.common.table import RESULT_COLUMNS
 from modelcheck.common.units import Q_, ureg
 from modelcheck.rules.engine import evaluate_expression, run_checks
 from modelcheck.rules.ruleset import RuleSet, load_ruleset
-from tests.tables import member_table
+from tests.tables import force_table, member_table
 
 NAN = np.nan
 
@@ -32,11 +32,7 @@ def members(*rows: dict[str, Any]) -> pd.DataFrame:
 
 
 def forces(*rows: tuple[str, str, float], model: str | None = "m1.ifc") -> pd.DataFrame:
-    return pd.DataFrame({
-        "model": [model] * len(rows), "global_id": [r[0] for r in rows],
-        "load_case": [r[1] for r in rows], "axial_force": [float(r[2]) for r in rows],
-        "source": ["test"] * len(rows),
-    })
+    return force_table(*rows, model=model)
 
 
 def ruleset(tmp_path: Path, checks: str, extra: str = "", units: str = "SI") -> RuleSet:

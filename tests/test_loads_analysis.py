@@ -14,16 +14,8 @@ from modelcheck.ifc.index import ModelIndex, build_index
 from modelcheck.loads.analysis import forces_from_analysis
 from modelcheck.testing.author import ModelBuilder
 from modelcheck.testing.author_analysis import AnalysisWriter
-
-LBF_NIST = 4.4482216152605  # NIST SP 811: 1 lbf = 4.448 221 615 260 5 N (exact)
-KN = 1000.0                 # SI prefix kilo: the kN file's force unit in newtons
-
-
-def members_of(path: str, *els: Any) -> pd.DataFrame:
-    """The member table the reader would give, built by hand from the written elements."""
-    return pd.DataFrame({"model": [path] * len(els), "global_id": [e.GlobalId for e in els],
-                         "tag": [getattr(e, "Tag", None) for e in els], "ifc_class": [e.is_a() for e in els],
-                         "name": [e.Name for e in els]})
+from tests.helpers import KN, LBF_NIST
+from tests.tables import members_of
 
 
 def setup(schema: str = "IFC4", units: str = "m", **kw: Any) -> tuple[ModelBuilder, AnalysisWriter, Any]:

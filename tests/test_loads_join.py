@@ -20,8 +20,7 @@ from modelcheck.loads.sources import ForceOptions, LoadTables, SourceForces, ran
 from modelcheck.loads.tables import LoadTable, read_load_table
 from modelcheck.testing.author import ModelBuilder
 from modelcheck.testing.author_analysis import AnalysisWriter
-
-KN = 1000.0  # SI prefix kilo
+from tests.helpers import KN, axial_force
 
 
 def members(rows: list[tuple[str, str, str | None]]) -> pd.DataFrame:
@@ -59,7 +58,7 @@ def as_dict(df: pd.DataFrame) -> dict[tuple[str, str, str], tuple[float, str]]:
 def test_end_to_end_three_routes_and_precedence(tmp_path: Path) -> None:
     """A: table + analysis + property; B: analysis + property; C: property only; D: nothing."""
     mb = ModelBuilder(schema="IFC4", units="m")
-    prop = {"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 1.0)}}
+    prop = axial_force(1.0)
     a, b, c, d = (mb.member("IfcMember", tag=t, length=3.0, start=(i, 0, 0), psets=prop if t != "D" else None)
                   for i, t in enumerate("ABCD"))
     an = AnalysisWriter(mb)

@@ -13,24 +13,10 @@ from modelcheck.common.units import Q_
 from modelcheck.ifc.index import build_index
 from modelcheck.loads.properties import forces_from_property, parse_property_name
 from modelcheck.testing.author import ModelBuilder
+from tests.helpers import LBF_NIST, axial_force, round_bar
+from tests.tables import members_of
 
-LBF_NIST = 4.4482216152605  # NIST SP 811: 1 lbf = 4.448 221 615 260 5 N (exact)
 PSET, PROP = "MC_MemberForces", "AxialForce"
-
-
-def members_of(path: str, *els: Any) -> pd.DataFrame:
-    """The member table the reader would give, built by hand from the written elements."""
-    return pd.DataFrame({"model": [path] * len(els), "global_id": [e.GlobalId for e in els],
-                         "tag": [e.Tag for e in els], "ifc_class": [e.is_a() for e in els],
-                         "name": [e.Name for e in els]})
-
-
-def rod(mb: ModelBuilder, r: float) -> Any:
-    return mb.f.createIfcCircleProfileDef("AREA", "RD", None, r)
-
-
-def force_pset(value: float, measure: str = "IfcForceMeasure") -> dict[str, dict[str, tuple[str, Any]]]:
-    return {PSET: {PROP: (measure, value)}}
 
 
 def by_gid(df: pd.DataFrame) -> dict[str, float]:
@@ -40,8 +26,8 @@ def by_gid(df: pd.DataFrame) -> dict[str, float]:
 @pytest.mark.parametrize("schema", ["IFC2X3", "IFC4", "IFC4X3"])
 def test_occurrence_property_in_newtons(tmp_path: Path, schema: str) -> None:
     mb = ModelBuilder(schema=schema, units="mm")
-    a = mb.member("IfcMember", tag="H1", profile=rod(mb, 8.0), length=2000.0, psets=force_pset(-1500.0))
-    b = mb.member("IfcMember", tag="H2", profile=rod(mb, 8.0), length=2000.0)  # no property
+    a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 16.0, "RD"), length=2000.0, psets=axial_force(-1500.0))
+    b = mb.member("IfcMember", tag="H2", profile=round_bar(mb, 16.0, "RD"), length=2000.0)  # no property
     mb.write(str(tmp_path / "m.ifc"))
     idx = build_index(tmp_path / "m.ifc")
     forces, msgs = forces_from_property(idx, members_of(idx.path, a, b), PSET, PROP)
@@ -54,7 +40,7 @@ def test_occurrence_property_in_newtons(tmp_path: Path, schema: str) -> None:
 
 def test_kilonewton_file_and_load_case(tmp_path: Path) -> None:
     mb = ModelBuilder(schema="IFC4", units="m")
-    a = mb.member("IfcMember", tag="H1", profile=rod(mb, 0.008), length=2.0, psets=force_pset(12.5))
+    a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 0.016, "RD"), length=2.0, psets=axial_force(12.5))
     mb.write(str(tmp_path / "m.ifc"))
     idx = build_index(tmp_path / "m.ifc")
     forces, _ = forces_from_property(idx, members_of(idx.path, a), PSET, PROP, load_case="SLS")
@@ -64,7 +50,7 @@ def test_kilonewton_file_and_load_case(tmp_path: Path) -> None:
 
 def test_kip_file_against_nist_and_pint(tmp_path: Path) -> None:
     mb = ModelBuilder(schema="IFC4", units="inch-kip")
-    a = mb.member("IfcMember", tag="H1", profile=rod(mb, 0.375), length=96.0, psets=force_pset(3.2))
+    a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 0.75, "RD"), length=96.0, psets=axial_force(3.2))
     mb.write(str(tmp_path / "m.ifc"))
     idx = build_index(tmp_path / "m.ifc")
     forces, _ = forces_from_property(idx, members_of(idx.path, a), PSET, PROP)
@@ -76,9 +62,9 @@ def test_inherited_from_type_and_occurrence_overrides(tmp_path: Path) -> None:
     mb = ModelBuilder(schema="IFC4", units="mm")
     typ = mb.member_type(name="HR-M16 hanger")
     mb.attach_pset(typ, mb.property_set(PSET, {PROP: ("IfcForceMeasure", 800.0)}))
-    a = mb.member("IfcMember", tag="H1", profile=rod(mb, 8.0), length=2000.0, member_type=typ)
-    b = mb.member("IfcMember", tag="H2", profile=rod(mb, 8.0), length=2000.0, member_type=typ,
-                  psets=force_pset(950.0))
+    a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 16.0, "RD"), length=2000.0, member_type=typ)
+    b = mb.member("IfcMember", tag="H2", profile=round_bar(mb, 16.0, "RD"), length=2000.0, member_type=typ,
+                  psets=axial_force(950.0))
     mb.write(str(tmp_path / "m.ifc"))
     idx = build_index(tmp_path / "m.ifc")
     forces, msgs = forces_from_property(idx, members_of(idx.path, a, b), PSET, PROP)
@@ -104,9 +90,9 @@ def test_property_unit_overrides_project_unit(tmp_path: Path) -> None:
     lbf = f.createIfcConversionBasedUnit(f.createIfcDimensionalExponents(1, 1, -2, 0, 0, 0, 0), "FORCEUNIT",
                                          "pound-force", f.createIfcMeasureWithUnit(
                                              f.create_entity("IfcForceMeasure", LBF_NIST), newton))
-    a = mb.member("IfcMember", tag="H1", profile=rod(mb, 8.0), length=2000.0)
-    b = mb.member("IfcMember", tag="H2", profile=rod(mb, 8.0), length=2000.0)
-    c = mb.member("IfcMember", tag="H3", profile=rod(mb, 8.0), length=2000.0)
+    a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 16.0, "RD"), length=2000.0)
+    b = mb.member("IfcMember", tag="H2", profile=round_bar(mb, 16.0, "RD"), length=2000.0)
+    c = mb.member("IfcMember", tag="H3", profile=round_bar(mb, 16.0, "RD"), length=2000.0)
     mb.attach_pset(a, _own_unit_pset(mb, 2.0, kn))
     mb.attach_pset(b, _own_unit_pset(mb, 100.0, lbf))
     mb.attach_pset(c, _own_unit_pset(mb, 1.5, kn, measure="IfcReal"))  # a plain number made a force by its unit
@@ -123,8 +109,8 @@ def test_property_unit_overrides_project_unit(tmp_path: Path) -> None:
 
 def test_no_forceunit_gives_no_force_and_a_message(tmp_path: Path) -> None:
     mb = ModelBuilder(schema="IFC4", units="mm", force_unit=False)
-    a = mb.member("IfcMember", tag="H1", profile=rod(mb, 8.0), length=2000.0, psets=force_pset(1500.0))
-    b = mb.member("IfcMember", tag="H2", profile=rod(mb, 8.0), length=2000.0)
+    a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 16.0, "RD"), length=2000.0, psets=axial_force(1500.0))
+    b = mb.member("IfcMember", tag="H2", profile=round_bar(mb, 16.0, "RD"), length=2000.0)
     mb.attach_pset(b, _own_unit_pset(mb, 3.0, mb.f.createIfcSIUnit(None, "FORCEUNIT", "KILO", "NEWTON")))
     mb.write(str(tmp_path / "m.ifc"))
     idx = build_index(tmp_path / "m.ifc")
@@ -143,7 +129,7 @@ def test_no_forceunit_gives_no_force_and_a_message(tmp_path: Path) -> None:
 ])
 def test_unusable_values_give_messages(tmp_path: Path, measure: str, value: Any, fragment: str) -> None:
     mb = ModelBuilder(schema="IFC4", units="mm")
-    a = mb.member("IfcMember", tag="H1", profile=rod(mb, 8.0), length=2000.0, psets=force_pset(value, measure))
+    a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 16.0, "RD"), length=2000.0, psets=axial_force(value, measure))
     mb.write(str(tmp_path / "m.ifc"))
     idx = build_index(tmp_path / "m.ifc")
     forces, msgs = forces_from_property(idx, members_of(idx.path, a), PSET, PROP)
@@ -153,8 +139,8 @@ def test_unusable_values_give_messages(tmp_path: Path, measure: str, value: Any,
 
 def test_text_value_with_unit(tmp_path: Path) -> None:
     mb = ModelBuilder(schema="IFC4", units="mm")
-    a = mb.member("IfcMember", tag="H1", profile=rod(mb, 8.0), length=2000.0,
-                  psets=force_pset("2.5 kip", "IfcLabel"))
+    a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 16.0, "RD"), length=2000.0,
+                  psets=axial_force("2.5 kip", "IfcLabel"))
     mb.write(str(tmp_path / "m.ifc"))
     idx = build_index(tmp_path / "m.ifc")
     forces, msgs = forces_from_property(idx, members_of(idx.path, a), PSET, PROP)
@@ -164,7 +150,7 @@ def test_text_value_with_unit(tmp_path: Path) -> None:
 
 def test_members_of_other_models_are_ignored(tmp_path: Path) -> None:
     mb = ModelBuilder(schema="IFC4", units="mm")
-    a = mb.member("IfcMember", tag="H1", profile=rod(mb, 8.0), length=2000.0, psets=force_pset(10.0))
+    a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 16.0, "RD"), length=2000.0, psets=axial_force(10.0))
     mb.write(str(tmp_path / "m.ifc"))
     idx = build_index(tmp_path / "m.ifc")
     members = pd.concat([members_of(idx.path, a), members_of("other.ifc", a)])

@@ -16,11 +16,10 @@ from modelcheck.common.errors import LoadTableError
 from modelcheck.common.units import Q_, normalise_unit
 from modelcheck.loads import tables
 from modelcheck.loads.tables import LOAD_TABLE_COLUMNS, force_unit_factor, read_load_table
+from tests.helpers import KIP_NIST, LBF_NIST
 
-# NIST SP 811 (Appendix B): 1 lbf = 4.448 221 615 260 5 N, exact by definition
-# (0.453 592 37 kg × 9.806 65 m/s²); 1 kip = 1000 lbf.
-LBF_NIST = 4.4482216152605
-KIP_NIST = 1000.0 * LBF_NIST
+# NIST SP 811 (Appendix B): 1 lbf = 4.448 221 615 260 5 N, exact by definition (LBF_NIST)
+# (0.453 592 37 kg × 9.806 65 m/s²); 1 kip = 1000 lbf (KIP_NIST).
 
 
 def write(tmp_path: Path, text: str, name: str = "loads.csv", encoding: str = "utf-8") -> Path:

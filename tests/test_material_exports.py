@@ -8,7 +8,6 @@ import math
 from pathlib import Path
 from typing import Any
 
-import pint
 import pytest
 
 from modelcheck.core.check import check_model
@@ -16,20 +15,7 @@ from modelcheck.core.model import ForceOptions
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
 from modelcheck.testing.author import ModelBuilder
-
-UREG = pint.UnitRegistry()   # an independent registry as the conversion reference
-
-
-def pa(text: str) -> float:
-    return float(UREG.Quantity(text).to("Pa").magnitude)
-
-
-def rect(mb: ModelBuilder, b: float, h: float) -> Any:
-    return mb.f.createIfcRectangleProfileDef("AREA", f"{b:g}x{h:g}", None, b, h)
-
-
-def rod(mb: ModelBuilder, d: float) -> Any:
-    return mb.f.createIfcCircleProfileDef("AREA", f"RD{d:g}", None, d / 2)
+from tests.helpers import axial_force, rectangle, round_bar, si
 
 
 def read(path: Path) -> dict[str, dict[str, Any]]:
@@ -59,14 +45,14 @@ def mixed_ifc2x3(tmp_model: Any) -> Path:
     a992 = mb.material("A992Fy50")
     vague = mb.material("Material 7")
     pad = mb.material("MISCELLANEOUS/Neoprene")
-    mb.member("IfcColumn", name="C1", profile=rect(mb, 300, 300), material=conc, length=3000.0, material_via="direct")
-    mb.member("IfcColumn", name="C2", profile=rect(mb, 400, 400), material=conc, length=3000.0, material_via="direct")
-    mb.member("IfcMember", name="T1", profile=rect(mb, 100, 200), material=glulam, length=4000.0,
+    mb.member("IfcColumn", name="C1", profile=rectangle(mb, 300, 300), material=conc, length=3000.0, material_via="direct")
+    mb.member("IfcColumn", name="C2", profile=rectangle(mb, 400, 400), material=conc, length=3000.0, material_via="direct")
+    mb.member("IfcMember", name="T1", profile=rectangle(mb, 100, 200), material=glulam, length=4000.0,
               material_via="direct")
-    mb.member("IfcMember", name="B1", profile=rod(mb, 20), material=steel, length=2000.0, material_via="direct")
-    mb.member("IfcMember", name="B2", profile=rod(mb, 20), material=a992, length=2000.0, material_via="direct")
-    mb.member("IfcMember", name="X1", profile=rod(mb, 20), material=vague, length=2000.0, material_via="direct")
-    mb.member("IfcMember", name="N1", profile=rect(mb, 200, 20), material=pad, length=300.0, material_via="direct")
+    mb.member("IfcMember", name="B1", profile=round_bar(mb, 20), material=steel, length=2000.0, material_via="direct")
+    mb.member("IfcMember", name="B2", profile=round_bar(mb, 20), material=a992, length=2000.0, material_via="direct")
+    mb.member("IfcMember", name="X1", profile=round_bar(mb, 20), material=vague, length=2000.0, material_via="direct")
+    mb.member("IfcMember", name="N1", profile=rectangle(mb, 200, 20), material=pad, length=300.0, material_via="direct")
     return tmp_model(mb)
 
 
@@ -82,13 +68,13 @@ def test_categories_and_grades_of_an_ifc2x3_export(mixed_ifc2x3: Path) -> None:
         "N1": ("other", None),
     }
     # the strength the name states is its yield strength, with the name as its source
-    assert m["B1"]["Fy"] == pytest.approx(pa("345 MPa"), rel=1e-9)
+    assert m["B1"]["Fy"] == pytest.approx(si("345 MPa"), rel=1e-9)
     assert "Metal - Steel - 345 MPa" in m["B1"]["Fy_source"]
     assert math.isnan(m["B1"]["E"])          # nothing states E: missing, never assumed
     # A992Fy50: Fy = 50 ksi from the name (US practice), E and Fu from the library's A992
-    assert m["B2"]["Fy"] == pytest.approx(pa("50 ksi"), rel=1e-9)
+    assert m["B2"]["Fy"] == pytest.approx(si("50 ksi"), rel=1e-9)
     assert "A992Fy50" in m["B2"]["Fy_source"]
-    assert m["B2"]["E"] == pytest.approx(pa("29000 ksi"), rel=1e-9)   # AISC 360-16: E = 29,000 ksi (from memory)
+    assert m["B2"]["E"] == pytest.approx(si("29000 ksi"), rel=1e-9)   # AISC 360-16: E = 29,000 ksi (from memory)
     assert m["B2"]["E_source"] == "rulesets/materials.toml: ASTM A992"
     assert any("category unknown" in w for w in m["X1"]["warnings"])
 
@@ -139,12 +125,12 @@ def test_values_from_a_set_named_after_the_program_each_with_its_own_unit(tmp_mo
         prop(mb, "ThermalExpansionCoefficient", "IfcThermalExpansionCoefficientMeasure", 1.2e-5, per_k),
         prop(mb, "MassDensity", "IfcMassDensityMeasure", 7850.0, density_unit),
     ]})
-    mb.member("IfcMember", name="M1", profile=rod(mb, 20), material=mat, length=2000.0)
+    mb.member("IfcMember", name="M1", profile=round_bar(mb, 20), material=mat, length=2000.0)
     m = read(tmp_model(mb))
     # each value in its own unit, converted by pint (the reference): 2.1e11 Pa, 3.55e8 Pa, 510 MPa
     assert m["M1"]["E"] == pytest.approx(2.1e11, rel=1e-12)
     assert m["M1"]["Fy"] == pytest.approx(3.55e8, rel=1e-12)
-    assert m["M1"]["Fu"] == pytest.approx(pa("510 MPa"), rel=1e-12)
+    assert m["M1"]["Fu"] == pytest.approx(si("510 MPa"), rel=1e-12)
     assert m["M1"]["alpha"] == pytest.approx(1.2e-5, rel=1e-12)
     assert m["M1"]["E_source"].startswith("FEM-Export.YoungModulus")
     assert m["M1"]["material_category"] == "steel"
@@ -158,12 +144,12 @@ def test_buildingsmart_sets_rank_before_the_programs_own(tmp_model: Any) -> None
                      prop(mb, "YoungModulus", "IfcModulusOfElasticityMeasure", 205000.0)],
         "Pset_MaterialSteel": [prop(mb, "YieldStress", "IfcPressureMeasure", 355.0)],
     })
-    mb.member("IfcMember", name="M1", profile=rod(mb, 20), material=mat, length=2000.0)
+    mb.member("IfcMember", name="M1", profile=round_bar(mb, 20), material=mat, length=2000.0)
     m = read(tmp_model(mb))
-    assert m["M1"]["Fy"] == pytest.approx(pa("355 MPa"), rel=1e-12)
+    assert m["M1"]["Fy"] == pytest.approx(si("355 MPa"), rel=1e-12)
     assert m["M1"]["Fy_source"].startswith("Pset_MaterialSteel.YieldStress")
     # what the buildingSMART set lacks comes from the program's set, ahead of the library's 210 GPa
-    assert m["M1"]["E"] == pytest.approx(pa("205000 MPa"), rel=1e-12)
+    assert m["M1"]["E"] == pytest.approx(si("205000 MPa"), rel=1e-12)
     assert m["M1"]["E_source"].startswith("Analysis.YoungModulus")
 
 
@@ -179,14 +165,14 @@ def test_no_unit_for_the_measure_type_is_the_reason_unless_the_value_has_its_own
     mwu = mb.f.createIfcMeasureWithUnit(mb.f.create_entity("IfcModulusOfElasticityMeasure", 205.0), gpa)
     with_unit = _analysis_steel(mb, "Steel C", {"Material": [
         mb.f.createIfcPropertySingleValue("YoungModulus", None, mwu, None)]})
-    mb.member("IfcMember", name="A", profile=rod(mb, 20), material=bare, length=2000.0)
-    mb.member("IfcMember", name="B", profile=rod(mb, 20), material=own, length=2000.0)
-    mb.member("IfcMember", name="C", profile=rod(mb, 20), material=with_unit, length=2000.0)
+    mb.member("IfcMember", name="A", profile=round_bar(mb, 20), material=bare, length=2000.0)
+    mb.member("IfcMember", name="B", profile=round_bar(mb, 20), material=own, length=2000.0)
+    mb.member("IfcMember", name="C", profile=round_bar(mb, 20), material=with_unit, length=2000.0)
     m = read(tmp_model(mb))
-    assert m["C"]["E"] == pytest.approx(pa("205 GPa"), rel=1e-12)   # 205 GPa in its own unit (pint)
+    assert m["C"]["E"] == pytest.approx(si("205 GPa"), rel=1e-12)   # 205 GPa in its own unit (pint)
     assert math.isnan(m["A"]["E"]) and m["A"]["E_source"] is None
     assert any("MODULUSOFELASTICITYUNIT" in w and "not used" in w and "YoungModulus" in w for w in m["A"]["warnings"])
-    assert m["B"]["E"] == pytest.approx(pa("210 GPa"), rel=1e-12)   # its own unit: 210 GPa (pint)
+    assert m["B"]["E"] == pytest.approx(si("210 GPa"), rel=1e-12)   # its own unit: 210 GPa (pint)
 
 
 def test_ifc2x3_typed_and_extended_material_properties(tmp_model: Any) -> None:
@@ -202,10 +188,10 @@ def test_ifc2x3_typed_and_extended_material_properties(tmp_model: Any) -> None:
     f.create_entity("IfcGeneralMaterialProperties", Material=mat, MassDensity=7.85)
     f.create_entity("IfcExtendedMaterialProperties", Material=mat, Name="FEM", ExtendedProperties=[
         prop(mb, "YieldStress", "IfcPressureMeasure", 240.0)])
-    mb.member("IfcMember", name="M1", profile=rod(mb, 20), material=mat, length=2000.0, material_via="direct")
+    mb.member("IfcMember", name="M1", profile=round_bar(mb, 20), material=mat, length=2000.0, material_via="direct")
     m = read(tmp_model(mb))
     assert m["M1"]["material_category"] == "steel" and m["M1"]["material_grade"] == "EN 10025 S235"
-    assert m["M1"]["Fy"] == pytest.approx(pa("240 MPa"), rel=1e-12)
+    assert m["M1"]["Fy"] == pytest.approx(si("240 MPa"), rel=1e-12)
     assert m["M1"]["Fy_source"].startswith("FEM.YieldStress")
     # steel weighs 77-78.5 kN/m³ (EN 1991-1-1 Table A.4, from memory): 7.85 kg/m³ is flagged
     w = [w for w in m["M1"]["warnings"] if "density" in w]
@@ -236,10 +222,10 @@ def test_modulus_plausibility_follows_the_category(tmp_model: Any, name: str, ca
     mb = ModelBuilder(schema="IFC4", units="mm")
     mat = mb.f.createIfcMaterial(name, None, category)
     mb._material_pset(mat, "Pset_MaterialMechanical", {"YoungModulus": ("IfcModulusOfElasticityMeasure", E_mpa)})
-    mb.member("IfcMember", name="M1", profile=rect(mb, 100, 100), material=mat, length=2000.0)
+    mb.member("IfcMember", name="M1", profile=rectangle(mb, 100, 100), material=mat, length=2000.0)
     m = read(tmp_model(mb))
     if used:
-        assert m["M1"]["E"] == pytest.approx(pa(f"{E_mpa} MPa"), rel=1e-12)
+        assert m["M1"]["E"] == pytest.approx(si(f"{E_mpa} MPa"), rel=1e-12)
         assert not any("plausible" in w for w in m["M1"]["warnings"])
     else:
         assert math.isnan(m["M1"]["E"])
@@ -250,7 +236,7 @@ def test_the_rejection_quotes_the_range_of_the_category(tmp_model: Any) -> None:
     mb = ModelBuilder(schema="IFC4", units="mm")
     mat = mb.f.createIfcMaterial("TIMBER/C24", None, None)
     mb._material_pset(mat, "Pset_MaterialMechanical", {"YoungModulus": ("IfcModulusOfElasticityMeasure", 110.0)})
-    mb.member("IfcMember", name="M1", profile=rect(mb, 100, 100), material=mat, length=2000.0)
+    mb.member("IfcMember", name="M1", profile=rectangle(mb, 100, 100), material=mat, length=2000.0)
     m = read(tmp_model(mb))
     w = next(w for w in m["M1"]["warnings"] if "plausible" in w)
     assert "for timber (5–25 GPa)" in w and "110 MPa" in w
@@ -283,7 +269,7 @@ def test_an_ultimate_strength_in_the_name_never_makes_a_yield_check_pass(tmp_mod
     rod = mb.f.createIfcCircleProfileDef("AREA", "RD20", mb.f.createIfcAxis2Placement2D(
         mb.f.createIfcCartesianPoint((0.0, 0.0)), None), 10.0)
     mb.member("IfcMember", name="H1", tag="H1", profile=rod, material=mat, length=2400.0,
-              psets={"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 20000.0)}})
+              psets=axial_force(20000.0))
     res = check_model(str(tmp_model(mb)), "steel-asd-us", ForceOptions()).results
     yld = res[res["check"] == "tension-yield"]
     assert len(yld) == 1
@@ -310,7 +296,7 @@ def test_a_member_of_steel_and_another_structural_material_is_never_checked_as_s
         f.createIfcMaterialConstituent("b", None, other, None, None)])
     sq = f.createIfcRectangleProfileDef("AREA", "300x300", None, 300.0, 300.0)
     el = mb.member("IfcColumn", name="K1", profile=sq, length=3000.0,
-                   psets={"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 20000.0)}})
+                   psets=axial_force(20000.0))
     mb.associate_material([el], sel)
     path = tmp_model(mb)
     m = read(path)["K1"]

@@ -5,18 +5,11 @@ from __future__ import annotations
 
 from pathlib import Path
 
-import pint
 import pytest
 
 from modelcheck.common.errors import RuleSetError
 from modelcheck.materials.names import category_of_word, load_patterns, read_name
-
-UREG = pint.UnitRegistry()  # an independent registry as the conversion reference
-
-
-def pa(text: str) -> float:
-    return float(UREG.Quantity(text).to("Pa").magnitude)
-
+from tests.helpers import si
 
 # (name as a model writes it, expected category, expected grade, pattern that decides the category)
 # The names are invented in the styles real exports use: a category word with separators, a grade
@@ -142,7 +135,7 @@ def test_every_pattern_of_the_file_is_exercised_by_the_table() -> None:
 ])
 def test_a_strength_in_the_name_is_a_yield_strength(name: str, fy: str, pattern: str) -> None:
     r = read_name(name)
-    assert r.Fy == pytest.approx(pa(fy), rel=1e-9)
+    assert r.Fy == pytest.approx(si(fy), rel=1e-9)
     assert r.Fy_pattern == pattern
 
 

@@ -5,7 +5,6 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
-import pint
 import pytest
 
 from modelcheck.common.errors import RuleSetError
@@ -16,13 +15,7 @@ from modelcheck.materials.library import (
     normalise,
     plausible_range,
 )
-
-UREG = pint.UnitRegistry()  # an independent registry as the conversion reference
-
-
-def si(text: str, unit: str) -> float:
-    return float(UREG.Quantity(text).to(unit).magnitude)
-
+from tests.helpers import si
 
 # ------------------------------------------------------------------ published values
 
@@ -52,15 +45,15 @@ def si(text: str, unit: str) -> float:
 def test_grade_strengths_match_published_tables(name: str, grade: str, fy: str, fu: str) -> None:
     m = match_material(name)
     assert m is not None and m.grade == grade
-    assert m.Fy == pytest.approx(si(fy, "Pa"), rel=1e-9)
-    assert m.Fu == pytest.approx(si(fu, "Pa"), rel=1e-9)
+    assert m.Fy == pytest.approx(si(fy), rel=1e-9)
+    assert m.Fu == pytest.approx(si(fu), rel=1e-9)
 
 
 def test_a307_has_tensile_strength_but_no_yield() -> None:
     m = match_material("ASTM A307 Gr A")
     assert m is not None
     # ASTM A307 Grade A: 60 ksi minimum tensile strength, no yield specified (from memory)
-    assert m.Fu == pytest.approx(si("60 ksi", "Pa"), rel=1e-9)
+    assert m.Fu == pytest.approx(si("60 ksi"), rel=1e-9)
     assert m.Fy is None and m.Fy_source is None
 
 
@@ -73,7 +66,7 @@ def test_a307_has_tensile_strength_but_no_yield() -> None:
 ])
 def test_modulus_of_elasticity(name: str, modulus: str, rel: float) -> None:
     m = match_material(name)
-    assert m is not None and m.E == pytest.approx(si(modulus, "Pa"), rel=rel)
+    assert m is not None and m.E == pytest.approx(si(modulus), rel=rel)
 
 
 def test_thermal_expansion_per_fahrenheit_step_is_converted_as_a_step() -> None:
@@ -115,10 +108,10 @@ def test_library_values_lie_in_their_categorys_plausible_range() -> None:
 
 def test_plausible_steel_modulus_rejects_unit_mistakes() -> None:
     lo, hi = plausible_range("steel")["E"]
-    assert lo <= si("29000 ksi", "Pa") <= hi         # AISC 360-16: 29,000 ksi (from memory)
-    assert not lo <= si("29 psi", "Pa") <= hi        # the unit slip issue 2 names
-    assert not lo <= si("29000000 ksi", "Pa") <= hi  # psi value written in a ksi file
-    assert not lo <= si("210 MPa", "Pa") <= hi       # GPa value written in an MPa file
+    assert lo <= si("29000 ksi") <= hi         # AISC 360-16: 29,000 ksi (from memory)
+    assert not lo <= si("29 psi") <= hi        # the unit slip issue 2 names
+    assert not lo <= si("29000000 ksi") <= hi  # psi value written in a ksi file
+    assert not lo <= si("210 MPa") <= hi       # GPa value written in an MPa file
 
 
 def test_plausible_range_categories() -> None:

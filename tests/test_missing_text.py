@@ -21,7 +21,7 @@ from modelcheck.ifc.reader import read_members
 from modelcheck.loads.tables import read_load_table
 from modelcheck.rules.ruleset import load_ruleset
 from modelcheck.run.runner import run_check
-from tests.conftest import SAMPLES
+from tests.helpers import SAMPLES
 from tests.test_command_matrix import lacking_model
 
 

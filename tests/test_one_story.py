@@ -35,8 +35,8 @@ import ifcopenshell.util.element as ue
 import pytest
 
 from modelcheck.testing.author import ModelBuilder
-from tests.conftest import REPO
 from tests.corpus import run_inprocess
+from tests.helpers import REPO
 
 ALL = "console,json,csv,junit,bcf,html"
 RANK = {"fail": 0, "unchecked": 1, "pass": 2}   # a member's status is its worst result's

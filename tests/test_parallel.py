@@ -227,7 +227,7 @@ def test_the_sample_models_shared_out_give_their_single_process_reports(capsys, 
     """The demo models carry all three force routes (a load table, model properties, IFC
     structural-analysis results) and three schemas and unit systems: shared out in parts of a
     few members each, every report is the single-process one."""
-    from tests.conftest import REPO
+    from tests.helpers import REPO
 
     model = REPO / "sample_models" / name
     tables = sorted((REPO / "sample_models").glob("*-forces.csv"))

@@ -5,7 +5,6 @@ NetVolume / area only as a last resort, marked as derived."""
 from __future__ import annotations
 
 import math
-from pathlib import Path
 from typing import Any
 
 import pytest
@@ -13,6 +12,7 @@ import pytest
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
 from modelcheck.testing.author import ModelBuilder
+from tests.helpers import read_built as members
 
 #: HEA 360 (EN 10365, from memory): h 350, b 300, tw 10, tf 17.5, r 27 mm; A = 142.8 cm²
 HEA360 = dict(OverallWidth=300.0, OverallDepth=350.0, WebThickness=10.0, FlangeThickness=17.5, FilletRadius=27.0)
@@ -32,12 +32,6 @@ def faceted_box(mb: ModelBuilder, b: float, h: float, length: float) -> Any:
 
 def with_faceted_body(mb: ModelBuilder, el: Any, b: float, h: float, length: float) -> None:
     el.Representation = mb.f.createIfcProductDefinitionShape(None, None, [faceted_box(mb, b, h, length)])
-
-
-def members(mb: ModelBuilder, tmp_path: Path) -> Any:
-    path = tmp_path / "model.ifc"
-    mb.write(str(path))
-    return read_members(build_index(str(path))).frame.set_index("name")
 
 
 def hea360_column_ifc2x3(mb: ModelBuilder, name: str) -> Any:

@@ -5,13 +5,10 @@ exit code the README states."""
 
 from __future__ import annotations
 
-import os
 import re
 import shlex
-import subprocess
-import sys
 
-from tests.conftest import REPO
+from tests.helpers import REPO, run_modelcheck
 
 
 def _quick_start() -> tuple[list[str], list[str]]:
@@ -28,9 +25,7 @@ def _quick_start() -> tuple[list[str], list[str]]:
 
 def test_the_quick_start_output_is_what_the_readme_shows():
     args, shown = _quick_start()
-    env = {k: v for k, v in os.environ.items() if k != "COLUMNS"} | {"COLUMNS": "100"}
-    r = subprocess.run([sys.executable, "-m", "modelcheck", *args], capture_output=True, text=True,
-                       timeout=600, cwd=REPO, env=env)
+    r = run_modelcheck(*args, timeout=600, env={"COLUMNS": "100"})
     assert r.returncode == 1, r.stderr      # README: exits with code 1 (the samples' deliberate failures)
     printed = [line.rstrip() for line in r.stdout.splitlines()]
     cut = shown.index("…") if "…" in shown else len(shown)

@@ -21,14 +21,9 @@ import pytest
 from modelcheck.cli import main
 from modelcheck.core.check import member_warnings, merge_member_warnings
 from modelcheck.testing.author import ModelBuilder
-from tests.conftest import REPO
+from tests.helpers import KN, REPO, axial_force, round_bar
 
-FORCE = "MC_MemberForces"
 GENERIC_E = "E: no modulus of elasticity in the material properties or the material library"
-
-
-def _kn(kn: float) -> dict[str, dict[str, tuple[str, float]]]:
-    return {FORCE: {"AxialForce": ("IfcForceMeasure", kn * 1000.0)}}   # the model's force unit is N
 
 
 def _check_json(capsys, tmp_path: Path, mb: ModelBuilder, rules: str = "steel-asd-us") -> dict:
@@ -48,15 +43,11 @@ def _missing_of(doc: dict, tag: str, check: str) -> list[str]:
     return rows[0]["missing"]
 
 
-def _rod(mb: ModelBuilder, r: float = 10.0):
-    return mb.f.createIfcCircleProfileDef("AREA", "RD20", None, r)
-
-
 def test_an_implausible_modulus_is_named_with_its_value_source_and_range(capsys, tmp_path):
     mb = ModelBuilder(schema="IFC4", units="mm")
     # 210 written where the file's modulus unit is N/mm²: the GPa number slipped in (210 MPa)
     steel = mb.material("S355 slip", category="steel", E=210.0, Fy=355.0, Fu=490.0)
-    mb.member(name="rod", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
+    mb.member(name="rod", tag="R1", profile=round_bar(mb, 20.0), material=steel, length=2000.0, psets=axial_force(20.0 * KN))
     missing = _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation")
     # the value as the file writes it, in its own unit, then in the range's terms
     assert missing == ["E: 210 N·mm^-2 (= 210 MPa) in Pset_MaterialMechanical.YoungModulus is outside the "
@@ -67,8 +58,8 @@ def test_an_implausible_modulus_in_a_us_file_is_quoted_as_the_file_writes_it(cap
     mb = ModelBuilder(schema="IFC2X3", units="inch-kip")
     # 29,000,000 in a ksi file: the psi value (29,000 ksi, AISC 360-16 Symbols, from memory) slipped in
     steel = mb.material("Steel", category="steel", E=29.0e6, Fy=36.0, Fu=58.0)
-    mb.member(name="rod", tag="R1", profile=_rod(mb, 0.375), material=steel, length=120.0,
-              psets={FORCE: {"AxialForce": ("IfcForceMeasure", 5.0)}})
+    mb.member(name="rod", tag="R1", profile=round_bar(mb, 0.75, "RD20"), material=steel, length=120.0,
+              psets=axial_force(5.0))
     (text,) = _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation")
     # 29,000,000 ksi = 1.99948e8 MPa (pint: 1 ksi = 6.894757 MPa)
     assert text.startswith("E: 29000000 KIP·INCH^-2 (= 1.99948e+08 MPa) in IfcMechanicalSteelMaterialProperties #")
@@ -81,7 +72,7 @@ def test_a_modulus_without_a_unit_says_so(capsys, tmp_path):
     assignment = mb.project.UnitsInContext   # the file states no unit for a modulus of elasticity
     assignment.Units = [u for u in assignment.Units if u.UnitType != "MODULUSOFELASTICITYUNIT"]
     steel = mb.material("House steel 7", category="steel", E=210000.0, Fy=355.0, Fu=490.0)   # no library grade
-    mb.member(name="rod", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
+    mb.member(name="rod", tag="R1", profile=round_bar(mb, 20.0), material=steel, length=2000.0, psets=axial_force(20.0 * KN))
     (text,) = _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation")
     assert text.startswith("E: 210000 in Pset_MaterialMechanical.YoungModulus has no unit (")
     assert "MODULUSOFELASTICITYUNIT" in text and text.endswith("; not used")
@@ -90,7 +81,7 @@ def test_a_modulus_without_a_unit_says_so(capsys, tmp_path):
 def test_a_modulus_the_model_does_not_give_keeps_the_plain_reason(capsys, tmp_path):
     mb = ModelBuilder(schema="IFC4", units="mm")
     steel = mb.material("House steel 7", category="steel", Fy=355.0, Fu=490.0)   # no E, no library grade
-    mb.member(name="rod", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
+    mb.member(name="rod", tag="R1", profile=round_bar(mb, 20.0), material=steel, length=2000.0, psets=axial_force(20.0 * KN))
     assert _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation") == [GENERIC_E]
 
 
@@ -98,7 +89,7 @@ def test_an_implausible_section_is_named_for_each_section_value(capsys, tmp_path
     mb = ModelBuilder(schema="IFC4", units="mm")
     steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
     plate = mb.f.createIfcRectangleProfileDef("AREA", "PL2500x10", None, 2500.0, 10.0)   # 2.5 m wide
-    mb.member(name="plate", tag="P1", profile=plate, material=steel, length=2000.0, psets=_kn(20.0))
+    mb.member(name="plate", tag="P1", profile=plate, material=steel, length=2000.0, psets=axial_force(20.0 * KN))
     doc = _check_json(capsys, tmp_path, mb)
     (text,) = _missing_of(doc, "P1", "tension-yield")
     assert text.startswith("A: section from IfcRectangleProfileDef #")
@@ -110,9 +101,9 @@ def test_an_implausible_section_is_named_for_each_section_value(capsys, tmp_path
 def test_an_implausible_length_is_named(capsys, tmp_path):
     mb = ModelBuilder(schema="IFC4", units="mm")
     steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
-    typ = mb.member_type(name="Rod type", profile=_rod(mb), material=steel)
+    typ = mb.member_type(name="Rod type", profile=round_bar(mb, 20.0), material=steel)
     # the only length is a quantity of 500 m: no rod of these kinds is that long
-    mb.member(name="rod", tag="R1", member_type=typ, length=None, body=None, axis=False, psets=_kn(20.0),
+    mb.member(name="rod", tag="R1", member_type=typ, length=None, body=None, axis=False, psets=axial_force(20.0 * KN),
               qto={"Length": 500_000.0})
     (text,) = _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation")
     assert text == ("L: 500 m from Qto_MemberBaseQuantities.Length [mm] is not plausible for a member "
@@ -128,10 +119,10 @@ def _warned_model() -> ModelBuilder:
     mb = ModelBuilder(schema="IFC4", units="mm")
     steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
     slip = mb.material("S355 slip", category="steel", E=210.0, Fy=355.0, Fu=490.0)
-    mb.member(name="rod one", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(100.0),
+    mb.member(name="rod one", tag="R1", profile=round_bar(mb, 20.0), material=steel, length=2000.0, psets=axial_force(100.0 * KN),
               qto={"CrossSectionArea": 214.0})
-    mb.member(name="rod two", tag="R2", profile=_rod(mb), material=slip, length=2000.0, psets=_kn(20.0))
-    mb.member(name="rod three", tag="R3", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
+    mb.member(name="rod two", tag="R2", profile=round_bar(mb, 20.0), material=slip, length=2000.0, psets=axial_force(20.0 * KN))
+    mb.member(name="rod three", tag="R3", profile=round_bar(mb, 20.0), material=steel, length=2000.0, psets=axial_force(20.0 * KN))
     return mb
 
 
@@ -234,8 +225,8 @@ def test_member_warnings_of_parts_merge_to_those_of_the_whole():
 def test_a_force_property_without_a_unit_is_named_where_the_force_is_missing(capsys, tmp_path):
     mb = ModelBuilder(schema="IFC4", units="mm", force_unit=False)   # the file assigns no FORCEUNIT
     steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
-    mb.member(name="rod", tag="R1", profile=_rod(mb), material=steel, length=2000.0, psets=_kn(20.0))
-    mb.member(name="rod without force", tag="R2", profile=_rod(mb), material=steel, length=2000.0)
+    mb.member(name="rod", tag="R1", profile=round_bar(mb, 20.0), material=steel, length=2000.0, psets=axial_force(20.0 * KN))
+    mb.member(name="rod without force", tag="R2", profile=round_bar(mb, 20.0), material=steel, length=2000.0)
     doc = _check_json(capsys, tmp_path, mb)
     (text,) = _missing_of(doc, "R1", "tension-yield")
     assert text.startswith("P: MC_MemberForces.AxialForce") and "no FORCEUNIT" in text

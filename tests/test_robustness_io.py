@@ -32,8 +32,7 @@ import pytest
 from modelcheck.loads import tables
 from modelcheck.report.text import csv_cell, shown, xml_text
 from tests.corpus import good_builder, member_ids, run_inprocess, run_process, write_model
-
-REPO = Path(__file__).resolve().parent.parent
+from tests.helpers import REPO, run_modelcheck
 
 #: text a spreadsheet would run as a formula, one for each first character OWASP names
 FORMULAS = ['=HYPERLINK("http://example.invalid","x")', "+1+1", "-2+3", "@SUM(A1)", "\tA", "\rB"]
@@ -470,8 +469,8 @@ def test_an_output_that_cannot_be_written_names_the_file(capsys, tmp_path, fmt):
 def test_a_report_on_a_full_standard_output_is_one_line(tmp_path):
     model, _ = _model(tmp_path)
     with open("/dev/full", "w") as full:
-        r = subprocess.run([sys.executable, "-m", "modelcheck", "check", str(model), "--no-config", "--jobs", "1"],
-                           stdout=full, stderr=subprocess.PIPE, text=True, timeout=120)
+        r = run_modelcheck("check", str(model), "--no-config", "--jobs", "1", stdout=full, stderr=subprocess.PIPE,
+                           timeout=120)
     lines = [ln for ln in r.stderr.splitlines() if ln.strip()]
     assert r.returncode == 2 and lines == ["modelcheck: error: standard output: cannot be written: "
                                            "No space left on device"], r.stderr

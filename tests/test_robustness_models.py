@@ -22,7 +22,6 @@ from modelcheck.core.read import read_model
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import load_ruleset
 from modelcheck.testing.author import ModelBuilder
-from tests.conftest import REPO
 from tests.corpus import (
     data_lines,
     good_builder,
@@ -30,29 +29,24 @@ from tests.corpus import (
     member_ids,
     profile_position,
     rich_builder,
+    run_check_json,
     run_inprocess,
     run_process,
     set_ref,
     with_line,
     write_model,
 )
+from tests.corpus import members_by_name as members_json
+from tests.helpers import REPO, axial_force
 
 SCHEMAS = ("IFC2X3", "IFC4", "IFC4X3")
 CHECK_SCHEMA = json.loads((REPO / "modelcheck" / "schemas" / "check.schema.json").read_text(encoding="utf-8"))
-FORCE = {"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", 20000.0)}}
+FORCE = axial_force(20000.0)
 
 
 def check_json(capsys: Any, *paths: Path, extra: tuple[str, ...] = ()) -> tuple[Any, dict[str, Any]]:
-    out = run_inprocess(capsys, ["check", *map(str, paths), "--jobs", "1", "--no-config", "--format", "json",
-                                 *extra], inputs=paths)
+    out = run_check_json(capsys, *paths, extra=extra)
     return out, out.json()
-
-
-def members_json(capsys: Any, path: Path) -> dict[str, dict[str, Any]]:
-    """Name -> member entry of ``modelcheck members --format json``."""
-    out = run_inprocess(capsys, ["members", str(path), "--format", "json"], inputs=[path])
-    assert out.code == 0, out.stderr
-    return {m["name"]: m for m in out.json()["models"][0]["members"]}
 
 
 def statuses(doc: dict[str, Any]) -> dict[str, set[str]]:

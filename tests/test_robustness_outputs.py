@@ -14,9 +14,9 @@ from pathlib import Path
 import pytest
 
 from tests.corpus import run_inprocess
+from tests.helpers import REPO, SAMPLES
 
-SAMPLES = Path(__file__).resolve().parent.parent / "sample_models"
-RULES = Path(__file__).resolve().parent.parent / "modelcheck" / "rulesets" / "steel-ec3.toml"
+RULES = REPO / "modelcheck" / "rulesets" / "steel-ec3.toml"
 
 
 @pytest.fixture

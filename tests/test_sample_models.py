@@ -9,8 +9,6 @@ from __future__ import annotations
 import importlib.util
 import json
 import math
-import subprocess
-import sys
 from functools import cache
 from pathlib import Path
 from types import ModuleType
@@ -20,14 +18,10 @@ import ifcopenshell
 import ifcopenshell.util.placement
 import numpy as np
 import pandas as pd
-import pint
 import pytest
 
 from modelcheck.materials.library import plausible_range
-
-REPO = Path(__file__).resolve().parents[1]
-SAMPLES = REPO / "sample_models"
-UREG = pint.UnitRegistry()   # independent conversion reference
+from tests.helpers import SAMPLES, UREG, run_modelcheck
 
 MODELS = {  # file stem: (schema identifier, member count, load-table key column, force unit)
     "nettlebrook-hall": ("IFC4", 30, "tag", "kN"),
@@ -557,9 +551,8 @@ def test_analysis_forces_keep_every_documented_status() -> None:
 @cache
 def members_json(stem: str) -> dict[str, Any]:
     """``modelcheck members sample_models/STEM.ifc --loads sample_models/STEM-forces.csv --format json``"""
-    r = subprocess.run([sys.executable, "-m", "modelcheck", "members", f"sample_models/{stem}.ifc",
-                        "--loads", f"sample_models/{stem}-forces.csv", "--format", "json"],
-                       capture_output=True, text=True, timeout=300, cwd=REPO)
+    r = run_modelcheck("members", f"sample_models/{stem}.ifc", "--loads", f"sample_models/{stem}-forces.csv",
+                       "--format", "json")
     assert r.returncode == 0, r.stderr
     (m,) = json.loads(r.stdout)["models"]
     return m

@@ -9,14 +9,12 @@ import pytest
 
 from modelcheck.common.units import Q_
 from modelcheck.design.screw_threads import (
-    INCH,
     iso_tensile_area,
     thread_series,
     thread_tensile_area,
     unc_tensile_area,
 )
-
-IN2 = INCH**2
+from tests.helpers import IN, IN2
 
 
 @pytest.mark.parametrize(("d_in", "tpi", "table_in2"), [
@@ -51,7 +49,7 @@ def test_areas_from_thread_geometry() -> None:
     # ASME B1.1: As = π/4 ((E + K)/2)² with pitch diameter E = d - 0.649519/n and
     # d - 1.299038/n (= d - 1.5 H) for K, which is the 0.9743/n of the formula (from memory)
     for s in thread_series("UNC"):
-        d, n = s.d_m / INCH, s.tpi
+        d, n = s.d_m / IN, s.tpi
         assert n is not None
         e, k = d - 0.649519 / n, d - 1.299038 / n
         assert s.As_m2 / IN2 == pytest.approx(math.pi / 4 * ((e + k) / 2) ** 2, rel=1e-4)

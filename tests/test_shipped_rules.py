@@ -18,22 +18,16 @@ from modelcheck.common.data import data_path
 from modelcheck.common.units import Q_
 from modelcheck.rules.engine import run_checks
 from modelcheck.rules.ruleset import RuleSet, load_ruleset
-from tests.tables import member_table
+from tests.helpers import si
+from tests.tables import force_table
+from tests.tables import member_table as members
 
 NAN = np.nan
 
 
-def si(value: float, unit: str) -> float:
-    return float(Q_(value, unit).to_base_units().magnitude)   # pint
-
-
-def members(*rows: dict[str, Any]) -> pd.DataFrame:
-    return member_table(*rows)
-
-
 def forces(*pairs: tuple[str, float]) -> pd.DataFrame:
-    return pd.DataFrame({"model": "m.ifc", "global_id": [p[0] for p in pairs], "load_case": "LC1",
-                         "axial_force": [float(p[1]) for p in pairs], "source": "test"})
+    """One load case, LC1: (GlobalId, N) pairs."""
+    return force_table(*((gid, "LC1", n) for gid, n in pairs))
 
 
 def variant(tmp_path: Path, name: str, *replacements: tuple[str, str]) -> RuleSet:

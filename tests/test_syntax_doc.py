@@ -27,7 +27,7 @@ from modelcheck.rules.parse.tables import (
 from modelcheck.rules.ruleset import load_ruleset, shipped_names
 from modelcheck.rules.select import SELECTOR_KEYS
 from modelcheck.rules.values import DISPLAY_DIMENSIONS
-from tests.conftest import REPO
+from tests.helpers import REPO
 
 SYNTAX = data_path("SYNTAX.md")
 

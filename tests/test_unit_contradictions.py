@@ -5,7 +5,6 @@ values, both sources) and not used; the profile's class is reported beside profi
 from __future__ import annotations
 
 import math
-from pathlib import Path
 from typing import Any
 
 import pytest
@@ -14,18 +13,13 @@ from modelcheck.common.units import Q_
 from modelcheck.ifc.index import build_index
 from modelcheck.ifc.reader import read_members
 from modelcheck.testing.author import ModelBuilder
+from tests.helpers import read_built as members
 from tests.test_quantity_sets import HEA360, HEA360_AREA, with_faceted_body
 
 #: an IPE 200 by its dimensions (EN 10365, from memory: h 200, b 100, tw 5.6, tf 8.5, r 12):
 #: A = 2·b·tf + (h − 2tf)·tw + (4 − π)·r² = 2848.4 mm² (common practice)
 IPE200 = (100.0, 200.0, 5.6, 8.5, 12.0)
 IPE200_AREA = 2 * 100 * 8.5 + (200 - 2 * 8.5) * 5.6 + (4 - math.pi) * 12**2
-
-
-def members(mb: ModelBuilder, tmp_path: Path) -> Any:
-    path = tmp_path / "model.ifc"
-    mb.write(str(path))
-    return read_members(build_index(str(path))).frame.set_index("name")
 
 
 def origin2(f: Any) -> Any:
@@ -149,7 +143,7 @@ def test_profile_properties_alone_still_name_the_profile_class(tmp_path):
 
 def test_the_canopy_strut_reads_the_profile_its_properties_name() -> None:
     """Sample model: ST-14 states its section only through IfcStructuralProfileProperties."""
-    from tests.conftest import SAMPLES
+    from tests.helpers import SAMPLES
 
     ms = read_members(build_index(str(SAMPLES / "nettlebrook-canopy.ifc"))).frame.set_index("tag")
     st = ms.loc["ST-14"]

@@ -14,6 +14,7 @@ from modelcheck.common.units import Q_, QuantityTextError, normalise_unit, parse
 from modelcheck.design.stock import parse_length
 from modelcheck.loads.tables import ForceUnitError, force_unit_factor
 from modelcheck.rules.ruleset import load_ruleset
+from tests.helpers import IN, KIP, KIP_NIST
 
 
 @pytest.mark.parametrize(("trade", "pint_unit"), [
@@ -34,9 +35,9 @@ def test_trade_spellings_read_as_pint_defines_them(trade: str, pint_unit: str) -
 
 
 @pytest.mark.parametrize(("text", "number", "si"), [
-    ("1 1/2 kip", Fraction(3, 2), 1.5 * 4448.2216152605),     # NIST SP 811: kip = 4448.2216152605 N
-    ("3/8 in", Fraction(3, 8), 0.375 * 0.0254),               # inch = 0.0254 m exactly
-    ("-8 kip", Fraction(-8), -8 * 4448.2216152605),
+    ("1 1/2 kip", Fraction(3, 2), 1.5 * KIP_NIST),            # NIST SP 811: kip = 4448.2216152605 N
+    ("3/8 in", Fraction(3, 8), 0.375 * IN),                   # inch = 0.0254 m exactly (pint)
+    ("-8 kip", Fraction(-8), -8 * KIP_NIST),
     ("25 [mm]", Fraction(25), 0.025),
     ("0.1 m", Fraction(1, 10), 0.1),                          # exact: 1/10, not 0.1000000000000000055
     ("157 mm2", Fraction(157), 157e-6),
@@ -68,9 +69,9 @@ def test_bad_text_is_one_clear_error(text: str, dimension: str, fragment: str) -
 def test_every_caller_reads_mixed_numbers_alike(tmp_path: Path) -> None:
     # the command line's --force and --length, stock lengths, rule-file parameters, load-table
     # units and property texts read "1 1/2" as 3/2 (common practice for fractional inch sizes)
-    kip = Q_(1, "kip").m_as("N")                                 # pint
+    kip = KIP                                                    # pint
     assert parse_force("1 1/2 kip") == pytest.approx(1.5 * kip, rel=1e-12)
-    assert parse_length_arg("--length", "1 1/2 in") == pytest.approx(1.5 * 0.0254, rel=1e-12)
+    assert parse_length_arg("--length", "1 1/2 in") == pytest.approx(1.5 * IN, rel=1e-12)
     assert parse_length("1 1/2 in") == (Fraction(3, 2), "in")
     assert force_unit_factor("kip") == pytest.approx(kip, rel=1e-12)
     rules = tmp_path / "r.toml"
