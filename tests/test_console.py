@@ -26,7 +26,7 @@ from modelcheck.rules.ruleset import load_ruleset
 from modelcheck.rules.select import Selector
 from modelcheck.run.runner import run_check
 from modelcheck.testing.author import ModelBuilder
-from tests.helpers import KN, REPO, axial_force
+from tests.helpers import KN, REPO, axial_force, round_bar
 from tests.helpers import run_modelcheck as run
 
 
@@ -380,15 +380,21 @@ def test_members_details_on_request_fit_a_narrow_console(mixed_path, width):
     assert "IfcCircleProfileDef" in r.stdout            # where the section came from
 
 
+def tie_bar(folder: Path, d: float, tag: str) -> Path:
+    """A millimetre model of one S355 tie bar of diameter ``d``, 1000 mm long, named 'Bar <d>'."""
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    s355 = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    mb.member("IfcMember", name="Tie bar", tag=tag, profile=round_bar(mb, d, f"Bar {d:g}"), material=s355,
+              length=1000.0)
+    p = folder / "bar.ifc"
+    mb.write(str(p))
+    return p
+
+
 def test_members_capacity_table_shows_the_ratings_of_the_json(tmp_path):
     # a plain round bar (no thread): AISC 360-16 D2 (a) yielding Pn = Fy·Ag, Ω = 1.67, and (b) rupture
     # Pn = Fu·Ae, Ω = 2.00 with Ae = An = Ag for a bar with no holes (common practice)
-    mb = ModelBuilder(schema="IFC4", units="mm")
-    s355 = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
-    bar = mb.f.createIfcCircleProfileDef("AREA", "Bar 20", None, 10.0)
-    mb.member("IfcMember", name="Tie bar", tag="TB-1", profile=bar, material=s355, length=1000.0)
-    p = tmp_path / "bar.ifc"
-    mb.write(str(p))
+    p = tie_bar(tmp_path, 20.0, "TB-1")
     area = math.pi / 4 * 20.0**2                                   # mm², geometry
     hand = min(355.0 * area / 1.67, 490.0 * area / 2.00) / 1000.0  # kN: yielding governs, 66.78 kN
     doc = json.loads(run("members", str(p), "--capacity", "--format", "json").stdout)
@@ -404,12 +410,7 @@ def test_members_capacity_table_shows_the_ratings_of_the_json(tmp_path):
 def test_members_capacity_in_csv_agrees_with_json(tmp_path):
     # a rod too slender for any compression (KL/r = 1000/2.5 = 400 > 200, common practice): no
     # compression rating, with the reason, in the CSV as in the JSON; tension by AISC 360-16 D2 (a)
-    mb = ModelBuilder(schema="IFC4", units="mm")
-    s355 = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
-    bar = mb.f.createIfcCircleProfileDef("AREA", "Bar 10", None, 5.0)
-    mb.member("IfcMember", name="Tie bar", tag="TB-2", profile=bar, material=s355, length=1000.0)
-    p = tmp_path / "bar.ifc"
-    mb.write(str(p))
+    p = tie_bar(tmp_path, 10.0, "TB-2")
     cap = json.loads(run("members", str(p), "--capacity", "--format", "json").stdout)["models"][0]["members"][0][
         "capacity"]
     r = run("members", str(p), "--capacity", "--format", "csv")

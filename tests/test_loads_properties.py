@@ -19,6 +19,15 @@ from tests.tables import members_of
 PSET, PROP = "MC_MemberForces", "AxialForce"
 
 
+def property_forces(mb: ModelBuilder, folder: Path, *elements: Any,
+                    **options: Any) -> tuple[pd.DataFrame, list[str]]:
+    """Write the model to ``folder/m.ifc`` and read the forces of ``elements`` from
+    MC_MemberForces.AxialForce."""
+    mb.write(str(folder / "m.ifc"))
+    idx = build_index(folder / "m.ifc")
+    return forces_from_property(idx, members_of(idx.path, *elements), PSET, PROP, **options)
+
+
 def by_gid(df: pd.DataFrame) -> dict[str, float]:
     return dict(zip(df["global_id"], df["axial_force"], strict=True))
 
@@ -28,9 +37,7 @@ def test_occurrence_property_in_newtons(tmp_path: Path, schema: str) -> None:
     mb = ModelBuilder(schema=schema, units="mm")
     a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 16.0, "RD"), length=2000.0, psets=axial_force(-1500.0))
     b = mb.member("IfcMember", tag="H2", profile=round_bar(mb, 16.0, "RD"), length=2000.0)  # no property
-    mb.write(str(tmp_path / "m.ifc"))
-    idx = build_index(tmp_path / "m.ifc")
-    forces, msgs = forces_from_property(idx, members_of(idx.path, a, b), PSET, PROP)
+    forces, msgs = property_forces(mb, tmp_path, a, b)
     assert list(forces.columns) == list(FORCE_COLUMNS)
     assert by_gid(forces) == {a.GlobalId: pytest.approx(-1500.0)}  # file's FORCEUNIT is the newton
     assert forces["source"].tolist() == [f"{PSET}.{PROP} (occurrence)"]
@@ -41,9 +48,7 @@ def test_occurrence_property_in_newtons(tmp_path: Path, schema: str) -> None:
 def test_kilonewton_file_and_load_case(tmp_path: Path) -> None:
     mb = ModelBuilder(schema="IFC4", units="m")
     a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 0.016, "RD"), length=2.0, psets=axial_force(12.5))
-    mb.write(str(tmp_path / "m.ifc"))
-    idx = build_index(tmp_path / "m.ifc")
-    forces, _ = forces_from_property(idx, members_of(idx.path, a), PSET, PROP, load_case="SLS")
+    forces, _ = property_forces(mb, tmp_path, a, load_case="SLS")
     assert forces["axial_force"].iloc[0] == pytest.approx(12500.0)  # KILO NEWTON: SI prefix kilo = 10³
     assert forces["load_case"].iloc[0] == "SLS"
 
@@ -51,9 +56,7 @@ def test_kilonewton_file_and_load_case(tmp_path: Path) -> None:
 def test_kip_file_against_nist_and_pint(tmp_path: Path) -> None:
     mb = ModelBuilder(schema="IFC4", units="inch-kip")
     a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 0.75, "RD"), length=96.0, psets=axial_force(3.2))
-    mb.write(str(tmp_path / "m.ifc"))
-    idx = build_index(tmp_path / "m.ifc")
-    forces, _ = forces_from_property(idx, members_of(idx.path, a), PSET, PROP)
+    forces, _ = property_forces(mb, tmp_path, a)
     assert forces["axial_force"].iloc[0] == pytest.approx(3.2 * 1000 * LBF_NIST, rel=1e-12)  # NIST SP 811
     assert forces["axial_force"].iloc[0] == pytest.approx(Q_(3.2, "kip").to("N").magnitude, rel=1e-12)  # pint
 
@@ -65,9 +68,7 @@ def test_inherited_from_type_and_occurrence_overrides(tmp_path: Path) -> None:
     a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 16.0, "RD"), length=2000.0, member_type=typ)
     b = mb.member("IfcMember", tag="H2", profile=round_bar(mb, 16.0, "RD"), length=2000.0, member_type=typ,
                   psets=axial_force(950.0))
-    mb.write(str(tmp_path / "m.ifc"))
-    idx = build_index(tmp_path / "m.ifc")
-    forces, msgs = forces_from_property(idx, members_of(idx.path, a, b), PSET, PROP)
+    forces, msgs = property_forces(mb, tmp_path, a, b)
     got = forces.set_index("global_id")
     assert got.loc[a.GlobalId, "axial_force"] == pytest.approx(800.0)   # type value, newtons as written
     assert got.loc[a.GlobalId, "source"] == f"{PSET}.{PROP} (type HR-M16 hanger)"
@@ -96,9 +97,7 @@ def test_property_unit_overrides_project_unit(tmp_path: Path) -> None:
     mb.attach_pset(a, _own_unit_pset(mb, 2.0, kn))
     mb.attach_pset(b, _own_unit_pset(mb, 100.0, lbf))
     mb.attach_pset(c, _own_unit_pset(mb, 1.5, kn, measure="IfcReal"))  # a plain number made a force by its unit
-    mb.write(str(tmp_path / "m.ifc"))
-    idx = build_index(tmp_path / "m.ifc")
-    forces, msgs = forces_from_property(idx, members_of(idx.path, a, b, c), PSET, PROP)
+    forces, msgs = property_forces(mb, tmp_path, a, b, c)
     assert by_gid(forces) == {
         a.GlobalId: pytest.approx(2000.0),                      # SI prefix kilo
         b.GlobalId: pytest.approx(100 * LBF_NIST, rel=1e-12),   # NIST SP 811 factor written in the file
@@ -130,9 +129,7 @@ def test_no_forceunit_gives_no_force_and_a_message(tmp_path: Path) -> None:
 def test_unusable_values_give_messages(tmp_path: Path, measure: str, value: Any, fragment: str) -> None:
     mb = ModelBuilder(schema="IFC4", units="mm")
     a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 16.0, "RD"), length=2000.0, psets=axial_force(value, measure))
-    mb.write(str(tmp_path / "m.ifc"))
-    idx = build_index(tmp_path / "m.ifc")
-    forces, msgs = forces_from_property(idx, members_of(idx.path, a), PSET, PROP)
+    forces, msgs = property_forces(mb, tmp_path, a)
     assert forces.empty
     assert len(msgs) == 1 and fragment in msgs[0] and a.GlobalId in msgs[0]
 
@@ -141,9 +138,7 @@ def test_text_value_with_unit(tmp_path: Path) -> None:
     mb = ModelBuilder(schema="IFC4", units="mm")
     a = mb.member("IfcMember", tag="H1", profile=round_bar(mb, 16.0, "RD"), length=2000.0,
                   psets=axial_force("2.5 kip", "IfcLabel"))
-    mb.write(str(tmp_path / "m.ifc"))
-    idx = build_index(tmp_path / "m.ifc")
-    forces, msgs = forces_from_property(idx, members_of(idx.path, a), PSET, PROP)
+    forces, msgs = property_forces(mb, tmp_path, a)
     assert forces["axial_force"].iloc[0] == pytest.approx(2500 * LBF_NIST, rel=1e-12)  # NIST SP 811
     assert msgs == []
 
