@@ -28,6 +28,7 @@ from modelcheck.loads.sources import ForceOptions, SourceForces
 from modelcheck.report.formats import OutputFormat, WriteOptions
 from modelcheck.testing.author import ModelBuilder
 from tests.corpus import run_inprocess
+from tests.helpers import KN, axial_force, round_bar
 
 PROPERTY_KN = 5.0   # the force each member carries as its model property
 SURVEY_KN = 2.0     # the force the test's own source gives each member
@@ -38,10 +39,8 @@ def model(path: Path, members: int = 3) -> Path:
     mb = ModelBuilder(schema="IFC4", units="mm")
     s355 = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
     for i in range(members):
-        rod = mb.f.createIfcCircleProfileDef("AREA", "RD20", None, 10.0)
-        mb.member("IfcMember", name=f"Tie {i + 1}", tag=f"T-{i + 1}", profile=rod, material=s355, length=2000.0,
-                  start=(1000.0 * i, 0.0, 0.0),
-                  psets={"MC_MemberForces": {"AxialForce": ("IfcForceMeasure", PROPERTY_KN * 1000.0)}})  # N
+        mb.member("IfcMember", name=f"Tie {i + 1}", tag=f"T-{i + 1}", profile=round_bar(mb, 20.0), material=s355,
+                  length=2000.0, start=(1000.0 * i, 0.0, 0.0), psets=axial_force(PROPERTY_KN * KN))  # N
     p = path / "ties.ifc"
     mb.write(str(p))
     return p
