@@ -1,9 +1,11 @@
-"""The plug-in points: an output format and a force source are each one object and one line in a
-registry (``modelcheck.report.formats.FORMATS``, ``modelcheck.loads.sources.FORCE_SOURCES``).
+"""The plug-in points: an output format (of the check, or of the member inventory) and a force
+source are each one object and one line in a registry (``modelcheck.report.formats.FORMATS``,
+``modelcheck.report.inventory.INVENTORY_FORMATS``, ``modelcheck.loads.sources.FORCE_SOURCES``).
 
 Each test adds one entry to a registry (and touches nothing else) and follows it through the
 command: a format added there is offered by ``--format``, gets its default file name and
-receives the run; a source added there gives forces the join ranks by the source's precedence,
+receives the run (an inventory format: ``members --format`` offers it and it receives the
+inventory); a source added there gives forces the join ranks by the source's precedence,
 and its name is a key of ``used_by_route``. Were the registry bypassed anywhere on the way, the
 entry would not be seen and the test would fail.
 
@@ -22,10 +24,12 @@ import pytest
 
 import modelcheck.loads.sources as sources
 import modelcheck.report.formats as formats
+import modelcheck.report.inventory as inventory
 from modelcheck.common.table import FORCE_COLUMNS
 from modelcheck.common.units import Q_
 from modelcheck.loads.sources import ForceOptions, SourceForces
 from modelcheck.report.formats import OutputFormat, WriteOptions
+from modelcheck.report.inventory import Inventory, InventoryFormat, InventoryOptions
 from modelcheck.testing.author import ModelBuilder
 from tests.corpus import run_inprocess
 from tests.helpers import KN, axial_force, round_bar
@@ -108,6 +112,77 @@ def test_a_registered_format_alone_goes_to_standard_output(tally: Received, tmp_
     assert out.code == 0, out.stderr
     (run, _, _), = tally.calls
     assert out.stdout == f"{len(run.results)} results: 0 failing\n"   # written through a file, copied
+
+
+# ------------------------------------------------------------------------------ inventory formats
+@dataclass
+class Listed:
+    """What the test's inventory format was handed (a test's own record, not shared)."""
+
+    calls: list[tuple[Inventory, str | None, InventoryOptions]]
+
+    def write(self, inv: Inventory, target: str | None, options: InventoryOptions) -> None:
+        self.calls.append((inv, target, options))
+        text = "".join(f"{m.data.path}: {0 if m.data.members is None else len(m.data.members)} members\n"
+                       for m in inv.models)
+        if target is None:
+            import sys
+
+            sys.stdout.write(text)
+        else:
+            Path(target).write_text(text, encoding="utf-8")
+
+
+@pytest.fixture
+def count(monkeypatch: pytest.MonkeyPatch) -> Listed:
+    """An inventory format 'count' (a line per model counting its members) registered by one line."""
+    got = Listed([])
+    monkeypatch.setattr(inventory, "INVENTORY_FORMATS",
+                        inventory.INVENTORY_FORMATS + (InventoryFormat("count", "txt", got.write),))
+    return got
+
+
+def test_a_registered_inventory_format_is_offered_by_members_format(count: Listed,
+                                                                    capsys: pytest.CaptureFixture[str]) -> None:
+    from modelcheck.cli import build_parser
+
+    members = next(a for a in build_parser()._subparsers._group_actions[0].choices.values()   # type: ignore[union-attr]
+                   if a.prog.endswith("members"))
+    assert "{table,json,csv,count}" in members.format_help()
+    out = run_inprocess(capsys, ["members", "nothing.ifc", "--format", "nope"])
+    assert out.code == 2
+    assert "'table', 'json', 'csv', 'count'" in out.stderr
+    assert not count.calls
+
+
+def test_a_registered_inventory_format_receives_the_inventory(count: Listed, tmp_path: Path,
+                                                              capsys: pytest.CaptureFixture[str]) -> None:
+    """The inventory handed to the format is the one the JSON format writes: the same members,
+    display units and allowable forces."""
+    path = model(tmp_path)
+    out = run_inprocess(capsys, ["members", str(path), "--format", "count", "--capacity", "--units", "US",
+                                 "--details"], [path])
+    assert out.code == 0, out.stderr
+    assert out.stdout == f"{path}: 3 members\n"
+    (inv, target, options), = count.calls
+    assert target is None and options.details is True
+    (m,), = [inv.models]
+    assert m.data.path == str(path) and m.units.system == "US"
+    assert m.data.members is not None and m.capacity is not None
+    doc = json.loads(run_inprocess(capsys, ["members", str(path), "--format", "json", "--capacity", "--units", "US"],
+                                   [path]).stdout)
+    members = doc["models"][0]["members"]
+    assert m.data.members["global_id"].tolist() == m.capacity["global_id"].tolist() == [x["global_id"] for x in members]
+    assert m.capacity["tension"].tolist() == [x["capacity"]["tension"] for x in members]
+    assert m.capacity["tension"].iloc[0]["unit"] == "kip"   # US display units: forces in kip (common practice)
+    assert list(inv.unmatched) == doc["unmatched_force_rows"] == []
+
+    target_file = tmp_path / "count.txt"
+    out = run_inprocess(capsys, ["members", str(path), "--format", "count", "--output", str(target_file)], [path])
+    assert out.code == 0, out.stderr
+    assert out.stdout == ""
+    assert count.calls[-1][1] == str(target_file) and count.calls[-1][2].details is None
+    assert target_file.read_text(encoding="utf-8") == f"{path}: 3 members\n"
 
 
 # ------------------------------------------------------------------------------ force sources

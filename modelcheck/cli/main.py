@@ -45,7 +45,7 @@ def build_parser() -> argparse.ArgumentParser:
 
     m = sub.add_parser("members", help="list every axial member with section, material, length")
     m.add_argument("models", nargs="+", metavar="MODEL", help="IFC files, folders or glob patterns")
-    m.add_argument("--format", choices=("table", "json", "csv"), default="table")
+    m.add_argument("--format", choices=_inventory_format_names(), default="table")
     m.add_argument("--output", "-o", metavar="FILE", help="write to FILE instead of standard output")
     m.add_argument("--units", choices=("model", "SI", "US"), default="model",
                    help="display units (default: the model's own system)")
@@ -119,6 +119,12 @@ def build_parser() -> argparse.ArgumentParser:
 
     add_size_parser(sub)
     return p
+
+
+def _inventory_format_names() -> list[str]:
+    from modelcheck.report.inventory import inventory_format_names
+
+    return inventory_format_names()
 
 
 def _format_names() -> list[str]:
