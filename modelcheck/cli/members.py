@@ -4,7 +4,7 @@
 from __future__ import annotations
 
 import argparse
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
 from modelcheck.cli.common import (
     EXIT_INPUT,
@@ -17,8 +17,12 @@ from modelcheck.cli.common import (
 )
 
 if TYPE_CHECKING:
+    from collections.abc import Sequence
+
     from modelcheck.core.model import ModelData
+    from modelcheck.loads.tables import LoadTable
     from modelcheck.report.inventory import Inventory
+    from modelcheck.rules.values import RuleSet
 
 
 def cmd_members(args: argparse.Namespace) -> int:
@@ -46,7 +50,8 @@ def cmd_members(args: argparse.Namespace) -> int:
     return EXIT_INPUT if any(d.error for d in datas) else EXIT_OK
 
 
-def build_inventory(datas: list[ModelData], tables: Any, units: str, ruleset: Any = None) -> Inventory:
+def build_inventory(datas: list[ModelData], tables: Sequence[LoadTable], units: str,
+                    ruleset: RuleSet | None = None) -> Inventory:
     """The models read, each with its display units (``units``: "model" for each model's own
     system, else "SI" or "US") and, given a rule set, its members' allowable forces; and the rows
     of the load tables ``tables`` that no member used."""
