@@ -164,7 +164,7 @@ def test_a_run_writing_only_files_still_prints_a_line_per_model(tmp_path):
     # a report on standard output: the line goes to standard error, the JSON stays clean
     r = run("check", str(p), "--format", "json", "--jobs", "1")
     json.loads(r.stdout)
-    assert "members found" in flat(r.stderr) and "members" not in r.stdout.split('"results"')[0].split('"models"')[0]
+    assert "members found" in flat(r.stderr) and "members found" not in r.stdout.split('"results"')[0].split('"models"')[0]
 
 
 def test_nothing_checked_is_the_headline_and_exit_1(tmp_path):
