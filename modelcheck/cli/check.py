@@ -106,7 +106,7 @@ def cmd_check(args: argparse.Namespace) -> int:
     with stage("rule set + load tables"):
         ruleset = load_ruleset(args.rules or "steel-asd-us")
         # one model for several processes: its tables are read while it opens
-        fopts = force_options(args, ruleset, read_ahead=len(paths) == 1 and jobs > 1 and not args.scheduler)
+        fopts = force_options(args, ruleset)
     # formats that need no results table: the statuses alone (summary, exit code), the rows encoded
     slim = bool(formats) and not any(f.needs_results for f in formats) and not args.baseline and not args.annotate
     from modelcheck.run.job import Rows
@@ -129,10 +129,8 @@ def cmd_check(args: argparse.Namespace) -> int:
     if len(files) > 1:
         os.makedirs(args.output, exist_ok=True)
     from modelcheck.common.timing import stage
-    from modelcheck.run.process import give_back_freed_memory
     from modelcheck.run.sinks import release_rows
 
-    give_back_freed_memory()
     try:
         if args.annotate:   # first: the copy reads every entity, and may find a model unreadable
             _annotate(run, args.annotate, inputs)

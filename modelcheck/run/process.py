@@ -2,9 +2,8 @@
 (``modelcheck.cli.main.run`` and ``main``) only: a library caller or a test gets none of it.
 Each piece can be turned off for measuring (``modelcheck.run.tricks``).
 
-    prepare_process()            # before the work: allocator, huge pages, SIGTERM, lifetime
+    prepare_process()            # before the work: SIGTERM, lifetime
     with paused_gc(): ...        # the command's work
-    give_back_freed_memory()     # before the reports are written
     end_process(code)            # flush, then os._exit
 """
 
@@ -32,15 +31,9 @@ def raise_terminated(signum: int, frame: Any) -> None:
 
 
 def prepare_process() -> None:
-    """Set up the command's process before any work: huge pages off for numpy, the allocator
-    keeping freed memory, the objects ``lifetime.keep`` holds until ``os._exit``, and SIGTERM
-    stopping the command as Ctrl-C does (every ``finally`` runs, so the processes it started
-    are stopped too: none is left running on its own)."""
-    # numpy asks for transparent huge pages for arrays of 4 MiB and more; where the system backs
-    # them lazily (virtual machines), faulting them in costs more than the check's arithmetic
-    if "numpy" not in sys.modules and not without("madvise"):
-        os.environ.setdefault("NUMPY_MADVISE_HUGEPAGE", "0")
-    keep_freed_memory()
+    """Set up the command's process before any work: the objects ``lifetime.keep`` holds until
+    ``os._exit``, and SIGTERM stopping the command as Ctrl-C does (every ``finally`` runs, so the
+    processes it started are stopped too: none is left running on its own)."""
     if not without("exit"):
         lifetime.ENDS_WITH_EXIT = True
     import signal
@@ -87,39 +80,3 @@ def end_process(code: int, say: Any) -> NoReturn:
     if without("exit"):
         sys.exit(code)
     os._exit(code)
-
-
-def keep_freed_memory() -> None:
-    """glibc: serve large blocks from the heap and keep freed memory for reuse.
-
-    A check allocates and frees arrays and texts of tens of megabytes over and over. By default
-    each comes from a fresh mapping that is returned to the system when freed, so every one is
-    faulted in page by page again; kept, the next one reuses the same pages (a fifth of the
-    system time of a large check). The process lives for one command, so nothing is held for
-    long. Elsewhere (other C libraries, other systems) nothing changes."""
-    if not sys.platform.startswith("linux") or without("malloc"):
-        return
-    try:
-        import ctypes
-
-        mallopt = ctypes.CDLL(None).mallopt
-    except (OSError, AttributeError):
-        return
-    m_trim_threshold, m_mmap_threshold = -1, -3
-    mallopt(m_mmap_threshold, 1 << 30)
-    mallopt(m_trim_threshold, (1 << 31) - 1)
-
-
-def give_back_freed_memory() -> None:
-    """glibc: return the memory freed during the check to the system before the reports are
-    written. The kernel hands out what was freed last first: a large report's page cache then
-    reuses pages this process has just used, instead of pages a virtual machine may have given
-    back to its host (slow to fault in again; docs/performance.md gives the figures)."""
-    if not sys.platform.startswith("linux") or without("malloc"):
-        return
-    try:
-        import ctypes
-
-        ctypes.CDLL(None).malloc_trim(0)
-    except (OSError, AttributeError):
-        return

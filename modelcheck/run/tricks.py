@@ -1,23 +1,19 @@
 """The speed tricks of the runner, each of which can be turned off for measuring its gain:
-``MODELCHECK_WITHOUT=split,walker,...`` (a comma list; docs/performance.md). Turning a trick off
+``MODELCHECK_WITHOUT=split,memfd,...`` (a comma list; docs/performance.md). Turning a trick off
 never changes a report's bytes, only the time and memory it takes.
 
 * ``split``      one model with ``--jobs`` > 1 is not shared out among processes (``split``)
-* ``walker``     a shared-out model's property sets are walked in this process, not by a forked helper
-* ``read_ahead`` the load tables are read in this process, not by a forked helper while the model opens
 * ``memfd``      JSON rows and helpers' answers go back as bytes / through temporary files, not memory files
 * ``slim``       a JSON-only report keeps the full results table (rows encoded from it afterwards)
 * ``gc``         the cyclic garbage collector stays on during the command
-* ``malloc``     glibc's allocator keeps its defaults (no mallopt, no malloc_trim)
 * ``exit``       the command ends through the interpreter's teardown, not ``os._exit``
-* ``madvise``    numpy asks for transparent huge pages as it does by default
 """
 
 from __future__ import annotations
 
 import os
 
-TRICKS = ("split", "walker", "read_ahead", "memfd", "slim", "gc", "malloc", "exit", "madvise")
+TRICKS = ("split", "memfd", "slim", "gc", "exit")
 
 
 def without(trick: str) -> bool:
