@@ -106,7 +106,7 @@ def cmd_check(args: argparse.Namespace) -> int:
     with stage("rule set + load tables"):
         ruleset = load_ruleset(args.rules or "steel-asd-us")
         # one model for several processes: its tables are read while it opens
-        fopts = force_options(args, ruleset)
+        fopts = force_options(args, ruleset, read_ahead=len(paths) == 1 and jobs > 1 and not args.scheduler)
     # formats that need no results table: the statuses alone (summary, exit code), the rows encoded
     slim = bool(formats) and not any(f.needs_results for f in formats) and not args.baseline and not args.annotate
     from modelcheck.run.job import Rows

@@ -2,7 +2,7 @@
 (``modelcheck.cli.main.run`` and ``main``) only: a library caller or a test gets none of it.
 Each piece can be turned off for measuring (``modelcheck.run.tricks``).
 
-    prepare_process()            # before the work: SIGTERM, lifetime
+    prepare_process()            # before the work: huge pages off for numpy, SIGTERM, lifetime
     with paused_gc(): ...        # the command's work
     end_process(code)            # flush, then os._exit
 """
@@ -31,9 +31,14 @@ def raise_terminated(signum: int, frame: Any) -> None:
 
 
 def prepare_process() -> None:
-    """Set up the command's process before any work: the objects ``lifetime.keep`` holds until
-    ``os._exit``, and SIGTERM stopping the command as Ctrl-C does (every ``finally`` runs, so the
-    processes it started are stopped too: none is left running on its own)."""
+    """Set up the command's process before any work: huge pages off for numpy, the objects
+    ``lifetime.keep`` holds until ``os._exit``, and SIGTERM stopping the command as Ctrl-C does
+    (every ``finally`` runs, so the processes it started are stopped too: none is left running on
+    its own)."""
+    # numpy asks for transparent huge pages for arrays of 4 MiB and more; where the system backs
+    # them lazily (virtual machines), faulting them in costs more than the check's arithmetic
+    if "numpy" not in sys.modules and not without("hugepages"):
+        os.environ.setdefault("NUMPY_MADVISE_HUGEPAGE", "0")
     if not without("exit"):
         lifetime.ENDS_WITH_EXIT = True
     import signal

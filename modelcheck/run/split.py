@@ -45,6 +45,7 @@ from modelcheck.core.read import describe_model
 from modelcheck.run import lifetime
 from modelcheck.run.job import Job, Rows
 from modelcheck.run.sinks import memory_file, release_rows, row_file, sink_for
+from modelcheck.run.tricks import without
 
 if TYPE_CHECKING:
     from modelcheck.core.model import Coverage
@@ -303,6 +304,66 @@ class _Forked:
             os.waitpid(self._pid, 0)
 
 
+class _PropertySetWalker:
+    """The property-set relationships of a model (most of a large model's walk), walked by a
+    forked helper that opens the model too, while this process opens it, walks the rest and
+    reads the members' keys. ``elsewhere``: whether the helper walks them (False with
+    ``MODELCHECK_WITHOUT=walker``: ``build_index`` then walks them here)."""
+
+    def __init__(self, path: str) -> None:
+        from modelcheck.ifc.index import property_sets_in
+
+        self.elsewhere = not without("walker")
+        self._helper = (_Forked("walking the model's property sets", property_sets_in, path)
+                        if self.elsewhere else None)
+
+    def into(self, idx: ModelIndex) -> None:
+        """The helper's property sets into ``idx`` (and what the parser logged meanwhile)."""
+        if self._helper is None:
+            return
+        idx.psets_of, log = self._helper.result()
+        if log:
+            idx.parse_log.append(log)
+
+    def close(self) -> None:
+        if self._helper is not None:
+            self._helper.close()
+
+
+def _read_tables(paths: list[str]) -> tuple[LoadTable, ...]:
+    from modelcheck.loads.tables import read_load_table
+
+    return tuple(read_load_table(p) for p in paths)
+
+
+class TablesReadAhead:
+    """Load tables read by a forked process while this one opens the model.
+
+    Opening a large model keeps this process busy for a second or more, with the other cores
+    idle; reading a 100,000-row table takes a quarter of that. The helper reads the tables and
+    sends them back (``_Forked``); the first use of the tables (iterating, ``len``, indexing)
+    waits for it. Behaves as the tuple of tables it stands for. An error reading a table is
+    raised at that first use, with the message the table's reader gave."""
+
+    def __init__(self, paths: list[str]) -> None:
+        self._helper = _Forked("reading the load tables", _read_tables, paths)
+
+    def close(self) -> None:
+        self._helper.close()
+
+    def __iter__(self) -> Any:
+        return iter(self._helper.result())
+
+    def __len__(self) -> int:
+        return len(self._helper.result())
+
+    def __getitem__(self, i: Any) -> Any:
+        return self._helper.result()[i]
+
+    def __bool__(self) -> bool:
+        return bool(self._helper.result())
+
+
 def check_model_split(path: str, job: Job, *, parts: int) -> ModelResult | None:
     """Check one model for ``job`` in ``parts`` processes; None when this system cannot fork: the
     caller then checks it in one process as usual (as this does a model too small to share out)."""
@@ -314,15 +375,23 @@ def check_model_split(path: str, job: Job, *, parts: int) -> ModelResult | None:
     if parts < 2 or not can_split():
         return None
     data = ModelData(path=path)
+    # the property-set relationships (most of a large model's walk) are walked by a helper that
+    # opens the model too, while this process opens it, walks the rest and reads the members' keys
+    walker = _PropertySetWalker(path)
     try:
-        with stage("open + walk"):
-            idx = build_index(path)
-        with stage("member entities"):
-            entities = member_entities(idx)
-        large = len(entities) >= 2 * MIN_MEMBERS_PER_PART
-        if large:
-            with stage("member keys"):
-                gids, tags = member_keys(idx, entities)
+        try:
+            with stage("open + walk"):
+                idx = build_index(path, property_sets=not walker.elsewhere)
+            with stage("member entities"):
+                entities = member_entities(idx)
+            large = len(entities) >= 2 * MIN_MEMBERS_PER_PART
+            if large:
+                with stage("member keys"):
+                    gids, tags = member_keys(idx, entities)
+            with stage("property sets (helper)"):
+                walker.into(idx)
+        finally:
+            walker.close()
         if not large:
             return _in_one_process(data, idx, job)
     except ModelcheckError as exc:
@@ -353,7 +422,8 @@ def check_model_split(path: str, job: Job, *, parts: int) -> ModelResult | None:
         bounds = _bounds(sorted_gids, parts)
         runs = [sorted(order[a:b]) for a, b in bounds]
         part_starts = np.array([sorted_gids[a] for a, _ in bounds[1:]], dtype=object)
-    tables = tuple(forces.tables)
+    with stage("load tables (helper)"):
+        tables = tuple(forces.tables)   # read meanwhile by a helper (TablesReadAhead): received here
     files = {k: row_file(k) for k in range(len(bounds))} if job.rows is not Rows.TABLE else {}
     row_files = {k: fd for k, fd in files.items() if fd is not None}
     from modelcheck.core.check import display_system
