@@ -42,20 +42,22 @@ def _rss() -> str:
 
 @contextmanager
 def stage(name: str) -> Iterator[None]:
-    """Time the block; print 'pid stage seconds (at seconds since the process started) rss now/peak'
-    when enabled."""
+    """Time the block; print 'pid stage seconds (at seconds since the process started) rss now/peak,
+    memory faulted in, user + system CPU seconds' when enabled."""
     if not _ON:
         yield
         return
     import resource
 
     t = time.perf_counter()
-    faults = resource.getrusage(resource.RUSAGE_SELF).ru_minflt
+    before = resource.getrusage(resource.RUSAGE_SELF)
     try:
         yield
     finally:
         now = time.perf_counter()
-        faults = resource.getrusage(resource.RUSAGE_SELF).ru_minflt - faults
+        after = resource.getrusage(resource.RUSAGE_SELF)
+        faults = after.ru_minflt - before.ru_minflt
         print(f"[timing] {os.getpid()} {name:<24} {now - t:6.2f} s (at {_since_start():5.2f} s) "
-              f"rss {_rss()}, {faults * resource.getpagesize() >> 20} MiB faulted in",
+              f"rss {_rss()}, {faults * resource.getpagesize() >> 20} MiB faulted in, "
+              f"cpu {after.ru_utime - before.ru_utime:.2f} + {after.ru_stime - before.ru_stime:.2f} s",
               file=sys.stderr, flush=True)
