@@ -2,8 +2,9 @@
 (``modelcheck.cli.main.run`` and ``main``) only: a library caller or a test gets none of it.
 Each piece can be turned off for measuring (``modelcheck.run.tricks``).
 
-    prepare_process()            # before the work: huge pages off for numpy, SIGTERM, lifetime
-    with paused_gc(): ...        # the command's work
+    prepare_process()            # before the work: numpy's environment, the collector off,
+                                 # SIGTERM, lifetime
+    with paused_gc(): ...        # the command's work (for a library caller: the collector off)
     end_process(code)            # flush, then os._exit
 """
 
@@ -31,16 +32,27 @@ def raise_terminated(signum: int, frame: Any) -> None:
 
 
 def prepare_process() -> None:
-    """Set up the command's process before any work: huge pages off for numpy, the objects
-    ``lifetime.keep`` holds until ``os._exit``, and SIGTERM stopping the command as Ctrl-C does
-    (every ``finally`` runs, so the processes it started are stopped too: none is left running on
-    its own)."""
-    # numpy asks for transparent huge pages for arrays of 4 MiB and more; where the system backs
-    # them lazily (virtual machines), faulting them in costs more than the check's arithmetic
-    if "numpy" not in sys.modules and not without("hugepages"):
+    """Set up the command's process before any work: numpy's environment (no huge pages, no BLAS
+    threads), the cyclic garbage collector off for the whole life of the process (``paused_gc``;
+    from the imports on, and to the end: turned on again after the work, its first pass would walk
+    every object the run left), the objects ``lifetime.keep`` holds until ``os._exit``, and SIGTERM
+    stopping the command as Ctrl-C does (every ``finally`` runs, so the processes it started are
+    stopped too: none is left running on its own)."""
+    # numpy's environment, read once when numpy loads (a user's own setting wins):
+    # * numpy asks for transparent huge pages for arrays of 4 MiB and more; where the system backs
+    #   them lazily (virtual machines), faulting them in costs more than the check's arithmetic;
+    # * numpy's BLAS starts a thread per further core when it loads, which spins waiting for work
+    #   (about a tenth of a second of CPU, taken from the processes working beside it); the check
+    #   does no linear algebra, and its own processes take the cores already
+    if "numpy" not in sys.modules and not without("numpy_env"):
         os.environ.setdefault("NUMPY_MADVISE_HUGEPAGE", "0")
+        os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
     if not without("exit"):
         lifetime.ENDS_WITH_EXIT = True
+        if not without("gc"):
+            import gc
+
+            gc.disable()   # nothing is left to collect: the process ends with os._exit
     import signal
 
     signal.signal(signal.SIGTERM, raise_terminated)
@@ -51,17 +63,20 @@ def paused_gc() -> Iterator[None]:
     """The cyclic garbage collector off for the block. A run builds millions of small objects and
     few reference cycles: the collector would rescan them over and over (it doubles the time of a
     large model). Reference counting frees almost everything, and the command ends without the
-    interpreter's teardown (``end_process``)."""
+    interpreter's teardown (``end_process``). The collector is left as the block found it: off for
+    the rest of the command's process (``prepare_process``), on again for a library caller."""
     import gc
 
     if without("gc"):
         yield
         return
+    was_on = gc.isenabled()
     gc.disable()
     try:
         yield
     finally:
-        gc.enable()
+        if was_on:
+            gc.enable()
 
 
 def end_process(code: int, say: Any) -> NoReturn:

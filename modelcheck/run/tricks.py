@@ -9,14 +9,14 @@ never changes a report's bytes, only the time and memory it takes.
 * ``slim``       a JSON-only report keeps the full results table (rows encoded from it afterwards)
 * ``gc``         the cyclic garbage collector stays on during the command
 * ``exit``       the command ends through the interpreter's teardown, not ``os._exit``
-* ``hugepages``  numpy asks for transparent huge pages as it does by default
+* ``numpy_env``  numpy asks for transparent huge pages and starts its BLAS thread pool, as by default
 """
 
 from __future__ import annotations
 
 import os
 
-TRICKS = ("split", "walker", "read_ahead", "memfd", "slim", "gc", "exit", "hugepages")
+TRICKS = ("split", "walker", "read_ahead", "memfd", "slim", "gc", "exit", "numpy_env")
 
 
 def without(trick: str) -> bool:
