@@ -281,3 +281,21 @@ def test_members_evaluated_in_runs_give_the_report_of_one_run(capsys, monkeypatc
     monkeypatch.setattr(check, "EVALUATE_CHUNK", 37)       # several runs, none aligned with anything
     monkeypatch.setattr(parallel, "MIN_MEMBERS_PER_PART", 50)
     assert _report(capsys, [*args, "--jobs", "2"], [model, table, tags]) == whole
+
+
+@pytest.mark.parametrize("off", ["walker", "read_ahead", "memfd", "slim", "walker,read_ahead,memfd,slim,split"])
+def test_a_speed_trick_turned_off_changes_no_byte_of_the_report(tmp_path, capsys, monkeypatch, shared_model, off):
+    """``MODELCHECK_WITHOUT`` (``modelcheck.run.tricks``) is for measuring a trick's gain: the
+    report is the same file with the trick on or off (common practice: a speed-up must not change
+    a result)."""
+    model, table, tags = shared_model
+    monkeypatch.setattr(parallel, "MIN_MEMBERS_PER_PART", 50)
+    files = []
+    for without in ("", off):
+        monkeypatch.setenv("MODELCHECK_WITHOUT", without)
+        out = tmp_path / f"report-{len(files)}.json"
+        res = run_inprocess(capsys, ["check", str(model), "--loads", str(table), "--loads", str(tags), "--format",
+                                     "json", "--output", str(out), "--jobs", "2", "--no-config"], [model, table, tags])
+        assert res.code == 1, res.stderr
+        files.append(re.sub(rb'"generated": "[^"]*"', b"", out.read_bytes()))
+    assert files[0] == files[1]
