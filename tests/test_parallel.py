@@ -283,7 +283,7 @@ def test_members_evaluated_in_runs_give_the_report_of_one_run(capsys, monkeypatc
     assert _report(capsys, [*args, "--jobs", "2"], [model, table, tags]) == whole
 
 
-@pytest.mark.parametrize("off", ["walker", "read_ahead", "memfd", "slim", "walker,read_ahead,memfd,slim,split"])
+@pytest.mark.parametrize("off", ["read_ahead", "memfd", "slim", "read_ahead,memfd,slim,split"])
 def test_a_speed_trick_turned_off_changes_no_byte_of_the_report(tmp_path, capsys, monkeypatch, shared_model, off):
     """``MODELCHECK_WITHOUT`` (``modelcheck.run.tricks``) is for measuring a trick's gain: the
     report is the same file with the trick on or off (common practice: a speed-up must not change

@@ -122,11 +122,8 @@ class ModelIndex:
         return list(typ.HasPropertySets or ()) if typ is not None else []
 
 
-def build_index(path: str | os.PathLike[str], model: Any = None, *, property_sets: bool = True) -> ModelIndex:
-    """Open ``path`` (unless ``model`` is given) and walk its relationships once.
-
-    ``property_sets=False`` leaves ``psets_of`` empty: the caller walks those relationships
-    elsewhere (``property_sets_in``, in a forked process at the same time)."""
+def build_index(path: str | os.PathLike[str], model: Any = None) -> ModelIndex:
+    """Open ``path`` (unless ``model`` is given) and walk its relationships once."""
     log, fds = "", tuple[int, ...]()
     if model is None:
         model, log, fds = _open(path)
@@ -141,19 +138,9 @@ def build_index(path: str | os.PathLike[str], model: Any = None, *, property_set
                              path=str(path))
     idx = ModelIndex(path=str(path), file=model, schema=schema, units=units, parse_log=[log] if log else [],
                      file_fds=fds)
-    _guarded(path, _walk, model, idx, property_sets)
+    _guarded(path, _walk, model, idx)
     idx.drain_log()
     return idx
-
-
-def property_sets_in(path: str | os.PathLike[str]) -> tuple[dict[int, list[int]], str]:
-    """(``psets_of``, what the parser logged while walking) of the model at ``path``, opened here:
-    the relationship walk that takes most of a large model's walk, for a helper process that
-    does it while the caller opens the model too (``build_index(..., property_sets=False)``)."""
-    model, _, _ = _open(path)   # the open's own messages are the caller's to report
-    psets: dict[int, list[int]] = {}
-    _guarded(path, _walk_property_sets, model, psets)
-    return psets, ifcopenshell.get_log() or ""
 
 
 def _guarded(path: str | os.PathLike[str], walk: Any, *args: Any) -> None:
@@ -197,13 +184,12 @@ def _related_ids(rel: Any) -> list[int]:
     return [int(x) for x in m.group(1).replace("#", "").split(",")]
 
 
-def _walk(model: Any, idx: ModelIndex, property_sets: bool = True) -> None:
+def _walk(model: Any, idx: ModelIndex) -> None:
     for rel in model.by_type("IfcRelDefinesByType"):
         typ = rel.get_argument(5)   # RelatingType
         for oid in _related_ids(rel):
             idx.type_of[oid] = typ
-    if property_sets:
-        _walk_property_sets(model, idx.psets_of)
+    _walk_property_sets(model, idx.psets_of)
     _walk_the_rest(model, idx)
 
 

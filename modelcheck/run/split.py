@@ -45,7 +45,6 @@ from modelcheck.core.read import describe_model
 from modelcheck.run import lifetime
 from modelcheck.run.job import Job, Rows
 from modelcheck.run.sinks import memory_file, release_rows, row_file, sink_for
-from modelcheck.run.tricks import without
 
 if TYPE_CHECKING:
     from modelcheck.core.model import Coverage
@@ -304,32 +303,6 @@ class _Forked:
             os.waitpid(self._pid, 0)
 
 
-class _PropertySetWalker:
-    """The property-set relationships of a model (most of a large model's walk), walked by a
-    forked helper that opens the model too, while this process opens it, walks the rest and
-    reads the members' keys. ``elsewhere``: whether the helper walks them (False with
-    ``MODELCHECK_WITHOUT=walker``: ``build_index`` then walks them here)."""
-
-    def __init__(self, path: str) -> None:
-        from modelcheck.ifc.index import property_sets_in
-
-        self.elsewhere = not without("walker")
-        self._helper = (_Forked("walking the model's property sets", property_sets_in, path)
-                        if self.elsewhere else None)
-
-    def into(self, idx: ModelIndex) -> None:
-        """The helper's property sets into ``idx`` (and what the parser logged meanwhile)."""
-        if self._helper is None:
-            return
-        idx.psets_of, log = self._helper.result()
-        if log:
-            idx.parse_log.append(log)
-
-    def close(self) -> None:
-        if self._helper is not None:
-            self._helper.close()
-
-
 def _read_tables(paths: list[str]) -> tuple[LoadTable, ...]:
     from modelcheck.loads.tables import read_load_table
 
@@ -375,25 +348,16 @@ def check_model_split(path: str, job: Job, *, parts: int) -> ModelResult | None:
     if parts < 2 or not can_split():
         return None
     data = ModelData(path=path)
-    # the property-set relationships (most of a large model's walk) are walked by a helper that
-    # opens the model too, while this process opens it, walks the rest and reads the members' keys
-    walker = _PropertySetWalker(path)
     try:
-        try:
-            with stage("open + walk"):
-                idx = build_index(path, property_sets=not walker.elsewhere)
-            with stage("member entities"):
-                entities = member_entities(idx)
-            large = len(entities) >= 2 * MIN_MEMBERS_PER_PART
-            if large:
-                with stage("member keys"):
-                    gids, tags = member_keys(idx, entities)
-            with stage("property sets (helper)"):
-                walker.into(idx)
-        finally:
-            walker.close()
+        with stage("open + walk"):
+            idx = build_index(path)
+        with stage("member entities"):
+            entities = member_entities(idx)
+        large = len(entities) >= 2 * MIN_MEMBERS_PER_PART
         if not large:
             return _in_one_process(data, idx, job)
+        with stage("member keys"):
+            gids, tags = member_keys(idx, entities)
     except ModelcheckError as exc:
         data.error = str(exc)
         return ModelResult(data)

@@ -3,7 +3,6 @@
 never changes a report's bytes, only the time and memory it takes.
 
 * ``split``      one model with ``--jobs`` > 1 is not shared out among processes (``split``)
-* ``walker``     a shared-out model's property sets are walked in this process, not by a forked helper
 * ``read_ahead`` the load tables are read in this process, not by a forked helper while the model opens
 * ``memfd``      JSON rows and helpers' answers go back as bytes / through temporary files, not memory files
 * ``slim``       a JSON-only report keeps the full results table (rows encoded from it afterwards)
@@ -16,7 +15,7 @@ from __future__ import annotations
 
 import os
 
-TRICKS = ("split", "walker", "read_ahead", "memfd", "slim", "gc", "exit", "numpy_env")
+TRICKS = ("split", "read_ahead", "memfd", "slim", "gc", "exit", "numpy_env")
 
 
 def without(trick: str) -> bool:
