@@ -172,56 +172,6 @@ def test_a_part_whose_process_dies_is_one_clear_line(tmp_path, capsys, monkeypat
     assert len(out.lines) == 1 and str(model) in out.lines[0] and "--jobs 1" in out.lines[0]
 
 
-def test_the_tables_read_while_the_model_opens_are_the_tables(shared_model):
-    """The forked helper's tables are the ones read here, row for row (attributes included)."""
-    from modelcheck.loads.tables import read_load_table
-
-    _, table, tags = shared_model
-    ahead = parallel.TablesReadAhead([str(table), str(tags)])
-    here = (read_load_table(str(table)), read_load_table(str(tags)))
-    assert len(ahead) == 2
-    for got, want in zip(ahead, here, strict=True):
-        assert got.frame.equals(want.frame) and got.encoding == want.encoding
-
-
-def test_a_table_helper_that_dies_is_one_clear_line(tmp_path, capsys, monkeypatch, shared_model):
-    """The process reading the tables ahead killed (out of memory, say): one line, exit 2."""
-    import modelcheck.loads.tables as tables
-
-    model, table, _ = shared_model
-    monkeypatch.setattr(tables, "read_load_table", lambda path: os.kill(os.getpid(), signal.SIGKILL))
-    out = run_inprocess(capsys, ["check", str(model), "--loads", str(table), "--format", "json", "--jobs", "2",
-                                 "--no-config"], [model, table])
-    assert out.code == 2
-    assert len(out.lines) == 1 and "load tables" in out.lines[0] and "--jobs 1" in out.lines[0]
-
-
-def test_a_check_stopped_before_its_tables_are_used_leaves_no_helper_behind(capsys, monkeypatch, shared_model):
-    """The helper would otherwise wait on its full pipe for as long as the caller lives."""
-    import modelcheck.run.runner as runner
-    from modelcheck.common.errors import ModelcheckError
-
-    model, table, _ = shared_model
-    helpers: list[parallel.TablesReadAhead] = []
-    real = parallel.TablesReadAhead.__init__
-
-    def record(self: Any, paths: list[str]) -> None:
-        real(self, paths)
-        helpers.append(self)
-
-    def stopped(*args: Any, **kwargs: Any) -> Any:
-        raise ModelcheckError("stopped before the tables were used")
-
-    monkeypatch.setattr(parallel.TablesReadAhead, "__init__", record)
-    monkeypatch.setattr(runner, "check_one", stopped)
-    out = run_inprocess(capsys, ["check", str(model), "--loads", str(table), "--format", "json", "--jobs", "2",
-                                 "--no-config"], [model, table])
-    assert out.code == 2 and out.lines == ["modelcheck: error: stopped before the tables were used"]
-    assert len(helpers) == 1
-    with pytest.raises(ChildProcessError):   # reaped: no such child any more
-        os.waitpid(helpers[0]._helper._pid, os.WNOHANG)
-
-
 @pytest.mark.parametrize("name", ["nettlebrook-hall.ifc", "nettlebrook-canopy.ifc", "nettlebrook-pipebridge.ifc"])
 def test_the_sample_models_shared_out_give_their_single_process_reports(capsys, monkeypatch, name):
     """The demo models carry all three force routes (a load table, model properties, IFC
@@ -283,7 +233,7 @@ def test_members_evaluated_in_runs_give_the_report_of_one_run(capsys, monkeypatc
     assert _report(capsys, [*args, "--jobs", "2"], [model, table, tags]) == whole
 
 
-@pytest.mark.parametrize("off", ["read_ahead", "memfd", "slim", "read_ahead,memfd,slim,split"])
+@pytest.mark.parametrize("off", ["memfd", "slim", "memfd,slim,split"])
 def test_a_speed_trick_turned_off_changes_no_byte_of_the_report(tmp_path, capsys, monkeypatch, shared_model, off):
     """``MODELCHECK_WITHOUT`` (``modelcheck.run.tricks``) is for measuring a trick's gain: the
     report is the same file with the trick on or off (common practice: a speed-up must not change

@@ -105,21 +105,16 @@ def cmd_check(args: argparse.Namespace) -> int:
         raise UsageError("--jobs must be at least 1")
     with stage("rule set + load tables"):
         ruleset = load_ruleset(args.rules or "steel-asd-us")
-        # one model for several processes: its tables are read while it opens
-        fopts = force_options(args, ruleset, read_ahead=len(paths) == 1 and jobs > 1 and not args.scheduler)
+        fopts = force_options(args, ruleset)
     # formats that need no results table: the statuses alone (summary, exit code), the rows encoded
     slim = bool(formats) and not any(f.needs_results for f in formats) and not args.baseline and not args.annotate
     from modelcheck.run.job import Rows
 
     encode_json = any(f.json_rows for f in files)
     rows = Rows.JSON_ONLY if encode_json and slim else Rows.JSON if encode_json else Rows.TABLE
-    try:
-        with stage("check models"):
-            run = _run_with_progress(paths, ruleset, fopts, jobs, bool(args.validate), args.scheduler,
-                                     rows, units=args.units or "model")
-    finally:
-        if hasattr(fopts.tables, "close"):   # tables read ahead by a helper process
-            fopts.tables.close()
+    with stage("check models"):
+        run = _run_with_progress(paths, ruleset, fopts, jobs, bool(args.validate), args.scheduler,
+                                 rows, units=args.units or "model")
     now = dt.datetime.now(dt.UTC).replace(microsecond=0)
     comparison = None
     if baseline is not None:

@@ -23,21 +23,12 @@ def say(line: str) -> None:
     print(shown_line(line), file=sys.stderr)
 
 
-def force_options(args: argparse.Namespace, ruleset: Any = None, read_ahead: bool = False) -> Any:
-    """The force routes of a command. ``read_ahead``: one model will be opened next and shared
-    out among processes, so a forked helper reads the load tables meanwhile (``TablesReadAhead``)."""
+def force_options(args: argparse.Namespace, ruleset: Any = None) -> Any:
+    """The force routes of a command."""
     from modelcheck.core.model import ForceOptions
     from modelcheck.loads.tables import read_load_table
 
-    load_paths = expand_load_paths(args.loads)
-    tables: Any
-    if read_ahead and load_paths:
-        from modelcheck.run.split import TablesReadAhead, can_split
-        from modelcheck.run.tricks import without
-
-        tables = TablesReadAhead(load_paths) if can_split() and not without("read_ahead") else tuple(read_load_table(p) for p in load_paths)
-    else:
-        tables = tuple(read_load_table(p) for p in load_paths)
+    tables = tuple(read_load_table(p) for p in expand_load_paths(args.loads))
     from modelcheck.loads.properties import parse_property_name
 
     prop_text = (args.force_property if args.force_property is not None

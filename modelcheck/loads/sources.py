@@ -44,7 +44,7 @@ KEYED_COLUMNS: tuple[str, ...] = ("key_kind", "key", "load_case", "axial_force",
 class ForceOptions:
     """What the command line says about the force sources."""
 
-    tables: Sequence[LoadTable] = ()   # the load tables (read_load_table), or the helper reading them ahead
+    tables: tuple[LoadTable, ...] = ()   # the load tables (read_load_table)
     property: tuple[str, str] | None = None   # (pset, property)
     analysis: bool = True
     analysis_frame: str | None = None   # --analysis-frame: None tests each member's flag

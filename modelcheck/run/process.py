@@ -2,8 +2,7 @@
 (``modelcheck.cli.main.run`` and ``main``) only: a library caller or a test gets none of it.
 Each piece can be turned off for measuring (``modelcheck.run.tricks``).
 
-    prepare_process()            # before the work: numpy's environment, the collector off,
-                                 # SIGTERM, lifetime
+    prepare_process()            # before the work: the collector off, SIGTERM, lifetime
     with paused_gc(): ...        # the command's work (for a library caller: the collector off)
     end_process(code)            # flush, then os._exit
 """
@@ -32,21 +31,11 @@ def raise_terminated(signum: int, frame: Any) -> None:
 
 
 def prepare_process() -> None:
-    """Set up the command's process before any work: numpy's environment (no huge pages, no BLAS
-    threads), the cyclic garbage collector off for the whole life of the process (``paused_gc``;
-    from the imports on, and to the end: turned on again after the work, its first pass would walk
-    every object the run left), the objects ``lifetime.keep`` holds until ``os._exit``, and SIGTERM
-    stopping the command as Ctrl-C does (every ``finally`` runs, so the processes it started are
-    stopped too: none is left running on its own)."""
-    # numpy's environment, read once when numpy loads (a user's own setting wins):
-    # * numpy asks for transparent huge pages for arrays of 4 MiB and more; where the system backs
-    #   them lazily (virtual machines), faulting them in costs more than the check's arithmetic;
-    # * numpy's BLAS starts a thread per further core when it loads, which spins waiting for work
-    #   (about a tenth of a second of CPU, taken from the processes working beside it); the check
-    #   does no linear algebra, and its own processes take the cores already
-    if "numpy" not in sys.modules and not without("numpy_env"):
-        os.environ.setdefault("NUMPY_MADVISE_HUGEPAGE", "0")
-        os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
+    """Set up the command's process before any work: the cyclic garbage collector off for the whole
+    life of the process (``paused_gc``; from the imports on, and to the end: turned on again after
+    the work, its first pass would walk every object the run left), the objects ``lifetime.keep``
+    holds until ``os._exit``, and SIGTERM stopping the command as Ctrl-C does (every ``finally``
+    runs, so the processes it started are stopped too: none is left running on its own)."""
     if not without("exit"):
         lifetime.ENDS_WITH_EXIT = True
         if not without("gc"):

@@ -303,40 +303,6 @@ class _Forked:
             os.waitpid(self._pid, 0)
 
 
-def _read_tables(paths: list[str]) -> tuple[LoadTable, ...]:
-    from modelcheck.loads.tables import read_load_table
-
-    return tuple(read_load_table(p) for p in paths)
-
-
-class TablesReadAhead:
-    """Load tables read by a forked process while this one opens the model.
-
-    Opening a large model keeps this process busy for a second or more, with the other cores
-    idle; reading a 100,000-row table takes a quarter of that. The helper reads the tables and
-    sends them back (``_Forked``); the first use of the tables (iterating, ``len``, indexing)
-    waits for it. Behaves as the tuple of tables it stands for. An error reading a table is
-    raised at that first use, with the message the table's reader gave."""
-
-    def __init__(self, paths: list[str]) -> None:
-        self._helper = _Forked("reading the load tables", _read_tables, paths)
-
-    def close(self) -> None:
-        self._helper.close()
-
-    def __iter__(self) -> Any:
-        return iter(self._helper.result())
-
-    def __len__(self) -> int:
-        return len(self._helper.result())
-
-    def __getitem__(self, i: Any) -> Any:
-        return self._helper.result()[i]
-
-    def __bool__(self) -> bool:
-        return bool(self._helper.result())
-
-
 def check_model_split(path: str, job: Job, *, parts: int) -> ModelResult | None:
     """Check one model for ``job`` in ``parts`` processes; None when this system cannot fork: the
     caller then checks it in one process as usual (as this does a model too small to share out)."""
@@ -386,8 +352,7 @@ def check_model_split(path: str, job: Job, *, parts: int) -> ModelResult | None:
         bounds = _bounds(sorted_gids, parts)
         runs = [sorted(order[a:b]) for a, b in bounds]
         part_starts = np.array([sorted_gids[a] for a, _ in bounds[1:]], dtype=object)
-    with stage("load tables (helper)"):
-        tables = tuple(forces.tables)   # read meanwhile by a helper (TablesReadAhead): received here
+    tables = forces.tables
     files = {k: row_file(k) for k in range(len(bounds))} if job.rows is not Rows.TABLE else {}
     row_files = {k: fd for k, fd in files.items() if fd is not None}
     from modelcheck.core.check import display_system

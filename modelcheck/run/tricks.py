@@ -3,19 +3,17 @@
 never changes a report's bytes, only the time and memory it takes.
 
 * ``split``      one model with ``--jobs`` > 1 is not shared out among processes (``split``)
-* ``read_ahead`` the load tables are read in this process, not by a forked helper while the model opens
 * ``memfd``      JSON rows and helpers' answers go back as bytes / through temporary files, not memory files
 * ``slim``       a JSON-only report keeps the full results table (rows encoded from it afterwards)
 * ``gc``         the cyclic garbage collector stays on during the command
 * ``exit``       the command ends through the interpreter's teardown, not ``os._exit``
-* ``numpy_env``  numpy asks for transparent huge pages and starts its BLAS thread pool, as by default
 """
 
 from __future__ import annotations
 
 import os
 
-TRICKS = ("split", "read_ahead", "memfd", "slim", "gc", "exit", "numpy_env")
+TRICKS = ("split", "memfd", "slim", "gc", "exit")
 
 
 def without(trick: str) -> bool:
