@@ -134,7 +134,7 @@ def _format_names() -> list[str]:
 
 
 def _details_width() -> int:
-    from modelcheck.report.console import DETAILS_WIDTH
+    from modelcheck.report.text import DETAILS_WIDTH
 
     return DETAILS_WIDTH
 

@@ -29,13 +29,11 @@ from rich.text import Text
 from modelcheck.common.table import STATUS_RANK, records
 from modelcheck.report.fitting import _fit, _limits, fitted_table
 from modelcheck.report.formats import WriteOptions
-from modelcheck.report.text import CAUTION, number, shown
+from modelcheck.report.text import CAUTION, DETAILS_WIDTH, number, shown
 
 if TYPE_CHECKING:
     from modelcheck.core.model import CheckRun, Coverage, ModelData
 
-#: console width from which the failing and unchecked lists show every detail
-DETAILS_WIDTH = 160
 
 #: console width when standard output is no terminal and COLUMNS is not set
 DEFAULT_WIDTH = 100

@@ -18,6 +18,11 @@ import math
 import re
 from typing import Any
 
+#: console width from which the failing and unchecked lists show every detail (the console
+#: report's wide layout; here, not in ``report.console``, so that the command line's help can
+#: name it without loading rich)
+DETAILS_WIDTH = 160
+
 #: the caution every report ends with
 CAUTION = ("modelcheck screens models for data and axial-stress problems; it does not replace design "
            "and checking by a licensed engineer under the governing local code.")
