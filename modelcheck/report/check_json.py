@@ -256,8 +256,8 @@ def _once_per_key(keys: np.ndarray, make: Any) -> np.ndarray:
 #: rows encoded at a time: the rows of text never exist whole in memory. A block's pieces are a few
 #: small objects per row (numbers, messages, the joined row: about 1.5 MB for 2,048 rows); freed
 #: before the next block's are made, they leave the interpreter's small-object memory for the next
-#: block to reuse. Blocks ten times larger empty whole arenas, which the interpreter gives back to
-#: the system and the next block faults in again (about a tenth of the encoding's time)
+#: block to reuse. Blocks eight times larger empty whole arenas, which the interpreter gives back
+#: to the system and the next block faults in again (a part's rules and rows took a sixth longer)
 JOIN_BLOCK = 2048
 
 

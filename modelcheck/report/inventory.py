@@ -130,9 +130,9 @@ def write_table(inventory: Inventory, target: str | None, options: InventoryOpti
 
     from modelcheck.common.files import writing
     from modelcheck.core.forces import unmatched_lines
-    from modelcheck.report.console import DETAILS_WIDTH, make_console
+    from modelcheck.report.console import make_console
     from modelcheck.report.members import CAUTION, member_notes, members_table
-    from modelcheck.report.text import MAX_SHOWN, shown
+    from modelcheck.report.text import DETAILS_WIDTH, MAX_SHOWN, shown
 
     def escape(text: str, limit: int | None = MAX_SHOWN * 5) -> str:   # the model's text, safe for a terminal
         return markup_escape(shown(text, limit))
