@@ -231,6 +231,27 @@ def test_library_errors_name_file_and_key(tmp_path: Path, change: tuple[str, str
     assert str(p) in str(exc.value) and where in str(exc.value)
 
 
+@pytest.mark.parametrize(("fy", "fu", "refused"), [
+    ("355 MPa", "270 MPa", True),    # the two swapped (EN 10025-2 S275: fy 275, fu 410; common practice)
+    ("50 ksi", "36 ksi", True),      # in ksi too, compared in SI
+    ("355 MPa", "355 MPa", False),   # equal: allowed (a tensile strength is at least the yield strength)
+    ("345 MPa", "65 ksi", False),    # mixed units, 448 MPa (pint) above 345 MPa
+])
+def test_a_tensile_strength_below_the_yield_strength_is_refused(tmp_path: Path, fy: str, fu: str,
+                                                                 refused: bool) -> None:
+    # the tensile strength is the largest stress of the tensile test (ISO 6892-1, Rm; common practice),
+    # so a grade whose Fu is below its Fy is a typo in the file
+    text = GOOD.replace('"235 MPa"', f'"{fy}"') + f'Fu = {{ value = "{fu}", source = "x" }}\n'
+    p = write(tmp_path, text)
+    if not refused:
+        assert load_library(p).materials[0].Fu is not None
+        return
+    with pytest.raises(RuleSetError) as exc:
+        load_library(p)
+    assert str(exc.value) == (f"{p}:material.'Test S1'.Fu.value: tensile strength {fu!r} is below the yield "
+                              f"strength Fy {fy!r}; are the two swapped?")
+
+
 def test_duplicate_pattern_across_grades_is_refused(tmp_path: Path) -> None:
     extra = GOOD + '\n[material."Test S2"]\ncategory = "steel"\nstandard = "x"\nnames = ["s1"]\n' \
         'E = { value = "200 GPa", source = "x" }\n'

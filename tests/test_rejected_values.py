@@ -85,6 +85,51 @@ def test_a_modulus_the_model_does_not_give_keeps_the_plain_reason(capsys, tmp_pa
     assert _missing_of(_check_json(capsys, tmp_path, mb), "R1", "elongation") == [GENERIC_E]
 
 
+@pytest.mark.parametrize(("schema", "units", "fy", "fu", "shown_fy", "shown_fu"), [
+    # values swapped: 490 and 355 MPa (EN 10025-2 S355: fy 355, fu 470–630 MPa; from memory)
+    ("IFC4", "mm", 490.0, 355.0, "490 MPa", "355 MPa"),
+    # in ksi, swapped: 65 and 50 (ASTM A992: Fy 50 ksi, Fu 65 ksi; from memory); 1 ksi = 6.894757 MPa (pint)
+    ("IFC2X3", "inch-kip", 65.0, 50.0, "65 KSI (= 448.159 MPa)", "50 KSI (= 344.738 MPa)"),
+])
+def test_a_tensile_strength_below_the_yield_strength_uses_neither(capsys, tmp_path, schema, units, fy, fu,
+                                                                   shown_fy, shown_fu):
+    # a tensile strength is never below the yield strength (the largest stress of the tensile test,
+    # ISO 6892-1 Rm; common practice): one of the two is wrong, and nothing says which
+    mb = ModelBuilder(schema=schema, units=units)
+    e = 210000.0 if units == "mm" else 29000.0
+    steel = mb.material("House steel 7", category="steel", E=e, Fy=fy, Fu=fu)   # no library grade
+    if units == "mm":
+        mb.member(name="rod", tag="R1", profile=round_bar(mb, 20.0), material=steel, length=2000.0,
+                  psets=axial_force(20.0 * KN))
+    else:
+        mb.member(name="rod", tag="R1", profile=round_bar(mb, 0.75, "RD20"), material=steel, length=120.0,
+                  psets=axial_force(5.0))
+    doc = _check_json(capsys, tmp_path, mb)
+    (fy_text,) = _missing_of(doc, "R1", "tension-yield")
+    assert fy_text.startswith(f"Fy: {shown_fy} in ") and f"is above the tensile strength Fu, {shown_fu} in " in fy_text
+    assert fy_text.endswith("one of them is wrong (swapped?); not used")
+    (fu_text,) = _missing_of(doc, "R1", "threaded-rod")
+    assert fu_text.startswith(f"Fu: {shown_fu} in ") and f"is below the yield strength Fy, {shown_fy} in " in fu_text
+    # the modulus is not in question: the elongation is still checked
+    assert {r["status"] for r in doc["results"] if r["check"] == "elongation"} <= {"pass", "fail"}
+    (warnings,) = doc["models"][0]["member_warnings"].values()
+    assert [w.split(":")[0] for w in warnings] == ["material 'House steel 7', Fy", "material 'House steel 7', Fu"]
+
+
+def test_a_yield_strength_from_the_model_above_the_librarys_tensile_strength_uses_neither(capsys, tmp_path):
+    # the name says S275 (the library's fu 430 MPa, EN 10025-2 for t < 3 mm, checked against that table in
+    # tests/test_materials.py), the model says fy 460 MPa:
+    # the material is not what its name says, and neither strength is used
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    steel = mb.material("S275", category="steel", E=210000.0, Fy=460.0)
+    mb.member(name="rod", tag="R1", profile=round_bar(mb, 20.0), material=steel, length=2000.0,
+              psets=axial_force(20.0 * KN))
+    doc = _check_json(capsys, tmp_path, mb)
+    (fy_text,) = _missing_of(doc, "R1", "tension-yield")
+    assert fy_text.startswith("Fy: 460 MPa in ") and "is above the tensile strength Fu, 430 MPa in " in fy_text
+    assert "S275" in fy_text
+
+
 def test_an_implausible_section_is_named_for_each_section_value(capsys, tmp_path):
     mb = ModelBuilder(schema="IFC4", units="mm")
     steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)

@@ -409,6 +409,7 @@ class _Reader:
             warnings.append(f"material {name!r}: category unknown (neither its name nor its Category matches a "
                             "pattern of rulesets/material-names.toml)")
         self._plausibility(category, values, rejected, found)
+        _strengths_in_order(values, rejected, found)
         values.pop("density", None)   # screened above; no check uses it
         warnings += [f"material {name!r}, {q}: {why}" for q, why in rejected.items()]
         info = MaterialInfo(name, category, grade, values, tuple(warnings), tuple(rejected.items()))
@@ -1150,6 +1151,30 @@ def _unpack_material(select: Any) -> tuple[list[Any], list[Any]]:
     if cls == "IfcMaterialList":
         return list(select.Materials or ()), []
     return [], []
+
+
+def _strengths_in_order(values: dict[str, tuple[float, str]], rejected: dict[str, str],
+                        found: dict[str, tuple[str, str]]) -> None:
+    """A tensile strength Fu below the yield strength Fy cannot be: the tensile strength is the
+    largest stress of the tensile test. One of the two is wrong (swapped, or from another grade)
+    and nothing says which, so neither is used: NaN in ``values``, each named in ``rejected``."""
+    fy, fu = values.get("Fy"), values.get("Fu")
+    if fy is None or fu is None or not (math.isfinite(fy[0]) and math.isfinite(fu[0])) or fu[0] >= fy[0]:
+        return
+
+    def shown(q: str, v: float, src: str) -> str:
+        text, where = found.get(q, (_fmt_si(q, v), src))
+        if text != _fmt_si(q, v):   # the file's own unit, then in MPa
+            text = f"{text} (= {_fmt_si(q, v)})"
+        return f"{text} in {where}"
+
+    fy_text, fu_text = shown("Fy", *fy), shown("Fu", *fu)
+    rejected["Fy"] = (f"{fy_text} is above the tensile strength Fu, {fu_text}: a tensile strength is never "
+                      "below the yield strength, so one of them is wrong (swapped?); not used")
+    rejected["Fu"] = (f"{fu_text} is below the yield strength Fy, {fy_text}: a tensile strength is never "
+                      "below the yield strength, so one of them is wrong (swapped?); not used")
+    values["Fy"] = (math.nan, f"doubted: {fy[1]}")
+    values["Fu"] = (math.nan, f"doubted: {fu[1]}")
 
 
 def _fmt_si(q: str, v: float) -> str:

@@ -292,6 +292,10 @@ def _parse(doc: dict[str, Any], problems: Problems[RuleSetError], label: str) ->
             if v <= 0:
                 raise problems.error(f"{where}.{key}.value", f"must be positive, got {entry['value']!r}")
             values.update({key: v, f"{key}_source": f"{label}: {grade}", f"{key}_basis": entry["source"]})
+        if values.get("Fy") is not None and values.get("Fu") is not None and values["Fu"] < values["Fy"]:
+            # a tensile strength is the largest stress of the tensile test, never below the yield strength
+            raise problems.error(f"{where}.Fu.value", f"tensile strength {spec['Fu']['value']!r} is below the "
+                                 f"yield strength Fy {spec['Fy']['value']!r}; are the two swapped?")
         index = len(materials)
         seen: set[str] = set()
         for n in names:
