@@ -158,6 +158,9 @@ def test_no_yield_strength_where_the_name_states_none(name: str) -> None:
     "Steel tensile strength 490 MPa",
     "Steel 345 MPa / 450 MPa",         # two strengths: which is the yield strength is a guess
     "Steel 1,345 MPa",                 # the end of a longer number, not 345 MPa
+    "Steel 1 345 MPa",                 # digits in groups of three with a space between (SI brochure 5.4.4;
+    "Steel 1\u202f345 MPa",            #   from memory): 1345, not 345 MPa; a thin or no-break space too
+    "Steel 1\u00a0345 MPa",
     "Steel 1e308 MPa",                 # an exponent's digits, not 308 MPa
     "Steel 1.5E+308 MPa",
 ])
