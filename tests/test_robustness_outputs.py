@@ -7,6 +7,7 @@ never damage what it was given).
 
 from __future__ import annotations
 
+import json
 import os
 import shutil
 from pathlib import Path
@@ -155,3 +156,92 @@ def test_a_folder_given_as_the_rule_set_is_one_line(capsys, project):
     out = run_inprocess(capsys, ["check", "nettlebrook-hall.ifc", "--rules", "sub", "--no-config"],
                         [project / "nettlebrook-hall.ifc"])
     assert out.code == 2 and len(out.lines) == 1 and "sub: is a folder, not a rule-set file" in out.lines[0]
+
+
+# ------------------------------------------------------------------ a report is written whole or not at all
+
+FORMATS = ["json", "csv", "junit", "bcf", "html"]
+
+
+def _check_args(fmt: str, output: str) -> list[str]:
+    return ["check", "nettlebrook-hall.ifc", "--loads", "nettlebrook-hall-forces.csv", "--format", fmt,
+            "--output", output, "--no-config", "--jobs", "1"]
+
+
+def _partials(folder: Path) -> list[str]:
+    return sorted(p.name for p in folder.iterdir() if "partial" in p.name)
+
+
+@pytest.mark.parametrize("fmt", FORMATS)
+def test_a_write_that_fails_midway_leaves_the_earlier_report_as_it_was(capsys, project, monkeypatch, fmt):
+    # common practice: a report is replaced whole or not at all, so that a reader (a CI job, a
+    # coordinator) never takes part of one for the whole; the earlier report stays until then
+    from modelcheck.report import formats
+
+    (project / "report.out").write_bytes(b"the earlier report\n")
+    real = formats.write_report
+
+    def half_then_fail(fmt_, run, target, options):   # a full disk after the first bytes
+        real(fmt_, run, target, options)
+        with open(target, "r+b") as fh:
+            fh.truncate(max(1, os.path.getsize(target) // 2))
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr(formats, "write_report", half_then_fail)
+    out = run_inprocess(capsys, _check_args(fmt, "report.out"), [project / "nettlebrook-hall.ifc"])
+    assert out.code == 2 and out.errors == ["modelcheck: error: report.out: cannot be written: "
+                                            "No space left on device"], out.stderr
+    assert (project / "report.out").read_bytes() == b"the earlier report\n"
+    assert _partials(project) == []
+
+
+@pytest.mark.parametrize("fmt", FORMATS)
+def test_a_report_replaces_the_earlier_one_whole_and_keeps_its_permissions(capsys, project, fmt):
+    target = project / "report.out"
+    target.write_bytes(b"the earlier report\n")
+    target.chmod(0o640)
+    out = run_inprocess(capsys, _check_args(fmt, "report.out"), [project / "nettlebrook-hall.ifc"])
+    assert out.code == 1, out.stderr   # the sample's deliberate failures
+    assert target.read_bytes() != b"the earlier report\n" and target.stat().st_size > 1000
+    assert (target.stat().st_mode & 0o777) == 0o640
+    assert _partials(project) == []
+
+
+def test_a_new_report_gets_the_usual_permissions(capsys, project):
+    mask = os.umask(0o022)
+    try:
+        out = run_inprocess(capsys, _check_args("json", "new.json"), [project / "nettlebrook-hall.ifc"])
+    finally:
+        os.umask(mask)
+    assert out.code == 1, out.stderr
+    assert ((project / "new.json").stat().st_mode & 0o777) == 0o644   # 0666 less the umask (common practice)
+
+
+def test_a_link_to_the_report_stays_a_link(capsys, project):
+    (project / "reports").mkdir()
+    (project / "reports" / "r.json").write_text("{}", encoding="utf-8")
+    (project / "latest.json").symlink_to(project / "reports" / "r.json")
+    out = run_inprocess(capsys, _check_args("json", "latest.json"), [project / "nettlebrook-hall.ifc"])
+    assert out.code == 1, out.stderr
+    assert (project / "latest.json").is_symlink()
+    assert json.loads((project / "reports" / "r.json").read_text(encoding="utf-8"))["summary"]["fail"] > 0
+    assert _partials(project / "reports") == [] and _partials(project) == []
+
+
+def test_a_device_is_written_directly(capsys, project):
+    out = run_inprocess(capsys, _check_args("json", os.devnull), [project / "nettlebrook-hall.ifc"])
+    assert out.code == 1, out.stderr
+    assert Path(os.devnull).exists() and not Path(os.devnull).is_file()
+
+
+@pytest.mark.parametrize(("args", "name"), [
+    (["members", "nettlebrook-hall.ifc", "--format", "json", "--output", "m.json"], "m.json"),
+    (["members", "nettlebrook-hall.ifc", "--format", "csv", "--output", "m.csv"], "m.csv"),
+    (["members", "nettlebrook-hall.ifc", "--output", "m.txt"], "m.txt"),
+])
+def test_the_member_list_replaces_the_earlier_one_whole(capsys, project, args, name):
+    (project / name).write_bytes(b"the earlier list\n")
+    out = run_inprocess(capsys, args, [project / "nettlebrook-hall.ifc"])
+    assert out.code == 0, out.stderr
+    assert (project / name).read_bytes() != b"the earlier list\n"
+    assert _partials(project) == []

@@ -129,16 +129,19 @@ def cmd_check(args: argparse.Namespace) -> int:
     try:
         if args.annotate:   # first: the copy reads every entity, and may find a model unreadable
             _annotate(run, args.annotate, inputs)
-        from modelcheck.common.files import writing
+        from modelcheck.common.files import output_file, writing
 
         options = WriteOptions(now=now, comparison=comparison, strict=bool(args.strict),
                                only_new=args.fail_on == "new", details=args.details)
         for f in files:
             target = targets[f.name]
             with stage(f"write {f.name}"), writing(target):
-                if target is not None:
-                    guard_output(target, inputs)   # again: --annotate has written meanwhile
-                write_report(f, run, target, options)
+                if target is None:
+                    write_report(f, run, None, options)
+                    continue
+                guard_output(target, inputs)   # again: --annotate has written meanwhile
+                with output_file(target) as path:
+                    write_report(f, run, path, options)
     finally:
         release_rows(run.json_rows)
     terminal = list(dict.fromkeys(f for f in formats if f.extension is None))

@@ -65,7 +65,7 @@ def expand_load_paths(items: list[str]) -> list[str]:
 
 
 def write_text(text: str, output: str | None, inputs: list[str]) -> None:
-    from modelcheck.common.files import writing
+    from modelcheck.common.files import output_file, writing
 
     if output is None:
         with writing(None):
@@ -73,8 +73,8 @@ def write_text(text: str, output: str | None, inputs: list[str]) -> None:
             sys.stdout.flush()
         return
     guard_output(output, inputs)
-    with writing(output):
-        Path(output).write_text(text, encoding="utf-8")
+    with writing(output), output_file(output) as path:
+        Path(path).write_text(text, encoding="utf-8")
 
 
 def guard_output(output: str, inputs: list[str], option: str = "--output", new_folder: bool = False) -> None:

@@ -61,3 +61,46 @@ def writing(path: str | os.PathLike[str] | None) -> Iterator[None]:
     except OSError as exc:
         raise OutputError(f"cannot be written: {exc.strerror or exc}",
                           path=str(path) if path is not None else "standard output") from None
+
+
+@contextmanager
+def output_file(path: str | os.PathLike[str]) -> Iterator[str]:
+    """The path to write the output ``path`` through: a new file beside it (hidden, with the same
+    suffix), put in its place once written whole, so that an interrupted or failed write never
+    leaves part of a report behind; the report that was there stays as it was until then. A link
+    to the output is followed (the link stays a link); an existing report's permissions are
+    kept. Written directly: a path that is no regular file (``/dev/null``, a pipe), and a folder
+    in which no new file can be made."""
+    target = Path(os.path.realpath(path))
+    try:
+        st: os.stat_result | None = target.stat()
+    except OSError:
+        st = None
+    if st is not None and not stat.S_ISREG(st.st_mode):
+        yield str(path)
+        return
+    part = None
+    for n in range(100):   # a name no other file has (one left by a run that was killed, say)
+        name = target.with_name(f".{target.stem}.{os.getpid()}-{n}-partial{target.suffix}")
+        try:
+            os.close(os.open(name, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666))
+        except FileExistsError:
+            continue
+        except OSError:
+            break
+        part = name
+        break
+    if part is None:
+        yield str(path)
+        return
+    try:
+        if st is not None:
+            os.chmod(part, stat.S_IMODE(st.st_mode))
+        yield str(part)
+        os.replace(part, target)
+    except BaseException:
+        try:
+            os.unlink(part)
+        except OSError:
+            pass
+        raise
