@@ -95,7 +95,9 @@ def test_a_registered_format_gets_its_default_file_name_and_the_run(tally: Recei
     assert out.code == 0, out.stderr
     assert sorted(p.name for p in folder.iterdir()) == ["modelcheck-report.json", "modelcheck-report.tally.txt"]
     (run, target, options), = tally.calls
-    assert target == str(folder / "modelcheck-report.tally.txt")
+    # written beside the report under a name of its own, then put in its place whole
+    assert Path(target).parent == folder and Path(target).name.endswith("modelcheck-report.tally.txt")
+    assert not Path(target).exists()
     doc = json.loads((folder / "modelcheck-report.json").read_text(encoding="utf-8"))
     # the same run as the JSON report's: its models, every result (the table: the format needs it), its time
     assert [m.path for m in run.models] == [m["path"] for m in doc["models"]] == [str(path)]
@@ -181,7 +183,9 @@ def test_a_registered_inventory_format_receives_the_inventory(count: Listed, tmp
     out = run_inprocess(capsys, ["members", str(path), "--format", "count", "--output", str(target_file)], [path])
     assert out.code == 0, out.stderr
     assert out.stdout == ""
-    assert count.calls[-1][1] == str(target_file) and count.calls[-1][2].details is None
+    written = Path(count.calls[-1][1])   # beside the list under a name of its own, then put in its place
+    assert written.parent == tmp_path and written.name.endswith("count.txt") and not written.exists()
+    assert count.calls[-1][2].details is None
     assert target_file.read_text(encoding="utf-8") == f"{path}: 3 members\n"
 
 

@@ -245,3 +245,36 @@ def test_the_member_list_replaces_the_earlier_one_whole(capsys, project, args, n
     assert out.code == 0, out.stderr
     assert (project / name).read_bytes() != b"the earlier list\n"
     assert _partials(project) == []
+
+
+@pytest.mark.parametrize("into", ["file", "pipe", "file, appended"])
+@pytest.mark.parametrize("command", ["check", "members"])
+def test_standard_output_by_name_is_the_stream_itself(project, into, command):
+    # `--output /dev/stdout > report.json` or `| jq`: the report is written to the stream the shell
+    # opened (at its place: after what a file held, when appended), the other lines go to standard
+    # error, so that what arrives is the report alone (common practice: a Unix filter's data on stdout)
+    import subprocess
+    import sys
+
+    args = (_check_args("json", "/dev/stdout") if command == "check"
+            else ["members", "nettlebrook-hall.ifc", "--format", "json", "--output", "/dev/stdout"])
+    cmd = [sys.executable, "-m", "modelcheck", *args]
+    if into == "pipe":
+        res = subprocess.run(cmd, cwd=project, capture_output=True, timeout=300)
+        text = res.stdout.decode("utf-8")
+    else:
+        target = project / "report.json"
+        target.write_bytes(b"before\n" if into == "file, appended" else b"")
+        with open(target, "ab" if into == "file, appended" else "wb") as fh:
+            res = subprocess.run(cmd, cwd=project, stdout=fh, stderr=subprocess.PIPE, timeout=300)
+        text = target.read_text(encoding="utf-8")
+        if into == "file, appended":
+            assert text.startswith("before\n")
+            text = text[len("before\n"):]
+    assert res.returncode == (1 if command == "check" else 0), res.stderr
+    doc = json.loads(text)   # the whole of it: no summary line after the document
+    assert doc["caution"]
+    if command == "check":
+        assert doc["summary"]["fail"] > 0
+        assert b"30 members found" in res.stderr   # the summary line, on standard error
+    assert _partials(project) == []

@@ -19,6 +19,7 @@ from modelcheck.cli.common import (
     expand_load_paths,
     force_options,
     guard_output,
+    names_standard_output,
     read_inputs,
     report_console,
     say,
@@ -78,6 +79,8 @@ def cmd_check(args: argparse.Namespace) -> int:
                          f"(choose from {', '.join(format_names())})")
     formats = [fmt for fmt in map(format_named, names) if fmt is not None]
     files = [f for f in formats if f.extension is not None]   # the rest go to the terminal
+    if len(files) == 1 and not files[0].binary and names_standard_output(args.output):
+        args.output = None   # '--output /dev/stdout': the stream itself
     if files and not args.output and (len(files) > 1 or any(f.binary for f in files)):
         raise UsageError(f"--format {','.join(f.name for f in files)} needs --output "
                          f"({'a folder for several formats' if len(files) > 1 else 'a file'})")

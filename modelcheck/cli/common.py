@@ -64,17 +64,16 @@ def expand_load_paths(items: list[str]) -> list[str]:
     return out
 
 
-def write_text(text: str, output: str | None, inputs: list[str]) -> None:
-    from modelcheck.common.files import output_file, writing
-
-    if output is None:
-        with writing(None):
-            sys.stdout.write(text)
-            sys.stdout.flush()
-        return
-    guard_output(output, inputs)
-    with writing(output), output_file(output) as path:
-        Path(path).write_text(text, encoding="utf-8")
+def names_standard_output(output: str | None) -> bool:
+    """Whether ``output`` is another name of this process's standard output (``/dev/stdout``,
+    ``/dev/fd/1``, the file or pipe the shell opened for it): the command then writes to the stream
+    itself, as without ``--output``, and its other lines go to standard error."""
+    if not output:
+        return False
+    try:
+        return os.path.samestat(os.stat(output), os.fstat(sys.stdout.fileno()))
+    except (OSError, ValueError, AttributeError):   # no such file; no descriptor (a captured stream)
+        return False
 
 
 def guard_output(output: str, inputs: list[str], option: str = "--output", new_folder: bool = False) -> None:

@@ -12,6 +12,7 @@ from modelcheck.cli.common import (
     expand_load_paths,
     force_options,
     guard_output,
+    names_standard_output,
     read_inputs,
     say,
 )
@@ -31,6 +32,8 @@ def cmd_members(args: argparse.Namespace) -> int:
 
     paths = expand_paths(args.models)
     inputs = read_inputs(args, paths, expand_load_paths(args.loads))
+    if names_standard_output(args.output):
+        args.output = None   # '--output /dev/stdout': the stream itself
     if args.output:
         guard_output(args.output, inputs)
     ruleset = None
@@ -43,7 +46,13 @@ def cmd_members(args: argparse.Namespace) -> int:
     inventory = build_inventory(datas, fopts.tables, args.units, ruleset)
     fmt = inventory_format_named(args.format)
     assert fmt is not None   # argparse offers only the registered names
-    fmt.write(inventory, args.output, InventoryOptions(details=args.details))
+    if args.output is None:
+        fmt.write(inventory, None, InventoryOptions(details=args.details))
+    else:
+        from modelcheck.common.files import output_file, writing
+
+        with writing(args.output), output_file(args.output) as path:
+            fmt.write(inventory, path, InventoryOptions(details=args.details))
     for d in datas:
         if d.error:
             say(f"modelcheck: error: {d.error}")

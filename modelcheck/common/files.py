@@ -65,23 +65,25 @@ def writing(path: str | os.PathLike[str] | None) -> Iterator[None]:
 
 @contextmanager
 def output_file(path: str | os.PathLike[str]) -> Iterator[str]:
-    """The path to write the output ``path`` through: a new file beside it (hidden, with the same
-    suffix), put in its place once written whole, so that an interrupted or failed write never
+    """The path to write the output ``path`` through: a new file beside it (hidden, its name ending
+    in the output's), put in its place once written whole, so that an interrupted or failed write never
     leaves part of a report behind; the report that was there stays as it was until then. A link
     to the output is followed (the link stays a link); an existing report's permissions are
-    kept. Written directly: a path that is no regular file (``/dev/null``, a pipe), and a folder
-    in which no new file can be made."""
+    kept. Written directly: a path that is no regular file (``/dev/null``, a pipe), a name of an
+    open descriptor (``/dev/stdout``, ``/proc/self/fd/1``: a file the shell opened stays the file
+    written), and a folder in which no new file can be made."""
     target = Path(os.path.realpath(path))
     try:
         st: os.stat_result | None = target.stat()
     except OSError:
         st = None
-    if st is not None and not stat.S_ISREG(st.st_mode):
+    given = os.path.abspath(path)
+    if (st is not None and not stat.S_ISREG(st.st_mode)) or given.startswith(("/dev/", "/proc/")):
         yield str(path)
         return
     part = None
     for n in range(100):   # a name no other file has (one left by a run that was killed, say)
-        name = target.with_name(f".{target.stem}.{os.getpid()}-{n}-partial{target.suffix}")
+        name = target.with_name(f".partial-{os.getpid()}-{n}-{target.name}")
         try:
             os.close(os.open(name, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666))
         except FileExistsError:

@@ -76,7 +76,7 @@ def force_summary(d: ModelData) -> dict[str, Any]:
 
 def write_json(inventory: Inventory, target: str | None, options: InventoryOptions) -> None:
     """The members JSON document (``schemas/members.schema.json``)."""
-    from modelcheck.common.files import output_file, writing
+    from modelcheck.common.files import writing
     from modelcheck.report.check_json import write_members_json
     from modelcheck.report.members import CAUTION, member_dicts
 
@@ -95,7 +95,7 @@ def write_json(inventory: Inventory, target: str | None, options: InventoryOptio
             write_members_json(doc, sys.stdout.buffer)
             sys.stdout.buffer.flush()
     else:
-        with writing(target), output_file(target) as path, open(path, "wb") as fh:
+        with open(target, "wb") as fh:
             write_members_json(doc, fh)
 
 
@@ -105,7 +105,7 @@ def write_csv(inventory: Inventory, target: str | None, options: InventoryOption
 
     import pandas as pd
 
-    from modelcheck.common.files import output_file, writing
+    from modelcheck.common.files import writing
     from modelcheck.report.members import members_csv
     from modelcheck.report.text import csv_frame
 
@@ -117,18 +117,17 @@ def write_csv(inventory: Inventory, target: str | None, options: InventoryOption
             sys.stdout.write(text)
             sys.stdout.flush()
     else:
-        with writing(target), output_file(target) as path:
-            Path(path).write_text(text, encoding="utf-8")
+        Path(target).write_text(text, encoding="utf-8")
 
 
 def write_table(inventory: Inventory, target: str | None, options: InventoryOptions) -> None:
     """A table per model as wide as the terminal, its warnings and notes, then the load-table
     rows no member used and the caution."""
-    from contextlib import ExitStack
+    from contextlib import ExitStack, nullcontext
 
     from rich.markup import escape as markup_escape
 
-    from modelcheck.common.files import output_file, writing
+    from modelcheck.common.files import writing
     from modelcheck.core.forces import unmatched_lines
     from modelcheck.report.console import make_console
     from modelcheck.report.members import CAUTION, member_notes, members_table
@@ -137,9 +136,9 @@ def write_table(inventory: Inventory, target: str | None, options: InventoryOpti
     def escape(text: str, limit: int | None = MAX_SHOWN * 5) -> str:   # the model's text, safe for a terminal
         return markup_escape(shown(text, limit))
 
-    with writing(target), ExitStack() as stack:
-        sink = (stack.enter_context(open(stack.enter_context(output_file(target)), "w", encoding="utf-8"))
-                if target else None)
+    # a file's errors are named by the command, which writes it through ``common.files.output_file``
+    with (writing(None) if target is None else nullcontext()), ExitStack() as stack:
+        sink = stack.enter_context(open(target, "w", encoding="utf-8")) if target else None
         con = make_console(file=sink)
         wide = bool(options.details) if options.details is not None else con.width >= DETAILS_WIDTH
         for m in inventory.models:
