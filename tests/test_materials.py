@@ -236,6 +236,8 @@ def test_library_errors_name_file_and_key(tmp_path: Path, change: tuple[str, str
     ("50 ksi", "36 ksi", True),      # in ksi too, compared in SI
     ("355 MPa", "355 MPa", False),   # equal: allowed (a tensile strength is at least the yield strength)
     ("345 MPa", "65 ksi", False),    # mixed units, 448 MPa (pint) above 345 MPa
+    ("345 MPa", "50 ksi", False),    # 344.7 MPa (pint): one strength, rounded in another unit system
+    ("345 MPa", "340 MPa", True),    # 1.4 % below: not a rounding
 ])
 def test_a_tensile_strength_below_the_yield_strength_is_refused(tmp_path: Path, fy: str, fu: str,
                                                                  refused: bool) -> None:

@@ -116,6 +116,18 @@ def test_a_tensile_strength_below_the_yield_strength_uses_neither(capsys, tmp_pa
     assert [w.split(":")[0] for w in warnings] == ["material 'House steel 7', Fy", "material 'House steel 7', Fu"]
 
 
+def test_a_tensile_strength_equal_to_the_yield_strength_but_for_rounding_is_used(capsys, tmp_path):
+    # Fu 344 MPa beside Fy 345 MPa: 0.3 % below, the rounding of one value converted between unit
+    # systems (50 ksi = 344.7 MPa, pint), not a contradiction
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    steel = mb.material("House steel 7", category="steel", E=210000.0, Fy=345.0, Fu=344.0)
+    mb.member(name="rod", tag="R1", profile=round_bar(mb, 20.0), material=steel, length=2000.0,
+              psets=axial_force(20.0 * KN))
+    doc = _check_json(capsys, tmp_path, mb)
+    assert {r["status"] for r in doc["results"]} == {"pass"}
+    assert doc["models"][0]["member_warnings"] == {}
+
+
 def test_a_yield_strength_from_the_model_above_the_librarys_tensile_strength_uses_neither(capsys, tmp_path):
     # the name says S275 (the library's fu 430 MPa, EN 10025-2 for t < 3 mm, checked against that table in
     # tests/test_materials.py), the model says fy 460 MPa:

@@ -1159,7 +1159,10 @@ def _strengths_in_order(values: dict[str, tuple[float, str]], rejected: dict[str
     largest stress of the tensile test. One of the two is wrong (swapped, or from another grade)
     and nothing says which, so neither is used: NaN in ``values``, each named in ``rejected``."""
     fy, fu = values.get("Fy"), values.get("Fu")
-    if fy is None or fu is None or not (math.isfinite(fy[0]) and math.isfinite(fu[0])) or fu[0] >= fy[0]:
+    from modelcheck.materials.library import STRENGTH_ROUNDING
+
+    if (fy is None or fu is None or not (math.isfinite(fy[0]) and math.isfinite(fu[0]))
+            or fu[0] >= fy[0] * (1 - STRENGTH_ROUNDING)):
         return
 
     def shown(q: str, v: float, src: str) -> str:

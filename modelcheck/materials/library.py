@@ -54,6 +54,10 @@ VALUE_KEYS: dict[str, tuple[str, str]] = {
     "Fu": ("Pa", "a pressure (e.g. '490 MPa')"),
     "alpha": ("1/K", "per temperature step (e.g. '12e-6 1/K')"),
 }
+#: how far a tensile strength may fall below the yield strength before the pair cannot be: the
+#: rounding of a value converted between unit systems to three figures (345 MPa beside 50 ksi,
+#: 344.7 MPa)
+STRENGTH_ROUNDING = 0.005
 #: quantities a plausible range may bound: the grade values and the mass density
 RANGE_KEYS: dict[str, tuple[str, str]] = VALUE_KEYS | {
     "density": ("kg/m**3", "a mass density (e.g. '7850 kg/m**3')"),
@@ -140,6 +144,7 @@ class MaterialLibrary:
             if w == norm:
                 return cat
         return None
+
 
 
 def normalise(text: str) -> str:
@@ -292,7 +297,8 @@ def _parse(doc: dict[str, Any], problems: Problems[RuleSetError], label: str) ->
             if v <= 0:
                 raise problems.error(f"{where}.{key}.value", f"must be positive, got {entry['value']!r}")
             values.update({key: v, f"{key}_source": f"{label}: {grade}", f"{key}_basis": entry["source"]})
-        if values.get("Fy") is not None and values.get("Fu") is not None and values["Fu"] < values["Fy"]:
+        if (values.get("Fy") is not None and values.get("Fu") is not None
+                and values["Fu"] < values["Fy"] * (1 - STRENGTH_ROUNDING)):
             # a tensile strength is the largest stress of the tensile test, never below the yield strength
             raise problems.error(f"{where}.Fu.value", f"tensile strength {spec['Fu']['value']!r} is below the "
                                  f"yield strength Fy {spec['Fy']['value']!r}; are the two swapped?")
