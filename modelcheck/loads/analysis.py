@@ -65,6 +65,20 @@ line's ``--analysis-frame``) says which frame to trust: ``as-flagged`` (each res
 ``local`` or ``global`` (every result read in that frame; a local result whose axis cannot be
 found stays as flagged).
 
+The direction of the end forces tells a wrong flag too: with no load between its ends, a member's
+end forces balance in every frame, and the test above cannot tell; but an axial member's end
+forces lie along it. Where the flagged reading puts more than ``BENDING_SHARE`` of the force across
+the member and the other reading at most ``ALONG_SHARE``, the flag is doubtful in the same way.
+
+Members in bending
+------------------
+A force across the member (shear) of more than ``BENDING_SHARE`` of the force, in the frame the
+result is read in (at either end of end forces, or in an internal force), means the analysis has
+the member bending (a frame's column or beam). The checks cover axial force only: its force for
+that load case has no value (NaN; its source says so and names the share and the result) and a
+message names the member. A pin-ended member's self-weight gives it a little shear, under
+``BENDING_SHARE`` for any real axial load.
+
 Supports and other elements
 ---------------------------
 Results on supports (IfcStructuralConnection: point, curve and surface connections) are
@@ -478,6 +492,23 @@ def _axis2_rotation(pos: Any) -> np.ndarray:
     return np.column_stack([x, np.cross(z, x), z])
 
 
+#: a force across the member larger than this share of the force is shear: the member bends
+BENDING_SHARE = 0.05
+#: at most this share across the member, a force lies along it (a wrong flag's other reading)
+ALONG_SHARE = 0.01
+
+
+def _across(f: np.ndarray, ax: np.ndarray, in_global: bool) -> np.ndarray:
+    """|F across the member| / |F| of each row (0 for no force): in global axes the part of F
+    off the unit axis ``ax``; in member axes its y and z components."""
+    size = np.linalg.norm(f, axis=1)
+    if in_global:
+        cross = np.linalg.norm(f - np.einsum("ij,ij->i", f, ax)[:, None] * ax, axis=1)
+    else:
+        cross = np.hypot(f[:, 1], f[:, 2])
+    return np.divide(cross, size, out=np.zeros(len(f)), where=size > 0)
+
+
 def _kn(v: float) -> str:
     return f"{v / 1e3:.4g} kN"
 
@@ -507,7 +538,13 @@ def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: M
     def balance(a: np.ndarray, b: np.ndarray) -> np.ndarray:
         return np.abs(a + b) <= np.maximum(abs_tol, rel_tol * np.maximum(np.abs(a), np.abs(b)))
 
+    # the force across the member (shear), as a share of the force, at the start and at the end,
+    # in each reading: an axial member's end and internal forces lie along it
+    t_global = np.maximum(_across(f1, ax, True), np.where(ends, _across(f2, ax, True), 0.0))
+    t_local = np.maximum(_across(f1, ax, False), np.where(ends, _across(f2, ax, False), 0.0))
+    across = np.where(glob, t_global, t_local)
     doubtful = np.zeros(len(kind), dtype=bool)
+    turned = np.zeros(len(kind), dtype=bool)
     if frame is None:
         # equilibrium along the member (start + end = 0 without span loads) as flagged and in the
         # other frame: a flag whose reading fails where the other reading holds is doubtful
@@ -519,8 +556,32 @@ def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: M
         o_size = np.maximum(np.abs(o1), np.abs(o2))
         doubtful = (ends & has_axis & ~balance(x1, x2) & balance(o1, o2) & (o_size > abs_tol)
                     & (o_size >= np.maximum(np.abs(x1), np.abs(x2))))
+        # end forces that lie along the member in the other frame but cross it as flagged: a
+        # wrong flag too (both readings balance whenever nothing loads the member between its ends)
+        other_across = np.where(flagged_global, t_local, t_global)
+        turned = (ends & has_axis & ~doubtful & (across > BENDING_SHARE) & (other_across <= ALONG_SHARE)
+                  & (o_size > abs_tol))
     source = np.asarray(rows.source, dtype=object)
-    for i in np.flatnonzero(doubtful):
+    for i in np.flatnonzero(turned):
+        flag, other = ("GLOBAL_COORDS", "member axes") if flagged_global[i] else ("LOCAL_COORDS", "global axes")
+        o_end = l2[i] if flagged_global[i] else g2[i]
+        log.add(f"end forces flagged {flag} cross the member ({across[i]:.0%} of the force), but lie along it when "
+                f"read in {other}: the flag is doubtful and the forces are not used (--analysis-frame "
+                "as-flagged|local|global says which frame to trust)", rows.gid[i])
+        source[i] = (f"P: doubtful analysis end forces ({rows.case[i]}, {rows.source[i].split(' (')[0]}): flagged "
+                     f"{flag}, they cross the member ({across[i]:.0%} of the force); read in {other} they lie "
+                     f"along it (N = {_kn(o_end)}); --analysis-frame says which frame to trust")
+    doubtful |= turned
+    # a force across the member is shear, which a member carries in bending: not an axial member in
+    # this analysis, and its axial force alone does not verify it
+    bending = ~doubtful & (across > BENDING_SHARE)
+    for i in np.flatnonzero(bending):
+        log.add(f"the analysis gives it a force across its axis ({across[i]:.0%} of the force; {rows.case[i]}): "
+                "it carries bending, which these checks do not cover; its axial force is not used", rows.gid[i])
+        source[i] = (f"P: the analysis gives a force across the member ({across[i]:.0%} of the force; {rows.case[i]}, "
+                     f"{rows.source[i].split(' (')[0]}): it carries bending, and an axial force alone does not "
+                     "verify it")
+    for i in np.flatnonzero(doubtful & ~turned):
         flag, other = ("GLOBAL_COORDS", "member axes") if flagged_global[i] else ("LOCAL_COORDS", "global axes")
         o_end = l2[i] if flagged_global[i] else g2[i]
         log.add(f"end forces flagged {flag} do not balance along the member, but do when read in {other}: "
@@ -537,7 +598,7 @@ def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: M
                 f"({rows.case[i]}, {rows.source[i].split(' (')[0]}); the larger magnitude is used", rows.gid[i])
     n_pair = np.where(np.abs(n_end) >= np.abs(n_start), n_end, n_start)
     n = np.where(ends, n_pair, x1)
-    n[doubtful] = np.nan
+    n[doubtful | bending] = np.nan
     if frame is not None:
         read_as = np.where(glob, "read in global axes", "read in member axes")
         changed = glob != flagged_global
