@@ -291,3 +291,21 @@ def test_a_force_property_without_a_unit_is_named_where_the_force_is_missing(cap
     # a member whose model gives no force keeps the plain reason
     assert _missing_of(doc, "R2", "tension-yield") == [
         "P: no axial force from load tables, model properties or IFC analysis results"]
+
+
+def test_a_value_the_library_stands_in_for_says_so(capsys, tmp_path):
+    # E without a unit the file states: not used, and the grade the name gives (S355) has E in the
+    # library (210 GPa, EN 1993-1-1 3.2.6; checked against it in tests/test_materials.py): the
+    # warning says which value is used instead, not only "not used"
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    assignment = mb.project.UnitsInContext
+    assignment.Units = [u for u in assignment.Units if u.UnitType != "MODULUSOFELASTICITYUNIT"]
+    steel = mb.material("S355", category="steel", E=210000.0, Fy=355.0, Fu=490.0)
+    mb.member(name="rod", tag="R1", profile=round_bar(mb, 20.0), material=steel, length=2000.0,
+              psets=axial_force(20.0 * KN))
+    doc = _check_json(capsys, tmp_path, mb)
+    assert {r["status"] for r in doc["results"] if r["check"] == "elongation"} == {"pass"}
+    (warnings,) = doc["models"][0]["member_warnings"].values()
+    (e_text,) = [w for w in warnings if w.startswith("material 'S355', E: ")]
+    assert "has no unit" in e_text
+    assert e_text.endswith("; not used; the material library's value for EN 10025 S355, 210000 MPa, is used instead")

@@ -405,6 +405,9 @@ class _Reader:
                     v = lib.value(q)
                     if q not in values and v is not None and not math.isnan(v):
                         values[q] = (float(v), lib.source(q) or f"material library: {lib.grade}")
+                        if q in rejected:   # the model's own value could not be used: say what is
+                            rejected[q] += (f"; the material library's value for {lib.grade}, "
+                                            f"{_fmt_si(q, float(v))}, is used instead")
         if category == UNKNOWN:
             warnings.append(f"material {name!r}: category unknown (neither its name nor its Category matches a "
                             "pattern of rulesets/material-names.toml)")
