@@ -246,5 +246,8 @@ def test_end_forces_flagged_global_that_lie_along_the_member_in_its_axes_are_dou
     assert src[brace.GlobalId].startswith("P: doubtful analysis end forces")
     assert "cross the member (80% of the force)" in src[brace.GlobalId] and "N = 80 kN" in src[brace.GlobalId]
     assert any("flag is doubtful" in m and brace.GlobalId in m for m in msgs)
-    n_local, _src, _msgs = _forces(path, "local")
+    n_local, src_local, _msgs = _forces(path, "local")
     assert n_local[brace.GlobalId] == pytest.approx(80.0 * KN, rel=1e-12)   # N = +Fx(end)
+    # the source names the flag and the reading the user chose, not the reading the flag gives
+    assert src_local[brace.GlobalId].endswith("(end forces, N = -Fx start = +Fx end, flagged GLOBAL_COORDS), "
+                                              "read in member axes (--analysis-frame local)")

@@ -509,6 +509,15 @@ def _across(f: np.ndarray, ax: np.ndarray, in_global: bool) -> np.ndarray:
     return np.divide(cross, size, out=np.zeros(len(f)), where=size > 0)
 
 
+def _as_flagged(source: str) -> str:
+    """A result's source with the reading its flag gives replaced by the flag itself."""
+    for reading, flag in (("global forces on member axis", "flagged GLOBAL_COORDS"),
+                          ("global force on member axis", "flagged GLOBAL_COORDS"),
+                          ("local ForceX", "flagged LOCAL_COORDS")):
+        source = source.replace(reading, flag)
+    return source
+
+
 def _kn(v: float) -> str:
     return f"{v / 1e3:.4g} kN"
 
@@ -602,7 +611,9 @@ def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: M
     if frame is not None:
         read_as = np.where(glob, "read in global axes", "read in member axes")
         changed = glob != flagged_global
-        source = np.where(changed, source + ", " + read_as + f" (--analysis-frame {frame})", source)
+        # a result read in the other frame names its flag, not the reading the flag would give
+        flags = np.array([_as_flagged(t) for t in source], dtype=object)
+        source = np.where(changed, flags + ", " + read_as + f" (--analysis-frame {frame})", source)
     return frame_of({"global_id": np.asarray(rows.gid, dtype=object),
                      "load_case": np.asarray(rows.case, dtype=object),
                      "axial_force": np.asarray(n, dtype=float), "source": np.asarray(source, dtype=object)})
