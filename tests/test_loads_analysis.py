@@ -319,3 +319,16 @@ def test_writer_output_is_schema_valid(tmp_path: Path) -> None:
         ifcopenshell.validate.validate(an.finish(), logger)
         errors = [s["message"] for s in logger.statements if str(s.get("level")).lower() == "error"]
         assert errors == [], schema
+
+
+def test_a_member_with_next_to_no_force_is_not_taken_for_one_in_bending(tmp_path: Path) -> None:
+    """A truss's zero member: an analysis leaves a few tenths of a newton in any direction (here
+    0.1 N along, 0.3 N across). Below the 1 N tolerance the direction means nothing: N ≈ 0 is read."""
+    mb, an, steel = setup()
+    rod = mb.member("IfcMember", tag="Z1", profile=profile(mb), material=steel, length=3.0)
+    cm = an.curve_member((0, 0, 0), (0, 0, 3.0), physical=rod)
+    an.curve_reaction(cm, an.end_forces((-1e-4, 3e-4, 0.0), (1e-4, -3e-4, 0.0), 3.0), an.result_group("LC1"))
+    idx = write(tmp_path, an)
+    forces, msgs = forces_from_analysis(idx, members_of(idx.path, rod))
+    assert forces["axial_force"].iloc[0] == pytest.approx(0.1, abs=1e-9)   # N = +Fx(end) = 1e-4 kN
+    assert not any("bending" in m for m in msgs)

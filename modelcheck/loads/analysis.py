@@ -498,15 +498,16 @@ BENDING_SHARE = 0.05
 ALONG_SHARE = 0.01
 
 
-def _across(f: np.ndarray, ax: np.ndarray, in_global: bool) -> np.ndarray:
-    """|F across the member| / |F| of each row (0 for no force): in global axes the part of F
-    off the unit axis ``ax``; in member axes its y and z components."""
+def _across(f: np.ndarray, ax: np.ndarray, in_global: bool, abs_tol: float) -> np.ndarray:
+    """|F across the member| / |F| of each row: in global axes the part of F off the unit axis
+    ``ax``; in member axes its y and z components. 0 where the force across is ``abs_tol`` or less
+    (a member with next to no force, whose last digits point anywhere)."""
     size = np.linalg.norm(f, axis=1)
     if in_global:
         cross = np.linalg.norm(f - np.einsum("ij,ij->i", f, ax)[:, None] * ax, axis=1)
     else:
         cross = np.hypot(f[:, 1], f[:, 2])
-    return np.divide(cross, size, out=np.zeros(len(f)), where=size > 0)
+    return np.divide(cross, size, out=np.zeros(len(f)), where=cross > abs_tol)
 
 
 def _as_flagged(source: str) -> str:
@@ -549,8 +550,8 @@ def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: M
 
     # the force across the member (shear), as a share of the force, at the start and at the end,
     # in each reading: an axial member's end and internal forces lie along it
-    t_global = np.maximum(_across(f1, ax, True), np.where(ends, _across(f2, ax, True), 0.0))
-    t_local = np.maximum(_across(f1, ax, False), np.where(ends, _across(f2, ax, False), 0.0))
+    t_global = np.maximum(_across(f1, ax, True, abs_tol), np.where(ends, _across(f2, ax, True, abs_tol), 0.0))
+    t_local = np.maximum(_across(f1, ax, False, abs_tol), np.where(ends, _across(f2, ax, False, abs_tol), 0.0))
     across = np.where(glob, t_global, t_local)
     doubtful = np.zeros(len(kind), dtype=bool)
     turned = np.zeros(len(kind), dtype=bool)
