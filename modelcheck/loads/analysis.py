@@ -72,8 +72,8 @@ the member and the other reading at most ``ALONG_SHARE``, the flag is doubtful i
 
 Members in bending
 ------------------
-A force across the member (shear) of more than ``BENDING_SHARE`` of the force, in the frame the
-result is read in (at either end of end forces, or in an internal force), means the analysis has
+A force across the member (shear) of more than ``BENDING_SHARE`` of the force (and more than
+``abs_tol``: a member with next to no force points anywhere), in the frame the result is read in (at either end of end forces, or in an internal force), means the analysis has
 the member bending (a frame's column or beam). The checks cover axial force only: its force for
 that load case has no value (NaN; its source says so and names the share and the result) and a
 message names the member. A pin-ended member's self-weight gives it a little shear, under
