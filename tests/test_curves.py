@@ -250,8 +250,27 @@ def test_a_curved_axis_gets_its_exact_length(tmp_path, name):
     mb.write(str(path))
     m = read_members(build_index(str(path))).frame.set_index("name").loc[name]
     assert m["length"] == pytest.approx(hand / 1000, rel=1e-10)
-    assert m["length_source"] == "Axis"
-    assert not any("Axis" in w for w in m["warnings"])
+    # measured along the curve, and named as curved: the checks take it as a straight member
+    assert m["length_source"].startswith("Axis, not straight (") and m["length_source"].endswith(
+        " longer than between its ends)")
+    assert not any(w.startswith("Axis not measured") for w in m["warnings"])
+    assert [w for w in m["warnings"] if w.startswith("curved: ")] == [
+        f"curved: its length {hand:.6g} mm is from {m['length_source']}; the checks take it as a straight "
+        "member of that length"]
+    if name == "quarter":   # R·π/2 against the chord R·√2: π / (2√2) − 1 = 11.07 % (hand value)
+        assert m["length_source"] == "Axis, not straight (11.07% longer than between its ends)"
+
+
+def test_a_straight_axis_of_several_points_is_not_named_curved(tmp_path):
+    # three points on one line, and a line trimmed by parameters: straight, whatever the curve type
+    mb = degree_model()
+    f = mb.f
+    axis_member(mb, "three-points", f.createIfcPolyline([p3(f, 0, 0, 0), p3(f, 0, 0, 1200), p3(f, 0, 0, 3000)]))
+    path = tmp_path / "straight.ifc"
+    mb.write(str(path))
+    m = read_members(build_index(str(path))).frame.set_index("name").loc["three-points"]
+    assert m["length"] == pytest.approx(3.0, rel=1e-12) and m["length_source"] == "Axis"
+    assert not any(w.startswith("curved: ") for w in m["warnings"])
 
 
 @pytest.mark.parametrize("schema", ["IFC2X3", "IFC4X3"])
@@ -316,7 +335,8 @@ def test_a_profile_swept_along_a_curved_directrix(tmp_path):
     m = read_members(build_index(str(path))).frame.set_index("name").loc["curved"]
     hand = 5000 * math.pi / 2    # R·θ (common practice)
     assert m["length"] == pytest.approx(hand / 1000, rel=1e-10)
-    assert m["length_source"] == "IfcFixedReferenceSweptAreaSolid.Directrix"
+    assert m["length_source"] == ("IfcFixedReferenceSweptAreaSolid.Directrix, not straight "
+                                  "(11.07% longer than between its ends)")   # π / (2√2) − 1 (hand value)
     assert m["area"] == pytest.approx(2000e-6, rel=1e-12)   # 200 × 10 mm
     # the kernel's solid: its volume over the area is the length (Pappus: the profile is centred
     # on the directrix), to within its facets

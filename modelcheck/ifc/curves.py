@@ -249,15 +249,23 @@ class _Piece:
 
 def curve_length(curve: Any, angle_factor: float = 1.0) -> float:
     """Length of an IFC curve in the file's length unit; CurveError where it cannot be measured."""
+    return curve_extent(curve, angle_factor)[0]
+
+
+def curve_extent(curve: Any, angle_factor: float = 1.0) -> tuple[float, float]:
+    """(length of an IFC curve, the straight distance between its two ends), in the file's length
+    unit; CurveError where it cannot be measured."""
     try:
-        total = sum(p.length for p in _pieces(curve, angle_factor, 0))
+        pieces = _pieces(curve, angle_factor, 0)
+        total = sum(p.length for p in pieces)
+        chord = math.dist(pieces[0].start, pieces[-1].end)
     except CurveError as exc:
         raise CurveError(f"{curve.is_a()} #{curve.id()}: {exc}") from None
     except (AttributeError, TypeError, ValueError, ArithmeticError, IndexError) as exc:
         raise CurveError(f"{curve.is_a()} #{curve.id()} cannot be measured: {exc}") from None
     if not math.isfinite(total):
         raise CurveError(f"{curve.is_a()} #{curve.id()} has no finite length")
-    return total
+    return total, chord
 
 
 def edge_curve_length(edge: Any, angle_factor: float = 1.0) -> float:

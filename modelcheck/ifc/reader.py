@@ -51,7 +51,7 @@ import pandas as pd
 from modelcheck.common.table import frame_of, member_columns
 from modelcheck.common.units import UNITLESS_MEASURES, MissingUnit, UnusableOwnUnit, UnusableUnit
 from modelcheck.common.vocabulary import Shape
-from modelcheck.ifc.curves import CurveError, curve_length, edge_curve_length
+from modelcheck.ifc.curves import CurveError, curve_extent, edge_curve_length
 from modelcheck.ifc.index import (
     ModelIndex,
     SIValue,
@@ -93,6 +93,11 @@ _NOT_QUANTITY_SETS = ("Pset_", "MC_")
 UNIT_CONTRADICTION = 100.0
 AREA_TOLERANCE = 0.02     # 2 % between two sources of the cross-section area
 LENGTH_TOLERANCE = 0.05   # 5 % between two sources of the length (end cuts make axis ≠ body)
+#: an axis or sweep path longer than the distance between its ends by more than this share is
+#: curved (a bow of about 1/160 of the length: drawn so, not a straight member's tolerance)
+STRAIGHTNESS = 1e-4
+#: what a curved axis or sweep path adds to its length source
+NOT_STRAIGHT = ", not straight"
 
 #: plausible section and length bounds for an axial member (SI) — beyond them a value is doubted
 #: (common practice: the thinnest rolled or drawn wall, the finest wire rope strand and the
@@ -298,7 +303,7 @@ class _Reader:
                 sec = Section(area, rg, src, None, "IfcSweptDiskSolid", Shape.ROUND_TUBE if ri > 0 else Shape.ROUND_BAR,
                               dims)
             clen = self.curve_length(item.Directrix) if item.Directrix is not None else None
-            length = (clen * lf * scale, "IfcSweptDiskSolid.Directrix") if isinstance(clen, float) else None
+            length = (clen[0] * lf * scale, f"IfcSweptDiskSolid.Directrix{clen[1]}") if isinstance(clen, tuple) else None
             return sec, length
         if cls in _DIRECTRIX_SWEEPS:
             # a profile swept along a curve (curved beams): the profile's section, the curve's length
@@ -309,8 +314,8 @@ class _Reader:
             directrix = item.Directrix
             if lf is not None and directrix is not None and item.StartParam is None and item.EndParam is None:
                 clen = self.curve_length(directrix)
-                if isinstance(clen, float):
-                    length = (clen * lf * scale, f"{cls}.Directrix")
+                if isinstance(clen, tuple):
+                    length = (clen[0] * lf * scale, f"{cls}.Directrix{clen[1]}")
             return sec, length
         if cls == "IfcMappedItem":
             src = item.MappingSource
@@ -333,16 +338,22 @@ class _Reader:
             return self._body_item(op, scale, depth + 1) if op is not None else (None, None)
         return None, None
 
-    def curve_length(self, curve: Any) -> float | str:
-        """Length of a curve in file units (``modelcheck.ifc.curves``), or why it cannot be measured."""
+    def curve_length(self, curve: Any) -> tuple[float, str] | str:
+        """(length of a curve in file units (``modelcheck.ifc.curves``), what its length source adds:
+        "" for a straight curve, else ``NOT_STRAIGHT`` and how much longer it is than the distance
+        between its ends), or why it cannot be measured."""
         if curve.is_a() == "IfcPolyline":
             points = curve.get_argument(0)
             if len(points) == 2:   # the usual axis: its two ends
-                return math.dist(points[0].get_argument(0), points[1].get_argument(0))
+                return math.dist(points[0].get_argument(0), points[1].get_argument(0)), ""
         try:
-            return curve_length(curve, self.angle)
+            length, chord = curve_extent(curve, self.angle)
         except CurveError as exc:
             return str(exc)
+        if length <= chord * (1.0 + STRAIGHTNESS):
+            return length, ""
+        bow = f"{length / chord - 1.0:.2%} longer than between its ends" if chord > 0 else "its ends meet"
+        return length, f"{NOT_STRAIGHT} ({bow})"
 
     # ----------------------------------------------------------------- materials
     def material(self, select: Any) -> tuple[MaterialInfo | None, list[Any]]:
@@ -704,6 +715,10 @@ class _Reader:
                 section, length, length_src = None, math.nan, None
         if length_src is None and doubted_lengths:
             rejected.append(("length", "; ".join(doubted_lengths)))
+        if length_src is not None and NOT_STRAIGHT in length_src:
+            # measured exactly along the curve, but an arch or a bent bar bends under an axial load
+            warnings.append(f"curved: its length {length * 1e3:.6g} mm is from {length_src}; the checks take it "
+                            "as a straight member of that length")
         storey = idx.storey_of.get(eid)
         storey_name = None
         if storey is not None:
@@ -882,7 +897,7 @@ class _Reader:
                         if isinstance(cl, str):
                             axis_len = axis_len or f"Axis not measured: {cl}"
                             continue
-                        axis_len = (cl * lf, "Axis")
+                        axis_len = (cl[0] * lf, f"Axis{cl[1]}")
                         break
             elif ident in ("Body", None) and body_sec is None:
                 items = r.get_argument(3)
