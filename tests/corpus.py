@@ -26,7 +26,7 @@ from modelcheck.testing.author import ModelBuilder
 from tests.helpers import REPO, axial_force, digests, run_modelcheck
 
 #: the summary line of a model (one line, printed whatever the formats)
-SUMMARY_RE = re.compile(r"\): (nothing could be checked — )?\d+ members found, \d+ checked — ")
+SUMMARY_RE = re.compile(r"\): (nothing could be checked — )?\d+ members? found, \d+ checked — ")
 
 #: a member's GlobalId as ifcopenshell.guid writes it (22 characters of the IFC base-64 alphabet)
 GUID_RE = re.compile(r"[0-9A-Za-z_$]{22}")

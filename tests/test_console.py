@@ -422,3 +422,16 @@ def test_members_capacity_in_csv_agrees_with_json(tmp_path):
     assert row["tension_check"] == cap["tension_check"] == "tension-yield"
     assert row["compression_allowable [kN]"] == "" and cap["compression"] is None
     assert row["compression_note"] == cap["compression_note"] and "400" in row["compression_note"]
+
+
+def test_one_member_is_one_member(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    from modelcheck.cli import main
+
+    mb = ModelBuilder(schema="IFC4", units="mm")
+    steel = mb.material("S355", category="steel")
+    mb.member(name="rod", tag="R1", profile=round_bar(mb, 20.0), material=steel, length=2000.0,
+              psets=axial_force(20.0 * KN))
+    mb.write(str(tmp_path / "one.ifc"))
+    assert main(["check", str(tmp_path / "one.ifc"), "--no-config", "--jobs", "1"]) == 0
+    assert "(IFC4, SI units): 1 member found, 1 checked — 1 pass, 0 fail, 0 unchecked" in " ".join(
+        capsys.readouterr().out.split())

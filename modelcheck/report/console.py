@@ -114,7 +114,7 @@ def summary_line(model: ModelData, results: pd.DataFrame | None = None) -> Text:
         cov = _coverage_from(model, results)
     units = getattr(model, "units", None)
     head = Text.assemble(path, f" ({shown(model.schema)}" + (f", {units} units" if units else "") + "): ")
-    counts = Text.assemble(f"{cov.found} members found, {cov.checked} checked — ",
+    counts = Text.assemble(f"{cov.found} member{'' if cov.found == 1 else 's'} found, {cov.checked} checked — ",
                            (f"{cov.passed} pass", "green"), ", ",
                            (f"{cov.failed} fail", "bold red" if cov.failed else "green"), ", ",
                            (f"{cov.unchecked} unchecked", "yellow" if cov.unchecked else "green"))
