@@ -197,7 +197,7 @@ def test_frame_members_with_end_shear_are_not_verified_by_an_axial_force(tmp_pat
     lc = an.result_group("LC1", an.load_group("LC1"))
     lbf = 4.4482216152605 / 1000.0   # kN (the writer's force unit), 1 lbf = 4.4482216152605 N (pint)
     h, span = 3.048, 4.8768
-    w10 = rectangle(mb, 0.147, 0.0387)   # a section of a W10X30's area, 5690 mm² (enough to check it)
+    w10 = rectangle(mb, 0.147, 0.0387)   # 5689 mm², about a W10X30 (8.84 in², AISC Manual, from memory): any would do
     left = an.curve_member((0, 0, 0), (0, 0, h), profile=w10, material=steel)
     right = an.curve_member((span, 0, 0), (span, 0, h), profile=w10, material=steel)
     beam = an.curve_member((0, 0, h), (span, 0, h), profile=w10, material=steel)
