@@ -194,7 +194,7 @@ def test_asd_elongation_with_a_temperature_change(tmp_path: Path) -> None:
     mech = 20 * 120 / 29000
     thermal = 6.5e-6 * 100 * 120          # α ΔT L = 0.078 in
     assert res.demand[0] == pytest.approx(mech + thermal)
-    assert "PL/AE = 0.08276 in" in res.message[0] and "α·ΔT·L = 0.078 in" in res.message[0]
+    assert "PL/AgE = 0.08276 in" in res.message[0] and "α·ΔT·L = 0.078 in" in res.message[0]
     # without α the thermal part is left out, and the message says so
     assert res.demand[1] == pytest.approx(mech)
     assert "α·ΔT·L = n/a" in res.message[1]

@@ -212,6 +212,10 @@ VOCABULARY: tuple[Text | Quantity, ...] = (
     Quantity(None, "As", "m**2", "tensile-stress area of the standard coarse thread of diameter d "
              "(ASME B1.1 UNC or ISO 261 coarse, round bars only)", "computed", AREA, "As",
              "As: no standard thread size for this member", 2.5e-4, provenance=False),
+    Quantity(None, "t_named", "m", "nominal wall thickness the name of a hollow section states (HSS6X6X3/8: "
+             "3/8 in; SHS 150x150x6: 6 mm), where the name's first number is the section's diameter, depth "
+             "or width and its wall is 0.90 to 1.02 times the named one", "computed", SMALL_LENGTH, "t named",
+             "t_named: the section name states no wall thickness of this section", 0.005, provenance=False),
     Text(None, "thread", "standard thread matching the diameter d of a round bar, e.g. 3/8-16 UNC or M10",
          "computed"),
     Text(None, "load_case", "load case name (empty for checks that need no force)", "computed"),
@@ -220,7 +224,7 @@ VOCABULARY: tuple[Text | Quantity, ...] = (
 #: the order of a check's missing inputs: the rule-language names of the quantities, as the
 #: ``missing`` list of an unchecked result names them
 RULE_QUANTITY_ORDER: tuple[str, ...] = (
-    "P", "A", "L", "E", "Fy", "Fu", "r", "alpha", "d", "h", "b", "tf", "tw", "t", "As", "An", "U",
+    "P", "A", "L", "E", "Fy", "Fu", "r", "alpha", "d", "h", "b", "tf", "tw", "t", "t_named", "As", "An", "U",
 )
 
 

@@ -1,0 +1,109 @@
+"""The wall thickness a hollow section's designation names.
+
+A hollow section's name often states its nominal size: ``HSS6X6X3/8`` (AISC, inches),
+``HSS6.625X.280`` (round), ``HSS152.4X152.4X9.5`` (AISC, millimetres), ``SHS 150x150x6``,
+``RHS 200x100x8``, ``CHS 168.3x6.3`` or ``CHS 168,3x6,3`` (EN). Its last number is the nominal
+wall thickness. A design code may reckon with another wall than the one the model draws (AISC
+360-16 B4.2 takes 0.93 of the nominal wall of most hollow sections), and the model may draw the
+nominal wall or the design wall: the name tells which.
+
+The name is read only where it describes the section it names: its first number must be an
+outside dimension of the section (the diameter, or the depth or the width) within
+``MATCH_TOLERANCE``, read in inches or in millimetres (whichever fits; a fraction is inches), and
+the section's own wall must lie between ``WALL_BAND`` times the named wall. Otherwise the name
+says nothing here (NaN): a section whose name and geometry disagree keeps its own wall.
+
+Example::
+
+    >>> import numpy as np
+    >>> w = named_wall(np.array(["HSS6X6X3/8"], dtype=object), np.array(["rect-tube"], dtype=object),
+    ...                np.array([0.1524]), np.array([0.1524]), np.array([np.nan]), np.array([0.00886]))
+    >>> round(float(w[0]) / 0.0254, 4)
+    0.375
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from typing import Any
+
+import numpy as np
+
+from modelcheck.common.vocabulary import Shape
+
+#: an outside dimension read from a name agrees with the section's within this share
+MATCH_TOLERANCE = 0.02
+#: the section's own wall, as a share of the named wall, for the name to describe it: a design
+#: wall is 0.93 of the nominal one (AISC 360-16 B4.2), a rounded one a little more or less
+WALL_BAND = (0.90, 1.02)
+
+_INCH = 0.0254
+_MM = 0.001
+_NUMBER = r"(\d+-\d+/\d+|\d+/\d+|\d*\.\d+|\d+\.?)"
+#: a prefix (HSS, SHS, RHS, CHS, Ø, ...), then two or three numbers joined by X; the last
+#: is the wall. No digit, point or X may follow (HSS6X6X3/8 A500 is read, HSS6X6X3/8X4 is not).
+_DESIGNATION = re.compile(r"[^\d.]*?" + _NUMBER + r"(?:\s*X\s*" + _NUMBER + r"){1,2}(?![\dX./])")
+_DECIMAL_COMMA = re.compile(r"(?<=\d),(?=\d)")
+
+
+def _number(text: str) -> tuple[float, bool]:
+    """(value, is a fraction) of one number of a designation: 3/8, 3-1/2, .280, 6.625, 6."""
+    if "/" in text:
+        whole, _, frac = text.rpartition("-")
+        num, den = frac.split("/")
+        if float(den) == 0:
+            return math.nan, True
+        return (float(whole) if whole else 0.0) + float(num) / float(den), True
+    return float(text), False
+
+
+def _numbers(name: str) -> tuple[list[float], bool] | None:
+    """The numbers of a designation in ``name`` and whether any is a fraction; None if it has none."""
+    text = _DECIMAL_COMMA.sub(".", name.upper().replace("×", "X").replace("*", "X")).strip()
+    m = _DESIGNATION.match(text)
+    if m is None:
+        return None
+    parts = re.findall(_NUMBER, text[m.start(1):m.end()])
+    values = [_number(p) for p in parts]
+    return [v for v, _ in values], any(f for _, f in values)
+
+
+def wall_of(name: Any, shape: Any, outsides: tuple[float, ...], t: float) -> float:
+    """The nominal wall [m] ``name`` states for a hollow section of ``shape`` with these outside
+    dimensions [m] (diameter; or depth and width) and wall ``t`` [m]; NaN where it states none
+    that describes this section."""
+    if shape not in (Shape.RECT_TUBE, Shape.ROUND_TUBE) or not isinstance(name, str) or not math.isfinite(t):
+        return math.nan
+    found = _numbers(name)
+    if found is None:
+        return math.nan
+    numbers, fraction = found
+    first, wall = numbers[0], numbers[-1]
+    for unit in ((_INCH,) if fraction else (_INCH, _MM)):
+        size = first * unit
+        if any(math.isfinite(o) and o > 0 and abs(size - o) <= MATCH_TOLERANCE * o for o in outsides):
+            named = wall * unit
+            if named > 0 and WALL_BAND[0] * named <= t <= WALL_BAND[1] * named:
+                return named
+    return math.nan
+
+
+def named_wall(names: np.ndarray, shapes: np.ndarray, h: np.ndarray, b: np.ndarray, d: np.ndarray,
+               t: np.ndarray) -> np.ndarray:
+    """Per member, the nominal wall thickness [m] its section name states (``wall_of``), NaN
+    where it states none; worked out once per distinct section."""
+    out = np.full(len(names), np.nan)
+    seen: dict[tuple[Any, ...], float] = {}
+    tubes = np.flatnonzero(np.isin(shapes, np.asarray([Shape.RECT_TUBE, Shape.ROUND_TUBE], dtype=object)))
+    dims = np.stack([h, b, d, t], axis=1).astype(float)
+    dims[np.isnan(dims)] = -1.0   # a key of equal values: NaN equals nothing, not even itself
+    for i in tubes.tolist():
+        hh, bb, dd, tt = dims[i].tolist()
+        key = (names[i], shapes[i], hh, bb, dd, tt)
+        hit = seen.get(key)
+        if hit is None:
+            outsides = (float(d[i]),) if shapes[i] == Shape.ROUND_TUBE else (float(h[i]), float(b[i]))
+            hit = seen[key] = wall_of(names[i], shapes[i], outsides, float(t[i]))
+        out[i] = hit
+    return out
