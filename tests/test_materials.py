@@ -28,10 +28,10 @@ from tests.helpers import si
     ("A992", "ASTM A992", "50 ksi", "65 ksi"),
     # ASTM F1554 Table 2, Grade 36 (from memory)
     ("F1554 Gr 36", "ASTM F1554 Gr 36", "36 ksi", "58 ksi"),
-    # EN 1993-1-1 Table 3.1, t <= 40 mm (from memory)
+    # fy: EN 1993-1-1 Table 3.1, t <= 40 mm; fu: EN 10025-2 Table 7, the minimum of Rm for
+    # 3 mm <= t <= 100 mm: S235 360 to 510, S275 410 to 560, S355 470 to 630 MPa (from memory)
     ("S235", "EN 10025 S235", "235 MPa", "360 MPa"),
-    ("S275", "EN 10025 S275", "275 MPa", "430 MPa"),
-    # EN 10025-2 Table 7: S355 Rm = 470 to 630 MPa for 3 mm <= t <= 100 mm, its minimum
+    ("S275", "EN 10025 S275", "275 MPa", "410 MPa"),
     ("S355", "EN 10025 S355", "355 MPa", "470 MPa"),
     # ASTM A240 Table 2, S30400 / S31600: 30 ksi [205 MPa], 75 ksi [515 MPa] (from memory)
     ("AISI 304", "ASTM A240 Type 304", "205 MPa", "515 MPa"),
