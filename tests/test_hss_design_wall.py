@@ -75,6 +75,10 @@ def gross_areas(*rows: dict[str, Any]) -> list[float]:
     ("HSS 3-1/2 x 3-1/2 x 1/4", "rect-tube", (3.5 * IN, 3.5 * IN), 0.25 * IN, 0.25 * IN),
     ("HSS6.625X.280", "round-tube", (6.625 * IN,), 0.280 * IN, 0.280 * IN),
     ("HSS6.625X0.280 A500 Gr C", "round-tube", (6.625 * IN,), 0.260 * IN, 0.280 * IN),
+    # a designation inside a longer name (an exporter's family and type names; common practice)
+    ("HSS-Hollow Structural Section:HSS6X6X3/8", "rect-tube", (6 * IN, 6 * IN), 0.349 * IN, 0.375 * IN),
+    ("Level 2 brace HSS6X6X3/8", "rect-tube", (6 * IN, 6 * IN), 0.349 * IN, 0.375 * IN),
+    ("2x HSS6X6X3/8", "rect-tube", (6 * IN, 6 * IN), 0.349 * IN, 0.375 * IN),
     # metric AISC and EN 10219 / 10210 designations (millimetres; common practice)
     ("HSS152.4X152.4X9.5", "rect-tube", (0.1524, 0.1524), 0.0095, 0.0095),
     ("SHS 80x80x4", "rect-tube", (0.080, 0.080), 0.004, 0.004),

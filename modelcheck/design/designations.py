@@ -7,7 +7,8 @@ wall thickness. A design code may reckon with another wall than the one the mode
 360-16 B4.2 takes 0.93 of the nominal wall of most hollow sections), and the model may draw the
 nominal wall or the design wall: the name tells which.
 
-The name is read only where it describes the section it names: its first number must be an
+A designation may stand anywhere in the name (``Level 2 HSS6X6X3/8``, ``Tube:HSS6X6X3/8``). It is
+read only where it describes the section it names: its first number must be an
 outside dimension of the section (the diameter, or the depth or the width) within
 ``MATCH_TOLERANCE``, read in inches or in millimetres (whichever fits; a fraction is inches), and
 the section's own wall must lie between ``WALL_BAND`` times the named wall. Otherwise the name
@@ -41,9 +42,10 @@ WALL_BAND = (0.90, 1.02)
 _INCH = 0.0254
 _MM = 0.001
 _NUMBER = r"(\d+-\d+/\d+|\d+/\d+|\d*\.\d+|\d+\.?)"
-#: a prefix (HSS, SHS, RHS, CHS, Ø, ...), then two or three numbers joined by X; the last
-#: is the wall. No digit, point or X may follow (HSS6X6X3/8 A500 is read, HSS6X6X3/8X4 is not).
-_DESIGNATION = re.compile(r"[^\d.]*?" + _NUMBER + r"(?:\s*X\s*" + _NUMBER + r"){1,2}(?![\dX./])")
+#: two or three numbers joined by X, anywhere in the name (after HSS, SHS, RHS, CHS, Ø, a family
+#: name, ...); the last is the wall. No digit, point or X may follow (HSS6X6X3/8 A500 is read,
+#: HSS6X6X3/8X4 is not).
+_DESIGNATION = re.compile(r"(?<![\d./])" + _NUMBER + r"(?:\s*X\s*" + _NUMBER + r"){1,2}(?![\dX./])")
 _DECIMAL_COMMA = re.compile(r"(?<=\d),(?=\d)")
 
 
@@ -58,15 +60,14 @@ def _number(text: str) -> tuple[float, bool]:
     return float(text), False
 
 
-def _numbers(name: str) -> tuple[list[float], bool] | None:
-    """The numbers of a designation in ``name`` and whether any is a fraction; None if it has none."""
-    text = _DECIMAL_COMMA.sub(".", name.upper().replace("×", "X").replace("*", "X")).strip()
-    m = _DESIGNATION.match(text)
-    if m is None:
-        return None
-    parts = re.findall(_NUMBER, text[m.start(1):m.end()])
-    values = [_number(p) for p in parts]
-    return [v for v, _ in values], any(f for _, f in values)
+def _designations(name: str) -> list[tuple[list[float], bool]]:
+    """The numbers of each designation in ``name``, in order, and whether any is a fraction."""
+    text = _DECIMAL_COMMA.sub(".", name.upper().replace("×", "X").replace("*", "X"))
+    out = []
+    for m in _DESIGNATION.finditer(text):
+        values = [_number(p) for p in re.findall(_NUMBER, m.group(0))]
+        out.append(([v for v, _ in values], any(f for _, f in values)))
+    return out
 
 
 def wall_of(name: Any, shape: Any, outsides: tuple[float, ...], t: float) -> float:
@@ -75,17 +76,14 @@ def wall_of(name: Any, shape: Any, outsides: tuple[float, ...], t: float) -> flo
     that describes this section."""
     if shape not in (Shape.RECT_TUBE, Shape.ROUND_TUBE) or not isinstance(name, str) or not math.isfinite(t):
         return math.nan
-    found = _numbers(name)
-    if found is None:
-        return math.nan
-    numbers, fraction = found
-    first, wall = numbers[0], numbers[-1]
-    for unit in ((_INCH,) if fraction else (_INCH, _MM)):
-        size = first * unit
-        if any(math.isfinite(o) and o > 0 and abs(size - o) <= MATCH_TOLERANCE * o for o in outsides):
-            named = wall * unit
-            if named > 0 and WALL_BAND[0] * named <= t <= WALL_BAND[1] * named:
-                return named
+    for numbers, fraction in _designations(name):   # the first that describes this section
+        first, wall = numbers[0], numbers[-1]
+        for unit in ((_INCH,) if fraction else (_INCH, _MM)):
+            size = first * unit
+            if any(math.isfinite(o) and o > 0 and abs(size - o) <= MATCH_TOLERANCE * o for o in outsides):
+                named = wall * unit
+                if named > 0 and WALL_BAND[0] * named <= t <= WALL_BAND[1] * named:
+                    return named
     return math.nan
 
 
