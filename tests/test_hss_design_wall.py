@@ -200,3 +200,58 @@ def test_a_model_in_inches_against_the_manual(tmp_path: Path) -> None:
     # AISC Manual Table 1-13 (from memory): HSS6.625X.280, A = 5.20 in²
     assert ag["round"] == pytest.approx(5.20, abs=0.01)
     assert "Ag = 7.5" in by["nominal"]["message"] and by["nominal"]["demand"]["source"] == "P / Ag"
+
+
+# --- ASTM A500 from the material library: round tubing has its own yield strength -------------
+
+def test_a500_from_the_library_by_the_members_shape(tmp_path: Path) -> None:
+    mb = ModelBuilder(schema="IFC4", units="inch-kip")
+    f = mb.f
+    named = mb.material("ASTM A500 Gr C", category="steel")               # no values: the library's
+    own = mb.material("ASTM A500 Gr C", category="steel", Fy=55.0)        # the model's own Fy comes first
+    rect = f.createIfcRectangleHollowProfileDef("AREA", "HSS6X6X3/8", None, 6.0, 6.0, 0.349, 0.349, 0.698)
+    rnd = f.createIfcCircleHollowProfileDef("AREA", "HSS6.625X.280", None, 3.3125, 0.260)
+    rnd2 = f.createIfcCircleHollowProfileDef("AREA", "HSS6.625X.280", None, 3.3125, 0.260)
+    for name, prof, mat in (("rect", rect, named), ("round", rnd, named), ("own", rnd2, own)):
+        mb.member(name=name, tag=name, profile=prof, material=mat, length=120.0, psets=axial_force(50.0))
+    path = tmp_path / "a500.ifc"
+    mb.write(str(path))
+    out = tmp_path / "m.json"
+    p = run_modelcheck("members", str(path), "--format", "json", "--output", str(out))
+    assert p.returncode == 0, p.stderr
+    fy = {m["name"]: m["material"]["Fy"] for m in json.loads(out.read_text(encoding="utf-8"))["models"][0]["members"]}
+    # ASTM A500 Tables 1 and 2 / AISC Manual Table 2-4 (from memory): Grade C, 50 ksi rectangular, 46 ksi round
+    assert fy["rect"]["value"] == pytest.approx(50.0) and fy["rect"]["unit"] == "ksi"
+    assert fy["round"]["value"] == pytest.approx(46.0) and fy["round"]["source"].endswith("ASTM A500 Gr C (round)")
+    assert fy["own"]["value"] == pytest.approx(55.0)
+    report = tmp_path / "r.json"
+    p = run_modelcheck("check", str(path), "--format", "json", "--output", str(report), "--no-config")
+    assert p.returncode in (0, 1), p.stderr
+    cap = {r["name"]: r["capacity"]["value"] for r in json.loads(report.read_text(encoding="utf-8"))["results"]
+           if r["check"] == "tension-yield"}
+    # AISC 360-16 D2(a): Fy / 1.67
+    assert cap == pytest.approx({"rect": 50 / 1.67, "round": 46 / 1.67, "own": 55 / 1.67}, rel=1e-4)
+
+
+def test_size_checks_round_tubing_with_its_own_yield_strength() -> None:
+    from modelcheck.design.stock import catalog_shapes
+
+    hss = catalog_shapes("shapes-aisc.csv", ("HSS",))
+    areas = [(float(a) / IN**2, str(n), str(s)) for a, n, s in zip(hss["area"], hss["designation"], hss["shape"],
+                                                                      strict=True)]
+    # a round size that would be the smallest to pass at 48 ksi / 1.67 with a 50 ksi Fy (no size between)
+    # but does not pass with the 46 ksi of round A500 Gr C tubing (ASTM A500 Table 1, from memory)
+    pick = next((a, n) for a, n, s in areas if s == "round-tube"
+                and not any(48 / 50 * a <= b < a for b, _, _ in areas))
+    force = pick[0] * 48 / 1.67   # kip: the stress at Fy / 1.67 of 48 ksi on that area
+    p = run_modelcheck("size", "--force", f"{force:.4f} kip", "--shape", "catalog", "--family", "HSS",
+                       "--material", "A500 Gr C", "--format", "json")
+    assert p.returncode == 0, p.stderr
+    doc = json.loads(p.stdout)
+    chosen = doc["selected"]["designation"]
+    assert chosen != pick[1]
+    # AISC 360-16 D2(a): f = P / Ag <= Fy / 1.67 with the chosen shape's own Fy
+    shape = {n: s for _, n, s in areas}[chosen]
+    fy = 46.0 if shape == "round-tube" else 50.0
+    assert doc["material"]["Fy"]["value"] == pytest.approx(fy)
+    assert force / doc["selected"]["area"]["value"] <= fy / 1.67 * (1 + 1e-6)

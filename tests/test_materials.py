@@ -33,6 +33,13 @@ from tests.helpers import si
     ("S235", "EN 10025 S235", "235 MPa", "360 MPa"),
     ("S275", "EN 10025 S275", "275 MPa", "410 MPa"),
     ("S355", "EN 10025 S355", "355 MPa", "470 MPa"),
+    # ASTM A500 Tables 1 and 2 / AISC Manual Table 2-4, square and rectangular HSS (from memory)
+    ("ASTM A500 Grade B", "ASTM A500 Gr B", "46 ksi", "58 ksi"),
+    ("A500 Gr. C", "ASTM A500 Gr C", "50 ksi", "62 ksi"),
+    # ASTM A1085 / AISC Manual Table 2-4 (from memory)
+    ("A1085", "ASTM A1085 Gr A", "50 ksi", "65 ksi"),
+    # ASTM A53 Table 2, Grade B pipe / AISC Manual Table 2-4 (from memory)
+    ("A53 Gr B", "ASTM A53 Gr B", "35 ksi", "60 ksi"),
     # ASTM A240 Table 2, S30400 / S31600: 30 ksi [205 MPa], 75 ksi [515 MPa] (from memory)
     ("AISI 304", "ASTM A240 Type 304", "205 MPa", "515 MPa"),
     ("316", "ASTM A240 Type 316", "205 MPa", "515 MPa"),
@@ -47,6 +54,24 @@ def test_grade_strengths_match_published_tables(name: str, grade: str, fy: str, 
     assert m is not None and m.grade == grade
     assert m.Fy == pytest.approx(si(fy), rel=1e-9)
     assert m.Fu == pytest.approx(si(fu), rel=1e-9)
+
+
+@pytest.mark.parametrize(("name", "fy_round"), [
+    # ASTM A500 Table 1 / AISC Manual Table 2-4, round HSS: Grade B 42 ksi, Grade C 46 ksi (from memory)
+    ("Metal - Steel - ASTM A500, Grade B - Round", "42 ksi"),
+    ("A500-C", "46 ksi"),
+])
+def test_a500_round_tubing_has_its_own_yield_strength(name: str, fy_round: str) -> None:
+    m = match_material(name)
+    assert m is not None
+    ((q, v, source, basis),) = m.round_values
+    assert q == "Fy" and v == pytest.approx(si(fy_round), rel=1e-9) and v < m.Fy
+    assert source == f"rulesets/materials.toml: {m.grade} (round)" and "round" in basis
+
+
+def test_a500_without_a_grade_takes_nothing_from_the_library() -> None:
+    # A500 has several grades with different strengths (ASTM A500 Tables 1 and 2): none is guessed
+    assert match_material("ASTM A500") is None
 
 
 def test_a307_has_tensile_strength_but_no_yield() -> None:
@@ -252,6 +277,26 @@ def test_a_tensile_strength_below_the_yield_strength_is_refused(tmp_path: Path, 
         load_library(p)
     assert str(exc.value) == (f"{p}:material.'Test S1'.Fu.value: tensile strength {fu!r} is below the yield "
                               f"strength Fy {fy!r}; are the two swapped?")
+
+
+def test_a_round_yield_strength_is_checked_like_the_yield_strength(tmp_path: Path) -> None:
+    base = GOOD + 'Fu = { value = "360 MPa", source = "x" }\n'
+    p = write(tmp_path, base + 'Fy_round = { value = "215 MPa", source = "x" }\n')
+    grade = load_library(p).materials[0]
+    ((q, v, source, _),) = grade.round_values
+    assert (q, v, source) == ("Fy", pytest.approx(215e6), f"{grade.Fy_source} (round)")
+    p = write(tmp_path, base + 'Fy_round = { value = "400 MPa", source = "x" }\n')
+    with pytest.raises(RuleSetError) as exc:
+        load_library(p)
+    assert str(exc.value) == (f"{p}:material.'Test S1'.Fu.value: tensile strength '360 MPa' is below the yield "
+                              "strength Fy_round '400 MPa'; are the two swapped?")
+    p = write(tmp_path, GOOD.replace('Fy = { value = "235 MPa", source = "EN 1993-1-1 Table 3.1" }\n', "")
+              + 'Fy_round = { value = "215 MPa", source = "x" }\n')
+    with pytest.raises(RuleSetError, match=r"Fy_round: given without Fy"):
+        load_library(p)
+    p = write(tmp_path, base + 'Fy_round = { value = "215 kN", source = "x" }\n')
+    with pytest.raises(RuleSetError, match=r"Fy_round\.value"):
+        load_library(p)
 
 
 def test_duplicate_pattern_across_grades_is_refused(tmp_path: Path) -> None:

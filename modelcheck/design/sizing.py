@@ -43,6 +43,7 @@ from modelcheck.common.units import Q_, ureg
 from modelcheck.common.vocabulary import (
     STOCK_FAMILY,
     STOCK_KIND_NAMES,
+    Shape,
     display_kinds,
     quantity_object,
     round_sig,
@@ -199,6 +200,19 @@ def resolve_material(name: str | None, ruleset: RuleSet) -> dict[str, Any]:
     return values
 
 
+def _round_values(members: pd.DataFrame, grade: str) -> None:
+    """The grade's values for round hollow sections (ASTM A500's Fy) on the candidates of that shape."""
+    from modelcheck.materials.library import match_material
+
+    lib = match_material(grade)
+    if lib is None or not lib.round_values or not len(members):
+        return
+    rows = (members["shape"] == Shape.ROUND_TUBE).to_numpy()
+    for q, v, src, _ in lib.round_values:
+        members.loc[rows, q] = v
+        members.loc[rows, f"{q}_source"] = src
+
+
 def _display(ruleset: RuleSet, units: Any) -> dict[str, str]:
     """Display units: the rule set's, or those of a DisplayUnits system when one is given."""
     if units is not None and getattr(units, "system", None) in ("US", "SI"):
@@ -286,6 +300,7 @@ def size(ruleset: RuleSet, force_si: float, *, material: str | None = None, shap
         base[f"{key}_source"] = mat[f"{key}_source"]
     ids = [f"c{i}" for i in range(len(cands))]
     members = stock.as_members(cands, base=base, ids=ids)
+    _round_values(members, mat["grade"])
     forces = pd.DataFrame({"model": "size", "global_id": ids, "load_case": "P",
                            "axial_force": np.full(len(ids), float(force_si)), "source": "--force"})
     results = run_checks(ruleset, members, forces)
@@ -303,6 +318,9 @@ def size(ruleset: RuleSet, force_si: float, *, material: str | None = None, shap
     best = int(eligible.index.min())   # candidates are sorted by area, then series order
     rows = res[res["_c"] == best]
     cand = cands.iloc[best]
+    if cand["shape"] == Shape.ROUND_TUBE:   # the values the selected size was checked with
+        first = members.iloc[best]
+        mat = {**mat, **{k: first[k] for k in ("Fy", "Fy_source") if k in first.index}}
     return _result(ruleset, force_si, mat, shape, families, thickness, length, rows, na, cand,
                    series_text, len(cands), _display(ruleset, units))
 

@@ -134,6 +134,9 @@ class MaterialInfo:
     #: (quantity, what was found and why it was not used) of each value the material's
     #: properties give but the reader rejects (the member table's ``rejected``)
     rejected: tuple[tuple[str, str], ...] = ()
+    #: library values that differ for round hollow sections (ASTM A500's Fy), used in place of
+    #: ``values``' for a member of that shape: quantity -> (SI value, source)
+    round_values: tuple[tuple[str, tuple[float, str]], ...] = ()
 
 
 class NetSection(NamedTuple):
@@ -220,6 +223,7 @@ class _Reader:
         self._profile_cache: dict[int, Section | str] = {}
         self._named_profile_cache: dict[int, Section | str] = {}   # profile-properties id -> its profile
         self._material_cache: dict[int, MaterialInfo] = {}
+        self._round_variants: dict[int, tuple[MaterialInfo, MaterialInfo]] = {}
         self._body_cache: dict[int, tuple[Section | str | None, tuple[float, str] | None]] = {}
         self._type_facts_cache: dict[int, TypeFacts] = {}
         self._same: dict[tuple[int, int], tuple[Section, Section, bool]] = {}
@@ -392,6 +396,7 @@ class _Reader:
         from modelcheck.materials.names import read_name
 
         values: dict[str, tuple[float, str]] = {}
+        round_values: dict[str, tuple[float, str]] = {}
         warnings: list[str] = []
         rejected: dict[str, str] = {}
         found: dict[str, tuple[str, str]] = {}   # quantity -> (value as written, with its unit; where)
@@ -419,6 +424,9 @@ class _Reader:
                         if q in rejected:   # the model's own value could not be used: say what is
                             rejected[q] += (f"; the material library's value for {lib.grade}, "
                                             f"{_fmt_si(q, float(v))}, is used instead")
+                for q, v, src, _ in lib.round_values:
+                    if values.get(q, (None, None))[1] == lib.source(q):   # the library's value is the one used
+                        round_values[q] = (v, src)
         if category == UNKNOWN:
             warnings.append(f"material {name!r}: category unknown (neither its name nor its Category matches a "
                             "pattern of rulesets/material-names.toml)")
@@ -426,7 +434,9 @@ class _Reader:
         _strengths_in_order(values, rejected, found)
         values.pop("density", None)   # screened above; no check uses it
         warnings += [f"material {name!r}, {q}: {why}" for q, why in rejected.items()]
-        info = MaterialInfo(name, category, grade, values, tuple(warnings), tuple(rejected.items()))
+        round_values = {q: rv for q, rv in round_values.items() if q in values}   # not dropped as implausible
+        info = MaterialInfo(name, category, grade, values, tuple(warnings), tuple(rejected.items()),
+                            tuple(round_values.items()))
         self._material_cache[key] = info
         return info
 
@@ -719,6 +729,8 @@ class _Reader:
             # measured exactly along the curve, but an arch or a bent bar bends under an axial load
             warnings.append(f"curved: its length {length * 1e3:.6g} mm is from {length_src}; the checks take it "
                             "as a straight member of that length")
+        if minfo is not None and minfo.round_values and section is not None and section.shape == Shape.ROUND_TUBE:
+            minfo = self._round_variant(minfo)
         storey = idx.storey_of.get(eid)
         storey_name = None
         if storey is not None:
@@ -732,6 +744,14 @@ class _Reader:
             gid = f"#{eid}"
         return MemberRow(gid, cls, predefined, object_type, ga(2), ga(7) if pos[0] else None, storey_name,
                          type_name, section, minfo, length, length_src, warnings, eid, net, tuple(rejected))
+
+    def _round_variant(self, minfo: MaterialInfo) -> MaterialInfo:
+        """``minfo`` with its values for round hollow sections (one object per material)."""
+        hit = self._round_variants.get(id(minfo))
+        if hit is None or hit[0] is not minfo:   # the entry keeps minfo alive: its id stays its own
+            hit = self._round_variants[id(minfo)] = (
+                minfo, replace(minfo, values={**minfo.values, **dict(minfo.round_values)}, round_values=()))
+        return hit[1]
 
     def _unit_contradictions(self, candidates: list[Section], warnings: list[str]) -> list[Section]:
         """The candidates without those whose area, read in a stated area unit, contradicts the

@@ -63,7 +63,10 @@ RANGE_KEYS: dict[str, tuple[str, str]] = VALUE_KEYS | {
     "density": ("kg/m**3", "a mass density (e.g. '7850 kg/m**3')"),
 }
 _REQUIRED_VALUES = ("E",)
-_MATERIAL_KEYS = frozenset({"category", "standard", "names", "note", *VALUE_KEYS})
+#: values a grade may give apart for round hollow sections (ASTM A500: a lower yield strength for
+#: round than for square and rectangular tubing), used for members of that shape
+ROUND_KEYS: dict[str, str] = {"Fy_round": "Fy"}
+_MATERIAL_KEYS = frozenset({"category", "standard", "names", "note", *VALUE_KEYS, *ROUND_KEYS})
 _VALUE_RE = re.compile(VALUE_PATTERN)   # the number and unit parts of a value, as parse_quantity reads them
 _NON_ALNUM = re.compile(r"[^0-9a-z]+")
 
@@ -89,6 +92,8 @@ class LibraryMaterial:
     alpha_basis: str | None
     patterns: tuple[str, ...]       # name patterns as written in the file
     note: str | None = None
+    #: values that differ for round hollow sections: quantity -> (SI value, source, basis)
+    round_values: tuple[tuple[str, float, str, str], ...] = ()
 
     def value(self, key: str) -> float | None:
         """``value("Fy")`` -> the value of ``E``, ``Fy``, ``Fu`` or ``alpha`` (None for another key)."""
@@ -297,11 +302,30 @@ def _parse(doc: dict[str, Any], problems: Problems[RuleSetError], label: str) ->
             if v <= 0:
                 raise problems.error(f"{where}.{key}.value", f"must be positive, got {entry['value']!r}")
             values.update({key: v, f"{key}_source": f"{label}: {grade}", f"{key}_basis": entry["source"]})
-        if (values.get("Fy") is not None and values.get("Fu") is not None
-                and values["Fu"] < values["Fy"] * (1 - STRENGTH_ROUNDING)):
-            # a tensile strength is the largest stress of the tensile test, never below the yield strength
-            raise problems.error(f"{where}.Fu.value", f"tensile strength {spec['Fu']['value']!r} is below the "
-                                 f"yield strength Fy {spec['Fy']['value']!r}; are the two swapped?")
+        round_values: list[tuple[str, float, str, str]] = []
+        yields: list[tuple[str, float | None, dict[str, Any]]] = [   # (key, SI value, its entry)
+            ("Fy", values.get("Fy"), spec.get("Fy") or {})]
+        for rkey, q in ROUND_KEYS.items():
+            entry = spec.get(rkey)
+            if entry is None:
+                continue
+            if values.get(q) is None:
+                raise problems.error(f"{where}.{rkey}", f"given without {q}: {q} is the value for every other shape")
+            if not isinstance(entry, dict) or set(entry) != {"value", "source"}:
+                raise problems.error(f"{where}.{rkey}", "must be { value = \"<number> <unit>\", source = \"...\" }")
+            if not isinstance(entry["source"], str) or not entry["source"].strip():
+                raise problems.error(f"{where}.{rkey}.source", "must name the published source of the value")
+            v = quantity_si(entry["value"], q, problems, f"{where}.{rkey}.value")
+            if v <= 0:
+                raise problems.error(f"{where}.{rkey}.value", f"must be positive, got {entry['value']!r}")
+            round_values.append((q, v, f"{label}: {grade} (round)", entry["source"]))
+            yields.append((rkey, v, entry))
+        fu = values.get("Fu")
+        for key, fy, entry in yields:
+            if fy is not None and fu is not None and fu < fy * (1 - STRENGTH_ROUNDING):
+                # a tensile strength is the largest stress of the tensile test, never below the yield strength
+                raise problems.error(f"{where}.Fu.value", f"tensile strength {spec['Fu']['value']!r} is below the "
+                                     f"yield strength {key} {entry.get('value')!r}; are the two swapped?")
         index = len(materials)
         seen: set[str] = set()
         for n in names:
@@ -315,7 +339,8 @@ def _parse(doc: dict[str, Any], problems: Problems[RuleSetError], label: str) ->
             owner[norm] = grade
             patterns.append((norm, index))
         materials.append(LibraryMaterial(grade=grade, category=category, standard=standard,
-                                         patterns=tuple(names), note=note, **values))
+                                         patterns=tuple(names), note=note, round_values=tuple(round_values),
+                                         **values))
     return MaterialLibrary(path=problems.path, label=label, materials=tuple(materials), patterns=tuple(patterns),
                            category_words=tuple(words), plausible=tuple(plausible))
 
