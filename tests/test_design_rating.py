@@ -178,7 +178,7 @@ def test_a_limit_no_force_satisfies_gives_no_rating() -> None:
     # an L4X4X1/4 angle 40 ft long: L/r = 480 in / 0.791 in = 607 > 300 (AISC 360-16 D1 user note;
     # rz = 0.791 in, AISC Shapes Database v15.0, from memory)
     angle = {"shape": "L", "area": 1.93 * IN2, "r_min": 0.791 * IN, "length": 40 * FT,
-             "E": 29000 * KSI, "Fy": 36 * KSI, "Fu": 58 * KSI}
+             "E": 29000 * KSI, "Fy": 36 * KSI, "Fu": 58 * KSI, "h": 4 * IN, "b": 4 * IN, "t": 0.25 * IN}
     r = rate_members(rs, members(rod, angle), US)
     assert r.compression[0] is None and r.compression_check[0] is None
     assert "slenderness-compression fails at any force" in r.compression_note[0]

@@ -1,0 +1,141 @@
+"""Slender and class 4 sections in compression: the shipped steel rule sets flag them.
+
+Both rule sets check flexural buckling on the gross area, which holds only for a section without
+slender elements: AISC 360-16 Table B4.1a (λ <= λr) and EN 1993-1-1 Table 5.2 (class 1 to 3).
+Every expected ratio below is computed in the test from those tables' limits (from memory) and
+the sections' published dimensions (AISC Shapes Database, EN 10365 / EN 10219; from memory).
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+import pytest
+
+from modelcheck.rules.engine import run_checks
+from modelcheck.rules.ruleset import load_ruleset
+from tests.helpers import IN, KSI
+from tests.tables import force_table
+from tests.tables import member_table as members
+
+E_US = 29000.0   # ksi, AISC 360-16 Symbols (from memory)
+E_EU = 210e9     # Pa, EN 1993-1-1 3.2.6 (from memory)
+
+
+def us(shape: str, fy_ksi: float, **dims_in: float) -> dict[str, Any]:
+    row: dict[str, Any] = {"shape": shape, "area": 5 * IN**2, "r_min": 1.5 * IN, "length": 60 * IN,
+                           "E": E_US * KSI, "Fy": fy_ksi * KSI, "Fu": 65 * KSI, "material": "steel"}
+    row.update({k: (v * IN if k != "section_name" else v) for k, v in dims_in.items()})
+    return row
+
+
+def eu(shape: str, fy_mpa: float, **dims_mm: float) -> dict[str, Any]:
+    row: dict[str, Any] = {"shape": shape, "area": 2e-3, "r_min": 0.04, "length": 2.0, "E": E_EU,
+                           "Fy": fy_mpa * 1e6, "Fu": 490e6, "material": "S355"}
+    row.update({k: v / 1000 for k, v in dims_mm.items()})
+    return row
+
+
+def ratios(ruleset: str, check: str, *rows: dict[str, Any], force: float = -10e3) -> list[float]:
+    res = run_checks(load_ruleset(ruleset), members(*rows),
+                     force_table(*((f"G{i}", "LC1", force) for i in range(len(rows)))))
+    res = res[res.check == check].sort_values("global_id")
+    return [float(x) for x in res.ratio]
+
+
+# --- AISC 360-16 Table B4.1a ---------------------------------------------------------------------
+
+def test_asd_rolled_i_flange_and_web() -> None:
+    root = math.sqrt(E_US / 50)
+    # W14X22: d 13.7, bf 5.00, tf 0.335, tw 0.230 in; the Manual marks it slender for compression at
+    # Fy = 50 ksi. Web (case 5): h/tw with h = d - 2 tf (the fillets kept: safe side) against 1.49 √(E/Fy)
+    w14x22 = us("I", 50, h=13.7, b=5.00, tf=0.335, tw=0.230)
+    # W14X132: d 14.7, bf 14.7, tf 1.03, tw 0.645 in: no slender element
+    w14x132 = us("I", 50, h=14.7, b=14.7, tf=1.03, tw=0.645)
+    got = ratios("steel-asd-us", "element-slenderness", w14x22, w14x132)
+    web22 = (13.7 - 2 * 0.335) / 0.230 / (1.49 * root)
+    flange132 = 14.7 / (2 * 1.03) / (0.56 * root)
+    web132 = (14.7 - 2 * 1.03) / 0.645 / (1.49 * root)
+    assert got == pytest.approx([web22, max(flange132, web132)], rel=1e-6)
+    assert got[0] > 1 > got[1]
+
+
+def test_asd_hss_walls_with_the_design_wall() -> None:
+    root = math.sqrt(E_US / 50)
+    # HSS6X6X1/8, tdes = 0.116 in (B4.2): b = B - 3t (B4.1b(d)) = 5.65 in, b/t = 48.7 > 1.40 √(E/Fy):
+    # slender (the Manual's b/t, from memory); HSS6X6X3/8 (tdes 0.349 in): b/t = 14.2, not slender
+    thin = us("rect-tube", 50, section_name="HSS6X6X1/8", h=6, b=6, t=0.93 * 0.125)
+    thick = us("rect-tube", 50, section_name="HSS6X6X3/8", h=6, b=6, t=0.93 * 0.375)
+    got = ratios("steel-asd-us", "element-slenderness", thin, thick)
+    assert got == pytest.approx([(6 - 3 * 0.93 * 0.125) / (0.93 * 0.125) / (1.40 * root),
+                                 (6 - 3 * 0.93 * 0.375) / (0.93 * 0.375) / (1.40 * root)], rel=1e-6)
+    assert (6 - 3 * 0.116) / 0.116 == pytest.approx(48.7, abs=0.1)
+    assert got[0] > 1 > got[1]
+
+
+def test_asd_round_hss_angles_and_tees() -> None:
+    # round HSS (case 9): D/t against 0.11 E/Fy; HSS20.000X0.250, tdes 0.233 in, Fy 46 ksi (round A500 Gr C)
+    pipe = us("round-tube", 46, section_name="HSS20.000X0.250", d=20, t=0.93 * 0.25)
+    # single angle legs (case 3): b/t against 0.45 √(E/Fy); L4X4X1/4 and L4X4X1/2 in A36
+    thin_angle = us("L", 36, h=4, b=4, t=0.25)
+    angle = us("L", 36, h=4, b=4, t=0.5)
+    # tee stem (case 4): d/tw against 0.75 √(E/Fy); WT7X11 (half a W14X22: d 6.85, bf 5.00, tf 0.335,
+    # tw 0.230 in), Fy 50 ksi
+    tee = us("T", 50, h=6.85, b=5.00, tf=0.335, tw=0.230)
+    got = ratios("steel-asd-us", "element-slenderness", pipe, thin_angle, angle, tee)
+    expected = [20 / (0.93 * 0.25) / (0.11 * E_US / 46), 4 / 0.25 / (0.45 * math.sqrt(E_US / 36)),
+                4 / 0.5 / (0.45 * math.sqrt(E_US / 36)),
+                max(5.00 / (2 * 0.335) / (0.56 * math.sqrt(E_US / 50)), 6.85 / 0.230 / (0.75 * math.sqrt(E_US / 50)))]
+    assert got == pytest.approx(expected, rel=1e-6)
+    assert [g > 1 for g in got] == [True, True, False, True]
+
+
+def test_asd_only_in_compression_and_only_classified_shapes() -> None:
+    slender = us("I", 50, h=13.7, b=5.00, tf=0.335, tw=0.230)
+    assert ratios("steel-asd-us", "element-slenderness", slender, force=+10e3) == []   # tension: no result
+    other = us("arbitrary", 50, h=10, b=5)
+    bar = us("round-bar", 36, d=1)
+    assert ratios("steel-asd-us", "element-slenderness", other, bar) == []            # not classified
+
+
+def test_asd_a_slender_section_fails_and_says_why() -> None:
+    res = run_checks(load_ruleset("steel-asd-us"), members(us("L", 36, h=4, b=4, t=0.25)),
+                     force_table(("G0", "LC1", -10e3)))
+    row = res[res.check == "element-slenderness"].iloc[0]
+    assert row.status == "fail" and row.clause == "AISC 360-16 B4.1, Table B4.1a"
+    assert "λ/λr = 1.25" in row.message and "E7" in row.message
+
+
+# --- EN 1993-1-1 Table 5.2 -------------------------------------------------------------------------
+
+def test_ec3_class_4_hollow_sections() -> None:
+    eps = math.sqrt(235 / 355)
+    # SHS 200x200x5 and x8, S355: c = h - 3t (internal part) against 42 ε
+    shs5 = eu("rect-tube", 355, h=200, b=200, t=5)
+    shs8 = eu("rect-tube", 355, h=200, b=200, t=8)
+    # CHS 323.9x5.0, S355: d/t against 90 ε²
+    chs = eu("round-tube", 355, d=323.9, t=5)
+    got = ratios("steel-ec3", "section-class", shs5, shs8, chs)
+    assert got == pytest.approx([(200 - 15) / 5 / (42 * eps), (200 - 24) / 8 / (42 * eps),
+                                 323.9 / 5 / (90 * eps**2)], rel=1e-6)
+    assert [g > 1 for g in got] == [True, False, True]
+
+
+def test_ec3_rolled_i_angle_and_tee() -> None:
+    eps = math.sqrt(235 / 355)
+    # IPE 300 (EN 10365: h 300, b 150, tw 7.1, tf 10.7, r 15 mm), S355 in pure compression: class 4
+    # (web c/t = 248.6 / 7.1 = 35.0 > 42 ε = 34.2 even with the root radii deducted)
+    ipe = eu("I", 355, h=300, b=150, tf=10.7, tw=7.1)
+    # L 100x100x8 S235 (ε = 1): h/t = 12.5 <= 15, (b + h)/2t = 12.5 > 11.5: class 4
+    angle = eu("L", 235, h=100, b=100, t=8)
+    # HEA 140 S275 (EN 10365: h 133, b 140, tw 5.5, tf 8.5 mm): class 1 to 3
+    hea = eu("I", 275, h=133, b=140, tf=8.5, tw=5.5)
+    got = ratios("steel-ec3", "section-class", ipe, angle, hea)
+    e275 = math.sqrt(235 / 275)
+    assert got == pytest.approx([
+        max((150 - 7.1) / 2 / 10.7 / (14 * eps), (300 - 2 * 10.7) / 7.1 / (42 * eps)),
+        max(100 / 8 / 15, 200 / 16 / 11.5),
+        max((140 - 5.5) / 2 / 8.5 / (14 * e275), (133 - 17) / 5.5 / (42 * e275))], rel=1e-6)
+    assert (300 - 2 * 10.7 - 2 * 15) / 7.1 > 42 * eps
+    assert [g > 1 for g in got] == [True, True, False]
