@@ -48,17 +48,30 @@ def ratios(ruleset: str, check: str, *rows: dict[str, Any], force: float = -10e3
 
 def test_asd_rolled_i_flange_and_web() -> None:
     root = math.sqrt(E_US / 50)
-    # W14X22: d 13.7, bf 5.00, tf 0.335, tw 0.230 in; the Manual marks it slender for compression at
-    # Fy = 50 ksi. Web (case 5): h/tw with h = d - 2 tf (the fillets kept: safe side) against 1.49 √(E/Fy)
-    w14x22 = us("I", 50, h=13.7, b=5.00, tf=0.335, tw=0.230)
-    # W14X132: d 14.7, bf 14.7, tf 1.03, tw 0.645 in: no slender element
-    w14x132 = us("I", 50, h=14.7, b=14.7, tf=1.03, tw=0.645)
-    got = ratios("steel-asd-us", "element-slenderness", w14x22, w14x132)
-    web22 = (13.7 - 2 * 0.335) / 0.230 / (1.49 * root)
+    # Web (case 5): h/tw against 1.49 √(E/Fy), h = d - 2 kdes = d - 2 tf - 2 r (B4.1b(a)); flange
+    # (case 1): bf/2tf against 0.56 √(E/Fy). Fy = 50 ksi. Dimensions: d, bf, tf, tw, r = kdes - tf
+    # (AISC Shapes Database v15.0, from memory)
+    # W14X22 (d 13.7, bf 5.00, tf 0.335, tw 0.230, kdes 0.735): h/tw = 53.3, slender (the Manual
+    # marks it slender for compression at 50 ksi)
+    w14x22 = us("I", 50, h=13.7, b=5.00, tf=0.335, tw=0.230, r_root=0.735 - 0.335)
+    # W14X132 (d 14.7, bf 14.7, tf 1.03, tw 0.645, kdes 1.63): no slender element
+    w14x132 = us("I", 50, h=14.7, b=14.7, tf=1.03, tw=0.645, r_root=1.63 - 1.03)
+    # W12X40 (d 11.9, bf 8.01, tf 0.515, tw 0.295, kdes 1.02): h/tw = 33.6 < 35.9, not slender;
+    # with the fillets left out (h = d - 2 tf) it would come out at 36.8, slender
+    w12x40 = us("I", 50, h=11.9, b=8.01, tf=0.515, tw=0.295, r_root=1.02 - 0.515)
+    # the same W14X22 drawn with sharp corners: the fillets are not deducted (the safe side)
+    sharp = us("I", 50, h=13.7, b=5.00, tf=0.335, tw=0.230)
+    got = ratios("steel-asd-us", "element-slenderness", w14x22, w14x132, w12x40, sharp)
+    web22 = (13.7 - 2 * 0.735) / 0.230 / (1.49 * root)
     flange132 = 14.7 / (2 * 1.03) / (0.56 * root)
-    web132 = (14.7 - 2 * 1.03) / 0.645 / (1.49 * root)
-    assert got == pytest.approx([web22, max(flange132, web132)], rel=1e-6)
-    assert got[0] > 1 > got[1]
+    web132 = (14.7 - 2 * 1.63) / 0.645 / (1.49 * root)
+    web40 = (11.9 - 2 * 1.02) / 0.295 / (1.49 * root)
+    assert got == pytest.approx([web22, max(flange132, web132), web40, (13.7 - 2 * 0.335) / 0.230 / (1.49 * root)],
+                                rel=1e-6)
+    assert (13.7 - 2 * 0.735) / 0.230 == pytest.approx(53.3, abs=0.2)    # the Manual's h/tw, within the
+    # rounding of the dimensions it is computed from
+    assert (11.9 - 2 * 1.02) / 0.295 == pytest.approx(33.6, abs=0.2)
+    assert [g > 1 for g in got] == [True, False, False, True]
 
 
 def test_asd_hss_walls_with_the_design_wall() -> None:
@@ -125,17 +138,50 @@ def test_ec3_class_4_hollow_sections() -> None:
 def test_ec3_rolled_i_angle_and_tee() -> None:
     eps = math.sqrt(235 / 355)
     # IPE 300 (EN 10365: h 300, b 150, tw 7.1, tf 10.7, r 15 mm), S355 in pure compression: class 4
-    # (web c/t = 248.6 / 7.1 = 35.0 > 42 ε = 34.2 even with the root radii deducted)
-    ipe = eu("I", 355, h=300, b=150, tf=10.7, tw=7.1)
+    # (web c = h - 2 tf - 2 r: c/t = 248.6 / 7.1 = 35.0 > 42 ε = 34.2)
+    ipe = eu("I", 355, h=300, b=150, tf=10.7, tw=7.1, r_root=15)
     # L 100x100x8 S235 (ε = 1): h/t = 12.5 <= 15, (b + h)/2t = 12.5 > 11.5: class 4
     angle = eu("L", 235, h=100, b=100, t=8)
-    # HEA 140 S275 (EN 10365: h 133, b 140, tw 5.5, tf 8.5 mm): class 1 to 3
-    hea = eu("I", 275, h=133, b=140, tf=8.5, tw=5.5)
-    got = ratios("steel-ec3", "section-class", ipe, angle, hea)
+    # HEA 140 S275 (EN 10365: h 133, b 140, tw 5.5, tf 8.5, r 12 mm): class 1 to 3
+    hea = eu("I", 275, h=133, b=140, tf=8.5, tw=5.5, r_root=12)
+    # IPE 240 S355 (EN 10365: h 240, b 120, tw 6.2, tf 9.8, r 15 mm): web c/t = 190.4 / 6.2 = 30.7, class 1
+    # to 3; with the root radii left out (c = h - 2 tf) it would be 35.5, class 4
+    ipe240 = eu("I", 355, h=240, b=120, tf=9.8, tw=6.2, r_root=15)
+    got = ratios("steel-ec3", "section-class", ipe, angle, hea, ipe240)
     e275 = math.sqrt(235 / 275)
     assert got == pytest.approx([
-        max((150 - 7.1) / 2 / 10.7 / (14 * eps), (300 - 2 * 10.7) / 7.1 / (42 * eps)),
+        max((150 - 7.1 - 30) / 2 / 10.7 / (14 * eps), (300 - 2 * 10.7 - 30) / 7.1 / (42 * eps)),
         max(100 / 8 / 15, 200 / 16 / 11.5),
-        max((140 - 5.5) / 2 / 8.5 / (14 * e275), (133 - 17) / 5.5 / (42 * e275))], rel=1e-6)
-    assert (300 - 2 * 10.7 - 2 * 15) / 7.1 > 42 * eps
-    assert [g > 1 for g in got] == [True, True, False]
+        max((140 - 5.5 - 24) / 2 / 8.5 / (14 * e275), (133 - 17 - 24) / 5.5 / (42 * e275)),
+        max((120 - 6.2 - 30) / 2 / 9.8 / (14 * eps), (240 - 2 * 9.8 - 30) / 6.2 / (42 * eps))], rel=1e-6)
+    assert [g > 1 for g in got] == [True, True, False, False]
+    assert (240 - 2 * 9.8) / 6.2 > 42 * eps
+
+
+def test_the_root_radius_comes_from_the_profile_and_the_shape_table(tmp_path) -> None:
+    import json
+
+    from modelcheck.design.stock import catalog_shapes
+    from modelcheck.testing.author import ModelBuilder
+    from tests.helpers import axial_force, run_modelcheck
+
+    # the shipped table's W12X40 keeps its root radius (r = kdes - tf = 0.505 in, AISC Shapes Database
+    # v15.0, from memory); a tube's corner radius is no root radius
+    hss = catalog_shapes("shapes-aisc.csv", ("W", "HSS"))
+    row = hss[hss.designation == "W12X40"].iloc[0]
+    assert row["r_root"] == pytest.approx(0.505 * IN, rel=1e-9)
+    assert hss[hss["shape"] == "rect-tube"]["r_root"].isna().all()
+    # a model's IfcIShapeProfileDef.FilletRadius: W12X40 in compression has no slender element
+    mb = ModelBuilder(schema="IFC4", units="inch-kip")
+    steel = mb.material("ASTM A992", category="steel", E=29000.0, Fy=50.0, Fu=65.0)
+    w = mb.f.createIfcIShapeProfileDef("AREA", "W12X40", None, 8.01, 11.9, 0.295, 0.515, 0.505)
+    mb.member(name="strut", tag="S1", profile=w, material=steel, length=60.0, psets=axial_force(-20.0))
+    path = tmp_path / "w.ifc"
+    mb.write(str(path))
+    out = tmp_path / "r.json"
+    p = run_modelcheck("check", str(path), "--format", "json", "--output", str(out), "--no-config")
+    assert p.returncode == 0, p.stderr + p.stdout
+    (row,) = [r for r in json.loads(out.read_text(encoding="utf-8"))["results"] if r["check"] == "element-slenderness"]
+    assert row["status"] == "pass"
+    assert row["demand"]["value"] == pytest.approx((11.9 - 2 * 0.515 - 2 * 0.505) / 0.295
+                                                   / (1.49 * math.sqrt(E_US / 50)), rel=1e-5)

@@ -134,7 +134,7 @@ def test_rectangle_hollow(f4):
 def test_i_shape(f4):
     s = section_of(f4.createIfcIShapeProfileDef("AREA", None, None, 150.0, 300.0, 7.1, 10.7, 15.0))
     assert_matches(s, sp_props(i_section(d=300.0, b=150.0, t_f=10.7, t_w=7.1, r=15.0, n_r=N_R)))  # sectionproperties
-    assert s.shape == "I" and s.dims == {"h": 300.0, "b": 150.0, "tw": 7.1, "tf": 10.7}
+    assert s.shape == "I" and s.dims == {"h": 300.0, "b": 150.0, "tw": 7.1, "tf": 10.7, "r_root": 15.0}
 
 
 def test_i_shape_flange_edge_radius(f4):
@@ -160,7 +160,7 @@ def test_asymmetric_i_shape_ifc4(f4):
     s = section_of(p)
     ref = mono_i_section(d=400.0, b_t=120.0, b_b=200.0, t_ft=11.0, t_fb=16.0, t_w=9.0, r=12.0, n_r=N_R)
     assert_matches(s, sp_props(ref))  # sectionproperties
-    assert s.shape == "I" and s.dims == {"h": 400.0, "b": 200.0, "tw": 9.0, "tf": 11.0}
+    assert s.shape == "I" and s.dims == {"h": 400.0, "b": 200.0, "tw": 9.0, "tf": 11.0, "r_root": 12.0}
 
 
 def test_asymmetric_i_shape_ifc2x3():
@@ -198,7 +198,7 @@ def test_l_shape_ifc2x3_without_width():
 def test_t_shape(f4):
     s = section_of(f4.createIfcTShapeProfileDef("AREA", None, None, 120.0, 100.0, 9.0, 13.0, 10.0))
     assert_matches(s, sp_props(tee_section(d=120.0, b=100.0, t_f=13.0, t_w=9.0, r=10.0, n_r=N_R)))  # sectionproperties
-    assert s.shape == "T" and s.dims == {"h": 120.0, "b": 100.0, "tw": 9.0, "tf": 13.0}
+    assert s.shape == "T" and s.dims == {"h": 120.0, "b": 100.0, "tw": 9.0, "tf": 13.0, "r_root": 10.0}
 
 
 def test_t_shape_edge_radii(f4):
@@ -216,7 +216,7 @@ def test_t_shape_edge_radii(f4):
 def test_u_shape(f4):
     s = section_of(f4.createIfcUShapeProfileDef("AREA", None, None, 200.0, 80.0, 6.0, 10.0, 9.0))
     assert_matches(s, sp_props(channel_section(d=200.0, b=80.0, t_f=10.0, t_w=6.0, r=9.0, n_r=N_R)))  # sectionproperties
-    assert s.shape == "U" and s.dims == {"h": 200.0, "b": 80.0, "tw": 6.0, "tf": 10.0}
+    assert s.shape == "U" and s.dims == {"h": 200.0, "b": 80.0, "tw": 6.0, "tf": 10.0, "r_root": 9.0}
 
 
 def test_u_shape_sloped_flanges(f4):

@@ -95,9 +95,10 @@ def test_rule_names_list_the_quantities_once_in_the_missing_order():
 def test_table_contracts_are_the_vocabulary():
     assert table.QUANTITY_COLUMNS == {q.column: q.unit for q in quantities() if q.provenance and q.column}
     assert table.IDENTITY_COLUMNS == tuple(t.column for t in texts() if t.group == "identity")
-    assert table.SECTION_COLUMNS == ("section_name", "profile_type", "shape", "d", "h", "b", "tf", "tw", "t")
+    assert table.SECTION_COLUMNS == ("section_name", "profile_type", "shape", "d", "h", "b", "tf", "tw", "t",
+                                    "r_root")
     assert table.MATERIAL_COLUMNS == ("material", "material_category", "material_grade")
-    assert table.SECTION_VALUE_COLUMNS == {"area", "r_min", "d", "h", "b", "tf", "tw", "t"}
+    assert table.SECTION_VALUE_COLUMNS == {"area", "r_min", "d", "h", "b", "tf", "tw", "t", "r_root"}
     from modelcheck.design.stock import GEOMETRY_COLUMNS
 
     assert set(GEOMETRY_COLUMNS) == table.SECTION_VALUE_COLUMNS

@@ -178,6 +178,8 @@ VOCABULARY: tuple[Text | Quantity, ...] = (
     _dim("tf", "flange thickness", "no flange thickness in the profile", 0.01),
     _dim("tw", "web thickness", "no web thickness in the profile", 0.006),
     _dim("t", "wall or plate thickness", "no wall thickness in the profile", 0.005),
+    _dim("r_root", "root radius between web and flange of an I, channel or tee section",
+         "no root radius in the profile", 0.01),
     Text("material", "material", "material name as in the model", "material"),
     Text("material_category", "material_category", "material category (steel, stainless, aluminium ...)",
          "material"),
@@ -224,7 +226,7 @@ VOCABULARY: tuple[Text | Quantity, ...] = (
 #: the order of a check's missing inputs: the rule-language names of the quantities, as the
 #: ``missing`` list of an unchecked result names them
 RULE_QUANTITY_ORDER: tuple[str, ...] = (
-    "P", "A", "L", "E", "Fy", "Fu", "r", "alpha", "d", "h", "b", "tf", "tw", "t", "t_named", "As", "An", "U",
+    "P", "A", "L", "E", "Fy", "Fu", "r", "alpha", "d", "h", "b", "tf", "tw", "t", "r_root", "t_named", "As", "An", "U",
 )
 
 

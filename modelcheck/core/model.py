@@ -26,7 +26,7 @@ EncodedRows = bytes | int
 #: member columns the reporters show beside results (identity, section, material, the member's warnings)
 REPORT_MEMBER_COLUMNS = ("model", "global_id", "ifc_class", "predefined_type", "object_type", "name", "tag",
                          "storey", "type_name", "section_name", "profile_type", "shape", "material",
-                         "material_grade", "area", "r_min", "length", "d", "h", "b", "t", "tf", "tw", "E", "Fy",
+                         "material_grade", "area", "r_min", "length", "d", "h", "b", "t", "tf", "tw", "r_root", "E", "Fy",
                          "Fu", "alpha", "warnings")
 
 

@@ -49,7 +49,7 @@ from modelcheck.common.data import data_path
 from modelcheck.common.errors import RuleSetError
 from modelcheck.common.problems import Problems, file_lines
 from modelcheck.common.units import Q_, QuantityTextError, parse_quantity, parse_unit
-from modelcheck.common.vocabulary import STOCK_KINDS, quantities
+from modelcheck.common.vocabulary import STOCK_KINDS, Shape, quantities
 from modelcheck.design.screw_threads import INCH, thread_series
 from modelcheck.design.shape_tables import HEADER_RE
 
@@ -58,11 +58,11 @@ if TYPE_CHECKING:
 
 #: columns of a candidate table
 CANDIDATE_COLUMNS: tuple[str, ...] = (
-    "designation", "family", "shape", "area", "r_min", "d", "h", "b", "tf", "tw", "t", "As",
+    "designation", "family", "shape", "area", "r_min", "d", "h", "b", "tf", "tw", "t", "r_root", "As",
     "label", "source",
 )
 #: the member-table columns of a section (``table.SECTION_VALUE_COLUMNS``, tested)
-GEOMETRY_COLUMNS: tuple[str, ...] = ("area", "r_min", "d", "h", "b", "tf", "tw", "t")
+GEOMETRY_COLUMNS: tuple[str, ...] = ("area", "r_min", "d", "h", "b", "tf", "tw", "t", "r_root")
 
 _ROUND, _SQUARE, _FLAT, _THREADED = (next(k for k in STOCK_KINDS if k.name == n)
                                      for n in ("round", "square", "flat", "threaded"))
@@ -401,6 +401,9 @@ def _load_shapes(name: str, _stamp: tuple[int, int]) -> pd.DataFrame:
         "designation": df["designation"], "family": df["family"], "shape": df["shape"],
         "area": df["area"], "r_min": df["r_min"],
         **{c: (df[c] if c in df.columns else np.nan) for c in ("d", "h", "b", "tf", "tw", "t")},
+        # the table's r is the root radius of an I, channel or tee (of a tube: its corner radius)
+        "r_root": (df["r"].where(df["shape"].isin([Shape.I_SECTION, Shape.CHANNEL_U, Shape.TEE]))
+                   if "r" in df.columns else np.nan),
         "As": np.nan, "label": df["designation"],
         "source": [f"rulesets/{name}: {s}" for s in df["source"]],
     })
@@ -468,7 +471,7 @@ def catalog_family(section_name: str | None) -> tuple[str, str] | None:
 
 #: member-table columns a candidate replaces
 SECTION_OVERRIDES: tuple[str, ...] = ("shape", "section_name", "profile_type", "area", "area_source", "r_min",
-                                      "r_min_source", "d", "h", "b", "tf", "tw", "t")
+                                      "r_min_source", "d", "h", "b", "tf", "tw", "t", "r_root")
 
 
 def as_members(candidates: pd.DataFrame, *, base: Mapping[str, Any] | None = None,

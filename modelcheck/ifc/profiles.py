@@ -234,6 +234,11 @@ def _placed(p: Any, m: Moments) -> Moments:
     return m.transformed(((u[0], v[0]), (u[1], v[1])), origin)
 
 
+def _root(r: float) -> dict[str, float]:
+    """The ``r_root`` dimension of a root radius the profile gives (none for a sharp corner)."""
+    return {"r_root": r} if r > 0 else {}
+
+
 def _section(p: Any, m: Moments, shape: str, dims: dict[str, float], *, placed: bool = True) -> ProfileSection:
     if placed:
         m = _placed(p, m)
@@ -392,7 +397,7 @@ def i_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
     fl = _Flange(b, tf, _radius(p, "FilletRadius"), _radius(p, "FlangeEdgeRadius"),
                  _slope(p, "FlangeSlope", angle_factor))
     m = _outline(p, _i_corners(p, h, tw, fl, fl))
-    return _section(p, m, Shape.I_SECTION, {"h": h, "b": b, "tw": tw, "tf": tf})
+    return _section(p, m, Shape.I_SECTION, {"h": h, "b": b, "tw": tw, "tf": tf} | _root(fl.r))
 
 
 def asymmetric_i_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -414,7 +419,8 @@ def asymmetric_i_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
     top = _Flange(bt, tft, _radius(p, "TopFlangeFilletRadius"), _radius(p, "TopFlangeEdgeRadius"),
                   _slope(p, "TopFlangeSlope", angle_factor))
     m = _outline(p, _i_corners(p, h, tw, bot, top))
-    return _section(p, m, Shape.I_SECTION, {"h": h, "b": max(bb, bt), "tw": tw, "tf": min(tfb, tft)})
+    return _section(p, m, Shape.I_SECTION, {"h": h, "b": max(bb, bt), "tw": tw, "tf": min(tfb, tft),
+                                            **_root(min(bot.r, top.r))})
 
 
 def l_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -463,7 +469,7 @@ def t_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
         (toe, -h / 2, r3), (xi, yi, r1), (b / 2, h / 2 - tip, r2), (b / 2, h / 2, 0),
         (-b / 2, h / 2, 0), (-b / 2, h / 2 - tip, r2), (-xi, yi, r1), (-toe, -h / 2, r3),
     ])
-    return _section(p, m, Shape.TEE, {"h": h, "b": b, "tw": tw, "tf": tf})
+    return _section(p, m, Shape.TEE, {"h": h, "b": b, "tw": tw, "tf": tf} | _root(r1))
 
 
 def u_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
@@ -484,7 +490,7 @@ def u_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:
         (x0, y0, 0), (b / 2, y0, 0), (b / 2, y0 + tip, r2), (x0 + tw, y0 + web, r1),
         (x0 + tw, -y0 - web, r1), (b / 2, -y0 - tip, r2), (b / 2, -y0, 0), (x0, -y0, 0),
     ])
-    return _section(p, m, Shape.CHANNEL_U, {"h": h, "b": b, "tw": tw, "tf": tf})
+    return _section(p, m, Shape.CHANNEL_U, {"h": h, "b": b, "tw": tw, "tf": tf} | _root(r1))
 
 
 def c_shape(p: Any, *, angle_factor: float = 1.0) -> ProfileSection:

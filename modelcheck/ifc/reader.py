@@ -1098,7 +1098,8 @@ def _doubt_section(sec: Section) -> str | None:
         k, v = next(iter(big.items()))
         return (f"section from {sec.source} has {k} = {v:.4g} m, not plausible for an axial member "
                 f"(over {MAX_SECTION_DIM:g} m); not used")
-    small = {k: v for k, v in sec.dims.items() if not (math.isfinite(v) and v >= MIN_SECTION_DIM)}
+    small = {k: v for k, v in sec.dims.items()   # a radius may be as small as it likes
+             if k != "r_root" and not (math.isfinite(v) and v >= MIN_SECTION_DIM)}
     if small:
         k, v = next(iter(small.items()))
         return (f"section from {sec.source} has {k} = {v * 1e3:.4g} mm, not plausible for an axial member "
@@ -1458,7 +1459,7 @@ def _assemble(path: str, rows: list[MemberRow]) -> pd.DataFrame:
     cols["section_name"] = per(secs, sec_code, lambda s: s.name)
     cols["profile_type"] = per(secs, sec_code, lambda s: s.profile_type)
     cols["shape"] = per(secs, sec_code, lambda s: s.shape)
-    for d in ("d", "h", "b", "tf", "tw", "t"):
+    for d in ("d", "h", "b", "tf", "tw", "t", "r_root"):
         cols[d] = per(secs, sec_code, lambda s, d=d: s.dims.get(d, math.nan), float)
     cols["material"] = per(mats, mat_code, lambda m: m.name)
     cols["material_category"] = per(mats, mat_code, lambda m: m.category)
