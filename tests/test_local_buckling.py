@@ -23,17 +23,17 @@ E_US = 29000.0   # ksi, AISC 360-16 Symbols (from memory)
 E_EU = 210e9     # Pa, EN 1993-1-1 3.2.6 (from memory)
 
 
-def us(shape: str, fy_ksi: float, **dims_in: float) -> dict[str, Any]:
+def us(shape: str, fy_ksi: float, **dims_in: Any) -> dict[str, Any]:
     row: dict[str, Any] = {"shape": shape, "area": 5 * IN**2, "r_min": 1.5 * IN, "length": 60 * IN,
                            "E": E_US * KSI, "Fy": fy_ksi * KSI, "Fu": 65 * KSI, "material": "steel"}
     row.update({k: (v * IN if k != "section_name" else v) for k, v in dims_in.items()})
     return row
 
 
-def eu(shape: str, fy_mpa: float, **dims_mm: float) -> dict[str, Any]:
+def eu(shape: str, fy_mpa: float, **dims_mm: Any) -> dict[str, Any]:
     row: dict[str, Any] = {"shape": shape, "area": 2e-3, "r_min": 0.04, "length": 2.0, "E": E_EU,
                            "Fy": fy_mpa * 1e6, "Fu": 490e6, "material": "S355"}
-    row.update({k: v / 1000 for k, v in dims_mm.items()})
+    row.update({k: (v / 1000 if k != "section_name" else v) for k, v in dims_mm.items()})
     return row
 
 
@@ -185,3 +185,25 @@ def test_the_root_radius_comes_from_the_profile_and_the_shape_table(tmp_path) ->
     assert row["status"] == "pass"
     assert row["demand"]["value"] == pytest.approx((11.9 - 2 * 0.515 - 2 * 0.505) / 0.295
                                                    / (1.49 * math.sqrt(E_US / 50)), rel=1e-5)
+
+
+def test_a_profile_without_its_fillet_takes_the_root_radius_of_the_table_row_its_name_designates() -> None:
+    # many exports leave IfcIShapeProfileDef.FilletRadius out; the name W12X40 designates a row of the
+    # shipped AISC table (r = kdes - tf = 0.505 in, AISC Shapes Database v15.0, from memory), whose
+    # d, bf, tf, tw it matches: h/tw = 33.6, not slender. Without a designation the corner stays sharp.
+    root = math.sqrt(E_US / 50)
+    dims = {"h": 11.9, "b": 8.01, "tf": 0.515, "tw": 0.295}
+    named = us("I", 50, section_name="W-Wide Flange:W12x40", **dims)
+    unnamed = us("I", 50, section_name="Strut", **dims)
+    other = us("I", 50, section_name="W12X40", **{**dims, "h": 12.9})   # not the table's W12X40
+    got = ratios("steel-asd-us", "element-slenderness", named, unnamed, other)
+    assert got == pytest.approx([(11.9 - 2 * 0.515 - 2 * 0.505) / 0.295 / (1.49 * root),
+                                 (11.9 - 2 * 0.515) / 0.295 / (1.49 * root),
+                                 (12.9 - 2 * 0.515) / 0.295 / (1.49 * root)], rel=1e-6)
+    assert [g > 1 for g in got] == [False, True, True]
+    # EN 10365 (from memory): IPE 240, r = 15 mm; S355 web c/t = 190.4 / 6.2 = 30.7 <= 42 ε
+    eps = math.sqrt(235 / 355)
+    (ipe,) = ratios("steel-ec3", "section-class", eu("I", 355, section_name="IPE240", h=240, b=120, tf=9.8, tw=6.2))
+    assert ipe == pytest.approx(max((120 - 6.2 - 30) / 2 / 9.8 / (14 * eps), (240 - 19.6 - 30) / 6.2 / (42 * eps)),
+                                rel=1e-6)
+    assert ipe < 1

@@ -218,6 +218,11 @@ VOCABULARY: tuple[Text | Quantity, ...] = (
              "3/8 in; SHS 150x150x6: 6 mm), where the name's first number is the section's diameter, depth "
              "or width and its wall is 0.90 to 1.02 times the named one", "computed", SMALL_LENGTH, "t named",
              "t_named: the section name states no wall thickness of this section", 0.005, provenance=False),
+    Quantity(None, "r_named", "m", "root radius of the shipped shape-table section (W12X40, IPE 240) that the "
+             "name of an I, channel or tee section designates, where its depth, width and thicknesses match the "
+             "table's", "computed", SMALL_LENGTH, "r named",
+             "r_named: the section name designates no shape-table section of these dimensions", 0.01,
+             provenance=False),
     Text(None, "thread", "standard thread matching the diameter d of a round bar, e.g. 3/8-16 UNC or M10",
          "computed"),
     Text(None, "load_case", "load case name (empty for checks that need no force)", "computed"),
@@ -226,7 +231,7 @@ VOCABULARY: tuple[Text | Quantity, ...] = (
 #: the order of a check's missing inputs: the rule-language names of the quantities, as the
 #: ``missing`` list of an unchecked result names them
 RULE_QUANTITY_ORDER: tuple[str, ...] = (
-    "P", "A", "L", "E", "Fy", "Fu", "r", "alpha", "d", "h", "b", "tf", "tw", "t", "r_root", "t_named", "As", "An", "U",
+    "P", "A", "L", "E", "Fy", "Fu", "r", "alpha", "d", "h", "b", "tf", "tw", "t", "r_root", "r_named", "t_named", "As", "An", "U",
 )
 
 

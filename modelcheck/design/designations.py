@@ -1,4 +1,11 @@
-"""The wall thickness a hollow section's designation names.
+"""What a section's name designates: the nominal wall of a hollow section (``named_wall``), and
+the root radius of a shipped shape-table I, channel or tee section (``named_root``).
+
+An exporter may leave a rolled section's FilletRadius out; its name (W12X40, IPE 240) still
+designates a table row whose root radius the slenderness classification needs, where the
+section's depth, width and thicknesses are the row's.
+
+The wall thickness a hollow section's designation names:
 
 A hollow section's name often states its nominal size: ``HSS6X6X3/8`` (AISC, inches),
 ``HSS6.625X.280`` (round), ``HSS152.4X152.4X9.5`` (AISC, millimetres), ``SHS 150x150x6``,
@@ -103,5 +110,76 @@ def named_wall(names: np.ndarray, shapes: np.ndarray, h: np.ndarray, b: np.ndarr
         if hit is None:
             outsides = (float(d[i]),) if shapes[i] == Shape.ROUND_TUBE else (float(h[i]), float(b[i]))
             hit = seen[key] = wall_of(names[i], shapes[i], outsides, float(t[i]))
+        out[i] = hit
+    return out
+
+
+# ---------------------------------------------------------------------------------------------
+# the root radius of a shape-table section a name designates
+
+#: the shapes whose root radius a shape table gives (``stock`` reads it into ``r_root``)
+_ROOTED = (Shape.I_SECTION, Shape.CHANNEL_U, Shape.TEE)
+#: dimensions of the section that must agree with the designated table row
+_ROW_DIMS = ("h", "b", "tf", "tw")
+
+
+def _compact(text: str) -> str:
+    return re.sub(r"\s+", "", text.upper().replace("×", "X"))
+
+
+def _rooted_rows() -> tuple[re.Pattern[str], dict[str, tuple[str, dict[str, float], float]]]:
+    """One pattern finding any designation of the shipped shape tables' I, channel and tee rows in a
+    compacted name, and for each its (shape, dimensions, root radius) in SI."""
+    global _ROWS
+    if _ROWS is None:
+        from modelcheck.design.shape_tables import TABLES
+        from modelcheck.design.stock import load_shapes
+
+        rows: dict[str, tuple[str, dict[str, float], float]] = {}
+        for table in TABLES:
+            df = load_shapes(table)
+            for rec in df[df["shape"].isin(_ROOTED)].to_dict("records"):
+                if math.isfinite(rec["r_root"]):
+                    rows[_compact(str(rec["designation"]))] = (
+                        str(rec["shape"]), {k: float(rec[k]) for k in _ROW_DIMS}, float(rec["r_root"]))
+        keys = sorted(rows, key=len, reverse=True)   # the longest first: W12X40 before W12X4
+        pattern = re.compile("|".join(f"(?<![A-Z0-9.]){re.escape(k)}(?![0-9.X/])" for k in keys) or r"(?!)")
+        _ROWS = (pattern, rows)
+    return _ROWS
+
+
+_ROWS: tuple[re.Pattern[str], dict[str, tuple[str, dict[str, float], float]]] | None = None
+
+
+def table_root_of(name: Any, shape: Any, dims: dict[str, float]) -> float:
+    """The root radius [m] of the shipped shape-table section that ``name`` designates (W12X40,
+    IPE 240, anywhere in the name), where the section is of that shape and its depth, width and
+    thicknesses (``dims``, m) agree with the table's within ``MATCH_TOLERANCE``; NaN otherwise."""
+    if shape not in _ROOTED or not isinstance(name, str):
+        return math.nan
+    pattern, rows = _rooted_rows()
+    for m in pattern.finditer(_compact(name)):
+        row_shape, row_dims, root = rows[m.group(0)]
+        if row_shape == shape and all(
+                math.isfinite(dims.get(k, math.nan)) and abs(dims[k] - v) <= MATCH_TOLERANCE * v
+                for k, v in row_dims.items()):
+            return root
+    return math.nan
+
+
+def named_root(names: np.ndarray, shapes: np.ndarray, h: np.ndarray, b: np.ndarray, tf: np.ndarray,
+               tw: np.ndarray) -> np.ndarray:
+    """Per member, the root radius [m] of the shape-table section its name designates
+    (``table_root_of``), NaN where none; worked out once per distinct section."""
+    out = np.full(len(names), np.nan)
+    seen: dict[tuple[Any, ...], float] = {}
+    rooted = np.flatnonzero(np.isin(shapes, np.asarray(_ROOTED, dtype=object)))
+    dims = np.stack([h, b, tf, tw], axis=1).astype(float)
+    keys = np.where(np.isnan(dims), -1.0, dims)   # NaN equals nothing, not even itself
+    for i in rooted.tolist():
+        key = (names[i], shapes[i], *keys[i].tolist())
+        hit = seen.get(key)
+        if hit is None:
+            hit = seen[key] = table_root_of(names[i], shapes[i], dict(zip(_ROW_DIMS, dims[i].tolist(), strict=True)))
         out[i] = hit
     return out

@@ -157,6 +157,8 @@ def rating_key(ruleset: RuleSet, members: pd.DataFrame) -> pd.DataFrame:
         for name in ch.inputs | ch.optional:
             if name == "As":
                 cols.update(("d", "shape"))
+            elif name == "r_named":
+                cols.update(("section_name", "shape", "h", "b", "tf", "tw"))
             elif name == "t_named":
                 cols.update(("section_name", "shape", "h", "b", "d", "t"))
             elif name != "P" and MEMBER_QUANTITIES[name].column is not None:

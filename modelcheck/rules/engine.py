@@ -27,7 +27,7 @@ from modelcheck.common.errors import RuleSetError
 from modelcheck.common.table import REJECTED, RESULT_COLUMNS, SECTION_VALUE_COLUMNS, STATUS_RANK, frame_of
 from modelcheck.common.units import Q_, ureg
 from modelcheck.common.vocabulary import Shape
-from modelcheck.design.designations import named_wall
+from modelcheck.design.designations import named_root, named_wall
 from modelcheck.design.screw_threads import thread_tensile_area
 from modelcheck.rules.expr import Cond, Expression, ExpressionError, Text, Value, parse_expression
 from modelcheck.rules.names import MEMBER_QUANTITIES, TEXT_NAMES
@@ -85,6 +85,9 @@ class MemberData:
         if name not in self._numbers:
             if name == "As":
                 self._thread()
+            elif name == "r_named":
+                self._numbers[name] = named_root(self.text("section_name"), self.text("shape"), self.number("h"),
+                                                 self.number("b"), self.number("tf"), self.number("tw"))
             elif name == "t_named":
                 self._numbers[name] = named_wall(self.text("section_name"), self.text("shape"), self.number("h"),
                                                  self.number("b"), self.number("d"), self.number("t"))
