@@ -294,13 +294,7 @@ def _parse(doc: dict[str, Any], problems: Problems[RuleSetError], label: str) ->
                     raise problems.error(f"{where}.{key}", "missing (required)")
                 values.update({key: None, f"{key}_source": None, f"{key}_basis": None})
                 continue
-            if not isinstance(entry, dict) or set(entry) != {"value", "source"}:
-                raise problems.error(f"{where}.{key}", "must be { value = \"<number> <unit>\", source = \"...\" }")
-            if not isinstance(entry["source"], str) or not entry["source"].strip():
-                raise problems.error(f"{where}.{key}.source", "must name the published source of the value")
-            v = quantity_si(entry["value"], key, problems, f"{where}.{key}.value")
-            if v <= 0:
-                raise problems.error(f"{where}.{key}.value", f"must be positive, got {entry['value']!r}")
+            v = _value_entry(problems, f"{where}.{key}", key, entry)
             values.update({key: v, f"{key}_source": f"{label}: {grade}", f"{key}_basis": entry["source"]})
         round_values: list[tuple[str, float, str, str]] = []
         yields: list[tuple[str, float | None, dict[str, Any]]] = [   # (key, SI value, its entry)
@@ -311,13 +305,7 @@ def _parse(doc: dict[str, Any], problems: Problems[RuleSetError], label: str) ->
                 continue
             if values.get(q) is None:
                 raise problems.error(f"{where}.{rkey}", f"given without {q}: {q} is the value for every other shape")
-            if not isinstance(entry, dict) or set(entry) != {"value", "source"}:
-                raise problems.error(f"{where}.{rkey}", "must be { value = \"<number> <unit>\", source = \"...\" }")
-            if not isinstance(entry["source"], str) or not entry["source"].strip():
-                raise problems.error(f"{where}.{rkey}.source", "must name the published source of the value")
-            v = quantity_si(entry["value"], q, problems, f"{where}.{rkey}.value")
-            if v <= 0:
-                raise problems.error(f"{where}.{rkey}.value", f"must be positive, got {entry['value']!r}")
+            v = _value_entry(problems, f"{where}.{rkey}", q, entry)
             round_values.append((q, v, f"{label}: {grade} (round)", entry["source"]))
             yields.append((rkey, v, entry))
         fu = values.get("Fu")
@@ -343,6 +331,19 @@ def _parse(doc: dict[str, Any], problems: Problems[RuleSetError], label: str) ->
                                          **values))
     return MaterialLibrary(path=problems.path, label=label, materials=tuple(materials), patterns=tuple(patterns),
                            category_words=tuple(words), plausible=tuple(plausible))
+
+
+def _value_entry(problems: Problems[RuleSetError], where: str, key: str, entry: Any) -> float:
+    """The SI value of a grade's ``{ value = "<number> <unit>", source = "..." }`` entry at ``where``,
+    a quantity of ``key``'s kind (E, Fy, Fu, alpha); positive, with its published source named."""
+    if not isinstance(entry, dict) or set(entry) != {"value", "source"}:
+        raise problems.error(where, "must be { value = \"<number> <unit>\", source = \"...\" }")
+    if not isinstance(entry["source"], str) or not entry["source"].strip():
+        raise problems.error(f"{where}.source", "must name the published source of the value")
+    v = quantity_si(entry["value"], key, problems, f"{where}.value")
+    if v <= 0:
+        raise problems.error(f"{where}.value", f"must be positive, got {entry['value']!r}")
+    return v
 
 
 def _plausible_entry(problems: Problems[RuleSetError], where: str, cat: str, key: str, entry: Any) -> PlausibleRange:
