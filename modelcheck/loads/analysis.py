@@ -573,9 +573,15 @@ def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: M
         turned = (ends & has_axis & ~doubtful & (across > BENDING_SHARE) & (other_across <= ALONG_SHARE)
                   & (o_size > abs_tol))
     source = np.asarray(rows.source, dtype=object)
+
+    def frames(i: int) -> tuple[str, str, float]:
+        """(the flag, the other frame, the end force read in the other frame) of row ``i``."""
+        if flagged_global[i]:
+            return "GLOBAL_COORDS", "member axes", float(l2[i])
+        return "LOCAL_COORDS", "global axes", float(g2[i])
+
     for i in np.flatnonzero(turned):
-        flag, other = ("GLOBAL_COORDS", "member axes") if flagged_global[i] else ("LOCAL_COORDS", "global axes")
-        o_end = l2[i] if flagged_global[i] else g2[i]
+        flag, other, o_end = frames(i)
         log.add(f"end forces flagged {flag} cross the member, but lie along it when read in {other}: the flag is "
                 "doubtful and the forces are not used (--analysis-frame as-flagged|local|global says which frame "
                 "to trust)", rows.gid[i])
@@ -593,8 +599,7 @@ def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: M
                      f"{rows.source[i].split(' (')[0]}): it carries bending, and an axial force alone does not "
                      "verify it")
     for i in np.flatnonzero(doubtful & ~turned):
-        flag, other = ("GLOBAL_COORDS", "member axes") if flagged_global[i] else ("LOCAL_COORDS", "global axes")
-        o_end = l2[i] if flagged_global[i] else g2[i]
+        flag, other, o_end = frames(i)
         log.add(f"end forces flagged {flag} do not balance along the member, but do when read in {other}: "
                 "the flag is doubtful and the forces are not used (--analysis-frame as-flagged|local|global "
                 "says which frame to trust)", rows.gid[i])
