@@ -580,8 +580,8 @@ def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: M
             return "GLOBAL_COORDS", "member axes", float(l2[i])
         return "LOCAL_COORDS", "global axes", float(g2[i])
 
-    for i in np.flatnonzero(turned).tolist():
-        flag, other, o_end = frames(i)
+    for i in np.flatnonzero(turned):
+        flag, other, o_end = frames(int(i))
         log.add(f"end forces flagged {flag} cross the member, but lie along it when read in {other}: the flag is "
                 "doubtful and the forces are not used (--analysis-frame as-flagged|local|global says which frame "
                 "to trust)", rows.gid[i])
@@ -598,8 +598,8 @@ def _evaluate(rows: _Rows, factor: float, rel_tol: float, abs_tol: float, log: M
         source[i] = (f"P: the analysis gives a force across the member ({across[i]:.0%} of the force; {rows.case[i]}, "
                      f"{rows.source[i].split(' (')[0]}): it carries bending, and an axial force alone does not "
                      "verify it")
-    for i in np.flatnonzero(doubtful & ~turned).tolist():
-        flag, other, o_end = frames(i)
+    for i in np.flatnonzero(doubtful & ~turned):
+        flag, other, o_end = frames(int(i))
         log.add(f"end forces flagged {flag} do not balance along the member, but do when read in {other}: "
                 "the flag is doubtful and the forces are not used (--analysis-frame as-flagged|local|global "
                 "says which frame to trust)", rows.gid[i])
