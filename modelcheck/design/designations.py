@@ -34,9 +34,11 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Callable
 from typing import Any
 
 import numpy as np
+import pandas as pd
 
 from modelcheck.common.vocabulary import Shape
 
@@ -94,24 +96,29 @@ def wall_of(name: Any, shape: Any, outsides: tuple[float, ...], t: float) -> flo
     return math.nan
 
 
+def _per_section(shapes: np.ndarray, of: tuple[str, ...], columns: list[np.ndarray],
+                 value: Callable[..., float]) -> np.ndarray:
+    """``value(name, shape, *numbers)`` per member whose shape is one ``of``, NaN for the others;
+    computed once per distinct (section name, shape, numbers): members share few sections."""
+    out = np.full(len(shapes), np.nan)
+    rows = np.flatnonzero(np.isin(shapes, np.asarray(of, dtype=object)))
+    if not len(rows):
+        return out
+    picked = [np.asarray(c)[rows] for c in columns]
+    codes, distinct = pd.MultiIndex.from_arrays(picked).factorize()   # NaN equal to NaN here
+    found = np.array([value(*key) for key in distinct], dtype=float)
+    out[rows] = found[codes]
+    return out
+
+
 def named_wall(names: np.ndarray, shapes: np.ndarray, h: np.ndarray, b: np.ndarray, d: np.ndarray,
                t: np.ndarray) -> np.ndarray:
     """Per member, the nominal wall thickness [m] its section name states (``wall_of``), NaN
-    where it states none; worked out once per distinct section."""
-    out = np.full(len(names), np.nan)
-    seen: dict[tuple[Any, ...], float] = {}
-    tubes = np.flatnonzero(np.isin(shapes, np.asarray([Shape.RECT_TUBE, Shape.ROUND_TUBE], dtype=object)))
-    dims = np.stack([h, b, d, t], axis=1).astype(float)
-    dims[np.isnan(dims)] = -1.0   # a key of equal values: NaN equals nothing, not even itself
-    for i in tubes.tolist():
-        hh, bb, dd, tt = dims[i].tolist()
-        key = (names[i], shapes[i], hh, bb, dd, tt)
-        hit = seen.get(key)
-        if hit is None:
-            outsides = (float(d[i]),) if shapes[i] == Shape.ROUND_TUBE else (float(h[i]), float(b[i]))
-            hit = seen[key] = wall_of(names[i], shapes[i], outsides, float(t[i]))
-        out[i] = hit
-    return out
+    where it states none."""
+    def wall(name: Any, shape: Any, hh: float, bb: float, dd: float, tt: float) -> float:
+        return wall_of(name, shape, (dd,) if shape == Shape.ROUND_TUBE else (hh, bb), tt)
+
+    return _per_section(shapes, (Shape.RECT_TUBE, Shape.ROUND_TUBE), [names, shapes, h, b, d, t], wall)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -170,16 +177,8 @@ def table_root_of(name: Any, shape: Any, dims: dict[str, float]) -> float:
 def named_root(names: np.ndarray, shapes: np.ndarray, h: np.ndarray, b: np.ndarray, tf: np.ndarray,
                tw: np.ndarray) -> np.ndarray:
     """Per member, the root radius [m] of the shape-table section its name designates
-    (``table_root_of``), NaN where none; worked out once per distinct section."""
-    out = np.full(len(names), np.nan)
-    seen: dict[tuple[Any, ...], float] = {}
-    rooted = np.flatnonzero(np.isin(shapes, np.asarray(_ROOTED, dtype=object)))
-    dims = np.stack([h, b, tf, tw], axis=1).astype(float)
-    keys = np.where(np.isnan(dims), -1.0, dims)   # NaN equals nothing, not even itself
-    for i in rooted.tolist():
-        key = (names[i], shapes[i], *keys[i].tolist())
-        hit = seen.get(key)
-        if hit is None:
-            hit = seen[key] = table_root_of(names[i], shapes[i], dict(zip(_ROW_DIMS, dims[i].tolist(), strict=True)))
-        out[i] = hit
-    return out
+    (``table_root_of``), NaN where none."""
+    def root(name: Any, shape: Any, *dims: float) -> float:
+        return table_root_of(name, shape, dict(zip(_ROW_DIMS, dims, strict=True)))
+
+    return _per_section(shapes, _ROOTED, [names, shapes, h, b, tf, tw], root)
